@@ -1,0 +1,10 @@
+/**
+ * Every migration, in order. Add a new file named `YYYYMMDD-HHMM-what.ts` exporting
+ * `migration` and list it here (an explicit list works the same under tsx, Vite and Node).
+ */
+import type { Migration } from './types.ts';
+import { migration as m0900 } from './20261202-0900-plant-users-audit.ts';
+import { migration as m0910 } from './20261202-0910-readings.ts';
+import { migration as m0920 } from './20261202-0920-auth.ts';
+
+export const migrations: Migration[] = [m0900, m0910, m0920];

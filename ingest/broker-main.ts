@@ -1,0 +1,27 @@
+/** The broker process: `tsx ingest/broker-main.ts` (started by `npm start`). */
+import { createPool } from '../db/connection.ts';
+import { startBroker } from './broker.ts';
+import { loadConfig } from './config.ts';
+
+const config = loadConfig();
+const pool = createPool({ url: config.DATABASE_URL, max: 3 });
+const log = (s: string) => console.log(`[broker] ${s}`);
+const broker = await startBroker({
+  pool,
+  host: config.MQTT_HOST,
+  port: config.MQTT_PORT,
+  wsPort: config.MQTT_WS_PORT,
+  servicePassword: config.MQTT_SERVICE_PASSWORD,
+  log,
+}).catch((e: NodeJS.ErrnoException) => {
+  console.error(e.code === 'EADDRINUSE' ? `[broker] port ${config.MQTT_PORT} is taken; set MQTT_PORT to a free port.` : `[broker] ${e.message}`);
+  process.exit(1);
+});
+
+const stop = async () => {
+  await broker.close();
+  await pool.end();
+  process.exit(0);
+};
+process.once('SIGTERM', stop);
+process.once('SIGINT', stop);

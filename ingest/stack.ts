@@ -1,0 +1,161 @@
+/**
+ * `npm start`: the whole product on one machine. Builds the web app when needed, starts
+ * PostgreSQL (db/pg-control.ts), migrates, seeds the demo plant into an empty database,
+ * starts the local fake SMTP server, the MQTT broker, the ingest worker, the web server and
+ * the demo-plant simulator, prints where to go, and on Ctrl-C / SIGTERM stops every process
+ * it started and the database, leaving nothing behind.
+ */
+import { spawn, type ChildProcess } from 'node:child_process';
+import { randomBytes } from 'node:crypto';
+import fs from 'node:fs';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { createPool, createSequelize } from '../db/connection.ts';
+import { migrateUp } from '../db/migrate.ts';
+import { PgControlError, portInUse, startLocalPostgres, stopLocalPostgresSync, type LocalPg } from '../db/pg-control.ts';
+import { seedAll } from '../seeds/index.ts';
+import { DEMO_USERS } from '../seeds/demo-plant.ts';
+import { buildIfNeeded } from './build.ts';
+import { startFakeSmtp, type FakeSmtp } from './fake-smtp.ts';
+
+const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
+const varDir = path.join(root, 'var');
+const DEFAULT_DEMO_PASSWORD = 'fernhollow-demo';
+
+const env = process.env;
+const PORT = Number(env['PORT'] ?? 4321);
+const HOST = env['HOST'] ?? '127.0.0.1';
+const MQTT_PORT = Number(env['MQTT_PORT'] ?? 1883);
+const demoPassword = env['DEMO_PASSWORD'] ?? DEFAULT_DEMO_PASSWORD;
+const simulate = !['0', 'false', 'no'].includes((env['SIMULATOR'] ?? '1').toLowerCase());
+
+const say = (s: string) => console.log(`[coatrail] ${s}`);
+const children: { name: string; proc: ChildProcess }[] = [];
+let pgHandle: LocalPg | null = null;
+let smtp: FakeSmtp | null = null;
+let stopping = false;
+
+class StartError extends Error {}
+
+/** Local secrets kept in the git-ignored var/ folder (generated once). */
+function localSecrets(): { deviceSecret: string } {
+  const file = path.join(varDir, 'local-secrets.json');
+  if (fs.existsSync(file)) return JSON.parse(fs.readFileSync(file, 'utf8'));
+  const s = { deviceSecret: randomBytes(24).toString('base64url') };
+  fs.mkdirSync(varDir, { recursive: true });
+  fs.writeFileSync(file, JSON.stringify(s), { mode: 0o600 });
+  return s;
+}
+
+function startChild(name: string, args: string[], childEnv: NodeJS.ProcessEnv): ChildProcess {
+  const proc = spawn(process.execPath, args, { cwd: root, env: childEnv, stdio: ['ignore', 'inherit', 'inherit'] });
+  children.push({ name, proc });
+  proc.on('exit', (code, signal) => {
+    if (stopping) return;
+    say(`${name} stopped (${signal ?? `exit ${code}`}); shutting everything down.`);
+    void shutdown(1);
+  });
+  return proc;
+}
+
+async function waitForHttp(url: string, timeoutMs: number): Promise<void> {
+  const until = Date.now() + timeoutMs;
+  while (Date.now() < until) {
+    try {
+      const r = await fetch(url);
+      if (r.status < 500 || r.status === 503) return;
+    } catch {
+      /* not up yet */
+    }
+    await new Promise((r) => setTimeout(r, 250));
+  }
+  throw new StartError(`The web server did not answer at ${url} within ${timeoutMs / 1000} s.`);
+}
+
+async function shutdown(code: number): Promise<never> {
+  if (stopping) return new Promise<never>(() => {});
+  stopping = true;
+  say('Stopping…');
+  for (const { proc } of [...children].reverse()) if (proc.exitCode === null) proc.kill('SIGTERM');
+  const deadline = Date.now() + 8000;
+  for (const { proc } of children) {
+    while (proc.exitCode === null && proc.signalCode === null && Date.now() < deadline) await new Promise((r) => setTimeout(r, 100));
+    if (proc.exitCode === null && proc.signalCode === null) proc.kill('SIGKILL');
+  }
+  await smtp?.close().catch(() => {});
+  if (pgHandle?.owned) stopLocalPostgresSync(path.join(varDir, 'pg'));
+  say('Stopped.');
+  process.exit(code);
+}
+
+async function main(): Promise<void> {
+  process.once('SIGINT', () => void shutdown(0));
+  process.once('SIGTERM', () => void shutdown(0));
+  for (const [what, port, variable] of [['web server', PORT, 'PORT'], ['MQTT broker', MQTT_PORT, 'MQTT_PORT']] as const) {
+    if (!env['MQTT_URL'] || what !== 'MQTT broker') {
+      if (await portInUse(port)) throw new StartError(`Port ${port} for the ${what} is already taken; set ${variable} to a free port.`);
+    }
+  }
+  try {
+    buildIfNeeded(root, say);
+  } catch (e) {
+    throw new StartError((e as Error).message);
+  }
+
+  pgHandle = await startLocalPostgres({
+    baseDir: path.join(varDir, 'pg'),
+    database: 'coatrail',
+    port: env['PG_PORT'] ? Number(env['PG_PORT']) : undefined,
+    log: say,
+  });
+  say(env['DATABASE_URL'] ? 'Using the PostgreSQL server in DATABASE_URL.' : `PostgreSQL on 127.0.0.1:${pgHandle.port} (data in var/pg).`);
+  const sequelize = createSequelize({ url: pgHandle.url, max: 2 });
+  try {
+    const applied = await migrateUp(sequelize);
+    if (applied.length) say(`Applied ${applied.length} migration(s).`);
+  } catch (e) {
+    throw new StartError(`A database migration failed: ${(e as Error).message}`);
+  }
+  const { deviceSecret } = localSecrets();
+  await seedAll(sequelize, { demoPassword, deviceSecret, log: say });
+  await sequelize.close();
+
+  const pool = createPool({ url: pgHandle.url, max: 2 });
+  let smtpUrl = env['SMTP_URL'];
+  if (!smtpUrl) {
+    smtp = await startFakeSmtp(pool, 0, say);
+    smtpUrl = smtp.url;
+  }
+
+  const servicePassword = env['MQTT_SERVICE_PASSWORD'] ?? randomBytes(18).toString('base64url');
+  const childEnv: NodeJS.ProcessEnv = {
+    ...env,
+    DATABASE_URL: pgHandle.url,
+    MQTT_PORT: String(MQTT_PORT),
+    MQTT_SERVICE_PASSWORD: servicePassword,
+    SMTP_URL: smtpUrl,
+    SIM_DEVICE_SECRET: deviceSecret,
+    HOST,
+    PORT: String(PORT),
+    ASTRO_TELEMETRY_DISABLED: '1',
+    PUBLIC_ORIGIN: env['PUBLIC_ORIGIN'] ?? `http://${HOST}:${PORT}`,
+  };
+  const tsx = ['--import', 'tsx'];
+  if (!env['MQTT_URL']) startChild('broker', [...tsx, 'ingest/broker-main.ts'], childEnv);
+  startChild('ingest worker', [...tsx, 'ingest/main.ts'], childEnv);
+  startChild('web server', ['dist/server/entry.mjs'], childEnv);
+  const origin = `http://${HOST}:${PORT}`;
+  await waitForHttp(`${origin}/api/health`, 30_000);
+  if (simulate) startChild('simulator', [...tsx, 'seeds/simulator.ts'], childEnv);
+  console.log('');
+  say(`Coatrail is running at ${origin}`);
+  say(`Demo users: ${DEMO_USERS.map((u) => u.username).join(', ')} — password: ${env['DEMO_PASSWORD'] ? '(from DEMO_PASSWORD)' : DEFAULT_DEMO_PASSWORD}`);
+  say(`MQTT broker on ${env['MQTT_URL'] ?? `mqtt://127.0.0.1:${MQTT_PORT}`}; caught e-mail: ${origin}/admin/mail${simulate ? '; the demo-plant simulator is publishing' : ''}.`);
+  say('Press Ctrl-C to stop everything.');
+}
+
+main().catch(async (e) => {
+  if (e instanceof StartError || e instanceof PgControlError) console.error(`[coatrail] Cannot start: ${e.message}`);
+  else console.error('[coatrail] Cannot start:', e);
+  await shutdown(1);
+});

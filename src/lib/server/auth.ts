@@ -1,0 +1,190 @@
+/**
+ * Sessions with lucia v3 over our Sequelize models (a small adapter), argon2id passwords,
+ * API tokens for machine clients, brute-force throttling kept in PostgreSQL, and the
+ * electronic-signature check (US 21 CFR Part 11 §11.200: re-enter the password).
+ */
+import { createHash, randomBytes } from 'node:crypto';
+import { Lucia, TimeSpan, type Adapter, type DatabaseSession, type DatabaseUser } from 'lucia';
+import { Op } from 'sequelize';
+import { ApiToken, LoginThrottle, User, UserSession, type SignatureRecord } from '../../../db/models/index.ts';
+import type { Role } from '../shared/roles.ts';
+import { audit } from './audit.ts';
+import { db } from './db.ts';
+import { HttpProblem } from './http.ts';
+import { dummyHash, verifyPassword } from './passwords.ts';
+
+export interface SessionUser {
+  id: number;
+  username: string;
+  displayName: string;
+  role: Role;
+  /** How the request is authenticated. */
+  via: 'session' | 'token';
+  tokenId?: number;
+}
+
+const adapter: Adapter = {
+  async getSessionAndUser(sessionId) {
+    db();
+    const s = await UserSession.findByPk(sessionId);
+    if (!s) return [null, null];
+    const u = await User.findByPk(s.userId);
+    if (!u || !u.active) return [null, null];
+    const session: DatabaseSession = { id: s.id, userId: s.userId, expiresAt: s.expiresAt, attributes: {} };
+    const user: DatabaseUser = {
+      id: u.id,
+      attributes: { username: u.username, displayName: u.displayName, role: u.role },
+    };
+    return [session, user];
+  },
+  async getUserSessions(userId) {
+    db();
+    const rows = await UserSession.findAll({ where: { userId: userId as number } });
+    return rows.map((s) => ({ id: s.id, userId: s.userId, expiresAt: s.expiresAt, attributes: {} }));
+  },
+  async setSession(session) {
+    db();
+    await UserSession.create({ id: session.id, userId: session.userId as number, expiresAt: session.expiresAt });
+  },
+  async updateSessionExpiration(sessionId, expiresAt) {
+    db();
+    await UserSession.update({ expiresAt }, { where: { id: sessionId } });
+  },
+  async deleteSession(sessionId) {
+    db();
+    await UserSession.destroy({ where: { id: sessionId } });
+  },
+  async deleteUserSessions(userId) {
+    db();
+    await UserSession.destroy({ where: { userId: userId as number } });
+  },
+  async deleteExpiredSessions() {
+    db();
+    await UserSession.destroy({ where: { expiresAt: { [Op.lt]: new Date() } } });
+  },
+};
+
+export const lucia = new Lucia(adapter, {
+  // A shift plus margin; lucia extends a session used in its second half (sliding expiry).
+  sessionExpiresIn: new TimeSpan(12, 'h'),
+  sessionCookie: { name: 'coatrail_session', attributes: { sameSite: 'lax', secure: false } },
+  getUserAttributes: (a) => ({ username: a.username, displayName: a.displayName, role: a.role }),
+});
+
+declare module 'lucia' {
+  interface Register {
+    Lucia: typeof lucia;
+    UserId: number;
+    DatabaseUserAttributes: { username: string; displayName: string; role: Role };
+  }
+}
+
+export const sha256 = (s: string) => createHash('sha256').update(s).digest('hex');
+
+/** Resolve `Authorization: Bearer <token>`; null when absent, a 401 problem when wrong. */
+export async function userFromBearer(header: string | null, address: string | null): Promise<SessionUser | null> {
+  if (!header) return null;
+  const m = /^Bearer\s+(\S+)$/i.exec(header);
+  if (!m?.[1]) throw new HttpProblem(401, 'Not signed in', 'The Authorization header must be "Bearer <token>".');
+  db();
+  const token = await ApiToken.findOne({ where: { tokenHash: sha256(m[1]) } });
+  if (!token || token.revokedAt) throw new HttpProblem(401, 'Not signed in', 'The API token is unknown or revoked.');
+  const creator = await User.findByPk(token.createdBy);
+  const now = new Date();
+  // Record last use at most once a minute per token.
+  if (!token.lastUsedAt || now.getTime() - token.lastUsedAt.getTime() > 60_000) {
+    await ApiToken.update({ lastUsedAt: now }, { where: { id: token.id } });
+    void address;
+  }
+  return {
+    id: token.createdBy,
+    username: `token:${token.name}`,
+    displayName: `API token “${token.name}” (issued by ${creator?.username ?? 'unknown'})`,
+    role: token.role,
+    via: 'token',
+    tokenId: token.id,
+  };
+}
+
+/** A new API token: the secret is returned once, only its hash is stored. */
+export function newTokenSecret(): { secret: string; hash: string; prefix: string } {
+  const secret = 'ct_' + randomBytes(24).toString('base64url');
+  return { secret, hash: sha256(secret), prefix: secret.slice(0, 8) };
+}
+
+// --- brute-force protection -------------------------------------------------------------
+
+/** Policy (common practice, cf. OWASP Authentication Cheat Sheet): slow after 3, lock after 8. */
+export const THROTTLE = {
+  slowAfter: 3,
+  slowStepMs: 500,
+  slowMaxMs: 3_000,
+  lockAfterUser: 8,
+  lockAfterAddress: 30,
+  lockMinutes: 15,
+  resetAfterMinutes: 60,
+};
+
+async function throttleState(key: string) {
+  const row = await LoginThrottle.findByPk(key);
+  if (!row) return { failures: 0, lockedUntil: null as Date | null };
+  const stale = row.lastFailureAt && Date.now() - row.lastFailureAt.getTime() > THROTTLE.resetAfterMinutes * 60_000;
+  return { failures: stale ? 0 : row.failures, lockedUntil: row.lockedUntil };
+}
+
+async function recordFailure(key: string, lockAfter: number, address: string | null): Promise<void> {
+  const st = await throttleState(key);
+  const failures = st.failures + 1;
+  const lock = failures >= lockAfter ? new Date(Date.now() + THROTTLE.lockMinutes * 60_000) : null;
+  await LoginThrottle.upsert({ key, failures, lastFailureAt: new Date(), lockedUntil: lock ?? st.lockedUntil });
+  if (lock && failures === lockAfter) {
+    await audit({ id: null, label: 'system', address }, { action: 'auth.locked', entity: 'login', entityId: key, after: { lockedUntil: lock.toISOString(), failures } });
+  }
+}
+
+const LOGIN_FAILED = 'The username or password is not right, or the account is not active.';
+
+/**
+ * Check a username and password with throttling. Every failure gives the same message
+ * (no user enumeration); a locked key answers 429.
+ */
+export async function checkCredentials(username: string, password: string, address: string | null): Promise<User> {
+  db();
+  const uname = username.trim().toLowerCase();
+  const keys = [`user:${uname}`, `ip:${address ?? 'unknown'}`] as const;
+  const [us, as] = await Promise.all(keys.map(throttleState));
+  const now = Date.now();
+  for (const st of [us!, as!]) {
+    if (st.lockedUntil && st.lockedUntil.getTime() > now) {
+      const minutes = Math.ceil((st.lockedUntil.getTime() - now) / 60_000);
+      throw new HttpProblem(429, 'Too many failed sign-ins', `Sign-in is locked for about ${minutes} more minute(s). An administrator can see the lock.`);
+    }
+  }
+  const delay = Math.min(THROTTLE.slowMaxMs, Math.max(0, us!.failures - THROTTLE.slowAfter + 1) * THROTTLE.slowStepMs);
+  if (delay > 0) await new Promise((r) => setTimeout(r, delay));
+  const user = await User.findOne({ where: { username: uname } });
+  const ok = user ? await verifyPassword(user.passwordHash, password) : (await verifyPassword(await dummyHash(), password), false);
+  if (!user || !ok || !user.active) {
+    await recordFailure(keys[0], THROTTLE.lockAfterUser, address);
+    await recordFailure(keys[1], THROTTLE.lockAfterAddress, address);
+    await audit({ id: user?.id ?? null, label: uname || '(blank)', address }, { action: 'auth.failed', entity: 'login', entityId: uname });
+    throw new HttpProblem(401, 'Sign-in failed', LOGIN_FAILED);
+  }
+  await LoginThrottle.destroy({ where: { key: keys[0] } });
+  return user;
+}
+
+/**
+ * Electronic signature: the signer re-enters the password; returns what is stored with the
+ * signed record (printed name, date-time, meaning — 21 CFR 11.50).
+ */
+export async function signWithPassword(actor: SessionUser, password: string, meaning: string, address: string | null): Promise<SignatureRecord> {
+  if (actor.via !== 'session') throw new HttpProblem(403, 'Signature needs a person', 'An API token cannot sign records.');
+  db();
+  const user = await User.findByPk(actor.id);
+  if (!user || !(await verifyPassword(user.passwordHash, password))) {
+    await audit({ id: actor.id, label: actor.username, address }, { action: 'signature.failed', entity: 'signature', after: { meaning } });
+    throw new HttpProblem(403, 'Signature refused', 'The password does not match the signed-in user.', { errors: [{ path: 'password', message: 'The password does not match.' }] });
+  }
+  return { userId: user.id, username: user.username, displayName: user.displayName, meaning, signedAt: new Date().toISOString() };
+}
