@@ -91,7 +91,7 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
     const topic = packet.topic;
     if (!id) return done(new Error('not authenticated'));
     if (id.kind === 'device' && id.prefix && isUnder(topic, id.prefix)) return done(null);
-    if (id.kind === 'svc-ingest' && isUnder(topic, LIVE_ROOT)) return done(null);
+    if ((id.kind === 'svc-ingest' || id.kind === 'svc-web') && isUnder(topic, LIVE_ROOT)) return done(null);
     done(new Error(`publishing to ${topic} is not allowed for this identity`));
   };
 

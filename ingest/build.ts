@@ -15,6 +15,29 @@ function newestMtime(dir: string): number {
 
 /** Returns true when it built. Throws with a plain message when the build fails. */
 export function buildIfNeeded(root: string, log: (s: string) => void = () => {}): boolean {
+  // Several test runs may start at once (contributors' parallel runs): one builds at a time.
+  const lock = path.join(root, 'var', 'build.lock');
+  fs.mkdirSync(path.dirname(lock), { recursive: true });
+  const until = Date.now() + 180_000;
+  for (;;) {
+    try {
+      fs.mkdirSync(lock);
+      break;
+    } catch {
+      const age = Date.now() - (fs.statSync(lock, { throwIfNoEntry: false })?.mtimeMs ?? Date.now());
+      if (age > 180_000) fs.rmSync(lock, { recursive: true, force: true });
+      if (Date.now() > until) throw new Error('Another build held var/build.lock for 3 minutes.');
+      Atomics.wait(new Int32Array(new SharedArrayBuffer(4)), 0, 0, 250);
+    }
+  }
+  try {
+    return buildLocked(root, log);
+  } finally {
+    fs.rmSync(lock, { recursive: true, force: true });
+  }
+}
+
+function buildLocked(root: string, log: (s: string) => void): boolean {
   const entry = path.join(root, 'dist', 'server', 'entry.mjs');
   const newest = Math.max(
     ...['src', 'public', 'db', 'seeds'].map((d) => newestMtime(path.join(root, d))),

@@ -57,3 +57,8 @@ export function brokerLink(): BrokerLink {
   }
   return link;
 }
+
+/** Publish a live event from the web server (e.g. an acknowledgement) to every open stream, via the broker. */
+export function publishLive(kind: string, payload: unknown): void {
+  brokerLink().client?.publish(`coatrail/v1/_live/${kind}`, JSON.stringify(payload), { qos: 0 });
+}

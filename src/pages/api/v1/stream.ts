@@ -1,0 +1,52 @@
+import type { APIRoute } from 'astro';
+import { brokerLink, type LiveMessage } from '../../../lib/server/broker-link.ts';
+import { requireRole } from '../../../lib/server/guard.ts';
+
+/**
+ * Live updates for islands as server-sent events (signed-in users only). The ingest worker
+ * (and the web server itself) publish to `coatrail/v1/_live/{kind}`; each becomes an SSE
+ * event named {kind}: readings, alarms, points, devices, loads.
+ */
+export const GET: APIRoute = async ({ locals, url, request }) => {
+  requireRole(locals, 'view');
+  const wanted = new Set((url.searchParams.get('kinds') ?? '').split(',').filter(Boolean));
+  const link = brokerLink();
+  const enc = new TextEncoder();
+  let onLive: ((m: LiveMessage) => void) | null = null;
+  let ping: ReturnType<typeof setInterval> | null = null;
+  const stream = new ReadableStream<Uint8Array>({
+    start(controller) {
+      const send = (s: string) => {
+        try {
+          controller.enqueue(enc.encode(s));
+        } catch {
+          /* closed */
+        }
+      };
+      send(`retry: 2000\n: connected\n\n`);
+      onLive = (m) => {
+        const kind = m.topic.split('/')[3] ?? 'misc';
+        if (wanted.size && !wanted.has(kind)) return;
+        send(`event: ${kind}\ndata: ${JSON.stringify(m.payload)}\n\n`);
+      };
+      link.on('live', onLive);
+      ping = setInterval(() => send(': ping\n\n'), 15_000);
+      request.signal.addEventListener('abort', () => {
+        if (onLive) link.off('live', onLive);
+        if (ping) clearInterval(ping);
+        try {
+          controller.close();
+        } catch {
+          /* already closed */
+        }
+      });
+    },
+    cancel() {
+      if (onLive) link.off('live', onLive);
+      if (ping) clearInterval(ping);
+    },
+  });
+  return new Response(stream, {
+    headers: { 'content-type': 'text/event-stream', 'cache-control': 'no-store', connection: 'keep-alive', 'x-accel-buffering': 'no' },
+  });
+};
