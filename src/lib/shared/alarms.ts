@@ -10,6 +10,7 @@
  * Nothing here is a safety system: Coatrail's alarms are advisory (product brief §8).
  */
 import { z } from 'zod';
+import { ROLES, type Role } from './roles';
 
 // ---------------------------------------------------------------------------------------------
 // Vocabulary
@@ -22,13 +23,13 @@ import { z } from 'zod';
  * `out-of-service`. Transitions live in `lib/domain/alarms/state.ts`.
  */
 export const ALARM_STATES = [
-	'normal',
-	'unacked',
-	'acked',
-	'rtn-unacked',
-	'shelved',
-	'suppressed',
-	'out-of-service',
+  'normal',
+  'unacked',
+  'acked',
+  'rtn-unacked',
+  'shelved',
+  'suppressed',
+  'out-of-service',
 ] as const;
 
 /** One alarm state (see {@link ALARM_STATES}); validates e.g. `GET /api/v1/alarms?state=…`. */
@@ -54,18 +55,19 @@ export type AlarmPriority = z.infer<typeof AlarmPrioritySchema>;
 
 /** The documented meaning of each priority, in plain words for screens and the alarm philosophy page. */
 export const PRIORITY_MEANINGS: Readonly<Record<AlarmPriority, string>> = {
-	high: 'Act within minutes: product is at risk now',
-	medium: 'Act this shift: the process is drifting',
-	low: 'For awareness: no product at risk yet',
+  high: 'Act within minutes: product is at risk now',
+  medium: 'Act this shift: the process is drifting',
+  low: 'For awareness: no product at risk yet',
 };
 
 /**
- * Roles of the product (product brief §2) plus `system`, the actor for process-driven events
- * (the ingest worker reporting the condition, suppression by design, shelf expiry).
+ * Who performs an alarm event: one of the product's roles (`lib/shared/roles.ts`, product
+ * brief §2) or `system`, the actor for process-driven events (the ingest worker reporting the
+ * condition, suppression by design, shelf expiry).
  */
-export const ALARM_ACTORS = ['operator', 'engineer', 'quality', 'admin', 'viewer', 'system'] as const;
+export const ALARM_ACTORS = [...ROLES, 'system'] as const;
 /** Who performs an alarm event (see {@link ALARM_ACTORS}). */
-export type AlarmActor = (typeof ALARM_ACTORS)[number];
+export type AlarmActor = Role | 'system';
 
 /** Longest acknowledgement comment or reason, in characters. */
 export const ALARM_TEXT_MAX = 500;
@@ -86,16 +88,16 @@ export const BULK_ACK_MAX = 200;
 // ---------------------------------------------------------------------------------------------
 
 const commentField = z
-	.string()
-	.trim()
-	.min(1, 'an acknowledgement needs a comment')
-	.max(ALARM_TEXT_MAX, `at most ${ALARM_TEXT_MAX} characters`);
+  .string()
+  .trim()
+  .min(1, 'an acknowledgement needs a comment')
+  .max(ALARM_TEXT_MAX, `at most ${ALARM_TEXT_MAX} characters`);
 
 const reasonField = z
-	.string()
-	.trim()
-	.min(ALARM_REASON_MIN, `give a reason of at least ${ALARM_REASON_MIN} characters`)
-	.max(ALARM_TEXT_MAX, `at most ${ALARM_TEXT_MAX} characters`);
+  .string()
+  .trim()
+  .min(ALARM_REASON_MIN, `give a reason of at least ${ALARM_REASON_MIN} characters`)
+  .max(ALARM_TEXT_MAX, `at most ${ALARM_TEXT_MAX} characters`);
 
 /**
  * Body of `POST /api/v1/alarms/{id}/ack`: the operator's comment, 1–500 characters after
@@ -111,12 +113,12 @@ export type AckAlarm = z.infer<typeof AckAlarmSchema>;
  * Each alarm is still acknowledged (and audited) individually.
  */
 export const BulkAckSchema = z.object({
-	ids: z
-		.array(z.number().int().positive())
-		.min(1, 'choose at least one alarm')
-		.max(BULK_ACK_MAX, `at most ${BULK_ACK_MAX} alarms at once`)
-		.refine((ids) => new Set(ids).size === ids.length, 'each alarm may be listed only once'),
-	comment: commentField,
+  ids: z
+    .array(z.number().int().positive())
+    .min(1, 'choose at least one alarm')
+    .max(BULK_ACK_MAX, `at most ${BULK_ACK_MAX} alarms at once`)
+    .refine((ids) => new Set(ids).size === ids.length, 'each alarm may be listed only once'),
+  comment: commentField,
 });
 /** Bulk acknowledgement request. */
 export type BulkAck = z.infer<typeof BulkAckSchema>;
@@ -128,12 +130,12 @@ export type BulkAck = z.infer<typeof BulkAckSchema>;
  * now + minutes.
  */
 export const ShelveAlarmSchema = z.object({
-	minutes: z
-		.number()
-		.int('whole minutes')
-		.min(SHELVE_MINUTES_MIN, `at least ${SHELVE_MINUTES_MIN} minute`)
-		.max(SHELVE_MINUTES_MAX, `at most ${SHELVE_MINUTES_MAX} minutes (24 h)`),
-	reason: reasonField,
+  minutes: z
+    .number()
+    .int('whole minutes')
+    .min(SHELVE_MINUTES_MIN, `at least ${SHELVE_MINUTES_MIN} minute`)
+    .max(SHELVE_MINUTES_MAX, `at most ${SHELVE_MINUTES_MAX} minutes (24 h)`),
+  reason: reasonField,
 });
 /** Shelving request. */
 export type ShelveAlarm = z.infer<typeof ShelveAlarmSchema>;
@@ -163,22 +165,22 @@ const finite = z.number();
  * - `priority`.
  */
 export const LimitAlarmConfigSchema = z
-	.object({
-		high: finite.optional(),
-		low: finite.optional(),
-		deadband: finite.min(0, 'deadband cannot be negative'),
-		onDelayMs: z.number().int().min(0).max(LIMIT_DELAY_MAX_MS),
-		offDelayMs: z.number().int().min(0).max(LIMIT_DELAY_MAX_MS),
-		priority: AlarmPrioritySchema,
-	})
-	.refine((c) => c.high !== undefined || c.low !== undefined, {
-		message: 'set a high limit, a low limit or both',
-		path: ['high'],
-	})
-	.refine((c) => c.high === undefined || c.low === undefined || c.low < c.high, {
-		message: 'the low limit must be below the high limit',
-		path: ['low'],
-	});
+  .object({
+    high: finite.optional(),
+    low: finite.optional(),
+    deadband: finite.min(0, 'deadband cannot be negative'),
+    onDelayMs: z.number().int().min(0).max(LIMIT_DELAY_MAX_MS),
+    offDelayMs: z.number().int().min(0).max(LIMIT_DELAY_MAX_MS),
+    priority: AlarmPrioritySchema,
+  })
+  .refine((c) => c.high !== undefined || c.low !== undefined, {
+    message: 'set a high limit, a low limit or both',
+    path: ['high'],
+  })
+  .refine((c) => c.high === undefined || c.low === undefined || c.low < c.high, {
+    message: 'the low limit must be below the high limit',
+    path: ['low'],
+  });
 /** High/low limit alarm settings. */
 export type LimitAlarmConfig = z.infer<typeof LimitAlarmConfigSchema>;
 
@@ -189,13 +191,13 @@ export type LimitAlarmConfig = z.infer<typeof LimitAlarmConfigSchema>;
  * unacknowledged alarms is our own feature, not a requirement of ANSI/ISA-18.2.
  */
 export const EscalationStepSchema = z.object({
-	afterMinutes: z.number().int().min(1).max(10_080),
-	notify: z
-		.string()
-		.trim()
-		.min(1)
-		.max(100)
-		.regex(/^[a-z0-9][a-z0-9-]*$/, 'lower-case letters, digits and hyphens'),
+  afterMinutes: z.number().int().min(1).max(10_080),
+  notify: z
+    .string()
+    .trim()
+    .min(1)
+    .max(100)
+    .regex(/^[a-z0-9][a-z0-9-]*$/, 'lower-case letters, digits and hyphens'),
 });
 /** One escalation step. */
 export type EscalationStep = z.infer<typeof EscalationStepSchema>;
@@ -205,14 +207,14 @@ export type EscalationStep = z.infer<typeof EscalationStepSchema>;
  * A priority without a rule never escalates.
  */
 export const EscalationRuleSchema = z.object({
-	priority: AlarmPrioritySchema,
-	steps: z
-		.array(EscalationStepSchema)
-		.max(10)
-		.refine(
-			(steps) => steps.every((s, i) => i === 0 || s.afterMinutes > (steps[i - 1]?.afterMinutes ?? 0)),
-			'steps must come in order of strictly increasing minutes',
-		),
+  priority: AlarmPrioritySchema,
+  steps: z
+    .array(EscalationStepSchema)
+    .max(10)
+    .refine(
+      (steps) => steps.every((s, i) => i === 0 || s.afterMinutes > (steps[i - 1]?.afterMinutes ?? 0)),
+      'steps must come in order of strictly increasing minutes',
+    ),
 });
 /** Escalation rule for one priority. */
 export type EscalationRule = z.infer<typeof EscalationRuleSchema>;

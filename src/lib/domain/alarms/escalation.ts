@@ -22,12 +22,12 @@ export type { EscalationStep };
 
 /** What escalation needs to know about one alarm. */
 export interface EscalatableAlarm {
-	priority: AlarmPriority;
-	state: AlarmState;
-	/** When the alarm was raised (activated), epoch ms. */
-	raisedAtMs: number;
-	/** Indexes (0-based, into the priority's step list) already sent for this alarm. */
-	escalationStepsSent: readonly number[];
+  priority: AlarmPriority;
+  state: AlarmState;
+  /** When the alarm was raised (activated), epoch ms. */
+  raisedAtMs: number;
+  /** Indexes (0-based, into the priority's step list) already sent for this alarm. */
+  escalationStepsSent: readonly number[];
 }
 
 /** Escalation steps per priority; a priority missing or with no steps never escalates. */
@@ -35,17 +35,17 @@ export type EscalationRules = Partial<Record<AlarmPriority, readonly EscalationS
 
 /** One notification to send now. */
 export interface DueEscalation {
-	/** Index of the step in the priority's list (record it in `escalationStepsSent` once sent). */
-	stepIndex: number;
-	afterMinutes: number;
-	notify: string;
-	/** `raisedAtMs + afterMinutes × 60 000`. */
-	dueAtMs: number;
+  /** Index of the step in the priority's list (record it in `escalationStepsSent` once sent). */
+  stepIndex: number;
+  afterMinutes: number;
+  notify: string;
+  /** `raisedAtMs + afterMinutes × 60 000`. */
+  dueAtMs: number;
 }
 
 /** True when the state still waits for acknowledgement and so may escalate (`unacked`, `rtn-unacked`). */
 export function canEscalate(state: AlarmState): boolean {
-	return state === 'unacked' || state === 'rtn-unacked';
+  return state === 'unacked' || state === 'rtn-unacked';
 }
 
 /**
@@ -53,17 +53,17 @@ export function canEscalate(state: AlarmState): boolean {
  * Pure: the caller sends them and records their `stepIndex` in `escalationStepsSent`.
  */
 export function dueEscalations(alarm: EscalatableAlarm, rules: EscalationRules, nowMs: number): DueEscalation[] {
-	if (!canEscalate(alarm.state)) return [];
-	const steps = rules[alarm.priority] ?? [];
-	const sent = new Set(alarm.escalationStepsSent);
-	const due: DueEscalation[] = [];
-	steps.forEach((s, stepIndex) => {
-		const dueAtMs = alarm.raisedAtMs + s.afterMinutes * 60_000;
-		if (nowMs >= dueAtMs && !sent.has(stepIndex)) {
-			due.push({ stepIndex, afterMinutes: s.afterMinutes, notify: s.notify, dueAtMs });
-		}
-	});
-	return due;
+  if (!canEscalate(alarm.state)) return [];
+  const steps = rules[alarm.priority] ?? [];
+  const sent = new Set(alarm.escalationStepsSent);
+  const due: DueEscalation[] = [];
+  steps.forEach((s, stepIndex) => {
+    const dueAtMs = alarm.raisedAtMs + s.afterMinutes * 60_000;
+    if (nowMs >= dueAtMs && !sent.has(stepIndex)) {
+      due.push({ stepIndex, afterMinutes: s.afterMinutes, notify: s.notify, dueAtMs });
+    }
+  });
+  return due;
 }
 
 /**
@@ -71,13 +71,13 @@ export function dueEscalations(alarm: EscalatableAlarm, rules: EscalationRules, 
  * the alarm does not escalate — lets a scheduler sleep until then instead of polling.
  */
 export function nextEscalationAtMs(alarm: EscalatableAlarm, rules: EscalationRules): number | null {
-	if (!canEscalate(alarm.state)) return null;
-	const sent = new Set(alarm.escalationStepsSent);
-	let next: number | null = null;
-	(rules[alarm.priority] ?? []).forEach((s, i) => {
-		if (sent.has(i)) return;
-		const at = alarm.raisedAtMs + s.afterMinutes * 60_000;
-		if (next === null || at < next) next = at;
-	});
-	return next;
+  if (!canEscalate(alarm.state)) return null;
+  const sent = new Set(alarm.escalationStepsSent);
+  let next: number | null = null;
+  (rules[alarm.priority] ?? []).forEach((s, i) => {
+    if (sent.has(i)) return;
+    const at = alarm.raisedAtMs + s.afterMinutes * 60_000;
+    if (next === null || at < next) next = at;
+  });
+  return next;
 }

@@ -25,22 +25,22 @@ const DAY_MS = 24 * HOUR_MS;
 
 /** One annunciated alarm in the log. */
 export interface AlarmLogEntry {
-	id: number | string;
-	/** What raised it, e.g. `oven-2/zone-1/air-temp`. */
-	source: string;
-	priority: AlarmPriority;
-	activatedAtMs: number;
-	/** When the condition returned to normal; absent/null while still active. */
-	clearedAtMs?: number | null | undefined;
-	ackedAtMs?: number | null | undefined;
+  id: number | string;
+  /** What raised it, e.g. `oven-2/zone-1/air-temp`. */
+  source: string;
+  priority: AlarmPriority;
+  activatedAtMs: number;
+  /** When the condition returned to normal; absent/null while still active. */
+  clearedAtMs?: number | null | undefined;
+  ackedAtMs?: number | null | undefined;
 }
 
 /** The analysis window and how many operator positions share the alarms. */
 export interface KpiWindow {
-	fromMs: number;
-	toMs: number;
-	/** Operator positions (consoles / people) the alarms are spread over; integer ≥ 1. */
-	operatorPositions: number;
+  fromMs: number;
+  toMs: number;
+  /** Operator positions (consoles / people) the alarms are spread over; integer ≥ 1. */
+  operatorPositions: number;
 }
 
 /**
@@ -53,20 +53,20 @@ export interface KpiWindow {
  * distribution roughly 80 % low, 15 % medium, 5 % high.
  */
 export const ISA_18_2_BENCHMARKS = {
-	label: 'common practice benchmark per ISA-18.2',
-	acceptablePer10Min: 1,
-	maxManageablePer10Min: 2,
-	acceptablePerHour: 6,
-	maxManageablePerHour: 12,
-	acceptablePerDay: 150,
-	maxManageablePerDay: 300,
-	floodMoreThan: 10,
-	floodWindowMs: TEN_MIN_MS,
-	timeInFloodPercentBelow: 1,
-	staleAfterMs: DAY_MS,
-	chatterCount: 3,
-	chatterWindowMs: MINUTE_MS,
-	priorityPercentTarget: { low: 80, medium: 15, high: 5 } as Readonly<Record<AlarmPriority, number>>,
+  label: 'common practice benchmark per ISA-18.2',
+  acceptablePer10Min: 1,
+  maxManageablePer10Min: 2,
+  acceptablePerHour: 6,
+  maxManageablePerHour: 12,
+  acceptablePerDay: 150,
+  maxManageablePerDay: 300,
+  floodMoreThan: 10,
+  floodWindowMs: TEN_MIN_MS,
+  timeInFloodPercentBelow: 1,
+  staleAfterMs: DAY_MS,
+  chatterCount: 3,
+  chatterWindowMs: MINUTE_MS,
+  priorityPercentTarget: { low: 80, medium: 15, high: 5 } as Readonly<Record<AlarmPriority, number>>,
 } as const;
 
 /** Where the average 10-minute rate sits against the ISA-18.2 common practice benchmark. */
@@ -74,86 +74,86 @@ export type AlarmRateBand = 'very-likely-acceptable' | 'maximum-manageable' | 'o
 
 /** Plain English for {@link AlarmRateBand}. */
 export const RATE_BAND_LABELS: Readonly<Record<AlarmRateBand, string>> = {
-	'very-likely-acceptable': 'About 1 per 10 minutes or fewer: very likely acceptable',
-	'maximum-manageable': 'Up to about 2 per 10 minutes: the most an operator can manage',
-	'over-demanding': 'More than about 2 per 10 minutes: likely over-demanding',
+  'very-likely-acceptable': 'About 1 per 10 minutes or fewer: very likely acceptable',
+  'maximum-manageable': 'Up to about 2 per 10 minutes: the most an operator can manage',
+  'over-demanding': 'More than about 2 per 10 minutes: likely over-demanding',
 };
 
 /** A merged flood period: `[startMs, endMs)` and the alarms activated in it. */
 export interface FloodPeriod {
-	startMs: number;
-	endMs: number;
-	count: number;
+  startMs: number;
+  endMs: number;
+  count: number;
 }
 
 /** An alarm still active at the end of the window after more than 24 h. */
 export interface StaleAlarm {
-	id: number | string;
-	source: string;
-	priority: AlarmPriority;
-	activatedAtMs: number;
-	/** `toMs − activatedAtMs`. */
-	activeForMs: number;
+  id: number | string;
+  source: string;
+  priority: AlarmPriority;
+  activatedAtMs: number;
+  /** `toMs − activatedAtMs`. */
+  activeForMs: number;
 }
 
 /** A source that activated 3 or more times within some 60 s. */
 export interface ChatteringSource {
-	source: string;
-	/** Most activations in any `[a, a + 60 s)` window anchored at one of its activations. */
-	maxIn60s: number;
-	/** Start of the first such window with at least 3 activations. */
-	firstAtMs: number;
-	/** All its activations in the analysis window. */
-	activations: number;
+  source: string;
+  /** Most activations in any `[a, a + 60 s)` window anchored at one of its activations. */
+  maxIn60s: number;
+  /** Start of the first such window with at least 3 activations. */
+  firstAtMs: number;
+  /** All its activations in the analysis window. */
+  activations: number;
 }
 
 /** A source and its share of the window's alarms. */
 export interface SourceCount {
-	source: string;
-	count: number;
-	/** `count / total × 100`. */
-	sharePercent: number;
+  source: string;
+  count: number;
+  /** `count / total × 100`. */
+  sharePercent: number;
 }
 
 /** The figures {@link alarmKpis} returns. */
 export interface AlarmKpiReport {
-	window: { fromMs: number; toMs: number; durationMs: number; operatorPositions: number };
-	/** Alarms activated in `[fromMs, toMs)`. */
-	totalAlarms: number;
-	rate: {
-		averagePer10MinPerPosition: number;
-		averagePerHourPerPosition: number;
-		averagePerDayPerPosition: number;
-		/** Most alarms in any 10-minute sliding window (whole log, not divided). */
-		peak10MinCount: number;
-		/** Start of the first busiest window, or null without alarms. */
-		peak10MinStartMs: number | null;
-		peak10MinPerPosition: number;
-		band: AlarmRateBand;
-		benchmark: string;
-	};
-	floods: {
-		periods: FloodPeriod[];
-		timeInFloodMs: number;
-		percentTimeInFlood: number;
-	};
-	stale: StaleAlarm[];
-	chattering: ChatteringSource[];
-	/** The ten most frequent sources, most frequent first (ties by source name). */
-	topSources: SourceCount[];
-	priorities: {
-		counts: Record<AlarmPriority, number>;
-		percent: Record<AlarmPriority, number>;
-		/** Roughly 80/15/5 low/medium/high (common practice per ISA-18.2). */
-		commonPracticeTargetPercent: Readonly<Record<AlarmPriority, number>>;
-	};
+  window: { fromMs: number; toMs: number; durationMs: number; operatorPositions: number };
+  /** Alarms activated in `[fromMs, toMs)`. */
+  totalAlarms: number;
+  rate: {
+    averagePer10MinPerPosition: number;
+    averagePerHourPerPosition: number;
+    averagePerDayPerPosition: number;
+    /** Most alarms in any 10-minute sliding window (whole log, not divided). */
+    peak10MinCount: number;
+    /** Start of the first busiest window, or null without alarms. */
+    peak10MinStartMs: number | null;
+    peak10MinPerPosition: number;
+    band: AlarmRateBand;
+    benchmark: string;
+  };
+  floods: {
+    periods: FloodPeriod[];
+    timeInFloodMs: number;
+    percentTimeInFlood: number;
+  };
+  stale: StaleAlarm[];
+  chattering: ChatteringSource[];
+  /** The ten most frequent sources, most frequent first (ties by source name). */
+  topSources: SourceCount[];
+  priorities: {
+    counts: Record<AlarmPriority, number>;
+    percent: Record<AlarmPriority, number>;
+    /** Roughly 80/15/5 low/medium/high (common practice per ISA-18.2). */
+    commonPracticeTargetPercent: Readonly<Record<AlarmPriority, number>>;
+  };
 }
 
 /** Band of an average rate per operator position per 10 minutes (≤ 1, ≤ 2, > 2; common practice per ISA-18.2). */
 export function rateBand(averagePer10MinPerPosition: number): AlarmRateBand {
-	if (averagePer10MinPerPosition <= ISA_18_2_BENCHMARKS.acceptablePer10Min) return 'very-likely-acceptable';
-	if (averagePer10MinPerPosition <= ISA_18_2_BENCHMARKS.maxManageablePer10Min) return 'maximum-manageable';
-	return 'over-demanding';
+  if (averagePer10MinPerPosition <= ISA_18_2_BENCHMARKS.acceptablePer10Min) return 'very-likely-acceptable';
+  if (averagePer10MinPerPosition <= ISA_18_2_BENCHMARKS.maxManageablePer10Min) return 'maximum-manageable';
+  return 'over-demanding';
 }
 
 /**
@@ -161,16 +161,16 @@ export function rateBand(averagePer10MinPerPosition: number): AlarmRateBand {
  * Two-pointer sweep, O(n).
  */
 export function slidingCounts(times: readonly number[], widthMs: number, endMs = Number.POSITIVE_INFINITY): number[] {
-	const counts: number[] = [];
-	let j = 0;
-	for (let i = 0; i < times.length; i++) {
-		const a = times[i]!;
-		const end = Math.min(a + widthMs, endMs);
-		if (j < i) j = i;
-		while (j < times.length && times[j]! < end) j++;
-		counts.push(j - i);
-	}
-	return counts;
+  const counts: number[] = [];
+  let j = 0;
+  for (let i = 0; i < times.length; i++) {
+    const a = times[i]!;
+    const end = Math.min(a + widthMs, endMs);
+    if (j < i) j = i;
+    while (j < times.length && times[j]! < end) j++;
+    counts.push(j - i);
+  }
+  return counts;
 }
 
 /**
@@ -181,22 +181,22 @@ export function slidingCounts(times: readonly number[], widthMs: number, endMs =
  * activated in that period. `times` must be sorted ascending.
  */
 export function floodPeriods(
-	times: readonly number[],
-	toMs: number,
-	threshold: number = ISA_18_2_BENCHMARKS.floodMoreThan,
-	widthMs: number = ISA_18_2_BENCHMARKS.floodWindowMs,
+  times: readonly number[],
+  toMs: number,
+  threshold: number = ISA_18_2_BENCHMARKS.floodMoreThan,
+  widthMs: number = ISA_18_2_BENCHMARKS.floodWindowMs,
 ): FloodPeriod[] {
-	const counts = slidingCounts(times, widthMs, toMs);
-	const merged: { startMs: number; endMs: number }[] = [];
-	for (let i = 0; i < times.length; i++) {
-		if (counts[i]! <= threshold) continue;
-		const start = times[i]!;
-		const end = Math.min(start + widthMs, toMs);
-		const last = merged[merged.length - 1];
-		if (last && start <= last.endMs) last.endMs = Math.max(last.endMs, end);
-		else merged.push({ startMs: start, endMs: end });
-	}
-	return merged.map((p) => ({ ...p, count: countIn(times, p.startMs, p.endMs) }));
+  const counts = slidingCounts(times, widthMs, toMs);
+  const merged: { startMs: number; endMs: number }[] = [];
+  for (let i = 0; i < times.length; i++) {
+    if (counts[i]! <= threshold) continue;
+    const start = times[i]!;
+    const end = Math.min(start + widthMs, toMs);
+    const last = merged[merged.length - 1];
+    if (last && start <= last.endMs) last.endMs = Math.max(last.endMs, end);
+    else merged.push({ startMs: start, endMs: end });
+  }
+  return merged.map((p) => ({ ...p, count: countIn(times, p.startMs, p.endMs) }));
 }
 
 /**
@@ -215,111 +215,111 @@ export function floodPeriods(
  * @throws RangeError when `toMs ≤ fromMs` or `operatorPositions` is not an integer ≥ 1.
  */
 export function alarmKpis(log: readonly AlarmLogEntry[], window: KpiWindow): AlarmKpiReport {
-	const { fromMs, toMs, operatorPositions } = window;
-	if (!(toMs > fromMs)) throw new RangeError('the analysis window must end after it starts');
-	if (!Number.isInteger(operatorPositions) || operatorPositions < 1) {
-		throw new RangeError('operator positions must be a whole number of at least 1');
-	}
-	const durationMs = toMs - fromMs;
-	const inWindow = log
-		.filter((e) => e.activatedAtMs >= fromMs && e.activatedAtMs < toMs)
-		.sort((a, b) => a.activatedAtMs - b.activatedAtMs);
-	const times = inWindow.map((e) => e.activatedAtMs);
-	const total = inWindow.length;
+  const { fromMs, toMs, operatorPositions } = window;
+  if (!(toMs > fromMs)) throw new RangeError('the analysis window must end after it starts');
+  if (!Number.isInteger(operatorPositions) || operatorPositions < 1) {
+    throw new RangeError('operator positions must be a whole number of at least 1');
+  }
+  const durationMs = toMs - fromMs;
+  const inWindow = log
+    .filter((e) => e.activatedAtMs >= fromMs && e.activatedAtMs < toMs)
+    .sort((a, b) => a.activatedAtMs - b.activatedAtMs);
+  const times = inWindow.map((e) => e.activatedAtMs);
+  const total = inWindow.length;
 
-	// Rates
-	const perPosition = total / operatorPositions;
-	const per10 = perPosition / (durationMs / TEN_MIN_MS);
-	const counts10 = slidingCounts(times, TEN_MIN_MS, toMs);
-	let peak = 0;
-	let peakStart: number | null = null;
-	for (let i = 0; i < counts10.length; i++) {
-		if (counts10[i]! > peak) {
-			peak = counts10[i]!;
-			peakStart = times[i]!;
-		}
-	}
+  // Rates
+  const perPosition = total / operatorPositions;
+  const per10 = perPosition / (durationMs / TEN_MIN_MS);
+  const counts10 = slidingCounts(times, TEN_MIN_MS, toMs);
+  let peak = 0;
+  let peakStart: number | null = null;
+  for (let i = 0; i < counts10.length; i++) {
+    if (counts10[i]! > peak) {
+      peak = counts10[i]!;
+      peakStart = times[i]!;
+    }
+  }
 
-	// Floods
-	const periods = floodPeriods(times, toMs);
-	const timeInFloodMs = periods.reduce((s, p) => s + (p.endMs - p.startMs), 0);
+  // Floods
+  const periods = floodPeriods(times, toMs);
+  const timeInFloodMs = periods.reduce((s, p) => s + (p.endMs - p.startMs), 0);
 
-	// Stale
-	const stale: StaleAlarm[] = log
-		.filter(
-			(e) =>
-				e.activatedAtMs <= toMs &&
-				(e.clearedAtMs == null || e.clearedAtMs > toMs) &&
-				toMs - e.activatedAtMs > ISA_18_2_BENCHMARKS.staleAfterMs,
-		)
-		.sort((a, b) => a.activatedAtMs - b.activatedAtMs)
-		.map((e) => ({
-			id: e.id,
-			source: e.source,
-			priority: e.priority,
-			activatedAtMs: e.activatedAtMs,
-			activeForMs: toMs - e.activatedAtMs,
-		}));
+  // Stale
+  const stale: StaleAlarm[] = log
+    .filter(
+      (e) =>
+        e.activatedAtMs <= toMs &&
+        (e.clearedAtMs == null || e.clearedAtMs > toMs) &&
+        toMs - e.activatedAtMs > ISA_18_2_BENCHMARKS.staleAfterMs,
+    )
+    .sort((a, b) => a.activatedAtMs - b.activatedAtMs)
+    .map((e) => ({
+      id: e.id,
+      source: e.source,
+      priority: e.priority,
+      activatedAtMs: e.activatedAtMs,
+      activeForMs: toMs - e.activatedAtMs,
+    }));
 
-	// Sources: counts, chattering
-	const bySource = new Map<string, number[]>();
-	for (const e of inWindow) {
-		const list = bySource.get(e.source);
-		if (list) list.push(e.activatedAtMs);
-		else bySource.set(e.source, [e.activatedAtMs]);
-	}
-	const chattering: ChatteringSource[] = [];
-	for (const [source, ts] of bySource) {
-		const c = slidingCounts(ts, ISA_18_2_BENCHMARKS.chatterWindowMs);
-		const max = Math.max(...c);
-		if (max >= ISA_18_2_BENCHMARKS.chatterCount) {
-			const first = c.findIndex((n) => n >= ISA_18_2_BENCHMARKS.chatterCount);
-			chattering.push({ source, maxIn60s: max, firstAtMs: ts[first]!, activations: ts.length });
-		}
-	}
-	chattering.sort((a, b) => b.maxIn60s - a.maxIn60s || a.firstAtMs - b.firstAtMs || cmp(a.source, b.source));
+  // Sources: counts, chattering
+  const bySource = new Map<string, number[]>();
+  for (const e of inWindow) {
+    const list = bySource.get(e.source);
+    if (list) list.push(e.activatedAtMs);
+    else bySource.set(e.source, [e.activatedAtMs]);
+  }
+  const chattering: ChatteringSource[] = [];
+  for (const [source, ts] of bySource) {
+    const c = slidingCounts(ts, ISA_18_2_BENCHMARKS.chatterWindowMs);
+    const max = Math.max(...c);
+    if (max >= ISA_18_2_BENCHMARKS.chatterCount) {
+      const first = c.findIndex((n) => n >= ISA_18_2_BENCHMARKS.chatterCount);
+      chattering.push({ source, maxIn60s: max, firstAtMs: ts[first]!, activations: ts.length });
+    }
+  }
+  chattering.sort((a, b) => b.maxIn60s - a.maxIn60s || a.firstAtMs - b.firstAtMs || cmp(a.source, b.source));
 
-	const topSources: SourceCount[] = [...bySource]
-		.map(([source, ts]) => ({ source, count: ts.length, sharePercent: (ts.length * 100) / total }))
-		.sort((a, b) => b.count - a.count || cmp(a.source, b.source))
-		.slice(0, 10);
+  const topSources: SourceCount[] = [...bySource]
+    .map(([source, ts]) => ({ source, count: ts.length, sharePercent: (ts.length * 100) / total }))
+    .sort((a, b) => b.count - a.count || cmp(a.source, b.source))
+    .slice(0, 10);
 
-	// Priorities
-	const pc: Record<AlarmPriority, number> = { high: 0, medium: 0, low: 0 };
-	for (const e of inWindow) pc[e.priority]++;
-	const pct = (n: number) => (total === 0 ? 0 : (n * 100) / total);
+  // Priorities
+  const pc: Record<AlarmPriority, number> = { high: 0, medium: 0, low: 0 };
+  for (const e of inWindow) pc[e.priority]++;
+  const pct = (n: number) => (total === 0 ? 0 : (n * 100) / total);
 
-	return {
-		window: { fromMs, toMs, durationMs, operatorPositions },
-		totalAlarms: total,
-		rate: {
-			averagePer10MinPerPosition: per10,
-			averagePerHourPerPosition: perPosition / (durationMs / HOUR_MS),
-			averagePerDayPerPosition: perPosition / (durationMs / DAY_MS),
-			peak10MinCount: peak,
-			peak10MinStartMs: peakStart,
-			peak10MinPerPosition: peak / operatorPositions,
-			band: rateBand(per10),
-			benchmark: ISA_18_2_BENCHMARKS.label,
-		},
-		floods: { periods, timeInFloodMs, percentTimeInFlood: (timeInFloodMs / durationMs) * 100 },
-		stale,
-		chattering,
-		topSources,
-		priorities: {
-			counts: pc,
-			percent: { high: pct(pc.high), medium: pct(pc.medium), low: pct(pc.low) },
-			commonPracticeTargetPercent: ISA_18_2_BENCHMARKS.priorityPercentTarget,
-		},
-	};
+  return {
+    window: { fromMs, toMs, durationMs, operatorPositions },
+    totalAlarms: total,
+    rate: {
+      averagePer10MinPerPosition: per10,
+      averagePerHourPerPosition: perPosition / (durationMs / HOUR_MS),
+      averagePerDayPerPosition: perPosition / (durationMs / DAY_MS),
+      peak10MinCount: peak,
+      peak10MinStartMs: peakStart,
+      peak10MinPerPosition: peak / operatorPositions,
+      band: rateBand(per10),
+      benchmark: ISA_18_2_BENCHMARKS.label,
+    },
+    floods: { periods, timeInFloodMs, percentTimeInFlood: (timeInFloodMs / durationMs) * 100 },
+    stale,
+    chattering,
+    topSources,
+    priorities: {
+      counts: pc,
+      percent: { high: pct(pc.high), medium: pct(pc.medium), low: pct(pc.low) },
+      commonPracticeTargetPercent: ISA_18_2_BENCHMARKS.priorityPercentTarget,
+    },
+  };
 }
 
 function countIn(sorted: readonly number[], startMs: number, endMs: number): number {
-	let n = 0;
-	for (const t of sorted) if (t >= startMs && t < endMs) n++;
-	return n;
+  let n = 0;
+  for (const t of sorted) if (t >= startMs && t < endMs) n++;
+  return n;
 }
 
 function cmp(a: string, b: string): number {
-	return a < b ? -1 : a > b ? 1 : 0;
+  return a < b ? -1 : a > b ? 1 : 0;
 }

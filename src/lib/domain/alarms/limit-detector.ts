@@ -31,22 +31,22 @@
 
 /** Detector settings (validated upstream by `LimitAlarmConfigSchema` in `lib/shared/alarms.ts`). */
 export interface LimitDetectorConfig {
-	/** High alarm limit (channel unit); omit for a low-only alarm. */
-	high?: number | undefined;
-	/** Low alarm limit (channel unit); omit for a high-only alarm. */
-	low?: number | undefined;
-	/** Alarm deadband (channel unit, ≥ 0). */
-	deadband: number;
-	/** On-delay, ms (≥ 0). */
-	onDelayMs: number;
-	/** Off-delay, ms (≥ 0). */
-	offDelayMs: number;
+  /** High alarm limit (channel unit); omit for a low-only alarm. */
+  high?: number | undefined;
+  /** Low alarm limit (channel unit); omit for a high-only alarm. */
+  low?: number | undefined;
+  /** Alarm deadband (channel unit, ≥ 0). */
+  deadband: number;
+  /** On-delay, ms (≥ 0). */
+  onDelayMs: number;
+  /** Off-delay, ms (≥ 0). */
+  offDelayMs: number;
 }
 
 /** One reading: time (epoch ms) and value (channel unit). */
 export interface Sample {
-	tMs: number;
-	v: number;
+  tMs: number;
+  v: number;
 }
 
 /** Which side of the window is in alarm. */
@@ -54,14 +54,14 @@ export type LimitSide = 'high' | 'low';
 
 /** The detector's memory between samples. Start with {@link initialDetectorState}. */
 export interface LimitDetectorState {
-	/** The alarm currently active, or `null` when none. */
-	alarm: LimitSide | null;
-	/** The side whose on-delay is running, and since when (first abnormal sample, epoch ms). */
-	pending: { side: LimitSide; sinceMs: number } | null;
-	/** Since when the active alarm has been eligible to clear (first eligible sample), or `null`. */
-	clearingSinceMs: number | null;
-	/** Time of the last accepted sample, or `null` before the first. */
-	lastTMs: number | null;
+  /** The alarm currently active, or `null` when none. */
+  alarm: LimitSide | null;
+  /** The side whose on-delay is running, and since when (first abnormal sample, epoch ms). */
+  pending: { side: LimitSide; sinceMs: number } | null;
+  /** Since when the active alarm has been eligible to clear (first eligible sample), or `null`. */
+  clearingSinceMs: number | null;
+  /** Time of the last accepted sample, or `null` before the first. */
+  lastTMs: number | null;
 }
 
 /** Event produced by a step. */
@@ -69,20 +69,20 @@ export type LimitDetectorEvent = 'activate-high' | 'activate-low' | 'clear';
 
 /** Result of {@link step}. */
 export interface LimitStepResult {
-	state: LimitDetectorState;
-	event?: LimitDetectorEvent;
+  state: LimitDetectorState;
+  event?: LimitDetectorEvent;
 }
 
 /** A detector that has seen nothing: no alarm, no delay running. */
 export function initialDetectorState(): LimitDetectorState {
-	return { alarm: null, pending: null, clearingSinceMs: null, lastTMs: null };
+  return { alarm: null, pending: null, clearingSinceMs: null, lastTMs: null };
 }
 
 /** The side the value is beyond, or `null` when inside the window (limits themselves are inside). */
 export function limitCondition(v: number, cfg: Pick<LimitDetectorConfig, 'high' | 'low'>): LimitSide | null {
-	if (cfg.high !== undefined && v > cfg.high) return 'high';
-	if (cfg.low !== undefined && v < cfg.low) return 'low';
-	return null;
+  if (cfg.high !== undefined && v > cfg.high) return 'high';
+  if (cfg.low !== undefined && v < cfg.low) return 'low';
+  return null;
 }
 
 /**
@@ -90,58 +90,58 @@ export function limitCondition(v: number, cfg: Pick<LimitDetectorConfig, 'high' 
  * module comment for the exact rules). Returns the new state and at most one event.
  */
 export function step(state: LimitDetectorState, sample: Sample, cfg: LimitDetectorConfig): LimitStepResult {
-	const { tMs: t, v } = sample;
-	if (!Number.isFinite(v) || !Number.isFinite(t)) return { state };
-	if (state.lastTMs !== null && t < state.lastTMs) return { state };
+  const { tMs: t, v } = sample;
+  if (!Number.isFinite(v) || !Number.isFinite(t)) return { state };
+  if (state.lastTMs !== null && t < state.lastTMs) return { state };
 
-	const cond = limitCondition(v, cfg);
+  const cond = limitCondition(v, cfg);
 
-	// On-delay timer: runs while the value is beyond a limit that is not already in alarm.
-	let pending = state.pending;
-	if (cond !== null && cond !== state.alarm) {
-		if (pending === null || pending.side !== cond) pending = { side: cond, sinceMs: t };
-	} else {
-		pending = null;
-	}
+  // On-delay timer: runs while the value is beyond a limit that is not already in alarm.
+  let pending = state.pending;
+  if (cond !== null && cond !== state.alarm) {
+    if (pending === null || pending.side !== cond) pending = { side: cond, sinceMs: t };
+  } else {
+    pending = null;
+  }
 
-	let alarm = state.alarm;
-	let clearingSinceMs = state.clearingSinceMs;
-	let event: LimitDetectorEvent | undefined;
+  let alarm = state.alarm;
+  let clearingSinceMs = state.clearingSinceMs;
+  let event: LimitDetectorEvent | undefined;
 
-	// Deadband and off-delay for the active alarm.
-	if (alarm !== null) {
-		const eligible =
-			alarm === 'high'
-				? cfg.high === undefined || v < cfg.high - cfg.deadband
-				: cfg.low === undefined || v > cfg.low + cfg.deadband;
-		if (eligible) {
-			clearingSinceMs ??= t;
-			if (t - clearingSinceMs >= cfg.offDelayMs) {
-				alarm = null;
-				clearingSinceMs = null;
-				event = 'clear';
-			}
-		} else {
-			clearingSinceMs = null;
-		}
-	}
+  // Deadband and off-delay for the active alarm.
+  if (alarm !== null) {
+    const eligible =
+      alarm === 'high'
+        ? cfg.high === undefined || v < cfg.high - cfg.deadband
+        : cfg.low === undefined || v > cfg.low + cfg.deadband;
+    if (eligible) {
+      clearingSinceMs ??= t;
+      if (t - clearingSinceMs >= cfg.offDelayMs) {
+        alarm = null;
+        clearingSinceMs = null;
+        event = 'clear';
+      }
+    } else {
+      clearingSinceMs = null;
+    }
+  }
 
-	// On-delay elapsed: activate (only when no alarm is held and nothing happened this step).
-	if (event === undefined && alarm === null && pending !== null && t - pending.sinceMs >= cfg.onDelayMs) {
-		alarm = pending.side;
-		event = pending.side === 'high' ? 'activate-high' : 'activate-low';
-		pending = null;
-		clearingSinceMs = null;
-	}
+  // On-delay elapsed: activate (only when no alarm is held and nothing happened this step).
+  if (event === undefined && alarm === null && pending !== null && t - pending.sinceMs >= cfg.onDelayMs) {
+    alarm = pending.side;
+    event = pending.side === 'high' ? 'activate-high' : 'activate-low';
+    pending = null;
+    clearingSinceMs = null;
+  }
 
-	const next: LimitDetectorState = { alarm, pending, clearingSinceMs, lastTMs: t };
-	return event === undefined ? { state: next } : { state: next, event };
+  const next: LimitDetectorState = { alarm, pending, clearingSinceMs, lastTMs: t };
+  return event === undefined ? { state: next } : { state: next, event };
 }
 
 /** An event with the time of the sample that produced it. */
 export interface TimedLimitEvent {
-	tMs: number;
-	event: LimitDetectorEvent;
+  tMs: number;
+  event: LimitDetectorEvent;
 }
 
 /**
@@ -149,16 +149,16 @@ export interface TimedLimitEvent {
  * collect the events with their times, plus the final state (to carry on with later samples).
  */
 export function runDetector(
-	samples: readonly Sample[],
-	cfg: LimitDetectorConfig,
-	initial: LimitDetectorState = initialDetectorState(),
+  samples: readonly Sample[],
+  cfg: LimitDetectorConfig,
+  initial: LimitDetectorState = initialDetectorState(),
 ): { state: LimitDetectorState; events: TimedLimitEvent[] } {
-	let state = initial;
-	const events: TimedLimitEvent[] = [];
-	for (const s of samples) {
-		const r = step(state, s, cfg);
-		state = r.state;
-		if (r.event !== undefined) events.push({ tMs: s.tMs, event: r.event });
-	}
-	return { state, events };
+  let state = initial;
+  const events: TimedLimitEvent[] = [];
+  for (const s of samples) {
+    const r = step(state, s, cfg);
+    state = r.state;
+    if (r.event !== undefined) events.push({ tMs: s.tMs, event: r.event });
+  }
+  return { state, events };
 }

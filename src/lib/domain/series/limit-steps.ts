@@ -12,33 +12,33 @@
 
 /** One approved limit set: in force from `effectiveFromMs` (epoch ms) until the next set. */
 export interface LimitSet {
-	effectiveFromMs: number;
-	center: number;
-	ucl: number;
-	lcl: number;
+  effectiveFromMs: number;
+  center: number;
+  ucl: number;
+  lcl: number;
 }
 
 /** The sets ordered by `effectiveFromMs`, ties kept in input order (stable sort). */
 function ordered<L extends LimitSet>(sets: readonly L[]): L[] {
-	return [...sets].sort((a, b) => a.effectiveFromMs - b.effectiveFromMs);
+  return [...sets].sort((a, b) => a.effectiveFromMs - b.effectiveFromMs);
 }
 
 /** Index of the last set with `effectiveFromMs ≤ t` in `sorted`, or −1. Binary search. */
 function lastAtOrBefore(sorted: readonly LimitSet[], t: number): number {
-	let lo = 0;
-	let hi = sorted.length; // first index with effectiveFromMs > t
-	while (lo < hi) {
-		const mid = (lo + hi) >>> 1;
-		if (sorted[mid]!.effectiveFromMs <= t) lo = mid + 1;
-		else hi = mid;
-	}
-	return lo - 1;
+  let lo = 0;
+  let hi = sorted.length; // first index with effectiveFromMs > t
+  while (lo < hi) {
+    const mid = (lo + hi) >>> 1;
+    if (sorted[mid]!.effectiveFromMs <= t) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo - 1;
 }
 
 /** The limit set in force at `tMs` (latest `effectiveFromMs ≤ tMs`), or `null` before the first. */
 export function limitSetAt<L extends LimitSet>(sets: readonly L[], tMs: number): L | null {
-	const sorted = ordered(sets);
-	return sorted[lastAtOrBefore(sorted, tMs)] ?? null;
+  const sorted = ordered(sets);
+  return sorted[lastAtOrBefore(sorted, tMs)] ?? null;
 }
 
 /**
@@ -46,15 +46,15 @@ export function limitSetAt<L extends LimitSet>(sets: readonly L[], tMs: number):
  * `timesMs`; `null` for times before the first set. O((s + p) log s).
  */
 export function limitsInForce<L extends LimitSet>(sets: readonly L[], timesMs: readonly number[]): (L | null)[] {
-	const sorted = ordered(sets);
-	return timesMs.map((t) => sorted[lastAtOrBefore(sorted, t)] ?? null);
+  const sorted = ordered(sets);
+  return timesMs.map((t) => sorted[lastAtOrBefore(sorted, t)] ?? null);
 }
 
 /** A stretch of time `[fromMs, toMs)` with one limit set in force. */
 export interface LimitSegment<L extends LimitSet = LimitSet> {
-	fromMs: number;
-	toMs: number;
-	set: L;
+  fromMs: number;
+  toMs: number;
+  set: L;
 }
 
 /**
@@ -63,13 +63,13 @@ export interface LimitSegment<L extends LimitSet = LimitSet> {
  * same instant give none either.
  */
 export function limitSegments<L extends LimitSet>(sets: readonly L[], fromMs: number, toMs: number): LimitSegment<L>[] {
-	const sorted = ordered(sets);
-	const out: LimitSegment<L>[] = [];
-	for (let i = 0; i < sorted.length; i++) {
-		const set = sorted[i]!;
-		const start = Math.max(fromMs, set.effectiveFromMs);
-		const end = Math.min(toMs, sorted[i + 1]?.effectiveFromMs ?? Number.POSITIVE_INFINITY);
-		if (end > start) out.push({ fromMs: start, toMs: end, set });
-	}
-	return out;
+  const sorted = ordered(sets);
+  const out: LimitSegment<L>[] = [];
+  for (let i = 0; i < sorted.length; i++) {
+    const set = sorted[i]!;
+    const start = Math.max(fromMs, set.effectiveFromMs);
+    const end = Math.min(toMs, sorted[i + 1]?.effectiveFromMs ?? Number.POSITIVE_INFINITY);
+    if (end > start) out.push({ fromMs: start, toMs: end, set });
+  }
+  return out;
 }

@@ -21,8 +21,8 @@
 
 /** A point of a series: `x` (usually epoch ms) and `y` (the value). */
 export interface XY {
-	x: number;
-	y: number;
+  x: number;
+  y: number;
 }
 
 /**
@@ -31,46 +31,46 @@ export interface XY {
  * returned unchanged. A fractional threshold is rounded down.
  */
 export function lttb<P extends XY>(points: readonly P[], threshold: number): P[] {
-	const n = points.length;
-	const m = Math.floor(threshold);
-	if (!(m >= 3) || m >= n) return points.slice();
+  const n = points.length;
+  const m = Math.floor(threshold);
+  if (!(m >= 3) || m >= n) return points.slice();
 
-	const sampled: P[] = [points[0]!];
-	const every = (n - 2) / (m - 2);
-	let a = 0;
+  const sampled: P[] = [points[0]!];
+  const every = (n - 2) / (m - 2);
+  let a = 0;
 
-	for (let i = 0; i < m - 2; i++) {
-		// Average of the next bucket (the last point when this is the final bucket).
-		const avgStart = Math.floor((i + 1) * every) + 1;
-		const avgEnd = Math.min(Math.floor((i + 2) * every) + 1, n);
-		let avgX = 0;
-		let avgY = 0;
-		for (let j = avgStart; j < avgEnd; j++) {
-			avgX += points[j]!.x;
-			avgY += points[j]!.y;
-		}
-		const avgLen = avgEnd - avgStart;
-		avgX /= avgLen;
-		avgY /= avgLen;
+  for (let i = 0; i < m - 2; i++) {
+    // Average of the next bucket (the last point when this is the final bucket).
+    const avgStart = Math.floor((i + 1) * every) + 1;
+    const avgEnd = Math.min(Math.floor((i + 2) * every) + 1, n);
+    let avgX = 0;
+    let avgY = 0;
+    for (let j = avgStart; j < avgEnd; j++) {
+      avgX += points[j]!.x;
+      avgY += points[j]!.y;
+    }
+    const avgLen = avgEnd - avgStart;
+    avgX /= avgLen;
+    avgY /= avgLen;
 
-		// This bucket.
-		const from = Math.floor(i * every) + 1;
-		const to = Math.floor((i + 1) * every) + 1;
-		const A = points[a]!;
-		let maxArea = -1;
-		let chosen = from;
-		for (let j = from; j < to; j++) {
-			const P = points[j]!;
-			const area = 0.5 * Math.abs((A.x - avgX) * (P.y - A.y) - (A.x - P.x) * (avgY - A.y));
-			if (area > maxArea) {
-				maxArea = area;
-				chosen = j;
-			}
-		}
-		sampled.push(points[chosen]!);
-		a = chosen;
-	}
+    // This bucket.
+    const from = Math.floor(i * every) + 1;
+    const to = Math.floor((i + 1) * every) + 1;
+    const A = points[a]!;
+    let maxArea = -1;
+    let chosen = from;
+    for (let j = from; j < to; j++) {
+      const P = points[j]!;
+      const area = 0.5 * Math.abs((A.x - avgX) * (P.y - A.y) - (A.x - P.x) * (avgY - A.y));
+      if (area > maxArea) {
+        maxArea = area;
+        chosen = j;
+      }
+    }
+    sampled.push(points[chosen]!);
+    a = chosen;
+  }
 
-	sampled.push(points[n - 1]!);
-	return sampled;
+  sampled.push(points[n - 1]!);
+  return sampled;
 }
