@@ -67,10 +67,10 @@ export const SpeedAdvisorInputSchema = z
     error: 'give exactly one of targetDryThicknessUm or targetWetThicknessUm',
     path: ['targetDryThicknessUm'],
   })
-  .refine(
-    (v) => v.thicknessConstant !== undefined || (v.surfaceTensionMNm !== undefined && v.densityKgM3 !== undefined),
-    { error: 'surfaceTensionMNm and densityKgM3 are needed without a calibrated thicknessConstant', path: ['thicknessConstant'] },
-  )
+  .refine((v) => v.thicknessConstant !== undefined || (v.surfaceTensionMNm !== undefined && v.densityKgM3 !== undefined), {
+    error: 'surfaceTensionMNm and densityKgM3 are needed without a calibrated thicknessConstant',
+    path: ['thicknessConstant'],
+  })
   .refine(
     (v) => v.thicknessConstant !== undefined || v.targetDryThicknessUm === undefined || v.solidsVolumeFraction !== undefined,
     { error: 'solidsVolumeFraction is needed for a dry target without a calibrated constant', path: ['solidsVolumeFraction'] },
@@ -98,6 +98,7 @@ export type CalibrationInput = z.infer<typeof CalibrationInputSchema>;
 // Viscosity cups
 
 /** Cup ids (product.md §6). Kept in step with `CUP_IDS` in lib/domain/film/viscosity-cups. */
+// prettier-ignore
 export const CUP_ID_VALUES = [
   'zahn-1', 'zahn-2', 'zahn-3', 'zahn-4', 'zahn-5',
   'shell-1', 'shell-2', 'shell-2.5', 'shell-3', 'shell-3.5', 'shell-4', 'shell-5', 'shell-6',
@@ -146,7 +147,9 @@ export type BathAdditionInput = z.infer<typeof BathAdditionInputSchema>;
 // Cure
 
 const ProfilePointSchema = z.object({
-  minutes: num('minutes').min(0, { error: 'minutes must be at least 0' }).max(100_000, { error: 'minutes must be at most 100 000' }),
+  minutes: num('minutes')
+    .min(0, { error: 'minutes must be at least 0' })
+    .max(100_000, { error: 'minutes must be at most 100 000' }),
   tempC: celsius('tempC'),
 });
 

@@ -90,12 +90,24 @@ describe('withdrawalSpeedForThickness — inverted Landau–Levich', () => {
   });
 
   it('round-trips with dipThickness (the advised speed gives the target)', () => {
-    const a = withdrawalSpeedForThickness({ viscosityMPaS: 8, targetWetThicknessUm: 10, surfaceTensionMNm: 24, densityKgM3: 920 });
-    expect(dipThickness({ viscosityMPaS: 8, speedMmS: a.speedMmS, surfaceTensionMNm: 24, densityKgM3: 920 }).wetThicknessUm).toBeCloseTo(10, 9);
+    const a = withdrawalSpeedForThickness({
+      viscosityMPaS: 8,
+      targetWetThicknessUm: 10,
+      surfaceTensionMNm: 24,
+      densityKgM3: 920,
+    });
+    expect(
+      dipThickness({ viscosityMPaS: 8, speedMmS: a.speedMmS, surfaceTensionMNm: 24, densityKgM3: 920 }).wetThicknessUm,
+    ).toBeCloseTo(10, 9);
   });
 
   it('round-trips in the gravity–viscous regime too, with a warning', () => {
-    const a = withdrawalSpeedForThickness({ viscosityMPaS: 500, targetWetThicknessUm: 400, surfaceTensionMNm: 25, densityKgM3: 900 });
+    const a = withdrawalSpeedForThickness({
+      viscosityMPaS: 500,
+      targetWetThicknessUm: 400,
+      surfaceTensionMNm: 25,
+      densityKgM3: 900,
+    });
     expect(a.model).toBe('gravity-viscous');
     expect(a.warnings).toHaveLength(1);
     const r = dipThickness({ viscosityMPaS: 500, speedMmS: a.speedMmS, surfaceTensionMNm: 25, densityKgM3: 900 });
@@ -110,8 +122,12 @@ describe('withdrawalSpeedForThickness — inverted Landau–Levich', () => {
   });
 
   it('refuses an ambiguous or incomplete request', () => {
-    expect(() => withdrawalSpeedForThickness({ viscosityMPaS: 5, surfaceTensionMNm: 25, densityKgM3: 900 })).toThrow(/exactly one/);
-    expect(() => withdrawalSpeedForThickness({ viscosityMPaS: 5, targetDryThicknessUm: 2, surfaceTensionMNm: 25, densityKgM3: 900 })).toThrow(/solidsVolumeFraction/);
+    expect(() => withdrawalSpeedForThickness({ viscosityMPaS: 5, surfaceTensionMNm: 25, densityKgM3: 900 })).toThrow(
+      /exactly one/,
+    );
+    expect(() =>
+      withdrawalSpeedForThickness({ viscosityMPaS: 5, targetDryThicknessUm: 2, surfaceTensionMNm: 25, densityKgM3: 900 }),
+    ).toThrow(/solidsVolumeFraction/);
     expect(() => withdrawalSpeedForThickness({ viscosityMPaS: 5, targetWetThicknessUm: 2 })).toThrow(/surfaceTension/);
   });
 });
@@ -164,10 +180,28 @@ describe('calibrateThicknessConstant — least squares in log space', () => {
 describe('bathAddition — solids mass balance (hand-computed)', () => {
   const cases = [
     // m_solvent = 100·(30/25 − 1) = 20 kg → 120 kg at 25 %.
-    { name: 'solvent top-up 30 → 25 %', input: { bathMassKg: 100, solidsNowPct: 30, solidsTargetPct: 25 }, kind: 'solvent', mass: 20, after: 120 },
+    {
+      name: 'solvent top-up 30 → 25 %',
+      input: { bathMassKg: 100, solidsNowPct: 30, solidsTargetPct: 25 },
+      kind: 'solvent',
+      mass: 20,
+      after: 120,
+    },
     // m_add = 100·(25 − 20)/(40 − 25) = 33.333 kg.
-    { name: 'fresh lacquer 20 → 25 % with 40 % lacquer', input: { bathMassKg: 100, solidsNowPct: 20, solidsTargetPct: 25, lacquerSolidsPct: 40 }, kind: 'lacquer', mass: 100 / 3, after: 100 + 100 / 3 },
-    { name: 'already on target', input: { bathMassKg: 80, solidsNowPct: 25, solidsTargetPct: 25 }, kind: 'none', mass: 0, after: 80 },
+    {
+      name: 'fresh lacquer 20 → 25 % with 40 % lacquer',
+      input: { bathMassKg: 100, solidsNowPct: 20, solidsTargetPct: 25, lacquerSolidsPct: 40 },
+      kind: 'lacquer',
+      mass: 100 / 3,
+      after: 100 + 100 / 3,
+    },
+    {
+      name: 'already on target',
+      input: { bathMassKg: 80, solidsNowPct: 25, solidsTargetPct: 25 },
+      kind: 'none',
+      mass: 0,
+      after: 80,
+    },
   ] as const;
   for (const c of cases) {
     it(c.name, () => {
@@ -185,11 +219,27 @@ describe('bathAddition — solids mass balance (hand-computed)', () => {
   }
 
   const refusals = [
-    { name: 'lacquer no richer than target', input: { bathMassKg: 100, solidsNowPct: 20, solidsTargetPct: 25, lacquerSolidsPct: 25 }, reason: /above the target/ },
-    { name: 'raise without lacquer solids', input: { bathMassKg: 100, solidsNowPct: 20, solidsTargetPct: 25 }, reason: /lacquer/ },
+    {
+      name: 'lacquer no richer than target',
+      input: { bathMassKg: 100, solidsNowPct: 20, solidsTargetPct: 25, lacquerSolidsPct: 25 },
+      reason: /above the target/,
+    },
+    {
+      name: 'raise without lacquer solids',
+      input: { bathMassKg: 100, solidsNowPct: 20, solidsTargetPct: 25 },
+      reason: /lacquer/,
+    },
     { name: 'solvent to 0 %', input: { bathMassKg: 100, solidsNowPct: 20, solidsTargetPct: 0 }, reason: /above 0/ },
-    { name: 'tank too small', input: { bathMassKg: 100, solidsNowPct: 30, solidsTargetPct: 25, maxBathMassKg: 110 }, reason: /tank/ },
-    { name: 'solids over 100 %', input: { bathMassKg: 100, solidsNowPct: 130, solidsTargetPct: 25 }, reason: /between 0 and 100/ },
+    {
+      name: 'tank too small',
+      input: { bathMassKg: 100, solidsNowPct: 30, solidsTargetPct: 25, maxBathMassKg: 110 },
+      reason: /tank/,
+    },
+    {
+      name: 'solids over 100 %',
+      input: { bathMassKg: 100, solidsNowPct: 130, solidsTargetPct: 25 },
+      reason: /between 0 and 100/,
+    },
   ];
   for (const c of refusals) {
     it(`refuses: ${c.name}`, () => {

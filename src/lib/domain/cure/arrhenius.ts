@@ -163,9 +163,7 @@ export interface IsothermalSchedule {
 }
 
 /** A solved activation energy, or the reason there is none. */
-export type ActivationEnergySolution =
-  | { ok: true; activationEnergyKJMol: number }
-  | { ok: false; reason: string };
+export type ActivationEnergySolution = { ok: true; activationEnergyKJMol: number } | { ok: false; reason: string };
 
 /**
  * Activation energy that makes two isothermal schedules give the same Arrhenius equivalent
@@ -175,10 +173,7 @@ export type ActivationEnergySolution =
  * Example (computed): 60 min at 120 °C ≡ 120 min at 110 °C ("rate doubles per 10 °C")
  * ⇒ Ea ≈ 86.8 kJ/mol. Source: Arrhenius law; same form as ASTM C1074 Q = E/R.
  */
-export function activationEnergyForEquivalence(
-  a: IsothermalSchedule,
-  b: IsothermalSchedule,
-): ActivationEnergySolution {
+export function activationEnergyForEquivalence(a: IsothermalSchedule, b: IsothermalSchedule): ActivationEnergySolution {
   for (const s of [a, b]) {
     if (!Number.isFinite(s.minutes) || s.minutes <= 0 || !Number.isFinite(s.tempC) || s.tempC <= -ZERO_CELSIUS_K) {
       return { ok: false, reason: 'each schedule needs minutes > 0 and a temperature above absolute zero' };
@@ -189,9 +184,10 @@ export function activationEnergyForEquivalence(
   if (ta === tb) {
     return {
       ok: false,
-      reason: a.minutes === b.minutes
-        ? 'the schedules are identical: any activation energy makes them equivalent'
-        : 'same temperature, different times: no activation energy makes them equivalent',
+      reason:
+        a.minutes === b.minutes
+          ? 'the schedules are identical: any activation energy makes them equivalent'
+          : 'same temperature, different times: no activation energy makes them equivalent',
     };
   }
   const ea = (GAS_CONSTANT_J_MOL_K * Math.log(a.minutes / b.minutes)) / (1 / ta - 1 / tb);

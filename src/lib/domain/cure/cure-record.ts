@@ -12,11 +12,7 @@
  * Coatrail's verdict is advisory: over-temperature protection and interlocks stay in the oven.
  * Cure windows come from the lacquer maker's data and the lab's validation.
  */
-import {
-  equivalentMinutes as equivalentMinutesOf,
-  minutesAtOrAbove as minutesAtOrAboveOf,
-  type ProfilePoint,
-} from './arrhenius';
+import { equivalentMinutes as equivalentMinutesOf, minutesAtOrAbove as minutesAtOrAboveOf, type ProfilePoint } from './arrhenius';
 
 /** One instant of oven data: epoch ms and the zone thermocouple(s) in °C. */
 export interface OvenReading {
@@ -230,8 +226,7 @@ export function cureRecord(input: CureRecordInput): CureRecord {
   const rampExceeded = (maxUp ?? 0) > w.maxRampCPerMin || (maxDown ?? 0) > w.maxRampCPerMin;
 
   // Soak: first to last instant the coldest thermocouple is at/above the minimum (interpolated).
-  const crossing = (a: Row, b: Row): number =>
-    a.tMs + ((w.minTempC - a.cold) / (b.cold - a.cold)) * (b.tMs - a.tMs);
+  const crossing = (a: Row, b: Row): number => a.tMs + ((w.minTempC - a.cold) / (b.cold - a.cold)) * (b.tMs - a.tMs);
   let soakStart: number | null = null;
   let soakEnd: number | null = null;
   rows.forEach((r, i) => {
@@ -243,9 +238,7 @@ export function cureRecord(input: CureRecordInput): CureRecord {
   });
   const soak = soakStart !== null && soakEnd !== null ? { startMs: soakStart, endMs: soakEnd } : null;
 
-  const openingsDuringSoak = soak
-    ? door.events.filter((e) => e.closedMs >= soak.startMs && e.openedMs <= soak.endMs).length
-    : 0;
+  const openingsDuringSoak = soak ? door.events.filter((e) => e.closedMs >= soak.startMs && e.openedMs <= soak.endMs).length : 0;
 
   // Verdict.
   let verdict: CureVerdict;

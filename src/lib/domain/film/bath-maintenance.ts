@@ -54,8 +54,7 @@ function pct(name: string, v: number): string | null {
  * Impossible requests are refused with a reason, never thrown.
  */
 export function bathAddition(input: BathAdditionInput): BathAddition | BathAdditionRefusal {
-  const { bathMassKg, solidsNowPct: sNow, solidsTargetPct: sTarget, lacquerSolidsPct, maxBathMassKg } =
-    input;
+  const { bathMassKg, solidsNowPct: sNow, solidsTargetPct: sTarget, lacquerSolidsPct, maxBathMassKg } = input;
   if (!Number.isFinite(bathMassKg) || bathMassKg <= 0) {
     return { ok: false, reason: 'bath mass must be greater than 0 kg' };
   }

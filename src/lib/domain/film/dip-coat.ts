@@ -84,11 +84,7 @@ function requireFraction(name: string, value: number): void {
  * @param surfaceTensionMNm γ in mN/m
  * Source: Brinker & Scherer 1990, ch. 13.
  */
-export function capillaryNumber(
-  viscosityMPaS: number,
-  speedMmS: number,
-  surfaceTensionMNm: number,
-): number {
+export function capillaryNumber(viscosityMPaS: number, speedMmS: number, surfaceTensionMNm: number): number {
   requirePositive('viscosityMPaS', viscosityMPaS);
   requirePositive('speedMmS', speedMmS);
   requirePositive('surfaceTensionMNm', surfaceTensionMNm);
@@ -121,8 +117,7 @@ export function capillaryLengthMm(surfaceTensionMNm: number, densityKgM3: number
  * @throws RangeError on a non-finite or non-positive input, or φ outside (0, 1].
  */
 export function dipThickness(input: DipThicknessInput): DipThicknessResult {
-  const { viscosityMPaS, speedMmS, surfaceTensionMNm, densityKgM3, solidsVolumeFraction } =
-    input;
+  const { viscosityMPaS, speedMmS, surfaceTensionMNm, densityKgM3, solidsVolumeFraction } = input;
   requirePositive('densityKgM3', densityKgM3);
   if (solidsVolumeFraction !== undefined) requireFraction('solidsVolumeFraction', solidsVolumeFraction);
   const ca = capillaryNumber(viscosityMPaS, speedMmS, surfaceTensionMNm);
@@ -167,8 +162,7 @@ export function theoreticalThicknessConstant(surfaceTensionMNm: number, densityK
   requirePositive('surfaceTensionMNm', surfaceTensionMNm);
   requirePositive('densityKgM3', densityKgM3);
   const cSi =
-    LANDAU_LEVICH_PREFACTOR /
-    (Math.pow(surfaceTensionMNm * 1e-3, 1 / 6) * Math.sqrt(densityKgM3 * STANDARD_GRAVITY_M_S2));
+    LANDAU_LEVICH_PREFACTOR / (Math.pow(surfaceTensionMNm * 1e-3, 1 / 6) * Math.sqrt(densityKgM3 * STANDARD_GRAVITY_M_S2));
   return cSi * 100;
 }
 
@@ -265,9 +259,7 @@ export function withdrawalSpeedForThickness(input: SpeedAdvisorInput): SpeedAdvi
     const speedMmS = ((ca * surfaceTensionMNm * 1e-3) / (viscosityMPaS * 1e-3)) * 1e3;
     return { speedMmS, model: 'landau-levich', capillaryNumber: ca, warnings };
   }
-  const speedMs =
-    (Math.pow(hM / GRAVITY_VISCOUS_PREFACTOR, 2) * densityKgM3 * STANDARD_GRAVITY_M_S2) /
-    (viscosityMPaS * 1e-3);
+  const speedMs = (Math.pow(hM / GRAVITY_VISCOUS_PREFACTOR, 2) * densityKgM3 * STANDARD_GRAVITY_M_S2) / (viscosityMPaS * 1e-3);
   const speedMmS = speedMs * 1e3;
   warnings.push(
     'The target needs Ca above 1e-2: Landau–Levich does not hold; the speed comes from the gravity–viscous estimate.',

@@ -12,6 +12,7 @@
  */
 
 /** Cup identifiers accepted by the calculator (API contract, product.md §6). */
+// prettier-ignore
 export const CUP_IDS = [
   'zahn-1', 'zahn-2', 'zahn-3', 'zahn-4', 'zahn-5',
   'shell-1', 'shell-2', 'shell-2.5', 'shell-3', 'shell-3.5', 'shell-4', 'shell-5', 'shell-6',
@@ -29,9 +30,7 @@ export type CupFamily = 'zahn' | 'shell' | 'ford' | 'iso' | 'din';
 /**
  * Conversion equation: 'linear' ν = k·(t − c); 'a-b/t' ν = A·t − B/t (ν mm²/s, t s).
  */
-export type CupEquation =
-  | { kind: 'linear'; k: number; c: number }
-  | { kind: 'a-b/t'; a: number; b: number };
+export type CupEquation = { kind: 'linear'; k: number; c: number } | { kind: 'a-b/t'; a: number; b: number };
 
 /** A cup's conversion, valid window and provenance. */
 export interface CupSpec {
@@ -84,6 +83,7 @@ const ab = (a: number, b: number): CupEquation => ({ kind: 'a-b/t', a, b });
  * | iso-6mm | 6.90t − 570/t | 30–100 | from memory |
  * | din-4mm | 4.57t − 452/t | 25–150 | from memory |
  */
+// prettier-ignore
 export const CUPS: readonly CupSpec[] = [
   { id: 'zahn-1', family: 'zahn', equation: lin(1.1, 29), validSeconds: { min: 35, max: 80 }, source: D4212, provenance: 'published' },
   { id: 'zahn-2', family: 'zahn', equation: lin(3.5, 14), validSeconds: { min: 20, max: 80 }, source: D4212, provenance: 'published' },
@@ -151,9 +151,7 @@ export function cupSpec(id: CupId): CupSpec {
  * Exposed for charts of a cup's line; use {@link viscosityFromCup} for readings.
  */
 export function evaluateCupEquation(equation: CupEquation, seconds: number): number {
-  return equation.kind === 'linear'
-    ? equation.k * (seconds - equation.c)
-    : equation.a * seconds - equation.b / seconds;
+  return equation.kind === 'linear' ? equation.k * (seconds - equation.c) : equation.a * seconds - equation.b / seconds;
 }
 
 /**
