@@ -103,8 +103,8 @@ describe('findExtrema — thickness from a reflectance spectrum', () => {
     expect(r.maxima.length).toBeGreaterThanOrEqual(6);
     expect(r.minima.length).toBeGreaterThanOrEqual(6);
     expect(r.count).toBe(r.maxima.length - 1 + r.minima.length - 1);
-    expect(Math.abs(r.thicknessNm - 2000) / 2000).toBeLessThan(0.005);
-    expect(r.sdNm).toBeLessThan(20);
+    expect(Math.abs(r.thicknessNm - 2000) / 2000).toBeLessThan(0.001); // 0.1 %
+    expect(r.sdNm).toBeLessThan(2);
     expect(r.maxima[0]?.wavelengthNm).toBeCloseTo(6000 / 14, 0);
   });
 
