@@ -1,0 +1,169 @@
+/**
+ * The role matrix: walks every API route in src/pages/api, reads the verbs it exports and
+ * checks each one against the permission table (src/lib/shared/roles.ts):
+ *   - anonymous → 401 problem+json (unless the route is public);
+ *   - each demo role → 403 problem+json when `can(role, action)` is false, otherwise neither 401 nor 403;
+ *   - an API token carrying a role answers exactly as that role's session does;
+ *   - a revoked token → 401 everywhere that is not public.
+ * A route that is not listed in ROUTES fails with "add it", so a route added without a guard
+ * (or without thinking about who may call it) cannot slip through.
+ *
+ * To add a route: one line `'METHOD /api/path/[param]': '<action>' | 'public'` below.
+ */
+import { createHash, randomBytes } from 'node:crypto';
+import fs from 'node:fs';
+import path from 'node:path';
+import pg from 'pg';
+import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
+import { can, ROLES, type Action, type Role } from '../../src/lib/shared/roles.ts';
+import { base, signIn, type Session } from '../support/http.ts';
+import { root } from '../support/test-stack.ts';
+
+const ROUTES: Record<string, Action | 'public'> = {
+  'POST /api/auth/login': 'public',
+  'POST /api/auth/logout': 'public',
+  'GET /api/health': 'public',
+  'GET /api/v1/stream': 'view',
+};
+
+/** A plausible value for each dynamic segment (the route must still answer 401/403 before looking it up). */
+const SAMPLE_PARAMS: Record<string, string> = {
+  jobNumber: 'X-1',
+  number: 'X-1',
+  key: 'x-1',
+  slug: 'x-1',
+  name: 'x-1',
+};
+
+interface FoundRoute {
+  method: string;
+  /** As written in ROUTES, e.g. /api/v1/alarms/[id]/ack */
+  pattern: string;
+  /** A concrete URL to call, e.g. /api/v1/alarms/1/ack */
+  url: string;
+}
+
+function walk(dir: string): string[] {
+  return fs.readdirSync(dir, { withFileTypes: true }).flatMap((d) => {
+    const p = path.join(dir, d.name);
+    return d.isDirectory() ? walk(p) : /\.(ts|js|mjs)$/.test(d.name) ? [p] : [];
+  });
+}
+
+function findRoutes(): FoundRoute[] {
+  const apiDir = path.join(root, 'src/pages/api');
+  const out: FoundRoute[] = [];
+  for (const file of walk(apiDir).sort()) {
+    const rel = path.relative(path.join(root, 'src/pages'), file).replace(/\\/g, '/');
+    const pattern = '/' + rel.replace(/\.(ts|js|mjs)$/, '').replace(/\/index$/, '');
+    const url = pattern.replace(/\[(\.\.\.)?([^\]]+)\]/g, (_, _rest, name: string) => SAMPLE_PARAMS[name] ?? '1');
+    const src = fs.readFileSync(file, 'utf8');
+    const verbs = new Set([...src.matchAll(/export\s+const\s+(GET|POST|PUT|PATCH|DELETE)\b/g)].map((m) => m[1]!));
+    for (const method of verbs) out.push({ method, pattern, url });
+  }
+  return out;
+}
+
+const found = findRoutes();
+
+/** One request; the body is abandoned once the status is known (so event streams do not hang). */
+async function call(route: FoundRoute, auth: { cookie?: string; bearer?: string } = {}): Promise<{ status: number; type: string }> {
+  const headers = new Headers();
+  if (auth.cookie) headers.set('cookie', auth.cookie);
+  if (auth.bearer) headers.set('authorization', `Bearer ${auth.bearer}`);
+  const write = route.method !== 'GET';
+  if (write) headers.set('content-type', 'application/json');
+  const ac = new AbortController();
+  const r = await fetch(`${base()}${route.url}`, { method: route.method, headers, body: write ? '{}' : null, redirect: 'manual', signal: ac.signal });
+  const type = r.headers.get('content-type') ?? '';
+  ac.abort();
+  return { status: r.status, type };
+}
+
+const sessions = new Map<Role, Session>();
+const tokens = new Map<Role, string>();
+let revokedToken = '';
+let pool: pg.Pool;
+
+/** Tokens are issued through the database here so this test depends on nothing but the middleware. */
+async function issueToken(role: Role, revoked: boolean): Promise<string> {
+  const secret = 'ct_' + randomBytes(24).toString('base64url');
+  const hash = createHash('sha256').update(secret).digest('hex');
+  await pool.query(
+    `insert into api_tokens (name, role, token_hash, prefix, created_by, revoked_at)
+     values ($1, $2, $3, $4, (select id from users where username = 'admin'), $5)`,
+    [`role-matrix-${role}-${randomBytes(4).toString('hex')}`, role, hash, secret.slice(0, 8), revoked ? new Date() : null],
+  );
+  return secret;
+}
+
+beforeAll(async () => {
+  pool = new pg.Pool({ connectionString: inject('stack').databaseUrl, max: 2 });
+  for (const role of ROLES) {
+    sessions.set(role, await signIn(role));
+    tokens.set(role, await issueToken(role, false));
+  }
+  revokedToken = await issueToken('admin', true);
+});
+
+afterAll(async () => {
+  await pool?.end();
+});
+
+describe('role matrix over every API route', () => {
+  it('finds the API routes', () => {
+    expect(found.map((r) => `${r.method} ${r.pattern}`)).toContain('POST /api/auth/login');
+  });
+
+  it('lists no route that no longer exists', () => {
+    const keys = new Set(found.map((r) => `${r.method} ${r.pattern}`));
+    const stale = Object.keys(ROUTES).filter((k) => !keys.has(k));
+    expect(stale, 'these ROUTES entries name no exported verb; remove or fix them').toEqual([]);
+  });
+
+  describe.each(found.map((r) => [`${r.method} ${r.pattern}`, r] as const))('%s', (key, route) => {
+    const action = ROUTES[key];
+
+    it('is in the ROUTES table', () => {
+      expect(action, `${key} is not in ROUTES of tests/api/role-matrix.test.ts — add it with its action or 'public'`).toBeDefined();
+    });
+
+    if (action === undefined) return;
+
+    if (action === 'public') {
+      it('answers anonymous callers without 401/403', async () => {
+        const r = await call(route);
+        expect([401, 403]).not.toContain(r.status);
+      });
+      return;
+    }
+
+    it('answers anonymous callers 401 problem+json', async () => {
+      const r = await call(route);
+      expect(r.status).toBe(401);
+      expect(r.type).toContain('application/problem+json');
+    });
+
+    it('answers a revoked API token 401', async () => {
+      const r = await call(route, { bearer: revokedToken });
+      expect(r.status).toBe(401);
+      expect(r.type).toContain('application/problem+json');
+    });
+
+    it.each(ROLES.map((role) => [role] as const))(`as %s: 403 unless can(role, '${action}')`, async (role) => {
+      const viaSession = await call(route, { cookie: sessions.get(role)!.cookie });
+      const viaToken = await call(route, { bearer: tokens.get(role)! });
+      for (const [how, r] of [
+        ['session', viaSession],
+        ['token', viaToken],
+      ] as const) {
+        if (can(role, action)) {
+          expect([401, 403], `${role} (${how}) may ${action} but got ${r.status}`).not.toContain(r.status);
+        } else {
+          expect(r.status, `${role} (${how}) may not ${action}`).toBe(403);
+          expect(r.type).toContain('application/problem+json');
+        }
+      }
+    });
+  });
+});
