@@ -1,0 +1,489 @@
+/**
+ * The alarm store: raising, clearing and transitioning alarms in PostgreSQL. Worker-safe —
+ * takes a `pg.Pool`, imports no Astro env — so the ingest worker (limit, stale, device and
+ * system sources), the web endpoints (acknowledge, shelve, out of service) and other helpers
+ * (SPC and cure verdicts) all go through the same code.
+ *
+ * Every state change goes through the domain's `transition` (ANSI/ISA-18.2 / IEC 62682 alarm
+ * states, `lib/domain/alarms/state.ts`) and writes one `alarm_events` row. A source has at
+ * most one open alarm (any state but `normal`); a raise on a source with an open alarm updates
+ * that row instead of duplicating it and counts the activation (chattering shows as a rising
+ * `activation_count` and repeated `activate` events).
+ *
+ * The store does not publish live events; callers publish `alarms` with {@link liveAlarmPayload}.
+ */
+import type pg from 'pg';
+import {
+  transition,
+  type AlarmEvent,
+  type AlarmRecord,
+  type AlarmActor,
+  type AlarmState,
+} from '../../domain/alarms/state.ts';
+import type { AlarmPriority } from '../../shared/alarms.ts';
+import type { AlarmSourceKind, AlarmView, AlarmEventView } from '../../shared/alarm-views.ts';
+
+export interface RaiseAlarmInput {
+  sourceKind: AlarmSourceKind;
+  /** Stable id of the source, e.g. 'channel:12:high', 'char:3', 'load:42', 'device:5'. */
+  sourceKey: string;
+  /** Plain words, e.g. 'Line 1 bath viscosity'. */
+  sourceLabel: string;
+  assetId?: number | null;
+  channelId?: number | null;
+  characteristicId?: number | null;
+  loadId?: number | null;
+  priority: AlarmPriority;
+  /** e.g. 'Viscosity 14.2 mm²/s above the window high 13.0 mm²/s'. */
+  message: string;
+  value?: number | null;
+  limit?: number | null;
+  atMs: number;
+}
+
+type Queryable = pg.Pool | pg.PoolClient;
+
+const COLUMNS = `a.id, a.source_kind, a.source_key, a.source_label, a.asset_id, a.channel_id, a.characteristic_id,
+  a.load_id, a.priority, a.message, a.value, a.limit_value, a.state, a.active, a.raised_at, a.last_activated_at,
+  a.cleared_at, a.acked_at, a.acked_by, a.shelved_until, a.escalation_steps_sent, a.activation_count, a.updated_at,
+  u.display_name as acked_by_name, ast.name as asset_name`;
+const FROM = `alarms a left join users u on u.id = a.acked_by left join assets ast on ast.id = a.asset_id`;
+
+interface AlarmRow {
+  id: number;
+  source_kind: AlarmSourceKind;
+  source_key: string;
+  source_label: string;
+  asset_id: number | null;
+  channel_id: number | null;
+  characteristic_id: number | null;
+  load_id: number | null;
+  priority: AlarmPriority;
+  message: string;
+  value: number | null;
+  limit_value: number | null;
+  state: AlarmState;
+  active: boolean;
+  raised_at: Date;
+  last_activated_at: Date;
+  cleared_at: Date | null;
+  acked_at: Date | null;
+  acked_by: number | null;
+  shelved_until: Date | null;
+  escalation_steps_sent: number[];
+  activation_count: number;
+  updated_at: Date;
+  acked_by_name: string | null;
+  asset_name: string | null;
+}
+
+const ms = (d: Date | null): number | null => (d ? d.getTime() : null);
+
+function toView(r: AlarmRow): AlarmView {
+  return {
+    id: r.id,
+    sourceKind: r.source_kind,
+    sourceKey: r.source_key,
+    sourceLabel: r.source_label,
+    assetId: r.asset_id,
+    assetName: r.asset_name,
+    channelId: r.channel_id,
+    characteristicId: r.characteristic_id,
+    loadId: r.load_id,
+    priority: r.priority,
+    message: r.message,
+    value: r.value,
+    limit: r.limit_value,
+    state: r.state,
+    active: r.active,
+    raisedAtMs: r.raised_at.getTime(),
+    lastActivatedAtMs: r.last_activated_at.getTime(),
+    clearedAtMs: ms(r.cleared_at),
+    ackedAtMs: ms(r.acked_at),
+    ackedBy: r.acked_by_name,
+    shelvedUntilMs: ms(r.shelved_until),
+    escalationStepsSent: r.escalation_steps_sent ?? [],
+    activationCount: r.activation_count,
+    updatedAtMs: r.updated_at.getTime(),
+  };
+}
+
+/** The payload of a live `alarms` event for one alarm (the whole view; `id`, `state`, `priority` first). */
+export function liveAlarmPayload(alarm: AlarmView): AlarmView {
+  return alarm;
+}
+
+async function withTx<T>(pool: pg.Pool, fn: (c: pg.PoolClient) => Promise<T>): Promise<T> {
+  const c = await pool.connect();
+  try {
+    await c.query('begin');
+    const out = await fn(c);
+    await c.query('commit');
+    return out;
+  } catch (e) {
+    await c.query('rollback').catch(() => {});
+    throw e;
+  } finally {
+    c.release();
+  }
+}
+
+async function selectOne(q: Queryable, where: string, params: unknown[], lock = false): Promise<AlarmRow | null> {
+  // FOR UPDATE cannot apply to the nullable side of an outer join: lock the alarm row only.
+  const res = await q.query<AlarmRow>(
+    `select ${COLUMNS} from ${FROM} where ${where} ${lock ? 'for update of a' : ''}`,
+    params,
+  );
+  return res.rows[0] ?? null;
+}
+
+async function insertEvent(
+  q: Queryable,
+  alarmId: number,
+  atMs: number,
+  event: string,
+  from: AlarmState | null,
+  to: AlarmState,
+  active: boolean,
+  userId: number | null,
+  comment: string | null,
+): Promise<void> {
+  await q.query(
+    `insert into alarm_events (alarm_id, at, event, from_state, to_state, active, user_id, comment)
+     values ($1, to_timestamp($2 / 1000.0), $3, $4, $5, $6, $7, $8)`,
+    [alarmId, atMs, event, from, to, active, userId, comment],
+  );
+}
+
+const SYSTEM = { role: 'system' as const };
+
+/**
+ * Report that a source's condition is abnormal. Creates an alarm (state `unacked`) when the
+ * source has none open; otherwise applies `activate` to the open one: a returned-to-normal
+ * unacknowledged alarm re-annunciates, a shelved / out-of-service one stays held but becomes
+ * active, an already active one just takes the newer message, value and limit. A new
+ * activation (inactive → active) increments `activation_count` and writes an event; an update
+ * of an already active alarm writes none (no rows per sample).
+ */
+export async function raiseAlarm(pool: pg.Pool, input: RaiseAlarmInput): Promise<{ id: number; created: boolean }> {
+  for (let attempt = 0; ; attempt++) {
+    try {
+      return await withTx(pool, (c) => raiseInTx(c, input));
+    } catch (e) {
+      // Two processes raising the same new source at once: the loser retries and updates.
+      if ((e as { code?: string }).code === '23505' && attempt < 2) continue;
+      throw e;
+    }
+  }
+}
+
+async function raiseInTx(c: pg.PoolClient, input: RaiseAlarmInput): Promise<{ id: number; created: boolean }> {
+  const open = await selectOne(c, `a.source_key = $1 and a.state <> 'normal'`, [input.sourceKey], true);
+  if (!open) {
+    const t = transition<AlarmRecord>({ state: 'normal', active: false }, { type: 'activate' }, { nowMs: input.atMs, ...SYSTEM });
+    if (!t.ok) throw new Error(`alarm store: ${t.reason}`);
+    const res = await c.query<{ id: number }>(
+      `insert into alarms (source_kind, source_key, source_label, asset_id, channel_id, characteristic_id, load_id,
+         priority, message, value, limit_value, state, active, raised_at, last_activated_at)
+       values ($1,$2,$3,$4,$5,$6,$7,$8,$9,$10,$11,$12,$13, to_timestamp($14 / 1000.0), to_timestamp($14 / 1000.0))
+       returning id`,
+      [
+        input.sourceKind,
+        input.sourceKey,
+        input.sourceLabel,
+        input.assetId ?? null,
+        input.channelId ?? null,
+        input.characteristicId ?? null,
+        input.loadId ?? null,
+        input.priority,
+        input.message,
+        finiteOrNull(input.value),
+        finiteOrNull(input.limit),
+        t.alarm.state,
+        t.alarm.active,
+        input.atMs,
+      ],
+    );
+    const id = res.rows[0]!.id;
+    await insertEvent(c, id, input.atMs, 'activate', 'normal', t.alarm.state, true, null, input.message);
+    return { id, created: true };
+  }
+  const t = transition<AlarmRecord>(recordOf(open), { type: 'activate' }, { nowMs: input.atMs, ...SYSTEM });
+  if (!t.ok) throw new Error(`alarm store: ${t.reason}`);
+  const newActivation = !open.active;
+  await c.query(
+    `update alarms set state = $2, active = true, message = $3, value = $4, limit_value = $5, priority = $6,
+       source_label = $7, asset_id = coalesce($8, asset_id), channel_id = coalesce($9, channel_id),
+       characteristic_id = coalesce($10, characteristic_id), load_id = coalesce($11, load_id),
+       last_activated_at = case when $12 then to_timestamp($13 / 1000.0) else last_activated_at end,
+       activation_count = activation_count + case when $12 then 1 else 0 end,
+       cleared_at = case when $12 then null else cleared_at end,
+       escalation_steps_sent = case when $12 and $14 then '{}' else escalation_steps_sent end,
+       updated_at = now()
+     where id = $1`,
+    [
+      open.id,
+      t.alarm.state,
+      input.message,
+      finiteOrNull(input.value),
+      finiteOrNull(input.limit),
+      input.priority,
+      input.sourceLabel,
+      input.assetId ?? null,
+      input.channelId ?? null,
+      input.characteristicId ?? null,
+      input.loadId ?? null,
+      newActivation,
+      input.atMs,
+      // A re-annunciated alarm (rtn-unacked → unacked) escalates again from its new activation.
+      open.state === 'rtn-unacked',
+    ],
+  );
+  if (newActivation) {
+    await insertEvent(c, open.id, input.atMs, 'activate', open.state, t.alarm.state, true, null, input.message);
+  }
+  return { id: open.id, created: false };
+}
+
+/**
+ * Report that a source's condition returned to normal: applies `clear` to its open alarm
+ * (unacknowledged → returned-to-normal unacknowledged, acknowledged → normal, held states keep
+ * their state with the condition inactive). Does nothing when the source has no open alarm
+ * or the alarm is already inactive.
+ */
+export async function clearAlarm(pool: pg.Pool, sourceKey: string, atMs: number): Promise<void> {
+  await clearAlarmReturning(pool, sourceKey, atMs);
+}
+
+/** {@link clearAlarm}, returning the alarm when it changed (for the caller's live event). */
+export async function clearAlarmReturning(pool: pg.Pool, sourceKey: string, atMs: number): Promise<AlarmView | null> {
+  return withTx(pool, async (c) => {
+    const open = await selectOne(c, `a.source_key = $1 and a.state <> 'normal'`, [sourceKey], true);
+    if (!open || !open.active) return null;
+    const t = transition<AlarmRecord>(recordOf(open), { type: 'clear' }, { nowMs: atMs, ...SYSTEM });
+    if (!t.ok || !t.changed) return null;
+    await c.query(
+      `update alarms set state = $2, active = false, cleared_at = to_timestamp($3 / 1000.0), updated_at = now() where id = $1`,
+      [open.id, t.alarm.state, atMs],
+    );
+    await insertEvent(c, open.id, atMs, 'clear', open.state, t.alarm.state, false, null, null);
+    return toView((await selectOne(c, 'a.id = $1', [open.id]))!);
+  });
+}
+
+/** Who performs a transition and when. */
+export interface TransitionActor {
+  role: AlarmActor;
+  /** The person's user id; null for the system. */
+  userId: number | null;
+  nowMs: number;
+}
+
+export type TransitionAlarmResult =
+  | { ok: true; changed: boolean; before: AlarmView; alarm: AlarmView }
+  | { ok: false; status: 404 | 409; reason: string };
+
+/**
+ * Apply one person's or the system's event to an alarm by id (acknowledge, shelve, unshelve,
+ * shelf expiry, out of service, return to service, suppression). A refusal by the state model
+ * comes back as `{ok: false, status: 409, reason}` with the domain's plain reason; an unknown
+ * id as 404. A changing transition writes an `alarm_events` row with the comment or reason.
+ */
+export async function transitionAlarm(
+  pool: pg.Pool,
+  id: number,
+  event: AlarmEvent,
+  ctx: TransitionActor,
+): Promise<TransitionAlarmResult> {
+  return withTx(pool, async (c) => {
+    const row = await selectOne(c, 'a.id = $1', [id], true);
+    if (!row) return { ok: false, status: 404, reason: `alarm ${id} does not exist` };
+    const t = transition<AlarmRecord>(recordOf(row), event, { nowMs: ctx.nowMs, role: ctx.role });
+    if (!t.ok) return { ok: false, status: 409, reason: t.reason };
+    const before = toView(row);
+    if (!t.changed) return { ok: true, changed: false, before, alarm: before };
+    const acked = event.type === 'ack';
+    await c.query(
+      `update alarms set state = $2, active = $3,
+         shelved_until = case when $4::double precision is null then null else to_timestamp($4 / 1000.0) end,
+         acked_at = case when $5 then to_timestamp($6 / 1000.0) else acked_at end,
+         acked_by = case when $5 then $7 else acked_by end,
+         updated_at = now()
+       where id = $1`,
+      [id, t.alarm.state, t.alarm.active, t.alarm.shelvedUntilMs ?? null, acked, ctx.nowMs, ctx.userId],
+    );
+    await insertEvent(c, id, ctx.nowMs, event.type, row.state, t.alarm.state, t.alarm.active, ctx.userId, eventText(event));
+    const after = toView((await selectOne(c, 'a.id = $1', [id]))!);
+    return { ok: true, changed: true, before, alarm: after };
+  });
+}
+
+function eventText(event: AlarmEvent): string | null {
+  switch (event.type) {
+    case 'ack':
+      return event.comment.trim();
+    case 'shelve':
+      return `${event.minutes} min: ${event.reason.trim()}`;
+    case 'remove-from-service':
+    case 'return-to-service':
+      return event.reason.trim();
+    default:
+      return null;
+  }
+}
+
+function recordOf(r: AlarmRow): AlarmRecord {
+  return { state: r.state, active: r.active, shelvedUntilMs: ms(r.shelved_until) };
+}
+
+function finiteOrNull(v: number | null | undefined): number | null {
+  return typeof v === 'number' && Number.isFinite(v) ? v : null;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Reads
+// ---------------------------------------------------------------------------------------------
+
+/** One alarm by id, or null. */
+export async function getAlarm(pool: Queryable, id: number): Promise<AlarmView | null> {
+  const row = await selectOne(pool, 'a.id = $1', [id]);
+  return row ? toView(row) : null;
+}
+
+/** The open alarm of a source (any state but normal), or null. */
+export async function openAlarmForSource(pool: Queryable, sourceKey: string): Promise<AlarmView | null> {
+  const row = await selectOne(pool, `a.source_key = $1 and a.state <> 'normal'`, [sourceKey]);
+  return row ? toView(row) : null;
+}
+
+/** An alarm's transitions, oldest first, with the person's name. */
+export async function alarmEvents(pool: Queryable, alarmId: number): Promise<AlarmEventView[]> {
+  const res = await pool.query<{
+    id: number;
+    at: Date;
+    event: string;
+    from_state: AlarmState | null;
+    to_state: AlarmState;
+    active: boolean;
+    user_id: number | null;
+    user_name: string | null;
+    comment: string | null;
+  }>(
+    `select e.id, e.at, e.event, e.from_state, e.to_state, e.active, e.user_id, u.display_name as user_name, e.comment
+       from alarm_events e left join users u on u.id = e.user_id
+      where e.alarm_id = $1 order by e.at, e.id`,
+    [alarmId],
+  );
+  return res.rows.map((r) => ({
+    id: Number(r.id),
+    atMs: r.at.getTime(),
+    event: r.event,
+    fromState: r.from_state,
+    toState: r.to_state,
+    active: r.active,
+    userId: r.user_id,
+    userName: r.user_name,
+    comment: r.comment,
+  }));
+}
+
+export interface ListAlarmsFilter {
+  /** ISA state names, or 'open' for the annunciated states (unacked, acked, rtn-unacked). */
+  states?: readonly (AlarmState | 'open')[];
+  priorities?: readonly AlarmPriority[];
+  channelId?: number;
+  limit: number;
+  /** Only alarms raised or updated at/after this time. */
+  sinceMs?: number;
+}
+
+/**
+ * Alarms for the queue: needing acknowledgement first, then highest priority, then newest
+ * activation.
+ */
+export async function listAlarms(pool: Queryable, f: ListAlarmsFilter): Promise<AlarmView[]> {
+  const where: string[] = [];
+  const params: unknown[] = [];
+  if (f.states && f.states.length > 0) {
+    const set = new Set<string>();
+    for (const s of f.states) {
+      if (s === 'open') ['unacked', 'acked', 'rtn-unacked'].forEach((x) => set.add(x));
+      else set.add(s);
+    }
+    params.push([...set]);
+    where.push(`a.state = any($${params.length})`);
+  }
+  if (f.priorities && f.priorities.length > 0) {
+    params.push([...f.priorities]);
+    where.push(`a.priority = any($${params.length})`);
+  }
+  if (f.channelId !== undefined) {
+    params.push(f.channelId);
+    where.push(`a.channel_id = $${params.length}`);
+  }
+  if (f.sinceMs !== undefined) {
+    params.push(f.sinceMs);
+    where.push(`a.updated_at >= to_timestamp($${params.length} / 1000.0)`);
+  }
+  params.push(f.limit);
+  const res = await pool.query<AlarmRow>(
+    `select ${COLUMNS} from ${FROM}
+      ${where.length ? `where ${where.join(' and ')}` : ''}
+      order by (a.state in ('unacked','rtn-unacked')) desc,
+               case a.priority when 'high' then 0 when 'medium' then 1 else 2 end,
+               a.last_activated_at desc, a.id desc
+      limit $${params.length}`,
+    params,
+  );
+  return res.rows.map(toView);
+}
+
+// ---------------------------------------------------------------------------------------------
+// Worker duties
+// ---------------------------------------------------------------------------------------------
+
+/** Shelved alarms whose shelf has ended at `nowMs`: apply `shelf-expired` (system). Returns the changed alarms. */
+export async function expireShelves(pool: pg.Pool, nowMs: number): Promise<AlarmView[]> {
+  const due = await pool.query<{ id: number }>(
+    `select id from alarms where state = 'shelved' and (shelved_until is null or shelved_until <= to_timestamp($1 / 1000.0))`,
+    [nowMs],
+  );
+  const out: AlarmView[] = [];
+  for (const { id } of due.rows) {
+    const r = await transitionAlarm(pool, id, { type: 'shelf-expired' }, { role: 'system', userId: null, nowMs });
+    if (r.ok && r.changed) out.push(r.alarm);
+  }
+  return out;
+}
+
+/** Alarms that may escalate (waiting for acknowledgement), for the escalation duty. */
+export async function alarmsAwaitingAck(pool: Queryable): Promise<AlarmView[]> {
+  const res = await pool.query<AlarmRow>(
+    `select ${COLUMNS} from ${FROM} where a.state in ('unacked','rtn-unacked') order by a.id`,
+  );
+  return res.rows.map(toView);
+}
+
+/**
+ * Record that escalation step `stepIndex` was sent for an alarm (once: a step already recorded
+ * is not added again) and log an `escalate` event. Returns false when it had already been recorded.
+ */
+export async function recordEscalation(
+  pool: pg.Pool,
+  alarmId: number,
+  stepIndex: number,
+  atMs: number,
+  note: string,
+): Promise<boolean> {
+  return withTx(pool, async (c) => {
+    const res = await c.query<{ state: AlarmState; active: boolean }>(
+      `update alarms set escalation_steps_sent = array_append(escalation_steps_sent, $2), updated_at = now()
+        where id = $1 and not ($2 = any(escalation_steps_sent)) returning state, active`,
+      [alarmId, stepIndex],
+    );
+    const row = res.rows[0];
+    if (!row) return false;
+    await insertEvent(c, alarmId, atMs, 'escalate', row.state, row.state, row.active, null, note);
+    return true;
+  });
+}
