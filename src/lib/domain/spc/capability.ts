@@ -21,44 +21,44 @@
  *   with σ_within ("within") or s ("overall"); normal model.
  * Units: indices dimensionless; ppm parts per million; μ, σ, limits in data units.
  */
-import type { SpcAutocorrelation, SpcCapability, SpcInterval, SpcNormality, SpcPpm } from '../../shared/spc';
-import { chiSquareQuantile, mean, normalCdf, normalQuantile, sampleSd } from './math';
+import type { SpcAutocorrelation, SpcCapability, SpcInterval, SpcNormality, SpcPpm } from '../../shared/spc.ts';
+import { chiSquareQuantile, mean, normalCdf, normalQuantile, sampleSd } from './math.ts';
 
 /** Specification limits (data units); at least one of lsl/usl. */
 export interface SpecLimits {
-	lsl?: number | undefined;
-	usl?: number | undefined;
-	target?: number | undefined;
+  lsl?: number | undefined;
+  usl?: number | undefined;
+  target?: number | undefined;
 }
 
 /** Summary statistics that capability indices are computed from. */
 export interface CapabilityMoments {
-	n: number;
-	mean: number;
-	sigmaWithin: number;
-	sigmaOverall: number;
+  n: number;
+  mean: number;
+  sigmaWithin: number;
+  sigmaOverall: number;
 }
 
 /** The capability indices alone (see the module comment for the formulas). */
 export interface CapabilityIndices {
-	cp: number | null;
-	cpu: number | null;
-	cpl: number | null;
-	cpk: number | null;
-	pp: number | null;
-	ppu: number | null;
-	ppl: number | null;
-	ppk: number | null;
-	cpm: number | null;
+  cp: number | null;
+  cpu: number | null;
+  cpl: number | null;
+  cpk: number | null;
+  pp: number | null;
+  ppu: number | null;
+  ppl: number | null;
+  ppk: number | null;
+  cpm: number | null;
 }
 
 function sideIndices(mu: number, sigma: number, lsl: number | undefined, usl: number | undefined) {
-	if (!(sigma > 0)) return { p: null, u: null, l: null, k: null };
-	const p = lsl !== undefined && usl !== undefined ? (usl - lsl) / (6 * sigma) : null;
-	const u = usl !== undefined ? (usl - mu) / (3 * sigma) : null;
-	const l = lsl !== undefined ? (mu - lsl) / (3 * sigma) : null;
-	const k = u !== null && l !== null ? Math.min(u, l) : (u ?? l);
-	return { p, u, l, k };
+  if (!(sigma > 0)) return { p: null, u: null, l: null, k: null };
+  const p = lsl !== undefined && usl !== undefined ? (usl - lsl) / (6 * sigma) : null;
+  const u = usl !== undefined ? (usl - mu) / (3 * sigma) : null;
+  const l = lsl !== undefined ? (mu - lsl) / (3 * sigma) : null;
+  const k = u !== null && l !== null ? Math.min(u, l) : (u ?? l);
+  return { p, u, l, k };
 }
 
 /**
@@ -67,15 +67,15 @@ function sideIndices(mu: number, sigma: number, lsl: number | undefined, usl: nu
  * Check (NIST e-Handbook §6.1.6): USL 20, LSL 8, μ 16, σ 2 → Cp 1.0, Cpk 0.6667, Cpu 0.6667, Cpl 1.3333.
  */
 export function capabilityIndices(m: CapabilityMoments, spec: SpecLimits): CapabilityIndices {
-	const w = sideIndices(m.mean, m.sigmaWithin, spec.lsl, spec.usl);
-	const o = sideIndices(m.mean, m.sigmaOverall, spec.lsl, spec.usl);
-	let cpm: number | null = null;
-	if (spec.lsl !== undefined && spec.usl !== undefined && m.sigmaOverall >= 0) {
-		const t = spec.target ?? (spec.lsl + spec.usl) / 2;
-		const tau = Math.sqrt(m.sigmaOverall * m.sigmaOverall + (m.mean - t) * (m.mean - t));
-		cpm = tau > 0 ? (spec.usl - spec.lsl) / (6 * tau) : null;
-	}
-	return { cp: w.p, cpu: w.u, cpl: w.l, cpk: w.k, pp: o.p, ppu: o.u, ppl: o.l, ppk: o.k, cpm };
+  const w = sideIndices(m.mean, m.sigmaWithin, spec.lsl, spec.usl);
+  const o = sideIndices(m.mean, m.sigmaOverall, spec.lsl, spec.usl);
+  let cpm: number | null = null;
+  if (spec.lsl !== undefined && spec.usl !== undefined && m.sigmaOverall >= 0) {
+    const t = spec.target ?? (spec.lsl + spec.usl) / 2;
+    const tau = Math.sqrt(m.sigmaOverall * m.sigmaOverall + (m.mean - t) * (m.mean - t));
+    cpm = tau > 0 ? (spec.usl - spec.lsl) / (6 * tau) : null;
+  }
+  return { cp: w.p, cpu: w.u, cpl: w.l, cpk: w.k, pp: o.p, ppu: o.u, ppl: o.l, ppk: o.k, cpm };
 }
 
 /**
@@ -83,14 +83,14 @@ export function capabilityIndices(m: CapabilityMoments, spec: SpecLimits): Capab
  * [Ĉp·√(χ²(α/2; n−1)/(n−1)), Ĉp·√(χ²(1−α/2; n−1)/(n−1))], α = 1 − confidence (Montgomery §8.3.5).
  */
 export function cpConfidenceInterval(cpHat: number, n: number, confidence = 0.95): SpcInterval | null {
-	if (!(n >= 2) || !Number.isFinite(cpHat)) return null;
-	const alpha = 1 - confidence;
-	const df = n - 1;
-	return {
-		lower: cpHat * Math.sqrt(chiSquareQuantile(alpha / 2, df) / df),
-		upper: cpHat * Math.sqrt(chiSquareQuantile(1 - alpha / 2, df) / df),
-		confidence,
-	};
+  if (!(n >= 2) || !Number.isFinite(cpHat)) return null;
+  const alpha = 1 - confidence;
+  const df = n - 1;
+  return {
+    lower: cpHat * Math.sqrt(chiSquareQuantile(alpha / 2, df) / df),
+    upper: cpHat * Math.sqrt(chiSquareQuantile(1 - alpha / 2, df) / df),
+    confidence,
+  };
 }
 
 /**
@@ -99,18 +99,18 @@ export function cpConfidenceInterval(cpHat: number, n: number, confidence = 0.95
  * Published check (Quality Digest, May 2000, "The Last Word"): n = 45, Ĉpk = 1.15 → 0.89 … 1.41.
  */
 export function cpkConfidenceInterval(cpkHat: number, n: number, confidence = 0.95): SpcInterval | null {
-	if (!(n >= 2) || !Number.isFinite(cpkHat)) return null;
-	const z = normalQuantile(1 - (1 - confidence) / 2);
-	const half = z * Math.sqrt(1 / (9 * n) + (cpkHat * cpkHat) / (2 * (n - 1)));
-	return { lower: cpkHat - half, upper: cpkHat + half, confidence };
+  if (!(n >= 2) || !Number.isFinite(cpkHat)) return null;
+  const z = normalQuantile(1 - (1 - confidence) / 2);
+  const half = z * Math.sqrt(1 / (9 * n) + (cpkHat * cpkHat) / (2 * (n - 1)));
+  return { lower: cpkHat - half, upper: cpkHat + half, confidence };
 }
 
 /** Expected ppm outside the specification for a normal(μ, σ) process; null when σ ≤ 0. */
 export function expectedPpm(mu: number, sigma: number, spec: SpecLimits): SpcPpm | null {
-	if (!(sigma > 0)) return null;
-	const below = spec.lsl !== undefined ? 1e6 * normalCdf((spec.lsl - mu) / sigma) : null;
-	const above = spec.usl !== undefined ? 1e6 * normalCdf((mu - spec.usl) / sigma) : null;
-	return { belowLsl: below, aboveUsl: above, total: (below ?? 0) + (above ?? 0) };
+  if (!(sigma > 0)) return null;
+  const below = spec.lsl !== undefined ? 1e6 * normalCdf((spec.lsl - mu) / sigma) : null;
+  const above = spec.usl !== undefined ? 1e6 * normalCdf((mu - spec.usl) / sigma) : null;
+  return { belowLsl: below, aboveUsl: above, total: (below ?? 0) + (above ?? 0) };
 }
 
 /** Fewest observations for the Anderson–Darling check (the p-value approximations are for n ≥ 8). */
@@ -127,27 +127,36 @@ export const ANDERSON_DARLING_MIN_N = 8;
  * Returns null for n < 8 or zero spread.
  */
 export function andersonDarling(xs: readonly number[]): SpcNormality | null {
-	const n = xs.length;
-	if (n < ANDERSON_DARLING_MIN_N) return null;
-	const m = mean(xs);
-	const s = sampleSd(xs);
-	if (!(s > 0)) return null;
-	const z = [...xs].sort((a, b) => a - b).map((x) => (x - m) / s);
-	let sum = 0;
-	for (let i = 0; i < n; i += 1) {
-		const lo = normalCdf(z[i] as number);
-		const hiTail = normalCdf(-(z[n - 1 - i] as number)); // 1 − Φ(z₍ₙ₊₁₋ᵢ₎), computed without cancellation
-		sum += (2 * (i + 1) - 1) * (Math.log(lo) + Math.log(hiTail));
-	}
-	const a2 = -n - sum / n;
-	const a = a2 * (1 + 0.75 / n + 2.25 / (n * n));
-	let p: number;
-	if (a >= 0.6) p = Math.exp(1.2937 - 5.709 * a + 0.0186 * a * a);
-	else if (a >= 0.34) p = Math.exp(0.9177 - 4.279 * a - 1.38 * a * a);
-	else if (a >= 0.2) p = 1 - Math.exp(-8.318 + 42.796 * a - 59.938 * a * a);
-	else p = 1 - Math.exp(-13.436 + 101.14 * a - 223.73 * a * a);
-	p = Math.min(1, Math.max(0, p));
-	return { method: 'anderson-darling', n, a2, a2Adjusted: a, pValue: p, normalAt5Percent: p >= 0.05 };
+  const n = xs.length;
+  if (n < ANDERSON_DARLING_MIN_N) return null;
+  const m = mean(xs);
+  const s = sampleSd(xs);
+  if (!(s > 0)) return null;
+  const z = [...xs].sort((a, b) => a - b).map((x) => (x - m) / s);
+  let sum = 0;
+  for (let i = 0; i < n; i += 1) {
+    const lo = normalCdf(z[i] as number);
+    const hiTail = normalCdf(-(z[n - 1 - i] as number)); // 1 − Φ(z₍ₙ₊₁₋ᵢ₎), computed without cancellation
+    sum += (2 * (i + 1) - 1) * (Math.log(lo) + Math.log(hiTail));
+  }
+  const a2 = -n - sum / n;
+  const a = a2 * (1 + 0.75 / n + 2.25 / (n * n));
+  const p = andersonDarlingPValue(a);
+  return { method: 'anderson-darling', n, a2, a2Adjusted: a, pValue: p, normalAt5Percent: p >= 0.05 };
+}
+
+/**
+ * p-value of the adjusted Anderson–Darling statistic A*² for a normal sample with estimated mean
+ * and variance (D'Agostino & Stephens 1986, Table 4.9; piecewise formulas in the comment of
+ * `andersonDarling`), clamped to [0, 1].
+ */
+export function andersonDarlingPValue(a: number): number {
+  let p: number;
+  if (a >= 0.6) p = Math.exp(1.2937 - 5.709 * a + 0.0186 * a * a);
+  else if (a >= 0.34) p = Math.exp(0.9177 - 4.279 * a - 1.38 * a * a);
+  else if (a >= 0.2) p = 1 - Math.exp(-8.318 + 42.796 * a - 59.938 * a * a);
+  else p = 1 - Math.exp(-13.436 + 101.14 * a - 223.73 * a * a);
+  return Math.min(1, Math.max(0, p));
 }
 
 /** Fewest points for the lag-1 autocorrelation check. */
@@ -161,35 +170,35 @@ export const AUTOCORRELATION_MIN_N = 10;
  * mislead (too many false alarms when r₁ > 0, missed shifts when r₁ < 0). Null for n < 10 or no spread.
  */
 export function lag1Autocorrelation(series: readonly number[]): SpcAutocorrelation | null {
-	const n = series.length;
-	if (n < AUTOCORRELATION_MIN_N) return null;
-	const m = mean(series);
-	let num = 0;
-	let den = 0;
-	for (let t = 0; t < n; t += 1) {
-		const d = (series[t] as number) - m;
-		den += d * d;
-		const next = series[t + 1];
-		if (next !== undefined) num += d * (next - m);
-	}
-	if (!(den > 0)) return null;
-	const r1 = num / den;
-	const threshold = 2 / Math.sqrt(n);
-	let warning: string | null = null;
-	if (Math.abs(r1) > threshold) {
-		const r = r1.toFixed(2);
-		const band = threshold.toFixed(2);
-		warning =
-			r1 > 0
-				? `Successive points are correlated (lag-1 r = ${r}, beyond the ±${band} that independent data stay within). ` +
-					'Control limits assume each point is independent of the last; with positive correlation the limits are too narrow ' +
-					'and the chart will raise false alarms and show runs that are not special causes. ' +
-					'Sample less often, chart the residuals of a time-series model, or use an EWMA of residuals before acting on signals.'
-				: `Successive points alternate (lag-1 r = ${r}, beyond the ±${band} that independent data stay within). ` +
-					'Control limits assume each point is independent of the last; with negative correlation the moving range ' +
-					'overstates sigma, the limits are too wide and real shifts can be missed. Look for over-adjustment or two alternating streams.';
-	}
-	return { n, lag1: r1, threshold, warning };
+  const n = series.length;
+  if (n < AUTOCORRELATION_MIN_N) return null;
+  const m = mean(series);
+  let num = 0;
+  let den = 0;
+  for (let t = 0; t < n; t += 1) {
+    const d = (series[t] as number) - m;
+    den += d * d;
+    const next = series[t + 1];
+    if (next !== undefined) num += d * (next - m);
+  }
+  if (!(den > 0)) return null;
+  const r1 = num / den;
+  const threshold = 2 / Math.sqrt(n);
+  let warning: string | null = null;
+  if (Math.abs(r1) > threshold) {
+    const r = r1.toFixed(2);
+    const band = threshold.toFixed(2);
+    warning =
+      r1 > 0
+        ? `Successive points are correlated (lag-1 r = ${r}, beyond the ±${band} that independent data stay within). ` +
+          'Control limits assume each point is independent of the last; with positive correlation the limits are too narrow ' +
+          'and the chart will raise false alarms and show runs that are not special causes. ' +
+          'Sample less often, chart the residuals of a time-series model, or use an EWMA of residuals before acting on signals.'
+        : `Successive points alternate (lag-1 r = ${r}, beyond the ±${band} that independent data stay within). ` +
+          'Control limits assume each point is independent of the last; with negative correlation the moving range ' +
+          'overstates sigma, the limits are too wide and real shifts can be missed. Look for over-adjustment or two alternating streams.';
+  }
+  return { n, lag1: r1, threshold, warning };
 }
 
 /**
@@ -199,38 +208,38 @@ export function lag1Autocorrelation(series: readonly number[]): SpcAutocorrelati
  * the plotted series in time order.
  */
 export function capabilityStudy(
-	observations: readonly number[],
-	sigmaWithin: number,
-	spec: SpecLimits,
-	options: { confidence?: number; series?: readonly number[] } = {},
+  observations: readonly number[],
+  sigmaWithin: number,
+  spec: SpecLimits,
+  options: { confidence?: number; series?: readonly number[] } = {},
 ): SpcCapability {
-	const n = observations.length;
-	const mu = mean(observations);
-	const sOverall = n >= 2 ? sampleSd(observations) : 0;
-	const confidence = options.confidence ?? 0.95;
-	const ix = capabilityIndices({ n, mean: mu, sigmaWithin, sigmaOverall: sOverall }, spec);
-	return {
-		lsl: spec.lsl ?? null,
-		usl: spec.usl ?? null,
-		target: spec.target ?? (spec.lsl !== undefined && spec.usl !== undefined ? (spec.lsl + spec.usl) / 2 : null),
-		n,
-		mean: mu,
-		sigmaWithin,
-		sigmaOverall: sOverall,
-		cp: ix.cp,
-		cpk: ix.cpk,
-		cpu: ix.cpu,
-		cpl: ix.cpl,
-		pp: ix.pp,
-		ppk: ix.ppk,
-		ppu: ix.ppu,
-		ppl: ix.ppl,
-		cpm: ix.cpm,
-		cpInterval: ix.cp === null ? null : cpConfidenceInterval(ix.cp, n, confidence),
-		cpkInterval: ix.cpk === null ? null : cpkConfidenceInterval(ix.cpk, n, confidence),
-		ppmWithin: expectedPpm(mu, sigmaWithin, spec),
-		ppmOverall: expectedPpm(mu, sOverall, spec),
-		normality: andersonDarling(observations),
-		autocorrelation: lag1Autocorrelation(options.series ?? observations),
-	};
+  const n = observations.length;
+  const mu = mean(observations);
+  const sOverall = n >= 2 ? sampleSd(observations) : 0;
+  const confidence = options.confidence ?? 0.95;
+  const ix = capabilityIndices({ n, mean: mu, sigmaWithin, sigmaOverall: sOverall }, spec);
+  return {
+    lsl: spec.lsl ?? null,
+    usl: spec.usl ?? null,
+    target: spec.target ?? (spec.lsl !== undefined && spec.usl !== undefined ? (spec.lsl + spec.usl) / 2 : null),
+    n,
+    mean: mu,
+    sigmaWithin,
+    sigmaOverall: sOverall,
+    cp: ix.cp,
+    cpk: ix.cpk,
+    cpu: ix.cpu,
+    cpl: ix.cpl,
+    pp: ix.pp,
+    ppk: ix.ppk,
+    ppu: ix.ppu,
+    ppl: ix.ppl,
+    cpm: ix.cpm,
+    cpInterval: ix.cp === null ? null : cpConfidenceInterval(ix.cp, n, confidence),
+    cpkInterval: ix.cpk === null ? null : cpkConfidenceInterval(ix.cpk, n, confidence),
+    ppmWithin: expectedPpm(mu, sigmaWithin, spec),
+    ppmOverall: expectedPpm(mu, sOverall, spec),
+    normality: andersonDarling(observations),
+    autocorrelation: lag1Autocorrelation(options.series ?? observations),
+  };
 }

@@ -12,45 +12,45 @@
 
 /** CUSUM design in data units. */
 export interface CusumDesign {
-	/** Target μ0. */
-	center: number;
-	/** Reference value K = k·σₓ. */
-	K: number;
-	/** Decision interval H = h·σₓ. */
-	H: number;
-	/** Head start C±₀ (data units), 0 for none; H/2 is the usual FIR choice. */
-	headStart: number;
+  /** Target μ0. */
+  center: number;
+  /** Reference value K = k·σₓ. */
+  K: number;
+  /** Decision interval H = h·σₓ. */
+  H: number;
+  /** Head start C±₀ (data units), 0 for none; H/2 is the usual FIR choice. */
+  headStart: number;
 }
 
 /** One CUSUM point. */
 export interface CusumPoint {
-	x: number;
-	cPlus: number;
-	cMinus: number;
-	nPlus: number;
-	nMinus: number;
-	upper: boolean;
-	lower: boolean;
-	/** μ0 + K + C⁺/N⁺ on an upper signal, μ0 − K − C⁻/N⁻ on a lower one (upper wins if both), else null. */
-	shiftEstimate: number | null;
+  x: number;
+  cPlus: number;
+  cMinus: number;
+  nPlus: number;
+  nMinus: number;
+  upper: boolean;
+  lower: boolean;
+  /** μ0 + K + C⁺/N⁺ on an upper signal, μ0 − K − C⁻/N⁻ on a lower one (upper wins if both), else null. */
+  shiftEstimate: number | null;
 }
 
 /** Run the tabular CUSUM over the inputs. */
 export function cusumSeries(xs: readonly number[], d: CusumDesign): CusumPoint[] {
-	let cPlus = d.headStart;
-	let cMinus = d.headStart;
-	let nPlus = 0;
-	let nMinus = 0;
-	return xs.map((x) => {
-		cPlus = Math.max(0, x - (d.center + d.K) + cPlus);
-		cMinus = Math.max(0, d.center - d.K - x + cMinus);
-		nPlus = cPlus > 0 ? nPlus + 1 : 0;
-		nMinus = cMinus > 0 ? nMinus + 1 : 0;
-		const upper = cPlus > d.H;
-		const lower = cMinus > d.H;
-		let shiftEstimate: number | null = null;
-		if (upper) shiftEstimate = d.center + d.K + cPlus / nPlus;
-		else if (lower) shiftEstimate = d.center - d.K - cMinus / nMinus;
-		return { x, cPlus, cMinus, nPlus, nMinus, upper, lower, shiftEstimate };
-	});
+  let cPlus = d.headStart;
+  let cMinus = d.headStart;
+  let nPlus = 0;
+  let nMinus = 0;
+  return xs.map((x) => {
+    cPlus = Math.max(0, x - (d.center + d.K) + cPlus);
+    cMinus = Math.max(0, d.center - d.K - x + cMinus);
+    nPlus = cPlus > 0 ? nPlus + 1 : 0;
+    nMinus = cMinus > 0 ? nMinus + 1 : 0;
+    const upper = cPlus > d.H;
+    const lower = cMinus > d.H;
+    let shiftEstimate: number | null = null;
+    if (upper) shiftEstimate = d.center + d.K + cPlus / nPlus;
+    else if (lower) shiftEstimate = d.center - d.K - cMinus / nMinus;
+    return { x, cPlus, cMinus, nPlus, nMinus, upper, lower, shiftEstimate };
+  });
 }

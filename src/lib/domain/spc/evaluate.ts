@@ -22,30 +22,30 @@
  *   plotted series (x or x̄) of the phase-1 range in time order.
  */
 import type {
-	SpcChart,
-	SpcEvaluateInput,
-	SpcEvaluateOutput,
-	SpcLimitSet,
-	SpcParameters,
-	SpcPoint,
-	SpcRuleId,
-	SpcSuggestedExclusion,
-	SpcViolationId,
-} from '../../shared/spc';
-import { capabilityStudy } from './capability';
-import { cusumSeries } from './cusum';
-import { ewmaAsymptoticLimits, ewmaSeries } from './ewma';
-import { rangeIndexes, suggestExclusions } from './phase1';
-import { evaluateRunRules } from './rules';
+  SpcChart,
+  SpcEvaluateInput,
+  SpcEvaluateOutput,
+  SpcLimitSet,
+  SpcParameters,
+  SpcPoint,
+  SpcRuleId,
+  SpcSuggestedExclusion,
+  SpcViolationId,
+} from '../../shared/spc.ts';
+import { capabilityStudy } from './capability.ts';
+import { cusumSeries } from './cusum.ts';
+import { ewmaAsymptoticLimits, ewmaSeries } from './ewma.ts';
+import { rangeIndexes, suggestExclusions } from './phase1.ts';
+import { evaluateRunRules } from './rules.ts';
 import {
-	estimateShewhartLimits,
-	shewhartOutsideReason,
-	shewhartPointLimits,
-	shewhartStatistics,
-	type ShewhartChart,
-	type ShewhartStat,
-	type SpcData,
-} from './shewhart';
+  estimateShewhartLimits,
+  shewhartOutsideReason,
+  shewhartPointLimits,
+  shewhartStatistics,
+  type ShewhartChart,
+  type ShewhartStat,
+  type SpcData,
+} from './shewhart.ts';
 
 /** Rules applied when a request names none: a point beyond the control limits. */
 export const DEFAULT_RULES: readonly SpcRuleId[] = ['we1'];
@@ -56,108 +56,113 @@ export const DEFAULT_CUSUM = { k: 0.5, h: 5, headStart: 0 };
 
 /** Number of plotted points the request carries. */
 export function pointCount(input: SpcData): number {
-	return input.subgroups?.length ?? input.values?.length ?? input.counts?.length ?? 0;
+  return input.subgroups?.length ?? input.values?.length ?? input.counts?.length ?? 0;
 }
 
 function isShewhart(chart: SpcChart): chart is ShewhartChart {
-	return chart !== 'ewma' && chart !== 'cusum';
+  return chart !== 'ewma' && chart !== 'cusum';
 }
 
 function observationsIn(input: SpcData, indexes: readonly number[]): number[] {
-	const out: number[] = [];
-	for (const i of indexes) {
-		const sg = input.subgroups?.[i];
-		if (sg) out.push(...sg);
-		else {
-			const v = input.values?.[i];
-			if (v !== undefined) out.push(v);
-		}
-	}
-	return out;
+  const out: number[] = [];
+  for (const i of indexes) {
+    const sg = input.subgroups?.[i];
+    if (sg) out.push(...sg);
+    else {
+      const v = input.values?.[i];
+      if (v !== undefined) out.push(v);
+    }
+  }
+  return out;
 }
 
-function shewhartPoints(ls: SpcLimitSet, stats: readonly ShewhartStat[], rules: readonly SpcRuleId[], inPhase1: (i: number) => boolean): SpcPoint[] {
-	const limits = stats.map((s) => shewhartPointLimits(ls, s));
-	const rulePoints = stats.map((s, i) => ({ value: s.value, ...(limits[i] as ReturnType<typeof shewhartPointLimits>) }));
-	const hits = evaluateRunRules(rulePoints, rules);
-	const checkDispersion = ls.dispersion !== null && (rules.includes('we1') || rules.includes('nelson1'));
-	return stats.map((s, i) => {
-		const pl = limits[i] as ReturnType<typeof shewhartPointLimits>;
-		const violations: SpcViolationId[] = [...(hits[i] ?? [])];
-		if (checkDispersion && ls.dispersion && s.dispersion !== null) {
-			// Western Electric rule 1 / Nelson test 1 on the R, S or MR chart.
-			if (s.dispersion > ls.dispersion.ucl) violations.push('dispersion-ucl');
-			if (s.dispersion < ls.dispersion.lcl) violations.push('dispersion-lcl');
-		}
-		return {
-			index: i + 1,
-			value: s.value,
-			center: pl.center,
-			ucl: pl.ucl,
-			lcl: pl.lcl,
-			dispersionValue: s.dispersion,
-			violations,
-			inPhase1: inPhase1(i),
-			size: s.size,
-		};
-	});
+function shewhartPoints(
+  ls: SpcLimitSet,
+  stats: readonly ShewhartStat[],
+  rules: readonly SpcRuleId[],
+  inPhase1: (i: number) => boolean,
+): SpcPoint[] {
+  const limits = stats.map((s) => shewhartPointLimits(ls, s));
+  const rulePoints = stats.map((s, i) => ({ value: s.value, ...(limits[i] as ReturnType<typeof shewhartPointLimits>) }));
+  const hits = evaluateRunRules(rulePoints, rules);
+  const checkDispersion = ls.dispersion !== null && (rules.includes('we1') || rules.includes('nelson1'));
+  return stats.map((s, i) => {
+    const pl = limits[i] as ReturnType<typeof shewhartPointLimits>;
+    const violations: SpcViolationId[] = [...(hits[i] ?? [])];
+    if (checkDispersion && ls.dispersion && s.dispersion !== null) {
+      // Western Electric rule 1 / Nelson test 1 on the R, S or MR chart.
+      if (s.dispersion > ls.dispersion.ucl) violations.push('dispersion-ucl');
+      if (s.dispersion < ls.dispersion.lcl) violations.push('dispersion-lcl');
+    }
+    return {
+      index: i + 1,
+      value: s.value,
+      center: pl.center,
+      ucl: pl.ucl,
+      lcl: pl.lcl,
+      dispersionValue: s.dispersion,
+      violations,
+      inPhase1: inPhase1(i),
+      size: s.size,
+    };
+  });
 }
 
 function ruleNotes(chart: SpcChart, rules: readonly SpcRuleId[]): string[] {
-	if (chart !== 'ewma' && chart !== 'cusum') return [];
-	if (rules.length === 0) return [];
-	const signal = chart === 'ewma' ? 'ewma-upper / ewma-lower' : 'cusum-upper / cusum-lower';
-	return [
-		`Run rules (${rules.join(', ')}) are not applied to the ${chart.toUpperCase()} chart: its statistic is autocorrelated by construction, so zone and run tests would mislead. Its own signal is reported as ${signal}.`,
-	];
+  if (chart !== 'ewma' && chart !== 'cusum') return [];
+  if (rules.length === 0) return [];
+  const signal = chart === 'ewma' ? 'ewma-upper / ewma-lower' : 'cusum-upper / cusum-lower';
+  return [
+    `Run rules (${rules.join(', ')}) are not applied to the ${chart.toUpperCase()} chart: its statistic is autocorrelated by construction, so zone and run tests would mislead. Its own signal is reported as ${signal}.`,
+  ];
 }
 
 interface SequentialBasis {
-	xs: number[];
-	n: number;
-	center: number;
-	sigma: number;
-	centerSource: 'given' | 'phase1';
-	sigmaSource: 'given' | 'phase1';
-	suggestions: SpcSuggestedExclusion[];
+  xs: number[];
+  n: number;
+  center: number;
+  sigma: number;
+  centerSource: 'given' | 'phase1';
+  sigmaSource: 'given' | 'phase1';
+  suggestions: SpcSuggestedExclusion[];
 }
 
 /** Inputs, centre and σ for EWMA / CUSUM, with phase-1 exclusion suggestions from the underlying Shewhart chart. */
 function sequentialBasis(input: SpcEvaluateInput, phase: readonly number[]): SequentialBasis {
-	const underlying: ShewhartChart = input.subgroups ? 'xbar-r' : 'imr';
-	const stats = shewhartStatistics(underlying, input);
-	const est = estimateShewhartLimits(underlying, stats, phase, {});
-	const allKnown = input.target !== undefined && input.sigma !== undefined;
-	const what = underlying === 'imr' ? 'individuals/moving-range chart' : 'X̄-R chart';
-	const suggestions = allKnown
-		? []
-		: suggestExclusions(
-				phase,
-				(inc) => estimateShewhartLimits(underlying, stats, inc, {}),
-				(ls, i) => {
-					const s = stats[i];
-					const r = s ? shewhartOutsideReason(ls, s) : null;
-					return r === null ? null : `${r} (on the ${what} of the phase-1 data that estimates the centre and sigma)`;
-				},
-			);
-	return {
-		xs: stats.map((s) => s.value),
-		n: underlying === 'imr' ? 1 : (stats[0]?.size ?? 1),
-		center: input.target ?? est.center,
-		sigma: input.sigma ?? est.sigma ?? 0,
-		centerSource: input.target === undefined ? 'phase1' : 'given',
-		sigmaSource: input.sigma === undefined ? 'phase1' : 'given',
-		suggestions,
-	};
+  const underlying: ShewhartChart = input.subgroups ? 'xbar-r' : 'imr';
+  const stats = shewhartStatistics(underlying, input);
+  const est = estimateShewhartLimits(underlying, stats, phase, {});
+  const allKnown = input.target !== undefined && input.sigma !== undefined;
+  const what = underlying === 'imr' ? 'individuals/moving-range chart' : 'X̄-R chart';
+  const suggestions = allKnown
+    ? []
+    : suggestExclusions(
+        phase,
+        (inc) => estimateShewhartLimits(underlying, stats, inc, {}),
+        (ls, i) => {
+          const s = stats[i];
+          const r = s ? shewhartOutsideReason(ls, s) : null;
+          return r === null ? null : `${r} (on the ${what} of the phase-1 data that estimates the centre and sigma)`;
+        },
+      );
+  return {
+    xs: stats.map((s) => s.value),
+    n: underlying === 'imr' ? 1 : (stats[0]?.size ?? 1),
+    center: input.target ?? est.center,
+    sigma: input.sigma ?? est.sigma ?? 0,
+    centerSource: input.target === undefined ? 'phase1' : 'given',
+    sigmaSource: input.sigma === undefined ? 'phase1' : 'given',
+    suggestions,
+  };
 }
 
 function capabilityFor(input: SpcEvaluateInput, phase: readonly number[], sigmaWithin: number, series: readonly number[]) {
-	if (!input.spec) return null;
-	const obs = observationsIn(input, phase);
-	return capabilityStudy(obs, sigmaWithin, input.spec, {
-		confidence: input.confidence ?? 0.95,
-		series: phase.map((i) => series[i]).filter((v): v is number => v !== undefined),
-	});
+  if (!input.spec) return null;
+  const obs = observationsIn(input, phase);
+  return capabilityStudy(obs, sigmaWithin, input.spec, {
+    confidence: input.confidence ?? 0.95,
+    series: phase.map((i) => series[i]).filter((v): v is number => v !== undefined),
+  });
 }
 
 /**
@@ -166,167 +171,177 @@ function capabilityFor(input: SpcEvaluateInput, phase: readonly number[], sigmaW
  * returned in `phase1.suggestedExclusions` for an engineer to confirm, never dropped silently.
  */
 export function evaluateSpc(input: SpcEvaluateInput): SpcEvaluateOutput {
-	const rules = [...(input.rules ?? DEFAULT_RULES)];
-	const count = pointCount(input);
-	const first = input.phase1?.first ?? 1;
-	const last = input.phase1?.last ?? count;
-	const phase = rangeIndexes(first, last);
-	const inPhase1 = (i: number) => i >= first - 1 && i <= last - 1;
-	const chart = input.chart;
+  const rules = [...(input.rules ?? DEFAULT_RULES)];
+  const count = pointCount(input);
+  const first = input.phase1?.first ?? 1;
+  const last = input.phase1?.last ?? count;
+  const phase = rangeIndexes(first, last);
+  const inPhase1 = (i: number) => i >= first - 1 && i <= last - 1;
+  const chart = input.chart;
 
-	if (isShewhart(chart)) {
-		const stats = shewhartStatistics(chart, input);
-		const known = { target: input.target, sigma: input.sigma };
-		const ls = estimateShewhartLimits(chart, stats, phase, known);
-		const variables = chart === 'xbar-r' || chart === 'xbar-s' || chart === 'imr';
-		const allKnown = variables ? input.target !== undefined && input.sigma !== undefined : input.target !== undefined;
-		const suggestedExclusions = allKnown
-			? []
-			: suggestExclusions(
-					phase,
-					(inc) => estimateShewhartLimits(chart, stats, inc, known),
-					(l, i) => {
-						const s = stats[i];
-						return s ? shewhartOutsideReason(l, s) : null;
-					},
-				);
-		const points = shewhartPoints(ls, stats, rules, inPhase1);
-		const notes: string[] = [];
-		if ((chart === 'p' || chart === 'u') && stats.some((s) => s.size !== ls.subgroupSize)) {
-			notes.push(`Sample sizes vary: "limits" are drawn at the mean sample size ${Number(ls.subgroupSize.toPrecision(6))}; each point carries its own limits.`);
-		}
-		const parameters: SpcParameters = {
-			center: ls.center,
-			sigma: ls.sigma,
-			centerSource: ls.centerSource,
-			sigmaSource: ls.sigmaSource,
-			subgroupSize: ls.subgroupSize,
-		};
-		return {
-			chart,
-			limits: { center: ls.center, ucl: ls.ucl, lcl: ls.lcl },
-			dispersion: ls.dispersion,
-			sigmaWithin: ls.sigma,
-			points,
-			capability: variables && input.spec ? capabilityFor(input, phase, ls.sigma ?? 0, stats.map((s) => s.value)) : null,
-			phase1: { first, last, suggestedExclusions },
-			parameters,
-			rules,
-			notes,
-		};
-	}
+  if (isShewhart(chart)) {
+    const stats = shewhartStatistics(chart, input);
+    const known = { target: input.target, sigma: input.sigma };
+    const ls = estimateShewhartLimits(chart, stats, phase, known);
+    const variables = chart === 'xbar-r' || chart === 'xbar-s' || chart === 'imr';
+    const allKnown = variables ? input.target !== undefined && input.sigma !== undefined : input.target !== undefined;
+    const suggestedExclusions = allKnown
+      ? []
+      : suggestExclusions(
+          phase,
+          (inc) => estimateShewhartLimits(chart, stats, inc, known),
+          (l, i) => {
+            const s = stats[i];
+            return s ? shewhartOutsideReason(l, s) : null;
+          },
+        );
+    const points = shewhartPoints(ls, stats, rules, inPhase1);
+    const notes: string[] = [];
+    if ((chart === 'p' || chart === 'u') && stats.some((s) => s.size !== ls.subgroupSize)) {
+      notes.push(
+        `Sample sizes vary: "limits" are drawn at the mean sample size ${Number(ls.subgroupSize.toPrecision(6))}; each point carries its own limits.`,
+      );
+    }
+    const parameters: SpcParameters = {
+      center: ls.center,
+      sigma: ls.sigma,
+      centerSource: ls.centerSource,
+      sigmaSource: ls.sigmaSource,
+      subgroupSize: ls.subgroupSize,
+    };
+    return {
+      chart,
+      limits: { center: ls.center, ucl: ls.ucl, lcl: ls.lcl },
+      dispersion: ls.dispersion,
+      sigmaWithin: ls.sigma,
+      points,
+      capability:
+        variables && input.spec
+          ? capabilityFor(
+              input,
+              phase,
+              ls.sigma ?? 0,
+              stats.map((s) => s.value),
+            )
+          : null,
+      phase1: { first, last, suggestedExclusions },
+      parameters,
+      rules,
+      notes,
+    };
+  }
 
-	const basis = sequentialBasis(input, phase);
-	const sigmaX = basis.sigma / Math.sqrt(basis.n);
-	const capability = input.spec ? capabilityFor(input, phase, basis.sigma, basis.xs) : null;
+  const basis = sequentialBasis(input, phase);
+  const sigmaX = basis.sigma / Math.sqrt(basis.n);
+  const capability = input.spec ? capabilityFor(input, phase, basis.sigma, basis.xs) : null;
 
-	if (chart === 'ewma') {
-		const design = {
-			center: basis.center,
-			sigmaX,
-			lambda: input.lambda ?? DEFAULT_EWMA.lambda,
-			L: input.L ?? DEFAULT_EWMA.L,
-			limits: input.limits ?? DEFAULT_EWMA.limits,
-		};
-		return {
-			chart,
-			limits: ewmaAsymptoticLimits(design),
-			dispersion: null,
-			sigmaWithin: basis.sigma,
-			points: ewmaPoints(basis.xs, design, basis.n, inPhase1),
-			capability,
-			phase1: { first, last, suggestedExclusions: basis.suggestions },
-			parameters: {
-				center: basis.center,
-				sigma: basis.sigma,
-				centerSource: basis.centerSource,
-				sigmaSource: basis.sigmaSource,
-				subgroupSize: basis.n,
-				lambda: design.lambda,
-				L: design.L,
-				ewmaLimits: design.limits,
-			},
-			rules,
-			notes: ruleNotes(chart, rules),
-		};
-	}
+  if (chart === 'ewma') {
+    const design = {
+      center: basis.center,
+      sigmaX,
+      lambda: input.lambda ?? DEFAULT_EWMA.lambda,
+      L: input.L ?? DEFAULT_EWMA.L,
+      limits: input.limits ?? DEFAULT_EWMA.limits,
+    };
+    return {
+      chart,
+      limits: ewmaAsymptoticLimits(design),
+      dispersion: null,
+      sigmaWithin: basis.sigma,
+      points: ewmaPoints(basis.xs, design, basis.n, inPhase1),
+      capability,
+      phase1: { first, last, suggestedExclusions: basis.suggestions },
+      parameters: {
+        center: basis.center,
+        sigma: basis.sigma,
+        centerSource: basis.centerSource,
+        sigmaSource: basis.sigmaSource,
+        subgroupSize: basis.n,
+        lambda: design.lambda,
+        L: design.L,
+        ewmaLimits: design.limits,
+      },
+      rules,
+      notes: ruleNotes(chart, rules),
+    };
+  }
 
-	const k = input.k ?? DEFAULT_CUSUM.k;
-	const h = input.h ?? DEFAULT_CUSUM.h;
-	const headStart = input.headStart ?? DEFAULT_CUSUM.headStart;
-	const design = { center: basis.center, K: k * sigmaX, H: h * sigmaX, headStart: headStart * sigmaX };
-	return {
-		chart,
-		limits: { center: 0, ucl: design.H, lcl: -design.H },
-		dispersion: null,
-		sigmaWithin: basis.sigma,
-		points: cusumPoints(basis.xs, design, basis.n, inPhase1),
-		capability,
-		phase1: { first, last, suggestedExclusions: basis.suggestions },
-		parameters: {
-			center: basis.center,
-			sigma: basis.sigma,
-			centerSource: basis.centerSource,
-			sigmaSource: basis.sigmaSource,
-			subgroupSize: basis.n,
-			k,
-			h,
-			K: design.K,
-			H: design.H,
-			headStart,
-		},
-		rules,
-		notes: ruleNotes(chart, rules),
-	};
+  const k = input.k ?? DEFAULT_CUSUM.k;
+  const h = input.h ?? DEFAULT_CUSUM.h;
+  const headStart = input.headStart ?? DEFAULT_CUSUM.headStart;
+  const design = { center: basis.center, K: k * sigmaX, H: h * sigmaX, headStart: headStart * sigmaX };
+  return {
+    chart,
+    limits: { center: 0, ucl: design.H, lcl: -design.H },
+    dispersion: null,
+    sigmaWithin: basis.sigma,
+    points: cusumPoints(basis.xs, design, basis.n, inPhase1),
+    capability,
+    phase1: { first, last, suggestedExclusions: basis.suggestions },
+    parameters: {
+      center: basis.center,
+      sigma: basis.sigma,
+      centerSource: basis.centerSource,
+      sigmaSource: basis.sigmaSource,
+      subgroupSize: basis.n,
+      k,
+      h,
+      K: design.K,
+      H: design.H,
+      headStart,
+    },
+    rules,
+    notes: ruleNotes(chart, rules),
+  };
 }
 
 function ewmaPoints(
-	xs: readonly number[],
-	design: Parameters<typeof ewmaSeries>[1],
-	n: number,
-	inPhase1: (i: number) => boolean,
+  xs: readonly number[],
+  design: Parameters<typeof ewmaSeries>[1],
+  n: number,
+  inPhase1: (i: number) => boolean,
 ): SpcPoint[] {
-	return ewmaSeries(xs, design).map((p, i) => ({
-		index: i + 1,
-		value: p.z,
-		center: design.center,
-		ucl: p.ucl,
-		lcl: p.lcl,
-		dispersionValue: null,
-		violations: p.signal === 'upper' ? ['ewma-upper'] : p.signal === 'lower' ? ['ewma-lower'] : [],
-		inPhase1: inPhase1(i),
-		size: n,
-		observation: p.x,
-	}));
+  return ewmaSeries(xs, design).map((p, i) => ({
+    index: i + 1,
+    value: p.z,
+    center: design.center,
+    ucl: p.ucl,
+    lcl: p.lcl,
+    dispersionValue: null,
+    violations: p.signal === 'upper' ? ['ewma-upper'] : p.signal === 'lower' ? ['ewma-lower'] : [],
+    inPhase1: inPhase1(i),
+    size: n,
+    observation: p.x,
+  }));
 }
 
 function cusumPoints(
-	xs: readonly number[],
-	design: Parameters<typeof cusumSeries>[1],
-	n: number,
-	inPhase1: (i: number) => boolean,
+  xs: readonly number[],
+  design: Parameters<typeof cusumSeries>[1],
+  n: number,
+  inPhase1: (i: number) => boolean,
 ): SpcPoint[] {
-	return cusumSeries(xs, design).map((p, i) => {
-		const violations: SpcViolationId[] = [];
-		if (p.upper) violations.push('cusum-upper');
-		if (p.lower) violations.push('cusum-lower');
-		return {
-			index: i + 1,
-			value: p.x,
-			center: 0,
-			ucl: design.H,
-			lcl: -design.H,
-			dispersionValue: null,
-			violations,
-			inPhase1: inPhase1(i),
-			size: n,
-			cPlus: p.cPlus,
-			cMinus: p.cMinus,
-			nPlus: p.nPlus,
-			nMinus: p.nMinus,
-			shiftEstimate: p.shiftEstimate,
-		};
-	});
+  return cusumSeries(xs, design).map((p, i) => {
+    const violations: SpcViolationId[] = [];
+    if (p.upper) violations.push('cusum-upper');
+    if (p.lower) violations.push('cusum-lower');
+    return {
+      index: i + 1,
+      value: p.x,
+      center: 0,
+      ucl: design.H,
+      lcl: -design.H,
+      dispersionValue: null,
+      violations,
+      inPhase1: inPhase1(i),
+      size: n,
+      cPlus: p.cPlus,
+      cMinus: p.cMinus,
+      nPlus: p.nPlus,
+      nMinus: p.nMinus,
+      shiftEstimate: p.shiftEstimate,
+    };
+  });
 }
 
 /**
@@ -335,19 +350,19 @@ function cusumPoints(
  * set's centre, ucl and lcl all hold the target μ0: its decision interval lives in k and h.
  */
 export function limitSetFromEvaluation(out: SpcEvaluateOutput): SpcLimitSet {
-	const p = out.parameters;
-	const base: SpcLimitSet = {
-		chart: out.chart,
-		center: out.chart === 'cusum' ? p.center : out.limits.center,
-		ucl: out.chart === 'cusum' ? p.center : out.limits.ucl,
-		lcl: out.chart === 'cusum' ? p.center : out.limits.lcl,
-		sigma: p.sigma,
-		subgroupSize: p.subgroupSize,
-		dispersion: out.dispersion,
-	};
-	if (out.chart === 'ewma') return { ...base, lambda: p.lambda, L: p.L, ewmaLimits: p.ewmaLimits };
-	if (out.chart === 'cusum') return { ...base, k: p.k, h: p.h, headStart: p.headStart };
-	return base;
+  const p = out.parameters;
+  const base: SpcLimitSet = {
+    chart: out.chart,
+    center: out.chart === 'cusum' ? p.center : out.limits.center,
+    ucl: out.chart === 'cusum' ? p.center : out.limits.ucl,
+    lcl: out.chart === 'cusum' ? p.center : out.limits.lcl,
+    sigma: p.sigma,
+    subgroupSize: p.subgroupSize,
+    dispersion: out.dispersion,
+  };
+  if (out.chart === 'ewma') return { ...base, lambda: p.lambda, L: p.L, ewmaLimits: p.ewmaLimits };
+  if (out.chart === 'cusum') return { ...base, k: p.k, h: p.h, headStart: p.headStart };
+  return base;
 }
 
 /**
@@ -357,82 +372,82 @@ export function limitSetFromEvaluation(out: SpcEvaluateOutput): SpcLimitSet {
  * and the design (λ, L, limits mode; k, h, head start). `phase1` is null in the result.
  */
 export function evaluateAgainstLimitSet(
-	data: SpcData,
-	limitSet: SpcLimitSet,
-	options: { rules?: readonly SpcRuleId[]; spec?: SpcEvaluateInput['spec']; confidence?: number } = {},
+  data: SpcData,
+  limitSet: SpcLimitSet,
+  options: { rules?: readonly SpcRuleId[]; spec?: SpcEvaluateInput['spec']; confidence?: number } = {},
 ): SpcEvaluateOutput {
-	const rules = [...(options.rules ?? DEFAULT_RULES)];
-	const chart = limitSet.chart;
-	const count = pointCount(data);
-	const all = rangeIndexes(1, count);
-	const never = () => false;
-	const sigma = limitSet.sigma ?? 0;
-	const parametersBase: SpcParameters = {
-		center: limitSet.center,
-		sigma: limitSet.sigma,
-		centerSource: 'given',
-		sigmaSource: limitSet.sigma === null ? null : 'given',
-		subgroupSize: limitSet.subgroupSize,
-	};
-	const capabilityOf = (series: readonly number[]) =>
-		options.spec && (chart === 'xbar-r' || chart === 'xbar-s' || chart === 'imr' || chart === 'ewma' || chart === 'cusum')
-			? capabilityStudy(observationsIn(data, all), sigma, options.spec, { confidence: options.confidence ?? 0.95, series })
-			: null;
+  const rules = [...(options.rules ?? DEFAULT_RULES)];
+  const chart = limitSet.chart;
+  const count = pointCount(data);
+  const all = rangeIndexes(1, count);
+  const never = () => false;
+  const sigma = limitSet.sigma ?? 0;
+  const parametersBase: SpcParameters = {
+    center: limitSet.center,
+    sigma: limitSet.sigma,
+    centerSource: 'given',
+    sigmaSource: limitSet.sigma === null ? null : 'given',
+    subgroupSize: limitSet.subgroupSize,
+  };
+  const capabilityOf = (series: readonly number[]) =>
+    options.spec && (chart === 'xbar-r' || chart === 'xbar-s' || chart === 'imr' || chart === 'ewma' || chart === 'cusum')
+      ? capabilityStudy(observationsIn(data, all), sigma, options.spec, { confidence: options.confidence ?? 0.95, series })
+      : null;
 
-	if (isShewhart(chart)) {
-		const stats = shewhartStatistics(chart, data);
-		return {
-			chart,
-			limits: { center: limitSet.center, ucl: limitSet.ucl, lcl: limitSet.lcl },
-			dispersion: limitSet.dispersion,
-			sigmaWithin: limitSet.sigma,
-			points: shewhartPoints(limitSet, stats, rules, never),
-			capability: capabilityOf(stats.map((s) => s.value)),
-			phase1: null,
-			parameters: parametersBase,
-			rules,
-			notes: [],
-		};
-	}
-	const stats = shewhartStatistics(data.subgroups ? 'xbar-r' : 'imr', data);
-	const xs = stats.map((s) => s.value);
-	const n = data.subgroups ? (stats[0]?.size ?? 1) : 1;
-	const sigmaX = sigma / Math.sqrt(n);
-	if (chart === 'ewma') {
-		const design = {
-			center: limitSet.center,
-			sigmaX,
-			lambda: limitSet.lambda ?? DEFAULT_EWMA.lambda,
-			L: limitSet.L ?? DEFAULT_EWMA.L,
-			limits: limitSet.ewmaLimits ?? DEFAULT_EWMA.limits,
-		};
-		return {
-			chart,
-			limits: ewmaAsymptoticLimits(design),
-			dispersion: null,
-			sigmaWithin: limitSet.sigma,
-			points: ewmaPoints(xs, design, n, never),
-			capability: capabilityOf(xs),
-			phase1: null,
-			parameters: { ...parametersBase, lambda: design.lambda, L: design.L, ewmaLimits: design.limits },
-			rules,
-			notes: ruleNotes(chart, rules),
-		};
-	}
-	const k = limitSet.k ?? DEFAULT_CUSUM.k;
-	const h = limitSet.h ?? DEFAULT_CUSUM.h;
-	const headStart = limitSet.headStart ?? DEFAULT_CUSUM.headStart;
-	const design = { center: limitSet.center, K: k * sigmaX, H: h * sigmaX, headStart: headStart * sigmaX };
-	return {
-		chart,
-		limits: { center: 0, ucl: design.H, lcl: -design.H },
-		dispersion: null,
-		sigmaWithin: limitSet.sigma,
-		points: cusumPoints(xs, design, n, never),
-		capability: capabilityOf(xs),
-		phase1: null,
-		parameters: { ...parametersBase, k, h, K: design.K, H: design.H, headStart },
-		rules,
-		notes: ruleNotes(chart, rules),
-	};
+  if (isShewhart(chart)) {
+    const stats = shewhartStatistics(chart, data);
+    return {
+      chart,
+      limits: { center: limitSet.center, ucl: limitSet.ucl, lcl: limitSet.lcl },
+      dispersion: limitSet.dispersion,
+      sigmaWithin: limitSet.sigma,
+      points: shewhartPoints(limitSet, stats, rules, never),
+      capability: capabilityOf(stats.map((s) => s.value)),
+      phase1: null,
+      parameters: parametersBase,
+      rules,
+      notes: [],
+    };
+  }
+  const stats = shewhartStatistics(data.subgroups ? 'xbar-r' : 'imr', data);
+  const xs = stats.map((s) => s.value);
+  const n = data.subgroups ? (stats[0]?.size ?? 1) : 1;
+  const sigmaX = sigma / Math.sqrt(n);
+  if (chart === 'ewma') {
+    const design = {
+      center: limitSet.center,
+      sigmaX,
+      lambda: limitSet.lambda ?? DEFAULT_EWMA.lambda,
+      L: limitSet.L ?? DEFAULT_EWMA.L,
+      limits: limitSet.ewmaLimits ?? DEFAULT_EWMA.limits,
+    };
+    return {
+      chart,
+      limits: ewmaAsymptoticLimits(design),
+      dispersion: null,
+      sigmaWithin: limitSet.sigma,
+      points: ewmaPoints(xs, design, n, never),
+      capability: capabilityOf(xs),
+      phase1: null,
+      parameters: { ...parametersBase, lambda: design.lambda, L: design.L, ewmaLimits: design.limits },
+      rules,
+      notes: ruleNotes(chart, rules),
+    };
+  }
+  const k = limitSet.k ?? DEFAULT_CUSUM.k;
+  const h = limitSet.h ?? DEFAULT_CUSUM.h;
+  const headStart = limitSet.headStart ?? DEFAULT_CUSUM.headStart;
+  const design = { center: limitSet.center, K: k * sigmaX, H: h * sigmaX, headStart: headStart * sigmaX };
+  return {
+    chart,
+    limits: { center: 0, ucl: design.H, lcl: -design.H },
+    dispersion: null,
+    sigmaWithin: limitSet.sigma,
+    points: cusumPoints(xs, design, n, never),
+    capability: capabilityOf(xs),
+    phase1: null,
+    parameters: { ...parametersBase, k, h, K: design.K, H: design.H, headStart },
+    rules,
+    notes: ruleNotes(chart, rules),
+  };
 }

@@ -5,12 +5,12 @@
  * Bissell 1990, Chan–Cheng–Spiring 1988, Anderson–Darling), phase1 (iterative exclusion
  * suggestions) and evaluate (the `POST /api/v1/spc/evaluate` contract).
  */
-export * from './constants';
-export * from './math';
-export * from './rules';
-export * from './shewhart';
-export * from './ewma';
-export * from './cusum';
-export * from './capability';
-export * from './phase1';
-export * from './evaluate';
+export * from './constants.ts';
+export * from './math.ts';
+export * from './rules.ts';
+export * from './shewhart.ts';
+export * from './ewma.ts';
+export * from './cusum.ts';
+export * from './capability.ts';
+export * from './phase1.ts';
+export * from './evaluate.ts';

@@ -5,7 +5,7 @@
  * here removes a point from the limits it returns: the caller's limits always come from the whole
  * phase-1 range until someone approves an exclusion.
  */
-import type { SpcSuggestedExclusion } from '../../shared/spc';
+import type { SpcSuggestedExclusion } from '../../shared/spc.ts';
 
 /** Most recomputation rounds before the search stops. */
 export const MAX_EXCLUSION_ITERATIONS = 25;
@@ -18,36 +18,36 @@ export const MAX_EXCLUSION_ITERATIONS = 25;
  * limits) in which they fell outside.
  */
 export function suggestExclusions<L>(
-	candidates: readonly number[],
-	estimate: (included: readonly number[]) => L,
-	outside: (limits: L, index: number) => string | null,
-	minPoints = 2,
+  candidates: readonly number[],
+  estimate: (included: readonly number[]) => L,
+  outside: (limits: L, index: number) => string | null,
+  minPoints = 2,
 ): SpcSuggestedExclusion[] {
-	const suggestions: SpcSuggestedExclusion[] = [];
-	let remaining = [...candidates];
-	for (let iteration = 1; iteration <= MAX_EXCLUSION_ITERATIONS; iteration += 1) {
-		if (remaining.length < minPoints) break;
-		const limits = estimate(remaining);
-		const flagged: SpcSuggestedExclusion[] = [];
-		for (const i of remaining) {
-			const reason = outside(limits, i);
-			if (reason !== null) flagged.push({ index: i + 1, iteration, reason });
-		}
-		if (flagged.length === 0) break;
-		if (remaining.length - flagged.length < minPoints) {
-			suggestions.push(...flagged);
-			break;
-		}
-		suggestions.push(...flagged);
-		const drop = new Set(flagged.map((f) => f.index - 1));
-		remaining = remaining.filter((i) => !drop.has(i));
-	}
-	return suggestions;
+  const suggestions: SpcSuggestedExclusion[] = [];
+  let remaining = [...candidates];
+  for (let iteration = 1; iteration <= MAX_EXCLUSION_ITERATIONS; iteration += 1) {
+    if (remaining.length < minPoints) break;
+    const limits = estimate(remaining);
+    const flagged: SpcSuggestedExclusion[] = [];
+    for (const i of remaining) {
+      const reason = outside(limits, i);
+      if (reason !== null) flagged.push({ index: i + 1, iteration, reason });
+    }
+    if (flagged.length === 0) break;
+    if (remaining.length - flagged.length < minPoints) {
+      suggestions.push(...flagged);
+      break;
+    }
+    suggestions.push(...flagged);
+    const drop = new Set(flagged.map((f) => f.index - 1));
+    remaining = remaining.filter((i) => !drop.has(i));
+  }
+  return suggestions;
 }
 
 /** The 0-based indexes first−1 … last−1 of a 1-based inclusive range. */
 export function rangeIndexes(first: number, last: number): number[] {
-	const out: number[] = [];
-	for (let i = first - 1; i <= last - 1; i += 1) out.push(i);
-	return out;
+  const out: number[] = [];
+  for (let i = first - 1; i <= last - 1; i += 1) out.push(i);
+  return out;
 }

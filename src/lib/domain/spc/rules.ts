@@ -26,72 +26,72 @@
  *   (a tenth point on the same side) keeps signalling on every further point.
  * - Zone rules need a positive sigma; with σ = 0 (no spread at all) only rule 1 is applied.
  */
-import type { SpcRuleId } from '../../shared/spc';
+import type { SpcRuleId } from '../../shared/spc.ts';
 
 /** What a run rule needs to know about one plotted point. */
 export interface RulePoint {
-	value: number;
-	center: number;
-	ucl: number;
-	lcl: number;
-	/** Sigma of the plotted statistic at this point. */
-	sigma: number;
+  value: number;
+  center: number;
+  ucl: number;
+  lcl: number;
+  /** Sigma of the plotted statistic at this point. */
+  sigma: number;
 }
 
 type Side = 1 | -1 | 0;
 
 function side(p: RulePoint): Side {
-	if (p.value > p.center) return 1;
-	if (p.value < p.center) return -1;
-	return 0;
+  if (p.value > p.center) return 1;
+  if (p.value < p.center) return -1;
+  return 0;
 }
 
 /** Side (+1 above, −1 below) on which the point lies strictly beyond k sigmas, or 0. */
 function beyond(p: RulePoint, k: number): Side {
-	if (!(p.sigma > 0)) return 0;
-	const dev = p.value - p.center;
-	if (dev > k * p.sigma) return 1;
-	if (dev < -k * p.sigma) return -1;
-	return 0;
+  if (!(p.sigma > 0)) return 0;
+  const dev = p.value - p.center;
+  if (dev > k * p.sigma) return 1;
+  if (dev < -k * p.sigma) return -1;
+  return 0;
 }
 
 function kOfM(points: readonly RulePoint[], i: number, k: number, m: number, zone: number): boolean {
-	const here = points[i];
-	if (!here) return false;
-	const s = beyond(here, zone);
-	if (s === 0) return false;
-	let count = 0;
-	for (let j = Math.max(0, i - m + 1); j <= i; j += 1) {
-		const p = points[j];
-		if (p && beyond(p, zone) === s) count += 1;
-	}
-	return count >= k;
+  const here = points[i];
+  if (!here) return false;
+  const s = beyond(here, zone);
+  if (s === 0) return false;
+  let count = 0;
+  for (let j = Math.max(0, i - m + 1); j <= i; j += 1) {
+    const p = points[j];
+    if (p && beyond(p, zone) === s) count += 1;
+  }
+  return count >= k;
 }
 
 function sameSideRun(points: readonly RulePoint[], i: number, length: number): boolean {
-	if (i + 1 < length) return false;
-	const here = points[i];
-	if (!here) return false;
-	const s = side(here);
-	if (s === 0) return false;
-	for (let j = i - length + 1; j <= i; j += 1) {
-		const p = points[j];
-		if (!p || side(p) !== s) return false;
-	}
-	return true;
+  if (i + 1 < length) return false;
+  const here = points[i];
+  if (!here) return false;
+  const s = side(here);
+  if (s === 0) return false;
+  for (let j = i - length + 1; j <= i; j += 1) {
+    const p = points[j];
+    if (!p || side(p) !== s) return false;
+  }
+  return true;
 }
 
 function diffSign(points: readonly RulePoint[], j: number): Side {
-	const a = points[j - 1];
-	const b = points[j];
-	if (!a || !b) return 0;
-	if (b.value > a.value) return 1;
-	if (b.value < a.value) return -1;
-	return 0;
+  const a = points[j - 1];
+  const b = points[j];
+  if (!a || !b) return 0;
+  if (b.value > a.value) return 1;
+  if (b.value < a.value) return -1;
+  return 0;
 }
 
 function beyondLimits(p: RulePoint): boolean {
-	return p.value > p.ucl || p.value < p.lcl;
+  return p.value > p.ucl || p.value < p.lcl;
 }
 
 /**
@@ -105,59 +105,59 @@ function beyondLimits(p: RulePoint): boolean {
  * points beyond 1σ (either side).
  */
 export function ruleCompletesAt(points: readonly RulePoint[], i: number, rule: SpcRuleId): boolean {
-	const here = points[i];
-	if (!here) return false;
-	switch (rule) {
-		case 'we1': // Western Electric rule 1
-		case 'nelson1': // Nelson test 1
-			return beyondLimits(here);
-		case 'we2': // Western Electric rule 2
-		case 'nelson5': // Nelson test 5
-			return kOfM(points, i, 2, 3, 2);
-		case 'we3': // Western Electric rule 3
-		case 'nelson6': // Nelson test 6
-			return kOfM(points, i, 4, 5, 1);
-		case 'we4': // Western Electric rule 4
-			return sameSideRun(points, i, 8);
-		case 'nelson2': // Nelson test 2
-			return sameSideRun(points, i, 9);
-		case 'nelson3': {
-			// Nelson test 3: six points → five consecutive differences of one strict sign.
-			if (i < 5) return false;
-			const s = diffSign(points, i);
-			if (s === 0) return false;
-			for (let j = i - 4; j <= i; j += 1) if (diffSign(points, j) !== s) return false;
-			return true;
-		}
-		case 'nelson4': {
-			// Nelson test 4: fourteen points → thirteen non-zero differences alternating in sign.
-			if (i < 13) return false;
-			for (let j = i - 12; j <= i; j += 1) {
-				const s = diffSign(points, j);
-				if (s === 0) return false;
-				if (j > i - 12 && s !== -diffSign(points, j - 1)) return false;
-			}
-			return true;
-		}
-		case 'nelson7': {
-			// Nelson test 7: fifteen points in a row within 1σ of the centre line (on the line counts as within).
-			if (i < 14) return false;
-			for (let j = i - 14; j <= i; j += 1) {
-				const p = points[j];
-				if (!p || !(p.sigma > 0) || beyond(p, 1) !== 0) return false;
-			}
-			return true;
-		}
-		case 'nelson8': {
-			// Nelson test 8: eight points in a row beyond 1σ, either side (none in zone C).
-			if (i < 7) return false;
-			for (let j = i - 7; j <= i; j += 1) {
-				const p = points[j];
-				if (!p || beyond(p, 1) === 0) return false;
-			}
-			return true;
-		}
-	}
+  const here = points[i];
+  if (!here) return false;
+  switch (rule) {
+    case 'we1': // Western Electric rule 1
+    case 'nelson1': // Nelson test 1
+      return beyondLimits(here);
+    case 'we2': // Western Electric rule 2
+    case 'nelson5': // Nelson test 5
+      return kOfM(points, i, 2, 3, 2);
+    case 'we3': // Western Electric rule 3
+    case 'nelson6': // Nelson test 6
+      return kOfM(points, i, 4, 5, 1);
+    case 'we4': // Western Electric rule 4
+      return sameSideRun(points, i, 8);
+    case 'nelson2': // Nelson test 2
+      return sameSideRun(points, i, 9);
+    case 'nelson3': {
+      // Nelson test 3: six points → five consecutive differences of one strict sign.
+      if (i < 5) return false;
+      const s = diffSign(points, i);
+      if (s === 0) return false;
+      for (let j = i - 4; j <= i; j += 1) if (diffSign(points, j) !== s) return false;
+      return true;
+    }
+    case 'nelson4': {
+      // Nelson test 4: fourteen points → thirteen non-zero differences alternating in sign.
+      if (i < 13) return false;
+      for (let j = i - 12; j <= i; j += 1) {
+        const s = diffSign(points, j);
+        if (s === 0) return false;
+        if (j > i - 12 && s !== -diffSign(points, j - 1)) return false;
+      }
+      return true;
+    }
+    case 'nelson7': {
+      // Nelson test 7: fifteen points in a row within 1σ of the centre line (on the line counts as within).
+      if (i < 14) return false;
+      for (let j = i - 14; j <= i; j += 1) {
+        const p = points[j];
+        if (!p || !(p.sigma > 0) || beyond(p, 1) !== 0) return false;
+      }
+      return true;
+    }
+    case 'nelson8': {
+      // Nelson test 8: eight points in a row beyond 1σ, either side (none in zone C).
+      if (i < 7) return false;
+      for (let j = i - 7; j <= i; j += 1) {
+        const p = points[j];
+        if (!p || beyond(p, 1) === 0) return false;
+      }
+      return true;
+    }
+  }
 }
 
 /**
@@ -166,5 +166,5 @@ export function ruleCompletesAt(points: readonly RulePoint[], i: number, rule: S
  * edge conventions.
  */
 export function evaluateRunRules(points: readonly RulePoint[], rules: readonly SpcRuleId[]): SpcRuleId[][] {
-	return points.map((_, i) => rules.filter((rule) => ruleCompletesAt(points, i, rule)));
+  return points.map((_, i) => rules.filter((rule) => ruleCompletesAt(points, i, rule)));
 }
