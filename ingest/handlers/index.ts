@@ -5,6 +5,7 @@
  * Handlers live in `ingest/handlers/<name>.ts`; add one line per handler below.
  */
 import type pg from 'pg';
+import { alarmsHandler } from './alarms.ts';
 
 export interface StoredReading {
   channelId: number;
@@ -31,4 +32,5 @@ export interface PostCommitHandler {
 
 export const postCommitHandlers: PostCommitHandler[] = [
   // one line per handler
+  alarmsHandler,
 ];

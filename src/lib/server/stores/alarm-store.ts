@@ -218,6 +218,8 @@ async function raiseInTx(c: pg.PoolClient, input: RaiseAlarmInput): Promise<{ id
        last_activated_at = case when $12 then to_timestamp($13 / 1000.0) else last_activated_at end,
        activation_count = activation_count + case when $12 then 1 else 0 end,
        cleared_at = case when $12 then null else cleared_at end,
+       acked_at = case when $2 = 'unacked' then null else acked_at end,
+       acked_by = case when $2 = 'unacked' then null else acked_by end,
        escalation_steps_sent = case when $12 and $14 then '{}' else escalation_steps_sent end,
        updated_at = now()
      where id = $1`,
@@ -306,8 +308,8 @@ export async function transitionAlarm(
     await c.query(
       `update alarms set state = $2, active = $3,
          shelved_until = case when $4::double precision is null then null else to_timestamp($4 / 1000.0) end,
-         acked_at = case when $5 then to_timestamp($6 / 1000.0) else acked_at end,
-         acked_by = case when $5 then $7 else acked_by end,
+         acked_at = case when $5 then to_timestamp($6 / 1000.0) when $2 = 'unacked' then null else acked_at end,
+         acked_by = case when $5 then $7 when $2 = 'unacked' then null else acked_by end,
          updated_at = now()
        where id = $1`,
       [id, t.alarm.state, t.alarm.active, t.alarm.shelvedUntilMs ?? null, acked, ctx.nowMs, ctx.userId],
@@ -486,4 +488,71 @@ export async function recordEscalation(
     await insertEvent(c, alarmId, atMs, 'escalate', row.state, row.state, row.active, null, note);
     return true;
   });
+}
+
+/** Release a claimed escalation step (the e-mail could not be sent; it will be tried again). */
+export async function releaseEscalation(pool: pg.Pool, alarmId: number, stepIndex: number): Promise<void> {
+  await pool.query(
+    `update alarms set escalation_steps_sent = array_remove(escalation_steps_sent, $2) where id = $1`,
+    [alarmId, stepIndex],
+  );
+  await pool.query(
+    `delete from alarm_events where id = (select max(id) from alarm_events where alarm_id = $1 and event = 'escalate')`,
+    [alarmId],
+  );
+}
+
+// ---------------------------------------------------------------------------------------------
+// Alarm log for the health figures
+// ---------------------------------------------------------------------------------------------
+
+/** One annunciated activation, for `alarmKpis` (domain) and the health charts. */
+export interface AlarmLogRow {
+  id: string;
+  alarmId: number;
+  source: string;
+  sourceKind: AlarmSourceKind;
+  priority: AlarmPriority;
+  activatedAtMs: number;
+  clearedAtMs: number | null;
+  ackedAtMs: number | null;
+}
+
+/**
+ * Every activation that reached the operator (event `activate` into `unacked`) from
+ * `fromMs − lookbackMs` to `toMs`, with when that activation cleared and was acknowledged.
+ * The look-back lets alarms raised before the period count as stale.
+ */
+export async function alarmLog(pool: Queryable, fromMs: number, toMs: number, lookbackMs = 7 * 86_400_000): Promise<AlarmLogRow[]> {
+  const res = await pool.query<{
+    id: number;
+    alarm_id: number;
+    source: string;
+    source_kind: AlarmSourceKind;
+    priority: AlarmPriority;
+    at: Date;
+    cleared: Date | null;
+    acked: Date | null;
+  }>(
+    `select e.id, e.alarm_id, a.priority, a.source_kind, e.at,
+            a.source_label || case when a.source_key like '%:high' then ' (high)'
+                                   when a.source_key like '%:low' then ' (low)' else '' end as source,
+            (select min(c.at) from alarm_events c where c.alarm_id = e.alarm_id and c.event = 'clear' and c.at >= e.at) as cleared,
+            (select min(k.at) from alarm_events k where k.alarm_id = e.alarm_id and k.event = 'ack' and k.at >= e.at) as acked
+       from alarm_events e join alarms a on a.id = e.alarm_id
+      where e.event = 'activate' and e.to_state = 'unacked'
+        and e.at >= to_timestamp($1 / 1000.0) and e.at < to_timestamp($2 / 1000.0)
+      order by e.at, e.id`,
+    [fromMs - lookbackMs, toMs],
+  );
+  return res.rows.map((r) => ({
+    id: String(r.id),
+    alarmId: r.alarm_id,
+    source: r.source,
+    sourceKind: r.source_kind,
+    priority: r.priority,
+    activatedAtMs: r.at.getTime(),
+    clearedAtMs: ms(r.cleared),
+    ackedAtMs: ms(r.acked),
+  }));
 }

@@ -1,0 +1,681 @@
+/**
+ * Alarm sources evaluated in the ingest worker, after each committed batch and on the
+ * worker's tick. Everything goes through the alarm store (`raiseAlarm` / `clearAlarm` /
+ * `transitionAlarm`), and every raise or state change is published as a live `alarms` event.
+ *
+ * Sources (ANSI/ISA-18.2 / IEC 62682 alarm design ideas: deadband, on-delay, off-delay):
+ *
+ * 1. **Process limits per channel** (`limit`, source key `channel:{id}:high|low`): the domain's
+ *    limit detector (`lib/domain/alarms/limit-detector.ts`) stepped on every stored reading,
+ *    with its state held in memory per channel (nothing is written per sample). Settings come
+ *    from `alarm_configs`; a channel without its own limits falls back to the process window in
+ *    force for its asset (viscosity, withdrawal speed, bath temperature, room humidity), with a
+ *    deadband of 2 % of the window's width, a 10 s on-delay, no off-delay and medium priority.
+ *    `target-offset` limits are added to the window's target (e.g. withdrawal speed ± 0.15 mm/s).
+ *    With `onlyWhileRunning` the channel is judged only while its asset runs; otherwise an
+ *    active alarm clears and the detector restarts.
+ * 2. **Stale data** (`stale`, `stale:channel:{id}`): no reading for `staleSeconds` while the
+ *    asset runs. "Running": an oven (and its zones) runs while its last setpoint is ≥ 50 °C;
+ *    any other asset (dip lines, coater, room) counts as running when the channel had data in
+ *    the last hour — a channel silent for longer is taken to be switched off for the shift and
+ *    raises nothing. The alarm clears when data returns or the oven stops.
+ * 3. **Device offline** (`device`, `device:{id}`): an enabled device that has been seen at
+ *    least once and has been offline (`devices.online = false`) for more than 60 s. A device
+ *    never seen is not commissioned yet and raises nothing.
+ * 4. **System** (`system`): ingest lag above 10 s for a worker with a live heartbeat
+ *    (`system:ingest-lag:{worker}`, clears below 5 s), or its disk journal growing over three
+ *    consecutive checks (`system:journal:{worker}`), both from `ingest_status`.
+ *
+ * Duties on the tick: shelf expiry (system event `shelf-expired`), the stale / device / system
+ * checks (every 5 s), and escalation e-mail for unacknowledged alarms by the rules per
+ * priority (`dueEscalations`; one message per alarm per step, recorded in
+ * `escalation_steps_sent` before sending and released again if the relay refuses).
+ *
+ * Scale-out note: the limit detector and the stale check assume one worker sees all of a
+ * channel's readings (the default single worker). With several workers on a shared
+ * subscription, run alarm evaluation on one of them (`INGEST_ALARMS=off` on the others).
+ * Store operations are safe to repeat (one open alarm per source, escalation steps claimed
+ * atomically), so tick duties running in several workers do not duplicate alarms or e-mail.
+ *
+ * These alarms are advisory. They are not a safety-instrumented function; oven
+ * over-temperature protection and interlocks stay in the equipment.
+ */
+import nodemailer, { type Transporter } from 'nodemailer';
+import {
+  initialDetectorState,
+  step,
+  type LimitDetectorConfig,
+  type LimitDetectorState,
+  type LimitSide,
+} from '../../src/lib/domain/alarms/limit-detector.ts';
+import { dueEscalations } from '../../src/lib/domain/alarms/escalation.ts';
+import type { AlarmPriority } from '../../src/lib/shared/alarms.ts';
+import type { AlarmView, EscalationSettings } from '../../src/lib/shared/alarm-views.ts';
+import type { ProcessWindowInForce, Range } from '../../src/lib/shared/windows.ts';
+import {
+  alarmsAwaitingAck,
+  clearAlarmReturning,
+  expireShelves,
+  getAlarm,
+  raiseAlarm,
+  recordEscalation,
+  releaseEscalation,
+  type RaiseAlarmInput,
+} from '../../src/lib/server/stores/alarm-store.ts';
+import {
+  channelAlarmConfigs,
+  escalationSettings,
+  rulesByPriority,
+  type ChannelAlarmConfig,
+} from '../../src/lib/server/stores/alarm-config-store.ts';
+import { windowInForce } from '../../src/lib/server/stores/window-store.ts';
+import type { PostCommitHandler, StoredReading, WorkerContext } from './index.ts';
+
+/** An oven runs while its setpoint is at or above this (°C). */
+export const OVEN_RUNNING_SETPOINT_C = 50;
+/** A non-oven channel counts as running when it had data this recently. */
+export const RECENT_DATA_MS = 3_600_000;
+/** A device offline for longer than this raises an alarm. */
+export const DEVICE_OFFLINE_MS = 60_000;
+/** Ingest lag that raises a system alarm, and the lag below which it clears. */
+export const LAG_RAISE_MS = 10_000;
+export const LAG_CLEAR_MS = 5_000;
+/** Window fallback settings (our own choice; documented on the settings screen). */
+export const WINDOW_FALLBACK = { deadbandFraction: 0.02, onDelayMs: 10_000, offDelayMs: 0, priority: 'medium' as AlarmPriority };
+
+const CHECK_EVERY_MS = 5_000;
+const CHANNELS_EVERY_MS = 60_000;
+const CONFIGS_EVERY_MS = 2_000;
+const WINDOW_TTL_MS = 30_000;
+const SETTINGS_TTL_MS = 5_000;
+
+interface ChannelInfo {
+  id: number;
+  name: string;
+  kind: string;
+  unit: string;
+  assetId: number;
+  assetName: string;
+  deviceId: number;
+  /** The oven this channel belongs to (the oven itself or a zone's parent), else null. */
+  ovenAssetId: number | null;
+}
+
+interface EffectiveLimit extends LimitDetectorConfig {
+  priority: AlarmPriority;
+  onlyWhileRunning: boolean;
+  label: string | null;
+  origin: string;
+}
+
+interface ChannelRuntime {
+  det: LimitDetectorState;
+  sig: string;
+  lastValue: number | null;
+}
+
+/** Which window field a channel kind is judged against. */
+const WINDOW_FIELD: Readonly<Record<string, 'viscosityMm2S' | 'withdrawalSpeedMmS' | 'bathTempC' | 'roomRhPct'>> = {
+  viscosity: 'viscosityMm2S',
+  'withdrawal-speed': 'withdrawalSpeedMmS',
+  'bath-temperature': 'bathTempC',
+  'room-humidity': 'roomRhPct',
+};
+
+const KIND_WORDS: Readonly<Record<string, string>> = {
+  viscosity: 'Viscosity',
+  'withdrawal-speed': 'Withdrawal speed',
+  'bath-temperature': 'Bath temperature',
+  'room-humidity': 'Room humidity',
+  'room-temperature': 'Room temperature',
+  'air-temperature': 'Air temperature',
+  setpoint: 'Setpoint',
+  door: 'Door',
+  irradiance: 'UV irradiance',
+  'spin-speed': 'Spin speed',
+  solids: 'Solids',
+};
+
+export function fmt(v: number): string {
+  const a = Math.abs(v);
+  if (a >= 100) return v.toFixed(0);
+  if (a >= 10) return v.toFixed(1);
+  return v.toFixed(2);
+}
+
+export function createAlarmsHandler(): PostCommitHandler {
+  const channels = new Map<number, ChannelInfo>();
+  let channelsAt = 0;
+  let configs = new Map<number, ChannelAlarmConfig>();
+  let configsAt = 0;
+  const windows = new Map<number, { w: ProcessWindowInForce | null; at: number }>();
+  let windowsBrokenUntil = 0;
+  const runtime = new Map<number, ChannelRuntime>();
+  const lastSeen = new Map<number, number>();
+  const setpoints = new Map<number, number>();
+  const staleActive = new Set<number>();
+  const deviceActive = new Set<number>();
+  const systemActive = new Set<string>();
+  const journalHistory = new Map<string, number[]>();
+  let lastCheck = 0;
+  let settings: { value: EscalationSettings; at: number } | null = null;
+  let mailer: Transporter | null = null;
+  let warnedNoSmtp = false;
+  let siteZone = 'UTC';
+  let chain: Promise<unknown> = Promise.resolve();
+  const disabled = (process.env['INGEST_ALARMS'] ?? 'on') === 'off';
+
+  /** Run one piece of work at a time (detector state is shared between readings and ticks). */
+  function serial<T>(fn: () => Promise<T>): Promise<T> {
+    const next = chain.then(fn, fn);
+    chain = next.catch(() => {});
+    return next;
+  }
+
+  async function publish(ctx: WorkerContext, id: number | null, view?: AlarmView | null): Promise<void> {
+    const alarm = view ?? (id !== null ? await getAlarm(ctx.pool, id) : null);
+    if (alarm) ctx.publishLive('alarms', alarm);
+  }
+
+  async function raise(ctx: WorkerContext, input: RaiseAlarmInput): Promise<void> {
+    const { id } = await raiseAlarm(ctx.pool, input);
+    await publish(ctx, id);
+  }
+
+  async function clear(ctx: WorkerContext, sourceKey: string, atMs: number): Promise<void> {
+    const view = await clearAlarmReturning(ctx.pool, sourceKey, atMs);
+    if (view) await publish(ctx, null, view);
+  }
+
+  async function loadChannels(ctx: WorkerContext, nowMs: number): Promise<void> {
+    const res = await ctx.pool.query<{
+      id: number;
+      name: string;
+      kind: string;
+      unit: string;
+      asset_id: number;
+      asset_name: string;
+      asset_kind: string;
+      parent_id: number | null;
+      parent_kind: string | null;
+      device_id: number;
+    }>(
+      `select c.id, c.name, c.kind, c.unit, c.asset_id, a.name as asset_name, a.kind as asset_kind, a.parent_id,
+              p.kind as parent_kind, c.device_id
+         from channels c join assets a on a.id = c.asset_id left join assets p on p.id = a.parent_id`,
+    );
+    channels.clear();
+    for (const r of res.rows) {
+      const ovenAssetId = r.asset_kind === 'oven' ? r.asset_id : r.parent_kind === 'oven' ? r.parent_id : null;
+      channels.set(r.id, {
+        id: r.id,
+        name: r.name,
+        kind: r.kind,
+        unit: r.unit,
+        assetId: r.asset_id,
+        assetName: r.asset_name,
+        deviceId: r.device_id,
+        ovenAssetId,
+      });
+    }
+    channelsAt = nowMs;
+  }
+
+  async function loadConfigs(ctx: WorkerContext, nowMs: number): Promise<void> {
+    configs = await channelAlarmConfigs(ctx.pool);
+    configsAt = nowMs;
+  }
+
+  async function windowFor(ctx: WorkerContext, assetId: number, nowMs: number): Promise<ProcessWindowInForce | null> {
+    const hit = windows.get(assetId);
+    if (hit && nowMs - hit.at < WINDOW_TTL_MS) return hit.w;
+    if (nowMs < windowsBrokenUntil) return hit?.w ?? null;
+    try {
+      const w = await windowInForce(ctx.pool, assetId, nowMs);
+      windows.set(assetId, { w, at: nowMs });
+      return w;
+    } catch (e) {
+      // The windows tables may not exist yet on an older database: try again in 5 minutes.
+      windowsBrokenUntil = nowMs + 300_000;
+      ctx.log(`alarms: process windows unavailable (${(e as Error).message}); limit alarms use alarm settings only`);
+      return null;
+    }
+  }
+
+  function windowRange(w: ProcessWindowInForce | null, kind: string): Range | null {
+    const field = WINDOW_FIELD[kind];
+    if (!w || !field) return null;
+    const r = w.limits[field] as Range | undefined;
+    return r && Number.isFinite(r.min) && Number.isFinite(r.max) ? r : null;
+  }
+
+  /** The limits a channel is judged against now, or null when it has none. */
+  async function effectiveLimit(ctx: WorkerContext, ch: ChannelInfo, nowMs: number): Promise<EffectiveLimit | null> {
+    const cfg = configs.get(ch.id);
+    if (cfg && !cfg.enabled) return null;
+    const own = cfg && (cfg.high !== null || cfg.low !== null);
+    if (cfg && own) {
+      const base = {
+        deadband: cfg.deadband,
+        onDelayMs: cfg.onDelayMs,
+        offDelayMs: cfg.offDelayMs,
+        priority: cfg.priority,
+        onlyWhileRunning: cfg.onlyWhileRunning,
+        label: cfg.label,
+      };
+      if (cfg.limitsMode === 'absolute') {
+        return { ...base, ...limitsOf(cfg.high, cfg.low), origin: 'alarm' };
+      }
+      const r = windowRange(await windowFor(ctx, ch.assetId, nowMs), ch.kind);
+      if (!r || r.target === undefined) return null;
+      return {
+        ...base,
+        ...limitsOf(cfg.high === null ? null : r.target + cfg.high, cfg.low === null ? null : r.target + cfg.low),
+        origin: `target ${fmt(r.target)} ${ch.unit} ±`,
+      };
+    }
+    if (!WINDOW_FIELD[ch.kind]) return null;
+    const r = windowRange(await windowFor(ctx, ch.assetId, nowMs), ch.kind);
+    if (!r) return null;
+    return {
+      high: r.max,
+      low: r.min,
+      deadband: WINDOW_FALLBACK.deadbandFraction * (r.max - r.min),
+      onDelayMs: WINDOW_FALLBACK.onDelayMs,
+      offDelayMs: WINDOW_FALLBACK.offDelayMs,
+      priority: cfg?.priority ?? WINDOW_FALLBACK.priority,
+      onlyWhileRunning: cfg?.onlyWhileRunning ?? false,
+      label: cfg?.label ?? null,
+      origin: 'window',
+    };
+  }
+
+  function running(ch: ChannelInfo, nowMs: number): boolean {
+    if (ch.ovenAssetId !== null) {
+      const sp = setpoints.get(ch.ovenAssetId);
+      return sp !== undefined && sp >= OVEN_RUNNING_SETPOINT_C;
+    }
+    const seen = lastSeen.get(ch.id);
+    return seen !== undefined && nowMs - seen <= RECENT_DATA_MS;
+  }
+
+  function limitMessage(ch: ChannelInfo, lim: EffectiveLimit, side: LimitSide, v: number): string {
+    if (lim.label) return `${lim.label}: ${ch.name} ${fmt(v)} ${ch.unit}`;
+    const what = KIND_WORDS[ch.kind] ?? ch.name;
+    const limit = side === 'high' ? lim.high! : lim.low!;
+    const where = lim.origin === 'window' ? 'the process window' : lim.origin === 'alarm' ? 'the alarm' : lim.origin;
+    return `${what} ${fmt(v)} ${ch.unit} ${side === 'high' ? 'above' : 'below'} ${where} ${side} ${fmt(limit)} ${ch.unit}`;
+  }
+
+  async function evaluateChannel(ctx: WorkerContext, ch: ChannelInfo, samples: StoredReading[]): Promise<void> {
+    let rt = runtime.get(ch.id);
+    const tLast = samples[samples.length - 1]!.tMs;
+    const lim = await effectiveLimit(ctx, ch, tLast);
+    const sig = lim ? JSON.stringify([lim.high, lim.low, lim.deadband, lim.onDelayMs, lim.offDelayMs]) : '';
+    if (!rt) {
+      rt = { det: initialDetectorState(), sig, lastValue: null };
+      runtime.set(ch.id, rt);
+    }
+    if (rt.sig !== sig) {
+      // Settings changed: keep a held alarm if its side still exists (the deadband decides), else clear it.
+      const held = rt.det.alarm;
+      const keep = held !== null && lim !== null && (held === 'high' ? lim.high !== undefined : lim.low !== undefined);
+      if (held !== null && !keep) await clear(ctx, `channel:${ch.id}:${held}`, tLast);
+      rt.det = { ...initialDetectorState(), alarm: keep ? held : null };
+      rt.sig = sig;
+    }
+    if (!lim) return;
+    for (const s of samples) {
+      rt.lastValue = s.value;
+      if (lim.onlyWhileRunning && !running(ch, s.tMs)) {
+        if (rt.det.alarm !== null) await clear(ctx, `channel:${ch.id}:${rt.det.alarm}`, s.tMs);
+        rt.det = initialDetectorState();
+        continue;
+      }
+      const before = rt.det.alarm;
+      const r = step(rt.det, { tMs: s.tMs, v: s.value }, lim);
+      rt.det = r.state;
+      if (r.event === 'clear' && before !== null) {
+        await clear(ctx, `channel:${ch.id}:${before}`, s.tMs);
+      } else if (r.event === 'activate-high' || r.event === 'activate-low') {
+        const side: LimitSide = r.event === 'activate-high' ? 'high' : 'low';
+        await raise(ctx, {
+          sourceKind: 'limit',
+          sourceKey: `channel:${ch.id}:${side}`,
+          sourceLabel: ch.name,
+          assetId: ch.assetId,
+          channelId: ch.id,
+          priority: lim.priority,
+          message: limitMessage(ch, lim, side, s.value),
+          value: s.value,
+          limit: side === 'high' ? (lim.high ?? null) : (lim.low ?? null),
+          atMs: s.tMs,
+        });
+      }
+    }
+  }
+
+  async function onReadings(ctx: WorkerContext, rows: StoredReading[]): Promise<void> {
+    if (disabled || rows.length === 0) return;
+    const nowMs = Date.now();
+    if (nowMs - configsAt > CONFIGS_EVERY_MS) await loadConfigs(ctx, nowMs);
+    const byChannel = new Map<number, StoredReading[]>();
+    for (const r of rows) {
+      const list = byChannel.get(r.channelId);
+      if (list) list.push(r);
+      else byChannel.set(r.channelId, [r]);
+    }
+    if ([...byChannel.keys()].some((id) => !channels.has(id))) await loadChannels(ctx, nowMs);
+    // Setpoints first, so an oven's channels in the same batch see it running.
+    for (const [id, list] of byChannel) {
+      const ch = channels.get(id);
+      if (!ch) continue;
+      list.sort((a, b) => a.tMs - b.tMs);
+      if (ch.kind === 'setpoint' && ch.ovenAssetId !== null) setpoints.set(ch.ovenAssetId, list[list.length - 1]!.value);
+    }
+    for (const [id, list] of byChannel) {
+      const ch = channels.get(id);
+      if (!ch) continue;
+      const newest = list[list.length - 1]!.tMs;
+      lastSeen.set(id, Math.max(lastSeen.get(id) ?? 0, newest));
+      if (staleActive.has(id)) {
+        staleActive.delete(id);
+        await clear(ctx, `stale:channel:${id}`, newest);
+      }
+      await evaluateChannel(ctx, ch, list);
+    }
+  }
+
+  async function checkStale(ctx: WorkerContext, nowMs: number): Promise<void> {
+    for (const [id, cfg] of configs) {
+      const ch = channels.get(id);
+      if (!ch || cfg.staleSeconds === null || !cfg.enabled) {
+        if (staleActive.has(id)) {
+          staleActive.delete(id);
+          await clear(ctx, `stale:channel:${id}`, nowMs);
+        }
+        continue;
+      }
+      const seen = lastSeen.get(id);
+      const silentMs = seen === undefined ? Number.POSITIVE_INFINITY : nowMs - seen;
+      const isOven = ch.ovenAssetId !== null;
+      if (staleActive.has(id)) {
+        // An oven that stopped needs no data; other assets clear only when data returns.
+        if (isOven && !running(ch, nowMs)) {
+          staleActive.delete(id);
+          await clear(ctx, `stale:channel:${id}`, nowMs);
+        }
+        continue;
+      }
+      if (silentMs <= cfg.staleSeconds * 1000) continue;
+      if (isOven ? !running(ch, nowMs) : seen === undefined || silentMs > RECENT_DATA_MS) continue;
+      staleActive.add(id);
+      const since = seen === undefined ? '' : ` for ${Math.round(silentMs / 1000)} s`;
+      await raise(ctx, {
+        sourceKind: 'stale',
+        sourceKey: `stale:channel:${id}`,
+        sourceLabel: ch.name,
+        assetId: ch.assetId,
+        channelId: ch.id,
+        priority: cfg.stalePriority,
+        message: `No reading from ${ch.name}${since}${isOven ? ' while the oven runs' : ''} (expected within ${cfg.staleSeconds} s)`,
+        value: null,
+        limit: cfg.staleSeconds,
+        atMs: nowMs,
+      });
+    }
+  }
+
+  async function checkDevices(ctx: WorkerContext, nowMs: number): Promise<void> {
+    const res = await ctx.pool.query<{
+      id: number;
+      name: string;
+      username: string;
+      online: boolean;
+      enabled: boolean;
+      last_seen_at: Date | null;
+      offline_at: Date | null;
+    }>(
+      `select d.id, d.name, d.username, d.online, d.enabled, d.last_seen_at,
+              (select max(e.at) from device_events e where e.device_id = d.id and e.kind = 'offline') as offline_at
+         from devices d`,
+    );
+    for (const d of res.rows) {
+      const key = `device:${d.id}`;
+      const since = d.offline_at ?? d.last_seen_at;
+      const offline = d.enabled && !d.online && d.last_seen_at !== null && since !== null && nowMs - since.getTime() > DEVICE_OFFLINE_MS;
+      if (offline && !deviceActive.has(d.id)) {
+        deviceActive.add(d.id);
+        await raise(ctx, {
+          sourceKind: 'device',
+          sourceKey: key,
+          sourceLabel: `${d.name} (${d.username})`,
+          priority: 'medium',
+          message: `Device ${d.username} offline for ${Math.round((nowMs - since.getTime()) / 1000)} s: its channels are not being recorded`,
+          atMs: nowMs,
+        });
+      } else if (!offline && deviceActive.has(d.id)) {
+        deviceActive.delete(d.id);
+        await clear(ctx, key, nowMs);
+      }
+    }
+  }
+
+  async function checkSystem(ctx: WorkerContext, nowMs: number): Promise<void> {
+    const res = await ctx.pool.query<{ worker_id: string; heartbeat_at: Date; lag_ms: number | null; journal_bytes: number }>(
+      `select worker_id, heartbeat_at, lag_ms, journal_bytes from ingest_status`,
+    );
+    for (const w of res.rows) {
+      const live = nowMs - w.heartbeat_at.getTime() < 30_000;
+      const lagKey = `system:ingest-lag:${w.worker_id}`;
+      const lag = w.lag_ms ?? 0;
+      if (live && lag > LAG_RAISE_MS && !systemActive.has(lagKey)) {
+        systemActive.add(lagKey);
+        await raise(ctx, {
+          sourceKind: 'system',
+          sourceKey: lagKey,
+          sourceLabel: `Ingest worker ${w.worker_id}`,
+          priority: 'medium',
+          message: `Readings reach the database ${fmt(lag / 1000)} s late (more than ${LAG_RAISE_MS / 1000} s): live screens and alarms are behind`,
+          value: lag / 1000,
+          limit: LAG_RAISE_MS / 1000,
+          atMs: nowMs,
+        });
+      } else if ((!live || lag < LAG_CLEAR_MS) && systemActive.has(lagKey)) {
+        systemActive.delete(lagKey);
+        await clear(ctx, lagKey, nowMs);
+      }
+      const journalKey = `system:journal:${w.worker_id}`;
+      const hist = [...(journalHistory.get(w.worker_id) ?? []), Number(w.journal_bytes)].slice(-4);
+      journalHistory.set(w.worker_id, hist);
+      const growing = hist.length === 4 && hist.every((b, i) => i === 0 || b > hist[i - 1]!);
+      if (live && growing && !systemActive.has(journalKey)) {
+        systemActive.add(journalKey);
+        await raise(ctx, {
+          sourceKind: 'system',
+          sourceKey: journalKey,
+          sourceLabel: `Ingest worker ${w.worker_id}`,
+          priority: 'high',
+          message: `The ingest journal keeps growing (${Math.round(Number(w.journal_bytes) / 1024)} KiB): readings are held on disk because the database is not taking them`,
+          value: Number(w.journal_bytes),
+          atMs: nowMs,
+        });
+      } else if (systemActive.has(journalKey) && (Number(w.journal_bytes) === 0 || !growing)) {
+        systemActive.delete(journalKey);
+        await clear(ctx, journalKey, nowMs);
+      }
+    }
+  }
+
+  function transport(ctx: WorkerContext): Transporter | null {
+    const url = process.env['SMTP_URL'];
+    if (!url) {
+      if (!warnedNoSmtp) ctx.log('alarms: SMTP_URL is not set; escalation e-mail is not sent');
+      warnedNoSmtp = true;
+      return null;
+    }
+    mailer ??= nodemailer.createTransport(url);
+    return mailer;
+  }
+
+  async function recipients(ctx: WorkerContext, notify: string, s: EscalationSettings): Promise<string[]> {
+    if (notify === 'on-shift-engineer') return [s.onShiftEngineerEmail];
+    const role = /^role-(viewer|operator|engineer|quality|admin)$/.exec(notify)?.[1];
+    if (role) {
+      const res = await ctx.pool.query<{ email: string }>(
+        `select email from users where role = $1 and active and email is not null order by id`,
+        [role],
+      );
+      return res.rows.map((r) => r.email);
+    }
+    return [];
+  }
+
+  async function escalate(ctx: WorkerContext, nowMs: number): Promise<void> {
+    if (!settings || nowMs - settings.at > SETTINGS_TTL_MS) {
+      settings = { value: await escalationSettings(ctx.pool), at: nowMs };
+    }
+    const s = settings.value;
+    const rules = rulesByPriority(s.rules);
+    if (Object.values(rules).every((steps) => !steps || steps.length === 0)) return;
+    const waiting = await alarmsAwaitingAck(ctx.pool);
+    if (waiting.length === 0) return;
+    const origin = (process.env['PUBLIC_ORIGIN'] ?? 'http://127.0.0.1:4321').replace(/\/$/, '');
+    for (const a of waiting) {
+      const due = dueEscalations(
+        { priority: a.priority, state: a.state, raisedAtMs: a.lastActivatedAtMs, escalationStepsSent: a.escalationStepsSent },
+        rules,
+        nowMs,
+      );
+      for (const d of due) {
+        const to = await recipients(ctx, d.notify, s);
+        const mail = transport(ctx);
+        if (to.length === 0) {
+          await recordEscalation(ctx.pool, a.id, d.stepIndex, nowMs, `step ${d.stepIndex + 1}: no address for "${d.notify}"`);
+          ctx.log(`alarms: escalation of alarm ${a.id} step ${d.stepIndex + 1}: no address for "${d.notify}"`);
+          continue;
+        }
+        if (!mail) return;
+        const claimed = await recordEscalation(ctx.pool, a.id, d.stepIndex, nowMs, `step ${d.stepIndex + 1} e-mailed to ${to.join(', ')}`);
+        if (!claimed) continue;
+        const raised = new Date(a.lastActivatedAtMs).toLocaleString('en-GB', { timeZone: siteZone, timeZoneName: 'short' });
+        const text = [
+          `A ${a.priority}-priority alarm has not been acknowledged for ${d.afterMinutes} min.`,
+          '',
+          `Source:  ${a.sourceLabel}`,
+          `Alarm:   ${a.message}`,
+          `Raised:  ${raised} (${siteZone})`,
+          `State:   ${a.state === 'unacked' ? 'needs acknowledgement' : 'cleared, not yet acknowledged'}`,
+          '',
+          `Open it: ${origin}/alarms?focus=${a.id}`,
+          '',
+          'These alarms are advisory. They are not a safety-instrumented function; oven over-temperature',
+          'protection and interlocks stay in the equipment.',
+        ].join('\n');
+        try {
+          await mail.sendMail({
+            from: `Coatrail <coatrail@${hostOf(origin)}>`,
+            to: to.join(', '),
+            subject: `Coatrail: ${a.priority}-priority alarm unacknowledged ${d.afterMinutes} min — ${a.sourceLabel}`,
+            text,
+          });
+          await publish(ctx, a.id);
+        } catch (e) {
+          await releaseEscalation(ctx.pool, a.id, d.stepIndex);
+          ctx.log(`alarms: escalation e-mail for alarm ${a.id} failed (${(e as Error).message}); will retry`);
+        }
+      }
+    }
+  }
+
+  async function restore(ctx: WorkerContext): Promise<void> {
+    // Held conditions from before a restart: no duplicate raises, and clears still happen.
+    const open = await ctx.pool.query<{ source_key: string }>(
+      `select source_key from alarms where state <> 'normal' and active and source_kind in ('limit','stale','device','system')`,
+    );
+    for (const { source_key: key } of open.rows) {
+      let m = /^channel:(\d+):(high|low)$/.exec(key);
+      if (m) {
+        runtime.set(Number(m[1]), {
+          det: { ...initialDetectorState(), alarm: m[2] as LimitSide },
+          sig: '\u0000restored',
+          lastValue: null,
+        });
+        continue;
+      }
+      if ((m = /^stale:channel:(\d+)$/.exec(key))) staleActive.add(Number(m[1]));
+      else if ((m = /^device:(\d+)$/.exec(key))) deviceActive.add(Number(m[1]));
+      else if (key.startsWith('system:')) systemActive.add(key);
+    }
+    // Latest reading per channel in the last hour (stale checks) and each oven's last setpoint.
+    const latest = await ctx.pool.query<{ channel_id: number; t_ms: number; value: number }>(
+      `select c.id as channel_id, r.t_ms, r.value from channels c
+         cross join lateral (select (extract(epoch from ts) * 1000)::float8 as t_ms, value from readings
+                              where channel_id = c.id and ts > now() - interval '1 hour' order by ts desc limit 1) r`,
+    );
+    for (const r of latest.rows) {
+      lastSeen.set(r.channel_id, r.t_ms);
+      const ch = channels.get(r.channel_id);
+      if (ch && ch.kind === 'setpoint' && ch.ovenAssetId !== null) setpoints.set(ch.ovenAssetId, r.value);
+    }
+    const zone = await ctx.pool.query<{ time_zone: string }>(`select time_zone from sites order by id limit 1`);
+    siteZone = zone.rows[0]?.time_zone ?? 'UTC';
+  }
+
+  return {
+    name: 'alarms',
+    async init(ctx) {
+      if (disabled) {
+        ctx.log('alarms: evaluation off in this worker (INGEST_ALARMS=off)');
+        return;
+      }
+      await serial(async () => {
+        const now = Date.now();
+        await loadChannels(ctx, now);
+        await loadConfigs(ctx, now);
+        await restore(ctx);
+      });
+    },
+    onReadings(ctx, rows) {
+      return serial(() => onReadings(ctx, rows));
+    },
+    onTick(ctx, nowMs) {
+      if (disabled) return Promise.resolve();
+      return serial(async () => {
+        for (const a of await expireShelves(ctx.pool, nowMs)) await publish(ctx, null, a);
+        if (nowMs - lastCheck < CHECK_EVERY_MS) return;
+        lastCheck = nowMs;
+        if (nowMs - channelsAt > CHANNELS_EVERY_MS) await loadChannels(ctx, nowMs);
+        if (nowMs - configsAt > CONFIGS_EVERY_MS) await loadConfigs(ctx, nowMs);
+        // Each duty on its own: one failing must not starve the others.
+        const duties: [string, () => Promise<void>][] = [
+          ['stale data', () => checkStale(ctx, nowMs)],
+          ['devices', () => checkDevices(ctx, nowMs)],
+          ['system', () => checkSystem(ctx, nowMs)],
+          ['escalation', () => escalate(ctx, nowMs)],
+        ];
+        for (const [what, duty] of duties) {
+          try {
+            await duty();
+          } catch (e) {
+            ctx.log(`alarms: ${what} check failed: ${(e as Error).message}`);
+          }
+        }
+      });
+    },
+  };
+}
+
+function limitsOf(high: number | null, low: number | null): Pick<LimitDetectorConfig, 'high' | 'low'> {
+  return { ...(high !== null ? { high } : {}), ...(low !== null ? { low } : {}) };
+}
+
+function hostOf(origin: string): string {
+  try {
+    return new URL(origin).hostname || 'localhost';
+  } catch {
+    return 'localhost';
+  }
+}
+
+export const alarmsHandler: PostCommitHandler = createAlarmsHandler();
