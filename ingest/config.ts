@@ -12,6 +12,12 @@ const EnvSchema = z.object({
   INGEST_SHARED_GROUP: z.string().optional(),
   INGEST_FLUSH_MS: z.coerce.number().int().min(1).max(5000).default(20),
   INGEST_JOURNAL_DIR: z.string().default('var/ingest-journal'),
+  /** Rows held in memory while PostgreSQL is away, before spilling to the journal. */
+  INGEST_BUFFER_ROWS: z.coerce.number().int().min(100).default(50_000),
+  /** Flush at once when this many rows are waiting (else every INGEST_FLUSH_MS). */
+  INGEST_BATCH_ROWS: z.coerce.number().int().min(1).default(10_000),
+  /** Stop taking messages from the broker when the journal holds this many bytes. */
+  INGEST_JOURNAL_MAX_BYTES: z.coerce.number().int().min(1 << 20).default(2 ** 30),
   FUTURE_TOLERANCE_MS: z.coerce.number().int().min(0).default(120_000),
 });
 export type IngestConfig = z.infer<typeof EnvSchema> & { mqttUrl: string };

@@ -5,6 +5,7 @@
  * Handlers live in `ingest/handlers/<name>.ts`; add one line per handler below.
  */
 import type pg from 'pg';
+import { retentionHandler } from './retention.ts';
 import { alarmsHandler } from './alarms.ts';
 
 export interface StoredReading {
@@ -32,5 +33,6 @@ export interface PostCommitHandler {
 
 export const postCommitHandlers: PostCommitHandler[] = [
   // one line per handler
+  retentionHandler,
   alarmsHandler,
 ];
