@@ -1,7 +1,9 @@
 /** Every seed step, in order (idempotent). */
 import type { Sequelize } from 'sequelize';
+import { seedAlarmDefaults } from './alarm-defaults.ts';
 import { seedDemoPlant, type SeedOptions } from './demo-plant.ts';
 
 export async function seedAll(sequelize: Sequelize, opts: SeedOptions): Promise<void> {
   await seedDemoPlant(sequelize, opts);
+  await seedAlarmDefaults(sequelize, opts.log ? { log: opts.log } : {});
 }

@@ -300,7 +300,9 @@ export function createAlarmsHandler(): PostCommitHandler {
   }
 
   function limitMessage(ch: ChannelInfo, lim: EffectiveLimit, side: LimitSide, v: number): string {
-    if (lim.label) return `${lim.label}: ${ch.name} ${fmt(v)} ${ch.unit}`;
+    if (lim.label) {
+      return ch.kind === 'door' ? `${lim.label}: ${ch.name} open` : `${lim.label}: ${ch.name} ${fmt(v)} ${ch.unit}`;
+    }
     const what = KIND_WORDS[ch.kind] ?? ch.name;
     const limit = side === 'high' ? lim.high! : lim.low!;
     const where = lim.origin === 'window' ? 'the process window' : lim.origin === 'alarm' ? 'the alarm' : lim.origin;

@@ -24,6 +24,20 @@ const ROUTES: Record<string, Action | 'public'> = {
   'POST /api/auth/logout': 'public',
   'GET /api/health': 'public',
   'GET /api/v1/stream': 'view',
+  'GET /api/v1/alarms': 'view',
+  'POST /api/v1/alarms/ack': 'alarm.ack',
+  'GET /api/v1/alarms/kpi': 'alarm.health',
+  'GET /api/v1/alarms/[id]': 'view',
+  'POST /api/v1/alarms/[id]/ack': 'alarm.ack',
+  'POST /api/v1/alarms/[id]/shelve': 'alarm.shelve',
+  'POST /api/v1/alarms/[id]/unshelve': 'alarm.shelve',
+  'POST /api/v1/alarms/[id]/out-of-service': 'alarm.configure',
+  'POST /api/v1/alarms/[id]/return-to-service': 'alarm.configure',
+  'GET /api/v1/alarm-configs': 'alarm.configure',
+  'PUT /api/v1/alarm-configs/[channelId]': 'alarm.configure',
+  'DELETE /api/v1/alarm-configs/[channelId]': 'alarm.configure',
+  'GET /api/v1/alarm-configs/escalation': 'alarm.configure',
+  'PUT /api/v1/alarm-configs/escalation': 'alarm.configure',
 };
 
 /** A plausible value for each dynamic segment (the route must still answer 401/403 before looking it up). */

@@ -196,7 +196,10 @@ export interface ChannelAlarmConfigView {
 
 /** Escalation rules for every priority (a priority without steps never escalates). */
 export const EscalationSettingsSchema = z.object({
-  rules: z.array(EscalationRuleSchema).max(3),
+  rules: z
+    .array(EscalationRuleSchema)
+    .max(3)
+    .refine((rules) => new Set(rules.map((r) => r.priority)).size === rules.length, 'one rule per priority'),
   onShiftEngineerEmail: z.email('an e-mail address').max(200),
 });
 export type EscalationSettings = z.infer<typeof EscalationSettingsSchema>;

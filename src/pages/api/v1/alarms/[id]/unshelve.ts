@@ -1,0 +1,11 @@
+import type { APIRoute } from 'astro';
+import { requireRole } from '../../../../../lib/server/guard.ts';
+import { idParam } from '../../../../../lib/server/http.ts';
+import { applyAlarmEvent } from '../../../../../lib/server/services/alarms.ts';
+
+/** End a shelf early (engineer); no body. A transition the state model refuses answers 409 with its reason. */
+export const POST: APIRoute = async (ctx) => {
+  const user = requireRole(ctx.locals, 'alarm.shelve');
+  const id = idParam(ctx.params['id'], 'alarm');
+  return Response.json(await applyAlarmEvent(user, ctx.clientAddress ?? null, id, { type: 'unshelve' }));
+};

@@ -1,0 +1,23 @@
+import type { APIRoute } from 'astro';
+import { requireRole } from '../../../../lib/server/guard.ts';
+import { readQuery } from '../../../../lib/server/http.ts';
+import { alarmsList } from '../../../../lib/server/services/alarms.ts';
+import { AlarmListQuerySchema } from '../../../../lib/shared/alarm-views.ts';
+
+/**
+ * The alarm list (product.md §6), any signed-in role: `?state=` comma-separated ISA-18.2 state
+ * names of the domain (normal, unacked, acked, rtn-unacked, shelved, suppressed,
+ * out-of-service) or `open` (the annunciated states), `?priority=high,medium`, `?channel=`,
+ * `?limit=` (1–500, default 200). Waiting for acknowledgement first, then priority, then newest.
+ */
+export const GET: APIRoute = async ({ locals, url }) => {
+  requireRole(locals, 'view');
+  const q = readQuery(url, AlarmListQuerySchema);
+  const alarms = await alarmsList({
+    states: q.state,
+    priorities: q.priority,
+    ...(q.channel !== undefined ? { channelId: q.channel } : {}),
+    limit: q.limit,
+  });
+  return Response.json(alarms, { headers: { 'cache-control': 'no-store' } });
+};

@@ -1,0 +1,29 @@
+import type { APIRoute } from 'astro';
+import { config } from '../../../../lib/server/config.ts';
+import { requireRole } from '../../../../lib/server/guard.ts';
+import { readQuery } from '../../../../lib/server/http.ts';
+import { alarmHealth, healthCsv } from '../../../../lib/server/services/alarms.ts';
+import { AlarmKpiQuerySchema } from '../../../../lib/shared/alarm-views.ts';
+
+/**
+ * Alarm-system health figures (ANSI/ISA-18.2 / IEC 62682 performance metrics against the
+ * common practice benchmarks): `?from&to` (ISO date-time or epoch ms; default the last 24 h),
+ * `?positions=` operator positions (default 1), `?format=csv` for a spreadsheet.
+ */
+export const GET: APIRoute = async ({ locals, url }) => {
+  requireRole(locals, 'alarm.health');
+  const q = readQuery(url, AlarmKpiQuerySchema);
+  const toMs = q.toMs ?? Date.now();
+  const fromMs = q.fromMs ?? toMs - 86_400_000;
+  const h = await alarmHealth(fromMs, toMs, q.positions);
+  if (q.format === 'csv') {
+    return new Response(healthCsv(h, config.siteTimeZone), {
+      headers: {
+        'content-type': 'text/csv; charset=utf-8',
+        'content-disposition': `attachment; filename="alarm-health-${new Date(fromMs).toISOString().slice(0, 10)}.csv"`,
+        'cache-control': 'no-store',
+      },
+    });
+  }
+  return Response.json({ ...h.report, per10Min: h.per10Min, meanTimeToAckMs: h.meanTimeToAckMs }, { headers: { 'cache-control': 'no-store' } });
+};
