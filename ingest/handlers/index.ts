@@ -7,6 +7,7 @@
 import type pg from 'pg';
 import { retentionHandler } from './retention.ts';
 import { alarmsHandler } from './alarms.ts';
+import { ovenLoadsHandler } from './oven-loads.ts';
 
 export interface StoredReading {
   channelId: number;
@@ -35,4 +36,5 @@ export const postCommitHandlers: PostCommitHandler[] = [
   // one line per handler
   retentionHandler,
   alarmsHandler,
+  ovenLoadsHandler,
 ];
