@@ -20,6 +20,10 @@ import { base, signIn, type Session } from '../support/http.ts';
 import { root } from '../support/test-stack.ts';
 
 const ROUTES: Record<string, Action | 'public'> = {
+  // telemetry pipeline (issue 4 part 2)
+  'GET /api/v1/channels/[id]/readings': 'view',
+  'GET /api/v1/ingest/rejections': 'ingest.review',
+  'GET /api/v1/ingest/unknown-channels': 'ingest.review',
   'POST /api/auth/login': 'public',
   'POST /api/auth/logout': 'public',
   'GET /api/health': 'public',

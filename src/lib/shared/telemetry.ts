@@ -193,6 +193,9 @@ export const RejectionsQuerySchema = z.object({
 });
 export type RejectionsQuery = z.infer<typeof RejectionsQuerySchema>;
 
+/** `GET /api/v1/ingest/unknown-channels?resolved=1` includes the ones already resolved. */
+export const UnknownChannelsQuerySchema = z.object({ resolved: z.enum(['0', '1']).default('0') });
+
 export interface RejectionRow {
   id: number;
   receivedAtMs: number;

@@ -1,0 +1,21 @@
+import type { APIRoute } from 'astro';
+import { pgPool } from '../../../../../lib/server/db.ts';
+import { requireRole } from '../../../../../lib/server/guard.ts';
+import { HttpProblem, idParam, readQuery } from '../../../../../lib/server/http.ts';
+import { channelBrief, queryReadings } from '../../../../../lib/server/stores/readings-store.ts';
+import { ReadingsQuerySchema } from '../../../../../lib/shared/telemetry.ts';
+
+/**
+ * One channel's readings (product.md §6): `?from&to&maxPoints` (ISO 8601 with zone or epoch
+ * ms; default the last hour and 1 000 points, at most 5 000). Raw `{t, v}` points when the
+ * range holds at most maxPoints samples, otherwise `{t, min, max, mean, n}` buckets from the
+ * right rollup, never more than maxPoints. Times are epoch milliseconds.
+ */
+export const GET: APIRoute = async ({ locals, params, url }) => {
+  requireRole(locals, 'view');
+  const id = idParam(params['id'], 'channel');
+  const q = readQuery(url, ReadingsQuerySchema);
+  const channel = await channelBrief(pgPool(), id);
+  if (!channel) throw new HttpProblem(404, 'Not found', 'No such channel.');
+  return Response.json(await queryReadings(pgPool(), channel, q), { headers: { 'cache-control': 'no-store' } });
+};
