@@ -2,8 +2,10 @@
 import type { Sequelize } from 'sequelize';
 import { seedAlarmDefaults } from './alarm-defaults.ts';
 import { seedDemoPlant, type SeedOptions } from './demo-plant.ts';
+import { seedWindows } from './windows.ts';
 
 export async function seedAll(sequelize: Sequelize, opts: SeedOptions): Promise<void> {
   await seedDemoPlant(sequelize, opts);
   await seedAlarmDefaults(sequelize, opts.log ? { log: opts.log } : {});
+  await seedWindows(sequelize, opts.log ? { log: opts.log } : {});
 }

@@ -30,6 +30,7 @@ export const PERMISSIONS = {
   'alarm.shelve': ['engineer'],
   'alarm.configure': ['engineer'],
   'bath.log': floor,
+  'bath.configure': ['engineer'],
   'load.manage': floor,
   'window.edit': ['engineer'],
   'window.approve': ['engineer'],

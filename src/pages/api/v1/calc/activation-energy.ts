@@ -1,0 +1,10 @@
+import { activationEnergyForEquivalence } from '../../../../lib/domain/cure/arrhenius.ts';
+import { calcRoute, refusal } from '../../../../lib/server/calc-route.ts';
+import { ActivationEnergyInputSchema } from '../../../../lib/shared/calc.ts';
+
+/** The activation energy that makes two isothermal cure schedules equivalent: Ea = R·ln(tA/tB)/(1/TA − 1/TB). */
+export const POST = calcRoute(ActivationEnergyInputSchema, (input) => {
+  const r = activationEnergyForEquivalence(input.scheduleA, input.scheduleB);
+  if (!r.ok) throw refusal('No activation energy', r.reason, 'scheduleB.minutes');
+  return { activationEnergyKJMol: r.activationEnergyKJMol };
+});

@@ -1,0 +1,101 @@
+import type { APIRoute } from 'astro';
+import { findExtrema } from '../../../../../lib/domain/quality/fringes.ts';
+import { requireRole } from '../../../../../lib/server/guard.ts';
+import { HttpProblem, validate } from '../../../../../lib/server/http.ts';
+import { looksLikeText, MAX_SPECTRUM_BYTES, parseSpectrumCsv, SpectrumOptionsSchema } from '../../../../../lib/shared/spectrum.ts';
+
+const tooLarge = () => new HttpProblem(413, 'Upload too large', `A spectrum file may be at most ${MAX_SPECTRUM_BYTES / 1024 / 1024} MB.`);
+
+/** Read the body but stop at the limit (a chunked upload without content-length cannot get past it). */
+async function readCapped(request: Request, max: number): Promise<Uint8Array<ArrayBuffer>> {
+  const declared = Number(request.headers.get('content-length') ?? NaN);
+  // Multipart framing adds a few hundred bytes around the file.
+  if (Number.isFinite(declared) && declared > max + 16 * 1024) throw tooLarge();
+  if (!request.body) return new Uint8Array(new ArrayBuffer(0));
+  const reader = request.body.getReader();
+  const chunks: Uint8Array[] = [];
+  let total = 0;
+  for (;;) {
+    const { done, value } = await reader.read();
+    if (done) break;
+    total += value.byteLength;
+    if (total > max + 16 * 1024) {
+      await reader.cancel();
+      throw tooLarge();
+    }
+    chunks.push(value);
+  }
+  const out = new Uint8Array(total);
+  let at = 0;
+  for (const c of chunks) {
+    out.set(c, at);
+    at += c.byteLength;
+  }
+  return out;
+}
+
+/**
+ * Coat thickness from an uploaded reflectance spectrum: multipart/form-data with a `file`
+ * (CSV: wavelength nm, reflectance) and `refractiveIndex` (optional `smoothingWindow`,
+ * `minContrast`), or a text/csv body with those as query parameters. ≤ 1 MB (413), text only
+ * (binary → 415), bad rows listed by line number (400); a spectrum without usable fringes → 400.
+ */
+export const POST: APIRoute = async ({ locals, request, url }) => {
+  requireRole(locals, 'calc.use');
+  const type = (request.headers.get('content-type') ?? '').toLowerCase();
+  const body = await readCapped(request, MAX_SPECTRUM_BYTES);
+  let bytes: Uint8Array;
+  let fields: Record<string, unknown>;
+  if (type.startsWith('multipart/form-data')) {
+    let form: FormData;
+    try {
+      form = await new Response(body, { headers: { 'content-type': request.headers.get('content-type') ?? '' } }).formData();
+    } catch {
+      throw new HttpProblem(400, 'Malformed upload', 'The multipart body could not be read.');
+    }
+    const file = form.get('file');
+    if (!(file instanceof Blob)) {
+      throw new HttpProblem(400, 'Invalid input', 'file: attach the spectrum as a file field named "file".', { errors: [{ path: 'file', message: 'Attach the spectrum CSV.' }] });
+    }
+    bytes = new Uint8Array(await file.arrayBuffer());
+    fields = Object.fromEntries([...form.entries()].filter(([k, v]) => k !== 'file' && typeof v === 'string'));
+  } else if (type.startsWith('text/csv') || type.startsWith('text/plain')) {
+    bytes = body;
+    fields = Object.fromEntries(url.searchParams.entries());
+  } else {
+    throw new HttpProblem(415, 'Unsupported media type', 'Send the spectrum as multipart/form-data (field "file") or as a text/csv body.');
+  }
+  if (bytes.byteLength > MAX_SPECTRUM_BYTES) throw tooLarge();
+  if (bytes.byteLength === 0) throw new HttpProblem(400, 'Empty file', 'The spectrum file is empty.', { errors: [{ path: 'file', message: 'The file is empty.' }] });
+  if (!looksLikeText(bytes)) {
+    throw new HttpProblem(415, 'Not a text file', 'The upload is binary; send the spectrum as a CSV text file (wavelength nm, reflectance).', {
+      errors: [{ path: 'file', message: 'Binary content: export the spectrum as CSV text.' }],
+    });
+  }
+  const options = validate(SpectrumOptionsSchema, fields);
+  const parsed = parseSpectrumCsv(new TextDecoder('utf-8').decode(bytes));
+  if (!parsed.ok) {
+    throw new HttpProblem(400, 'Malformed spectrum', parsed.errors.map((e) => `line ${e.line}: ${e.message}`).join('; '), {
+      errors: parsed.errors.map((e) => ({ path: `file:line ${e.line}`, message: e.message })),
+    });
+  }
+  let analysis;
+  try {
+    analysis = findExtrema(parsed.points, {
+      refractiveIndex: options.refractiveIndex,
+      ...(options.smoothingWindow !== undefined ? { smoothingWindow: options.smoothingWindow } : {}),
+      ...(options.minContrast !== undefined ? { minContrast: options.minContrast } : {}),
+    });
+  } catch (e) {
+    if (e instanceof RangeError) throw new HttpProblem(400, 'Malformed spectrum', e.message, { errors: [{ path: 'file', message: e.message }] });
+    throw e;
+  }
+  if (!analysis.measurable) {
+    throw new HttpProblem(400, 'No measurable fringes', analysis.reason, {
+      errors: [{ path: 'file', message: analysis.reason }],
+      contrast: analysis.contrast,
+      points: parsed.points.length,
+    });
+  }
+  return Response.json({ ...analysis, points: parsed.points.length });
+};
