@@ -1,5 +1,5 @@
 import { defineMiddleware, sequence } from 'astro:middleware';
-import { lucia, userFromBearer } from './lib/server/auth.ts';
+import { lucia, secureCookies, userFromBearer } from './lib/server/auth.ts';
 import { HttpProblem, problemResponse } from './lib/server/http.ts';
 
 const STATE_CHANGING = new Set(['POST', 'PUT', 'PATCH', 'DELETE']);
@@ -39,7 +39,7 @@ const auth = defineMiddleware(async (ctx, next) => {
   const sessionId = ctx.cookies.get(lucia.sessionCookieName)?.value ?? null;
   if (sessionId) {
     const { session, user } = await lucia.validateSession(sessionId);
-    const secure = ctx.url.protocol === 'https:';
+    const secure = secureCookies(ctx.url);
     if (session?.fresh) {
       const c = lucia.createSessionCookie(session.id);
       ctx.cookies.set(c.name, c.value, { ...c.attributes, secure });

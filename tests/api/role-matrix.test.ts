@@ -79,9 +79,37 @@ const ROUTES: Record<string, Action | 'public'> = {
   'DELETE /api/v1/alarm-configs/[channelId]': 'alarm.configure',
   'GET /api/v1/alarm-configs/escalation': 'alarm.configure',
   'PUT /api/v1/alarm-configs/escalation': 'alarm.configure',
+  // accounts, admin, audit (issue 3)
+  'POST /api/auth/forgot-password': 'public',
+  'POST /api/auth/reset-password': 'public',
+  'GET /api/v1/admin/users': 'admin.users',
+  'POST /api/v1/admin/users': 'admin.users',
+  'PATCH /api/v1/admin/users/[id]': 'admin.users',
+  'POST /api/v1/admin/users/[id]/password-reset': 'admin.users',
+  'GET /api/v1/admin/tokens': 'admin.tokens',
+  'POST /api/v1/admin/tokens': 'admin.tokens',
+  'POST /api/v1/admin/tokens/[id]/revoke': 'admin.tokens',
+  'GET /api/v1/admin/security/locks': 'admin.security',
+  'POST /api/v1/admin/security/unlock': 'admin.security',
+  'GET /api/v1/admin/mail': 'admin.mail',
+  'GET /api/v1/audit': 'audit.view',
+  // plant set-up (issue 4 part 1)
+  'GET /api/v1/assets': 'view',
+  'GET /api/v1/channels': 'view',
+  'POST /api/v1/channels': 'plant.configure',
+  'GET /api/v1/devices': 'plant.view',
+  'POST /api/v1/devices': 'admin.devices',
+  'PATCH /api/v1/devices/[id]': 'admin.devices',
+  'POST /api/v1/devices/[id]/rotate-password': 'admin.devices',
+  'POST /api/v1/ingest/unknown-channels/[id]/approve': 'plant.configure',
 };
 
-/** A plausible value for each dynamic segment (the route must still answer 401/403 before looking it up). */
+/**
+ * A plausible value for each dynamic segment. Numeric ids are well-formed but absent
+ * (ABSENT_ID), so an allowed role gets a 404 instead of acting on a real record: the matrix
+ * must not revoke a token, rotate a device password or acknowledge an alarm of the demo plant.
+ */
+const ABSENT_ID = '2147483000';
 const SAMPLE_PARAMS: Record<string, string> = {
   jobNumber: 'X-1',
   number: 'X-1',
@@ -111,7 +139,7 @@ function findRoutes(): FoundRoute[] {
   for (const file of walk(apiDir).sort()) {
     const rel = path.relative(path.join(root, 'src/pages'), file).replace(/\\/g, '/');
     const pattern = '/' + rel.replace(/\.(ts|js|mjs)$/, '').replace(/\/index$/, '');
-    const url = pattern.replace(/\[(\.\.\.)?([^\]]+)\]/g, (_, _rest, name: string) => SAMPLE_PARAMS[name] ?? '1');
+    const url = pattern.replace(/\[(\.\.\.)?([^\]]+)\]/g, (_, _rest, name: string) => SAMPLE_PARAMS[name] ?? ABSENT_ID);
     const src = fs.readFileSync(file, 'utf8');
     const verbs = new Set([...src.matchAll(/export\s+const\s+(GET|POST|PUT|PATCH|DELETE)\b/g)].map((m) => m[1]!));
     for (const method of verbs) out.push({ method, pattern, url });

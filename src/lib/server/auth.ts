@@ -5,10 +5,11 @@
  */
 import { createHash, randomBytes } from 'node:crypto';
 import { Lucia, TimeSpan, type Adapter, type DatabaseSession, type DatabaseUser } from 'lucia';
-import { Op } from 'sequelize';
+import { Op, QueryTypes } from 'sequelize';
 import { ApiToken, LoginThrottle, User, UserSession, type SignatureRecord } from '../../../db/models/index.ts';
 import type { Role } from '../shared/roles.ts';
 import { audit } from './audit.ts';
+import { config } from './config.ts';
 import { db } from './db.ts';
 import { HttpProblem } from './http.ts';
 import { dummyHash, verifyPassword } from './passwords.ts';
@@ -79,6 +80,15 @@ declare module 'lucia' {
   }
 }
 
+/**
+ * Whether cookies get the Secure attribute: when the request came over HTTPS, or when the
+ * public origin is HTTPS (TLS ended at a reverse proxy). Plain http on loopback gets none,
+ * or the browser would drop the cookie.
+ */
+export function secureCookies(url: URL): boolean {
+  return url.protocol === 'https:' || (config.publicOrigin ?? '').startsWith('https:');
+}
+
 export const sha256 = (s: string) => createHash('sha256').update(s).digest('hex');
 
 /** Resolve `Authorization: Bearer <token>`; null when absent, a 401 problem when wrong. */
@@ -117,6 +127,7 @@ export function newTokenSecret(): { secret: string; hash: string; prefix: string
 /** Policy (common practice, cf. OWASP Authentication Cheat Sheet): slow after 3, lock after 8. */
 export const THROTTLE = {
   slowAfter: 3,
+  slowAfterAddress: 10,
   slowStepMs: 500,
   slowMaxMs: 3_000,
   lockAfterUser: 8,
@@ -132,15 +143,59 @@ async function throttleState(key: string) {
   return { failures: stale ? 0 : row.failures, lockedUntil: row.lockedUntil };
 }
 
+/**
+ * Count one failure for `key` in a single statement (concurrent failures cannot be lost) and
+ * lock it when the count reaches `lockAfter`. Each new lock (also a re-lock after one ran out)
+ * is audited as `auth.locked`.
+ */
 async function recordFailure(key: string, lockAfter: number, address: string | null): Promise<void> {
-  const st = await throttleState(key);
-  const failures = st.failures + 1;
-  const lock = failures >= lockAfter ? new Date(Date.now() + THROTTLE.lockMinutes * 60_000) : null;
-  await LoginThrottle.upsert({ key, failures, lastFailureAt: new Date(), lockedUntil: lock ?? st.lockedUntil });
-  if (lock && failures === lockAfter) {
-    await audit({ id: null, label: 'system', address }, { action: 'auth.locked', entity: 'login', entityId: key, after: { lockedUntil: lock.toISOString(), failures } });
+  const rows = await db().query<{ failures: number; locked_until: Date | null; new_lock: boolean }>(
+    `with prev as (select locked_until from login_throttles where key = :key),
+     up as (
+       insert into login_throttles as t (key, failures, last_failure_at, locked_until)
+            values (:key, 1, now(), case when 1 >= :lockAfter then now() + make_interval(mins => :lockMinutes) end)
+       on conflict (key) do update set
+            failures = case when t.last_failure_at < now() - make_interval(mins => :resetAfter) then 1 else t.failures + 1 end,
+            last_failure_at = now(),
+            locked_until = case
+              when (case when t.last_failure_at < now() - make_interval(mins => :resetAfter) then 1 else t.failures + 1 end) >= :lockAfter
+               and (t.locked_until is null or t.locked_until <= now())
+              then now() + make_interval(mins => :lockMinutes)
+              else t.locked_until end
+       returning failures, locked_until)
+     select up.failures, up.locked_until,
+            (up.locked_until is not null and up.locked_until > now()
+             and up.locked_until is distinct from (select locked_until from prev)) as new_lock
+       from up`,
+    {
+      replacements: { key, lockAfter, lockMinutes: THROTTLE.lockMinutes, resetAfter: THROTTLE.resetAfterMinutes },
+      type: QueryTypes.SELECT,
+    },
+  );
+  const r = rows[0];
+  if (r?.new_lock && r.locked_until) {
+    await audit(
+      { id: null, label: 'system', address },
+      { action: 'auth.locked', entity: 'login', entityId: key, after: { lockedUntil: new Date(r.locked_until).toISOString(), failures: r.failures } },
+    );
   }
 }
+
+/** The active lock on any of `keys`, as a 429 problem. */
+async function refuseIfLocked(keys: readonly string[]): Promise<Array<{ failures: number; lockedUntil: Date | null }>> {
+  const states = await Promise.all(keys.map(throttleState));
+  const now = Date.now();
+  for (const st of states) {
+    if (st.lockedUntil && st.lockedUntil.getTime() > now) {
+      const minutes = Math.ceil((st.lockedUntil.getTime() - now) / 60_000);
+      throw new HttpProblem(429, 'Too many failed sign-ins', `Sign-in is locked for about ${minutes} more minute(s). An administrator can see the lock and lift it.`);
+    }
+  }
+  return states;
+}
+
+/** Throttle keys of a sign-in attempt. */
+export const throttleKeys = (username: string, address: string | null) => [`user:${username.trim().toLowerCase()}`, `ip:${address ?? 'unknown'}`] as const;
 
 const LOGIN_FAILED = 'The username or password is not right, or the account is not active.';
 
@@ -151,16 +206,11 @@ const LOGIN_FAILED = 'The username or password is not right, or the account is n
 export async function checkCredentials(username: string, password: string, address: string | null): Promise<User> {
   db();
   const uname = username.trim().toLowerCase();
-  const keys = [`user:${uname}`, `ip:${address ?? 'unknown'}`] as const;
-  const [us, as] = await Promise.all(keys.map(throttleState));
-  const now = Date.now();
-  for (const st of [us!, as!]) {
-    if (st.lockedUntil && st.lockedUntil.getTime() > now) {
-      const minutes = Math.ceil((st.lockedUntil.getTime() - now) / 60_000);
-      throw new HttpProblem(429, 'Too many failed sign-ins', `Sign-in is locked for about ${minutes} more minute(s). An administrator can see the lock.`);
-    }
-  }
-  const delay = Math.min(THROTTLE.slowMaxMs, Math.max(0, us!.failures - THROTTLE.slowAfter + 1) * THROTTLE.slowStepMs);
+  const keys = throttleKeys(uname, address);
+  const [us, as] = await refuseIfLocked(keys);
+  // Slow down after a few failures, for the user and for the address; also when the password is right.
+  const over = Math.max(us!.failures - THROTTLE.slowAfter + 1, as!.failures - THROTTLE.slowAfterAddress + 1, 0);
+  const delay = Math.min(THROTTLE.slowMaxMs, over * THROTTLE.slowStepMs);
   if (delay > 0) await new Promise((r) => setTimeout(r, delay));
   const user = await User.findOne({ where: { username: uname } });
   const ok = user ? await verifyPassword(user.passwordHash, password) : (await verifyPassword(await dummyHash(), password), false);
@@ -180,11 +230,22 @@ export async function checkCredentials(username: string, password: string, addre
  */
 export async function signWithPassword(actor: SessionUser, password: string, meaning: string, address: string | null): Promise<SignatureRecord> {
   if (actor.via !== 'session') throw new HttpProblem(403, 'Signature needs a person', 'An API token cannot sign records.');
+  const what = meaning.trim();
+  if (!what) {
+    throw new HttpProblem(400, 'Invalid input', 'meaning: State the meaning of the signature.', { errors: [{ path: 'meaning', message: 'State the meaning of the signature.' }] });
+  }
   db();
   const user = await User.findByPk(actor.id);
-  if (!user || !(await verifyPassword(user.passwordHash, password))) {
-    await audit({ id: actor.id, label: actor.username, address }, { action: 'signature.failed', entity: 'signature', after: { meaning } });
+  // A signature attempt counts towards the same lock as sign-in: a walk-up guesser at an
+  // unattended session is slowed and locked out the same way.
+  const key = throttleKeys(user?.username ?? actor.username, address)[0];
+  await refuseIfLocked([key]);
+  if (!user || !user.active || !(await verifyPassword(user.passwordHash, password))) {
+    await recordFailure(key, THROTTLE.lockAfterUser, address);
+    await audit({ id: actor.id, label: actor.username, address }, { action: 'signature.failed', entity: 'signature', after: { meaning: what } });
     throw new HttpProblem(403, 'Signature refused', 'The password does not match the signed-in user.', { errors: [{ path: 'password', message: 'The password does not match.' }] });
   }
-  return { userId: user.id, username: user.username, displayName: user.displayName, meaning, signedAt: new Date().toISOString() };
+  await LoginThrottle.destroy({ where: { key } });
+  // 21 CFR 11.50(a): printed name of the signer, date and time of signing, meaning.
+  return { userId: user.id, username: user.username, displayName: user.displayName, meaning: what, signedAt: new Date().toISOString() };
 }

@@ -38,6 +38,7 @@ export const PERMISSIONS = {
   'limits.approve': ['engineer'],
   'characteristic.edit': ['engineer'],
   'plant.configure': ['engineer'],
+  'plant.view': ['engineer', 'admin'],
   'ingest.review': ['engineer'],
   'alarm.health': ['engineer', 'viewer', 'admin'],
   'quality.record': ['quality'],
