@@ -136,6 +136,18 @@ const KIND_WORDS: Readonly<Record<string, string>> = {
   solids: 'Solids',
 };
 
+/**
+ * The channel's name, prefixed by its asset's when the name alone does not say where it is
+ * (fewer than two words in common: "Spin speed" → "UV spin coater 1: Spin speed", while
+ * "Line 2 bath viscosity" under "Line 2 hard-coat bath" stays as it is).
+ */
+export function sourceLabelOf(ch: { name: string; assetName: string }): string {
+  const words = (t: string) => new Set(t.toLowerCase().split(/[^a-z0-9]+/).filter(Boolean));
+  const asset = words(ch.assetName);
+  const shared = [...words(ch.name)].filter((w) => asset.has(w)).length;
+  return shared >= 2 ? ch.name : `${ch.assetName}: ${ch.name}`;
+}
+
 export function fmt(v: number): string {
   const a = Math.abs(v);
   if (a >= 100) return v.toFixed(0);
@@ -344,7 +356,7 @@ export function createAlarmsHandler(): PostCommitHandler {
         await raise(ctx, {
           sourceKind: 'limit',
           sourceKey: `channel:${ch.id}:${side}`,
-          sourceLabel: ch.name,
+          sourceLabel: sourceLabelOf(ch),
           assetId: ch.assetId,
           channelId: ch.id,
           priority: lim.priority,
@@ -416,7 +428,7 @@ export function createAlarmsHandler(): PostCommitHandler {
       await raise(ctx, {
         sourceKind: 'stale',
         sourceKey: `stale:channel:${id}`,
-        sourceLabel: ch.name,
+        sourceLabel: sourceLabelOf(ch),
         assetId: ch.assetId,
         channelId: ch.id,
         priority: cfg.stalePriority,
