@@ -8,6 +8,7 @@ import { migration as m0910 } from './20261202-0910-readings.ts';
 import { migration as m0920 } from './20261202-0920-auth.ts';
 import { migration as m1000 } from './20261202-1000-ingest-pipeline.ts';
 import { migration as m1020 } from './20261202-1020-alarms.ts';
+import { migration as m1030 } from './20261202-1030-spc.ts';
 import { migration as m1040 } from './20261202-1040-windows-baths.ts';
 
-export const migrations: Migration[] = [m0900, m0910, m0920, m1000, m1020, m1040];
+export const migrations: Migration[] = [m0900, m0910, m0920, m1000, m1020, m1030, m1040];

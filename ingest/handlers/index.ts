@@ -8,6 +8,7 @@ import type pg from 'pg';
 import { retentionHandler } from './retention.ts';
 import { alarmsHandler } from './alarms.ts';
 import { ovenLoadsHandler } from './oven-loads.ts';
+import { spcHandler } from './spc.ts';
 
 export interface StoredReading {
   channelId: number;
@@ -37,4 +38,5 @@ export const postCommitHandlers: PostCommitHandler[] = [
   retentionHandler,
   alarmsHandler,
   ovenLoadsHandler,
+  spcHandler,
 ];

@@ -1,0 +1,17 @@
+import type { APIRoute } from 'astro';
+import { requireRole } from '../../../../../lib/server/guard.ts';
+import { idParam, readJson } from '../../../../../lib/server/http.ts';
+import { trialStudy } from '../../../../../lib/server/services/spc.ts';
+import { StudyInputSchema } from '../../../../../lib/shared/characteristics.ts';
+
+/**
+ * A trial control-limit study on a baseline period (engineer): trial limits from the included
+ * points, every baseline point judged against them, and the Phase I exclusions the library
+ * suggests (never applied by themselves). Nothing is stored.
+ */
+export const POST: APIRoute = async ({ locals, params, request }) => {
+  requireRole(locals, 'limits.study');
+  const id = idParam(params['id'], 'characteristic');
+  const input = await readJson(request, StudyInputSchema);
+  return Response.json(await trialStudy(id, input));
+};

@@ -1,0 +1,17 @@
+import type { APIRoute } from 'astro';
+import { evaluateSpc } from '../../../../lib/domain/spc/evaluate.ts';
+import { requireRole } from '../../../../lib/server/guard.ts';
+import { readJson } from '../../../../lib/server/http.ts';
+import { SpcEvaluateInputSchema } from '../../../../lib/shared/spc.ts';
+
+/**
+ * Stateless SPC on posted data (product.md §6): any signed-in role or API token. The body is
+ * validated by the shared schema (every bad input is a 400 problem with the offending field's
+ * path: too few points, unequal subgroup sizes, negative counts, a non-number such as "NaN" or
+ * null in a data array, a spec without limits …); the maths is the domain library's.
+ */
+export const POST: APIRoute = async ({ request, locals }) => {
+  requireRole(locals, 'spc.evaluate');
+  const input = await readJson(request, SpcEvaluateInputSchema);
+  return Response.json(evaluateSpc(input), { headers: { 'cache-control': 'no-store' } });
+};
