@@ -1,0 +1,15 @@
+import type { APIRoute } from 'astro';
+import { requireRole } from '../../../../../lib/server/guard.ts';
+import { readJson } from '../../../../../lib/server/http.ts';
+import { commitJobCsv } from '../../../../../lib/server/services/dips.ts';
+import { JobImportCommitSchema } from '../../../../../lib/shared/jobs.ts';
+
+/**
+ * Job CSV import, step 2 of 2 (operator, engineer): `{csv, sha256, dipRunId?}` stores the good
+ * rows of the previewed file (409 when the file differs from its preview); bad rows are skipped.
+ */
+export const POST: APIRoute = async ({ locals, request, clientAddress }) => {
+  const user = requireRole(locals, 'dip.record');
+  const input = await readJson(request, JobImportCommitSchema);
+  return Response.json(await commitJobCsv(user, input, clientAddress), { status: 201 });
+};

@@ -1,0 +1,15 @@
+import type { APIRoute } from 'astro';
+import { requireRole } from '../../../../../lib/server/guard.ts';
+import { readJson } from '../../../../../lib/server/http.ts';
+import { previewJobCsv } from '../../../../../lib/server/services/dips.ts';
+import { JobImportPreviewSchema } from '../../../../../lib/shared/jobs.ts';
+
+/**
+ * Job CSV import, step 1 of 2 (operator, engineer): `{csv}` → good rows, bad rows with line
+ * numbers and reasons, and the file's sha256. Nothing is stored.
+ */
+export const POST: APIRoute = async ({ locals, request }) => {
+  requireRole(locals, 'dip.record');
+  const { csv } = await readJson(request, JobImportPreviewSchema);
+  return Response.json(await previewJobCsv(csv));
+};

@@ -1,0 +1,12 @@
+import type { APIRoute } from 'astro';
+import { requireRole } from '../../../../../../lib/server/guard.ts';
+import { HttpProblem, idParam } from '../../../../../../lib/server/http.ts';
+import { getTest } from '../../../../../../lib/server/services/quality.ts';
+
+/** One test with its inputs, computed classes, reasons, the acceptance it was judged by, and its files. */
+export const GET: APIRoute = async ({ locals, params }) => {
+  requireRole(locals, 'view');
+  const test = await getTest(idParam(params['id'], 'quality test'));
+  if (!test) throw new HttpProblem(404, 'Not found', 'No such quality test.');
+  return Response.json(test);
+};
