@@ -50,7 +50,16 @@ import {
 } from '../../src/lib/domain/alarms/limit-detector.ts';
 import { dueEscalations } from '../../src/lib/domain/alarms/escalation.ts';
 import type { AlarmPriority } from '../../src/lib/shared/alarms.ts';
-import type { AlarmView, EscalationSettings } from '../../src/lib/shared/alarm-views.ts';
+import {
+  DEVICE_OFFLINE_MS,
+  LAG_CLEAR_MS,
+  LAG_RAISE_MS,
+  OVEN_RUNNING_SETPOINT_C,
+  RECENT_DATA_MS,
+  WINDOW_FALLBACK,
+  type AlarmView,
+  type EscalationSettings,
+} from '../../src/lib/shared/alarm-views.ts';
 import type { ProcessWindowInForce, Range } from '../../src/lib/shared/windows.ts';
 import {
   alarmsAwaitingAck,
@@ -70,18 +79,6 @@ import {
 } from '../../src/lib/server/stores/alarm-config-store.ts';
 import { windowInForce } from '../../src/lib/server/stores/window-store.ts';
 import type { PostCommitHandler, StoredReading, WorkerContext } from './index.ts';
-
-/** An oven runs while its setpoint is at or above this (°C). */
-export const OVEN_RUNNING_SETPOINT_C = 50;
-/** A non-oven channel counts as running when it had data this recently. */
-export const RECENT_DATA_MS = 3_600_000;
-/** A device offline for longer than this raises an alarm. */
-export const DEVICE_OFFLINE_MS = 60_000;
-/** Ingest lag that raises a system alarm, and the lag below which it clears. */
-export const LAG_RAISE_MS = 10_000;
-export const LAG_CLEAR_MS = 5_000;
-/** Window fallback settings (our own choice; documented on the settings screen). */
-export const WINDOW_FALLBACK = { deadbandFraction: 0.02, onDelayMs: 10_000, offDelayMs: 0, priority: 'medium' as AlarmPriority };
 
 const CHECK_EVERY_MS = 5_000;
 const CHANNELS_EVERY_MS = 60_000;

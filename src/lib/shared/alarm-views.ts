@@ -211,3 +211,24 @@ export const DEFAULT_ON_SHIFT_ENGINEER_EMAIL = 'engineer@fernhollow.example';
 export const DEFAULT_ESCALATION: Readonly<Partial<Record<AlarmPriority, readonly EscalationStep[]>>> = {
   high: [{ afterMinutes: 10, notify: 'on-shift-engineer' }],
 };
+
+// ---------------------------------------------------------------------------------------------
+// Rules of the worker's alarm sources (shown on the settings screen; our own choices)
+// ---------------------------------------------------------------------------------------------
+
+/** An oven (and its zones) runs while its setpoint is at or above this, °C. */
+export const OVEN_RUNNING_SETPOINT_C = 50;
+/** A channel that is not an oven's counts as running when it had data this recently, ms. */
+export const RECENT_DATA_MS = 3_600_000;
+/** A device offline for longer than this raises an alarm, ms. */
+export const DEVICE_OFFLINE_MS = 60_000;
+/** Ingest lag that raises a system alarm, and the lag below which it clears, ms. */
+export const LAG_RAISE_MS = 10_000;
+export const LAG_CLEAR_MS = 5_000;
+/** Limits for a channel without its own: the process window in force, with these settings. */
+export const WINDOW_FALLBACK: Readonly<{ deadbandFraction: number; onDelayMs: number; offDelayMs: number; priority: AlarmPriority }> = {
+  deadbandFraction: 0.02,
+  onDelayMs: 10_000,
+  offDelayMs: 0,
+  priority: 'medium',
+};
