@@ -1,5 +1,6 @@
 import { defineMiddleware, sequence } from 'astro:middleware';
 import { lucia, secureCookies, userFromBearer } from './lib/server/auth.ts';
+import { config } from './lib/server/config.ts';
 import { HttpProblem, problemResponse } from './lib/server/http.ts';
 
 const STATE_CHANGING = new Set(['POST', 'PUT', 'PATCH', 'DELETE']);
@@ -10,6 +11,18 @@ function clientAddress(ctx: { clientAddress?: string; request: Request }): strin
   } catch {
     return null;
   }
+}
+
+/**
+ * The origins our own pages are served from: the request URL's, the Host header's (what the
+ * browser addressed) and PUBLIC_ORIGIN (behind a reverse proxy).
+ */
+function ownOrigins(ctx: { url: URL; request: Request }): Set<string> {
+  const own = new Set([ctx.url.origin]);
+  const host = ctx.request.headers.get('host');
+  if (host) own.add(`${ctx.url.protocol}//${host}`);
+  if (config.publicOrigin) own.add(config.publicOrigin.replace(/\/+$/, ''));
+  return own;
 }
 
 /** Errors → RFC 9457 problem+json for the API; an unexpected error is logged once and leaks nothing. */
@@ -56,7 +69,7 @@ const auth = defineMiddleware(async (ctx, next) => {
     if (STATE_CHANGING.has(ctx.request.method)) {
       const origin = ctx.request.headers.get('origin');
       const site = ctx.request.headers.get('sec-fetch-site');
-      if ((origin && origin !== ctx.url.origin) || site === 'cross-site') {
+      if ((origin && !ownOrigins(ctx).has(origin)) || site === 'cross-site') {
         throw new HttpProblem(403, 'Cross-site request refused', 'State-changing requests must come from Coatrail’s own pages.');
       }
     }

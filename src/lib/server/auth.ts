@@ -127,11 +127,12 @@ export function newTokenSecret(): { secret: string; hash: string; prefix: string
 /** Policy (common practice, cf. OWASP Authentication Cheat Sheet): slow after 3, lock after 8. */
 export const THROTTLE = {
   slowAfter: 3,
-  slowAfterAddress: 10,
+  slowAfterAddress: 20,
   slowStepMs: 500,
   slowMaxMs: 3_000,
   lockAfterUser: 8,
-  lockAfterAddress: 30,
+  /** High: a lab's staff often share one address (a proxy or NAT); this stops only a flood. */
+  lockAfterAddress: 100,
   lockMinutes: 15,
   resetAfterMinutes: 60,
 };
@@ -194,6 +195,13 @@ async function refuseIfLocked(keys: readonly string[]): Promise<Array<{ failures
   return states;
 }
 
+const sleep = (ms: number) => (ms > 0 ? new Promise((r) => setTimeout(r, ms)) : Promise.resolve());
+
+/** Delay before answering after `failures` earlier failures: one step per failure beyond `after - 1`, capped. */
+export function throttleDelay(failures: number, after: number): number {
+  return Math.min(THROTTLE.slowMaxMs, Math.max(0, failures - after + 1) * THROTTLE.slowStepMs);
+}
+
 /** Throttle keys of a sign-in attempt. */
 export const throttleKeys = (username: string, address: string | null) => [`user:${username.trim().toLowerCase()}`, `ip:${address ?? 'unknown'}`] as const;
 
@@ -208,16 +216,17 @@ export async function checkCredentials(username: string, password: string, addre
   const uname = username.trim().toLowerCase();
   const keys = throttleKeys(uname, address);
   const [us, as] = await refuseIfLocked(keys);
-  // Slow down after a few failures, for the user and for the address; also when the password is right.
-  const over = Math.max(us!.failures - THROTTLE.slowAfter + 1, as!.failures - THROTTLE.slowAfterAddress + 1, 0);
-  const delay = Math.min(THROTTLE.slowMaxMs, over * THROTTLE.slowStepMs);
-  if (delay > 0) await new Promise((r) => setTimeout(r, delay));
+  // Slow down after a few failures of this user, whether or not the password is right now.
+  await sleep(throttleDelay(us!.failures, THROTTLE.slowAfter));
   const user = await User.findOne({ where: { username: uname } });
   const ok = user ? await verifyPassword(user.passwordHash, password) : (await verifyPassword(await dummyHash(), password), false);
   if (!user || !ok || !user.active) {
     await recordFailure(keys[0], THROTTLE.lockAfterUser, address);
     await recordFailure(keys[1], THROTTLE.lockAfterAddress, address);
     await audit({ id: user?.id ?? null, label: uname || '(blank)', address }, { action: 'auth.failed', entity: 'login', entityId: uname });
+    // An address that keeps failing gets slower failure answers (people behind the same
+    // address who sign in correctly are not slowed).
+    await sleep(throttleDelay(as!.failures, THROTTLE.slowAfterAddress));
     throw new HttpProblem(401, 'Sign-in failed', LOGIN_FAILED);
   }
   await LoginThrottle.destroy({ where: { key: keys[0] } });

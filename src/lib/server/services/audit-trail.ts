@@ -3,6 +3,7 @@
  * site's time zone), paging, and CSV export. The trail itself is append-only in the database.
  */
 import type { AuditPage, AuditQuery, AuditRowView } from '../../shared/admin.ts';
+import { toCsv } from '../../shared/csv-table.ts';
 import { config } from '../config.ts';
 import { pgPool } from '../db.ts';
 
@@ -85,13 +86,6 @@ export async function auditVocabulary(): Promise<{ entities: string[]; actions: 
   return { entities: e.rows.map((r) => r.v), actions: a.rows.map((r) => r.v) };
 }
 
-/** RFC 4180 field; a leading = + - @ gets a quote mark so spreadsheets do not run it as a formula. */
-function csvField(v: unknown): string {
-  let s = v == null ? '' : typeof v === 'string' ? v : JSON.stringify(v);
-  if (/^[=+\-@\t\r]/.test(s)) s = `'${s}`;
-  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-}
-
 export const AUDIT_CSV_LIMIT = 100_000;
 
 /** The whole filtered trail (newest first, at most AUDIT_CSV_LIMIT rows) as CSV. */
@@ -103,14 +97,12 @@ export async function auditCsv(q: AuditQuery): Promise<string> {
     w.params,
   );
   const head = ['id', 'at_utc', 'actor', 'actor_id', 'action', 'entity', 'entity_id', 'before', 'after', 'address', 'signed_by', 'signature_meaning', 'signed_at_utc'];
-  const lines = [head.join(',')];
-  for (const r of rows) {
-    const s = r.signature;
-    lines.push(
-      [r.id, new Date(r.at).toISOString(), r.actor_label, r.actor_id, r.action, r.entity, r.entity_id, r.before, r.after, r.address, s ? `${s.displayName} (${s.username})` : '', s?.meaning ?? '', s?.signedAt ?? '']
-        .map(csvField)
-        .join(','),
-    );
-  }
-  return lines.join('\r\n') + '\r\n';
+  const json = (v: unknown) => (v == null ? '' : JSON.stringify(v));
+  return toCsv(
+    head,
+    rows.map((r) => {
+      const s = r.signature;
+      return [r.id, new Date(r.at).toISOString(), r.actor_label, r.actor_id, r.action, r.entity, r.entity_id, json(r.before), json(r.after), r.address, s ? `${s.displayName} (${s.username})` : '', s?.meaning ?? '', s?.signedAt ?? ''];
+    }),
+  );
 }
