@@ -18,6 +18,8 @@ export const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '
 export const TEST_PASSWORD = 'test-password-1';
 export const TEST_DEVICE_SECRET = 'test-device-secret';
 export const TEST_SERVICE_PASSWORD = 'test-service-password';
+/** Days of seeded readings history in the test database (the story load is 9 days back). */
+export const TEST_HISTORY_DAYS = 12;
 
 export interface TestStackInfo {
   databaseUrl: string;
@@ -56,7 +58,9 @@ export async function startTestStack(): Promise<TestStack> {
   }
   const sequelize = createSequelize({ url: pgh.url, max: 2 });
   await migrateUp(sequelize);
-  await seedAll(sequelize, { demoPassword: TEST_PASSWORD, deviceSecret: TEST_DEVICE_SECRET });
+  const seedStart = performance.now();
+  await seedAll(sequelize, { demoPassword: TEST_PASSWORD, deviceSecret: TEST_DEVICE_SECRET, history: { days: TEST_HISTORY_DAYS } });
+  console.log(`[test] seeded the demo plant and ${TEST_HISTORY_DAYS} days of history in ${((performance.now() - seedStart) / 1000).toFixed(1)} s`);
   await sequelize.close();
   const pool = createPool({ url: pgh.url, max: 2 });
   const smtp: FakeSmtp = await startFakeSmtp(pool, 0);
