@@ -59,6 +59,8 @@ const ROUTES: Record<string, Action | 'public'> = {
   'POST /api/v1/calc/abrasion': 'calc.use',
   // telemetry pipeline (issue 4 part 2)
   'GET /api/v1/channels/[id]/readings': 'view',
+  'GET /api/v1/channels/[id]/annotations': 'view',
+  'GET /api/v1/floor': 'view',
   'GET /api/v1/ingest/rejections': 'ingest.review',
   'GET /api/v1/ingest/unknown-channels': 'ingest.review',
   // SPC: evaluation, characteristics, control-limit studies (issue 5)

@@ -1,6 +1,6 @@
 // Pure helpers of the Floor island (src/lib/shared/floor.ts); expectations hand-computed.
 import { describe, expect, it } from 'vitest';
-import { appendSpark, applyLatest, shortChannelName, sparkPaths } from '../../src/lib/shared/floor.ts';
+import { appendSpark, applyLatest, formatValue, shortChannelName, sparkPaths } from '../../src/lib/shared/floor.ts';
 
 describe('shortChannelName', () => {
   it.each([
@@ -70,5 +70,18 @@ describe('sparkPaths', () => {
         10,
       ),
     ).toEqual(['0.0,10.0 50.0,5.0', '100.0,0.0']);
+  });
+});
+
+describe('formatValue', () => {
+  it.each([
+    [9.5234, 'mm²/s', 'viscosity', 3, '9.52 mm²/s'], // window 8–11: span 3 → 2 decimals
+    [112.46, '°C', 'air-temperature', 20, '112.5 °C'], // span 20 → 1 decimal
+    [1512.4, 'rpm', 'spin-speed', 6000, '1512 rpm'], // span 6000 → 0 decimals
+    [2.0456, 'mm/s', 'withdrawal-speed', 0.5, '2.046 mm/s'], // span 0.5 → 3 decimals
+    [1, 'open=1', 'door', 1, 'Open'],
+    [0, 'open=1', 'door', 1, 'Closed'],
+  ])('%f %s (%s, span %f) → %s', (v, unit, kind, span, text) => {
+    expect(formatValue(v, unit, kind, span)).toBe(text);
   });
 });

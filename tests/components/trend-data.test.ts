@@ -16,6 +16,7 @@ import {
   placeOnBand,
   shapeReadings,
   stepsFromSamples,
+  thinLine,
   trendCsv,
   unitAxes,
   windowBands,
@@ -85,6 +86,12 @@ describe('placeOnBand: a value against its window (window in the middle half of 
     const air = { min: 110, max: 130, lowApplies: 'soak' as const, label: 'air' };
     expect(placeOnBand(25, air, ch).state).toBe('normal');
     expect(placeOnBand(25, air, ch, { inSoak: true }).state).toBe('low');
+  });
+  it("an idle controller's low setpoint is not low unless a load is in the oven", () => {
+    const sp = { min: 105, max: 115, lowApplies: 'load' as const, label: 'sp' };
+    expect(placeOnBand(25, sp, ch).state).toBe('normal');
+    expect(placeOnBand(25, sp, ch, { inLoad: true }).state).toBe('low');
+    expect(placeOnBand(120, sp, ch).state).toBe('high');
   });
   it('without a window the bar is the channel range and there is no judgement', () => {
     expect(placeOnBand(125, null, { min: 0, max: 500 })).toMatchObject({ state: 'no-window', at: 0.25, windowFrom: null });
@@ -346,5 +353,31 @@ describe('AnnotationsQuerySchema', () => {
     expect(bad.success).toBe(false);
     expect(bad.error?.issues[0]?.path).toEqual(['from']);
     expect(AnnotationsQuerySchema.safeParse({ from: 'yesterday' }).success).toBe(false);
+  });
+});
+
+describe('thinLine: LTTB per unbroken stretch, gaps kept', () => {
+  it('leaves a line within the target alone', () => {
+    const line = [
+      { x: 0, y: 1 },
+      { x: 1, y: 2 },
+    ];
+    expect(thinLine(line, 10)).toBe(line);
+  });
+  it('thins two runs of 10 to 3 points each (share ⌊6·10/20⌋ = 3) and keeps the break between them', () => {
+    // Run A: x 0…9, a single peak y = 5 at x 4; run B: x 20…29 flat at 1 except y = −5 at x 27.
+    const a = Array.from({ length: 10 }, (_, i) => ({ x: i, y: i === 4 ? 5 : 0 }));
+    const b = Array.from({ length: 10 }, (_, i) => ({ x: 20 + i, y: i === 7 ? -5 : 1 }));
+    const out = thinLine([...a, { x: 15, y: null }, ...b], 6);
+    // LTTB with threshold 3 keeps the first, the point of the largest triangle (the peak), and the last.
+    expect(out).toEqual([
+      { x: 0, y: 0 },
+      { x: 4, y: 5 },
+      { x: 9, y: 0 },
+      { x: 14.5, y: null },
+      { x: 20, y: 1 },
+      { x: 27, y: -5 },
+      { x: 29, y: 1 },
+    ]);
   });
 });

@@ -161,3 +161,19 @@ export function sparkPaths(points: readonly ChartPoint[], fromMs: number, toMs: 
   if (cur.length) paths.push(cur.join(' '));
   return paths;
 }
+
+/**
+ * Decimals to print a value with, from the span it is judged over (the window, else the
+ * channel range): span ≥ 100 → 0, ≥ 10 → 1, ≥ 1 → 2, else 3. Enough to see movement inside the
+ * window without printing sensor noise.
+ */
+export function valueDecimals(span: number): number {
+  const s = Math.abs(span);
+  return s >= 100 ? 0 : s >= 10 ? 1 : s >= 1 ? 2 : 3;
+}
+
+/** A value with its unit ("9.52 mm²/s"); the door channel reads "Open"/"Closed". */
+export function formatValue(value: number, unit: string, kind: string, span: number): string {
+  if (kind === 'door') return value >= 0.5 ? 'Open' : 'Closed';
+  return `${value.toFixed(valueDecimals(span))} ${unit}`;
+}

@@ -101,14 +101,14 @@ const MONTHS = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', '
 /**
  * A time-axis tick label sized to the visible span (the zone is printed once in the axis
  * title, not on every tick): up to 2 min "14:05:09"; up to 1.5 days "14:05"; up to 10 days
- * "Wed 02 14:00"; beyond "02 Dec"; beyond 400 days "Dec 2026".
+ * "Wed 02 14:00" (or "Wed 02" at midnight); beyond "02 Dec"; beyond 400 days "Dec 2026".
  */
 export function tickLabel(ms: number, timeZone: string, spanMs: number): string {
   const w = wallTime(ms, timeZone);
   const mon = MONTHS[w.month - 1] ?? '';
   if (spanMs <= 2 * 60_000) return `${pad(w.hour)}:${pad(w.minute)}:${pad(w.second)}`;
   if (spanMs <= 36 * 3_600_000) return `${pad(w.hour)}:${pad(w.minute)}`;
-  if (spanMs <= 10 * 86_400_000) return `${w.weekday} ${pad(w.day)} ${pad(w.hour)}:${pad(w.minute)}`;
+  if (spanMs <= 10 * 86_400_000) return w.hour === 0 && w.minute === 0 ? `${w.weekday} ${pad(w.day)}` : `${w.weekday} ${pad(w.day)} ${pad(w.hour)}:${pad(w.minute)}`;
   if (spanMs <= 400 * 86_400_000) return `${pad(w.day)} ${mon}`;
   return `${mon} ${w.year}`;
 }
@@ -177,4 +177,64 @@ export function fromLocalInput(text: string, timeZone: string): number {
     });
   // None matches inside a skipped hour: read it with the offset before the change (shifts forward).
   return matches.length ? Math.min(...matches) : asUtc - before * 60_000;
+}
+
+const SEC = 1000;
+const MIN = 60 * SEC;
+const HR = 60 * MIN;
+const DAY = 24 * HR;
+/** Tick steps below a day (ms), then whole days; months beyond. */
+const TICK_STEPS = [SEC, 2 * SEC, 5 * SEC, 10 * SEC, 15 * SEC, 30 * SEC, MIN, 2 * MIN, 5 * MIN, 10 * MIN, 15 * MIN, 30 * MIN, HR, 2 * HR, 3 * HR, 6 * HR, 12 * HR, DAY, 2 * DAY, 7 * DAY];
+const MONTH_STEPS = [1, 2, 3, 6, 12];
+
+/** Midnight (00:00 wall time) of the site-zone day that holds `ms`. */
+function localMidnight(ms: number, timeZone: string): number {
+  const w = wallTime(ms, timeZone);
+  return fromLocalInput(`${w.year}-${pad(w.month)}-${pad(w.day)}T00:00`, timeZone);
+}
+
+/**
+ * Round time-axis ticks in the site's zone for `[fromMs, toMs]`: the smallest step of
+ * 1 s … 30 s, 1 min … 30 min, 1 h, 2 h, 3 h, 6 h, 12 h, 1 d, 2 d, 7 d (weeks start on Monday),
+ * 1, 2, 3, 6 or 12 months that gives at most `maxTicks` ticks, aligned to the site's wall
+ * clock (so 3-hour ticks fall on 00:00, 03:00 … local time, days on local midnight).
+ */
+export function timeTicks(fromMs: number, toMs: number, timeZone: string, maxTicks = 10): number[] {
+  const span = toMs - fromMs;
+  if (!(span > 0) || !(maxTicks >= 1)) return [];
+  const step = TICK_STEPS.find((s) => span / s <= maxTicks);
+  const out: number[] = [];
+  if (step !== undefined && step < DAY) {
+    // Align to multiples of the step in wall-clock time (offset taken at the start of the range).
+    const off = zoneOffsetMinutes(fromMs, timeZone) * MIN;
+    for (let t = Math.ceil((fromMs + off) / step) * step - off; t <= toMs; t += step) out.push(t);
+    return out;
+  }
+  if (step !== undefined) {
+    const days = step / DAY;
+    let t = localMidnight(fromMs, timeZone);
+    if (t < fromMs) t = localMidnight(t + 36 * HR, timeZone);
+    for (let guard = 0; t <= toMs && guard < 800; guard++) {
+      const w = wallTime(t, timeZone);
+      const dayNumber = Math.floor(Date.UTC(w.year, w.month - 1, w.day) / DAY);
+      // Weeks start on Monday (1970-01-05 was a Monday: day 4 of the epoch).
+      const keep = days === 7 ? (dayNumber - 4) % 7 === 0 : dayNumber % days === 0;
+      if (keep) out.push(t);
+      t = localMidnight(t + 36 * HR, timeZone);
+    }
+    return out;
+  }
+  const months = MONTH_STEPS.find((m) => span / (m * 30.44 * DAY) <= maxTicks) ?? Math.ceil(span / (maxTicks * 365.25 * DAY)) * 12;
+  const w0 = wallTime(fromMs, timeZone);
+  for (let k = 0, y = w0.year, m = w0.month; k < 2400; k++) {
+    const t = fromLocalInput(`${y}-${pad(m)}-01T00:00`, timeZone);
+    if (t > toMs) break;
+    if (t >= fromMs && ((y * 12 + m - 1) % months) === 0) out.push(t);
+    m++;
+    if (m > 12) {
+      m = 1;
+      y++;
+    }
+  }
+  return out;
 }

@@ -7,6 +7,7 @@
  * For display only — bucketed or thinned data never feeds SPC statistics.
  */
 import { z } from 'zod';
+import { lttb } from '../domain/series/lttb.ts';
 import { toCsv } from './csv-table.ts';
 import type { ReadingsResponse } from './telemetry.ts';
 import { isoInZone, zoneAbbreviation } from './time.ts';
@@ -25,10 +26,11 @@ export interface WindowRange {
   max: number;
   target?: number;
   /**
-   * `'soak'`: the low limit only applies while an oven load soaks (an empty, idle or ramping
-   * oven is cold by design). Otherwise both limits always apply.
+   * When the low limit applies: `'soak'` only while an oven load soaks (an empty, idle or
+   * ramping oven is cold by design); `'load'` while a load is in the oven (an idle controller
+   * sits at a low setpoint); `'always'` otherwise. The high limit always applies.
    */
-  lowApplies: 'always' | 'soak';
+  lowApplies: 'always' | 'load' | 'soak';
   /** What the band is, in words, e.g. "Bath viscosity window". */
   label: string;
 }
@@ -36,13 +38,13 @@ export interface WindowRange {
 /**
  * Which window field holds each channel kind (product.md §3). Oven air temperature is held
  * between the recipe's minimum cure temperature (during soak) and the substrate's maximum
- * part temperature. Kinds without a field (door, irradiance, spin speed, room temperature)
+ * part temperature; the cure setpoint's low limit counts while a load is in the oven. Kinds without a field (door, irradiance, spin speed, room temperature)
  * have no window.
  */
 export function windowRangeFor(kind: string, limits: ProcessWindowLimits | null | undefined): WindowRange | null {
   if (!limits) return null;
-  const pick = (r: { min: number; max: number; target?: number } | undefined, label: string): WindowRange | null =>
-    r ? { min: r.min, max: r.max, ...(r.target !== undefined ? { target: r.target } : {}), lowApplies: 'always', label } : null;
+  const pick = (r: { min: number; max: number; target?: number } | undefined, label: string, lowApplies: WindowRange['lowApplies'] = 'always'): WindowRange | null =>
+    r ? { min: r.min, max: r.max, ...(r.target !== undefined ? { target: r.target } : {}), lowApplies, label } : null;
   switch (kind) {
     case 'withdrawal-speed':
       return pick(limits.withdrawalSpeedMmS, 'Withdrawal speed window');
@@ -53,7 +55,7 @@ export function windowRangeFor(kind: string, limits: ProcessWindowLimits | null 
     case 'room-humidity':
       return pick(limits.roomRhPct, 'Room humidity window');
     case 'setpoint':
-      return pick(limits.cureSetpointC, 'Cure setpoint window');
+      return pick(limits.cureSetpointC, 'Cure setpoint window', 'load');
     case 'air-temperature':
       return Number.isFinite(limits.minCureTempC) && Number.isFinite(limits.maxPartTempC) && limits.minCureTempC < limits.maxPartTempC
         ? { min: limits.minCureTempC, max: limits.maxPartTempC, lowApplies: 'soak', label: 'Cure temperature (minimum in soak) to maximum part temperature' }
@@ -85,13 +87,13 @@ export interface BandPlacement {
  * Place a value on its band (ISA-101 style: the window in the middle half of the bar, half a
  * window width of margin either side). A value exactly on a limit is inside (not beyond it).
  * Without a window the bar spans the channel's valid range and the state is `no-window`.
- * `inSoak` says whether a `lowApplies: 'soak'` low limit counts now.
+ * `inLoad` / `inSoak` say whether a load is in the oven / soaking now (see `lowApplies`).
  */
 export function placeOnBand(
   value: number,
   range: WindowRange | null,
   channel: { min: number; max: number },
-  opts: { inSoak?: boolean } = {},
+  opts: { inLoad?: boolean; inSoak?: boolean } = {},
 ): BandPlacement {
   let scaleMin: number;
   let scaleMax: number;
@@ -100,7 +102,7 @@ export function placeOnBand(
     const pad = (range.max - range.min) / 2;
     scaleMin = range.min - pad;
     scaleMax = range.max + pad;
-    const lowCounts = range.lowApplies === 'always' || !!opts.inSoak;
+    const lowCounts = range.lowApplies === 'always' || (range.lowApplies === 'soak' ? !!opts.inSoak : !!(opts.inLoad || opts.inSoak));
     state = value > range.max ? 'high' : lowCounts && value < range.min ? 'low' : 'normal';
   } else {
     scaleMin = channel.min;
@@ -254,6 +256,33 @@ export function shapeReadings(resp: ReadingsResponse): ShapedSeries {
   };
 }
 
+/**
+ * Thin a line for drawing when it holds more points than `targetPoints` (e.g. the plot was
+ * narrowed after the data came): each unbroken stretch between gaps is downsampled by LTTB
+ * (Steinarsson 2013, lib/domain/series/lttb.ts) to its share of the target (at least 3 points),
+ * and the gap breaks are kept — chart.js's own decimation would read a break as a value.
+ * Lines within the target are returned as they are.
+ */
+export function thinLine(line: readonly ChartPoint[], targetPoints: number): ChartPoint[] {
+  const total = line.reduce((n, p) => n + (p.y === null ? 0 : 1), 0);
+  if (total <= targetPoints) return line as ChartPoint[];
+  const runs: { x: number; y: number }[][] = [[]];
+  for (const p of line) {
+    if (p.y === null) runs.push([]);
+    else runs[runs.length - 1]!.push({ x: p.x, y: p.y });
+  }
+  const out: ChartPoint[] = [];
+  let first = true;
+  for (const run of runs) {
+    if (run.length === 0) continue;
+    if (!first) out.push({ x: (out[out.length - 1]!.x + run[0]!.x) / 2, y: null });
+    first = false;
+    const share = Math.max(3, Math.floor((targetPoints * run.length) / total));
+    out.push(...lttb(run, share));
+  }
+  return out;
+}
+
 // ---------------------------------------------------------------------------------------------
 // Window steps over time
 
@@ -305,7 +334,7 @@ export interface WindowBand {
   min: number;
   max: number;
   target: number | null;
-  lowApplies: 'always' | 'soak';
+  lowApplies: WindowRange['lowApplies'];
   /** e.g. "Hard coat HC-300 on CR-39 v3". */
   label: string;
   windowId: number;
