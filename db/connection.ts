@@ -13,6 +13,10 @@ export interface DbOptions {
   /** Pool size for this process. */
   max?: number;
   logging?: boolean;
+  /** pg.Pool only: give up connecting after this long (default: wait indefinitely). */
+  connectionTimeoutMillis?: number;
+  /** pg.Pool only: give up waiting for a query's answer after this long. */
+  queryTimeoutMillis?: number;
 }
 
 /** A Sequelize instance over pg for records (not for the telemetry hot path). */
@@ -27,9 +31,17 @@ export function createSequelize({ url, max = 8, logging = false }: DbOptions): S
 }
 
 /** A plain pg pool for the fast paths (COPY, unnest inserts, bucketed reads). */
-export function createPool({ url, max = 4 }: DbOptions): pg.Pool {
-  const pool = new pg.Pool({ connectionString: url, max, idleTimeoutMillis: 10_000 });
-  // An idle client that loses its server must not crash the process.
+export function createPool({ url, max = 4, connectionTimeoutMillis, queryTimeoutMillis }: DbOptions): pg.Pool {
+  const pool = new pg.Pool({
+    connectionString: url,
+    max,
+    idleTimeoutMillis: 10_000,
+    ...(connectionTimeoutMillis ? { connectionTimeoutMillis } : {}),
+    ...(queryTimeoutMillis ? { query_timeout: queryTimeoutMillis } : {}),
+  });
+  // A client that loses its server (database restart) must not crash the process: idle ones
+  // report on the pool; checked-out ones on themselves, and their next query then fails.
   pool.on('error', () => {});
+  pool.on('connect', (client) => client.on('error', () => {}));
   return pool;
 }

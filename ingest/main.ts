@@ -7,7 +7,9 @@ import { loadConfig } from './config.ts';
 import { startWorker } from './subscriber.ts';
 
 const config = loadConfig();
-const pool = createPool({ url: config.DATABASE_URL, max: 4 });
+// Bounded waits: a database that stops answering must surface as an error (then the worker
+// buffers and journals) rather than as a flush that never returns.
+const pool = createPool({ url: config.DATABASE_URL, max: 6, connectionTimeoutMillis: 5000, queryTimeoutMillis: 60_000 });
 const worker = await startWorker({ config, pool, log: (s) => console.log(`[ingest] ${s}`) });
 
 const stop = async () => {

@@ -29,7 +29,10 @@ export const retentionHandler: PostCommitHandler = {
     if (running || nowMs < nextCheckAt) return;
     running = true;
     nextCheckAt = nowMs + 10 * 60_000;
-    const client = await ctx.pool.connect();
+    const client = await ctx.pool.connect().catch((e: Error) => {
+      running = false;
+      throw e;
+    });
     try {
       const { rows } = await client.query<{ at: number | null }>(`select (value->>'atMs')::float8 as at from site_settings where key = 'retentionLastRun'`);
       const last = rows[0]?.at ?? null;
