@@ -12,14 +12,10 @@ import { pgPool } from '../db.ts';
 import { actorOf } from '../guard.ts';
 import { HttpProblem } from '../http.ts';
 import { attachJobsToDipRun, createDipRun, upsertJobs, upsertRack, type DipRunCreated } from '../stores/job-store.ts';
+import type { LineRow, DipRunItem, JobSearchItem } from '../../shared/trace-views.ts';
 
 const bad = (path: string, message: string) => new HttpProblem(400, 'Invalid input', `${path}: ${message}`, { errors: [{ path, message }] });
 
-export interface LineRow {
-  id: number;
-  code: string;
-  name: string;
-}
 
 /** Every dip line. */
 export async function listLines(): Promise<LineRow[]> {
@@ -27,26 +23,6 @@ export async function listLines(): Promise<LineRow[]> {
   return rows;
 }
 
-export interface DipRunItem {
-  id: number;
-  lineCode: string;
-  lineName: string;
-  dippedAt: string;
-  rackCode: string | null;
-  jobs: string[];
-  withdrawalSpeedMmS: number | null;
-  strokeSamples: number | null;
-  speedWindow: { min: number; max: number; target?: number } | null;
-  bathChargeId: number | null;
-  lotCode: string | null;
-  lastCheckAt: string | null;
-  lastCheckMm2S: number | null;
-  viscosityWindow: { min: number; max: number; target?: number } | null;
-  windowName: string | null;
-  windowVersion: number | null;
-  source: string;
-  recordedBy: string | null;
-}
 
 const DIP_SELECT = `
   select d.id, a.code as line_code, a.name as line_name, d.dipped_at, k.code as rack_code,
@@ -203,11 +179,6 @@ export async function commitJobCsv(
   return result;
 }
 
-export interface JobSearchItem {
-  jobNumber: string;
-  status: string;
-  customerRef: string | null;
-}
 
 /** Jobs whose number starts with `q` (at most 20), for search boxes. */
 export async function searchJobs(q: string): Promise<JobSearchItem[]> {

@@ -22,25 +22,10 @@ import { pgPool } from '../db.ts';
 import { actorOf } from '../guard.ts';
 import { HttpProblem } from '../http.ts';
 import { siteTimeZone } from '../stores/settings-store.ts';
+import type { HoldItem, NcItem, NcDetail } from '../../shared/trace-views.ts';
 
 const bad = (path: string, message: string) => new HttpProblem(400, 'Invalid input', `${path}: ${message}`, { errors: [{ path, message }] });
 
-export interface HoldItem {
-  id: number;
-  jobNumber: string;
-  jobStatus: string;
-  reason: string;
-  placedAt: string;
-  placedBy: string | null;
-  status: 'active' | 'closed';
-  disposition: Disposition | null;
-  dispositionComment: string | null;
-  closedAt: string | null;
-  closedBy: string | null;
-  signature: SignatureRecord | null;
-  ncId: number | null;
-  ncTitle: string | null;
-}
 
 const HOLD_SELECT = `
   select h.id, j.job_number, j.status as job_status, h.reason, h.placed_at, pu.display_name as placed_by, h.status, h.disposition,
@@ -222,23 +207,6 @@ export async function closeHolds(user: SessionUser, input: HoldClose, address: s
 // ---------------------------------------------------------------------------------------------
 // Nonconformances
 
-export interface NcItem {
-  id: number;
-  title: string;
-  description: string;
-  suspectedCause: string;
-  suspectedLoadId: number | null;
-  suspectedBathChargeId: number | null;
-  status: 'open' | 'closed';
-  openedAt: string;
-  openedBy: string | null;
-  closedAt: string | null;
-  closedBy: string | null;
-  closeSignature: SignatureRecord | null;
-  tests: number;
-  activeHolds: number;
-  holds: number;
-}
 
 const NC_SELECT = `
   select n.id, n.title, n.description, n.suspected_cause, n.suspected_load_id, n.suspected_bath_charge_id, n.status, n.opened_at,
@@ -289,13 +257,6 @@ export async function listNcs(status?: 'open' | 'closed'): Promise<NcItem[]> {
   return rows.map(toNc);
 }
 
-export interface NcDetail extends NcItem {
-  testList: { id: number; jobNumber: string; kind: string; result: string; testedAt: string; summary: string }[];
-  holdList: HoldItem[];
-  dispositions: { id: number; disposition: Disposition; jobNumbers: string[]; comment: string; signature: SignatureRecord; at: string }[];
-  load: { id: number; ovenName: string; openedAt: string; verdict: string | null } | null;
-  bathCharge: { id: number; tankCode: string; lotCode: string; chargedAt: string } | null;
-}
 
 export async function getNc(id: number): Promise<NcDetail | null> {
   const pool = pgPool();

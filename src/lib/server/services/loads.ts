@@ -16,6 +16,7 @@ import { HttpProblem } from '../http.ts';
 import { addJobsToLoad, closeLoad, openLoad, ovenChannels, recomputeLoad, type RecomputeResult } from '../stores/load-store.ts';
 import { siteTimeZone } from '../stores/settings-store.ts';
 import { windowInForce } from '../stores/window-store.ts';
+import type { LoadAlarm, LoadDetail, LoadListItem, OpenLoadPhase, OvenRow, TrendSeries } from '../../shared/trace-views.ts';
 
 const iso = (d: Date | null): string | null => (d ? d.toISOString() : null);
 const bad = (path: string, message: string) => new HttpProblem(400, 'Invalid input', `${path}: ${message}`, { errors: [{ path, message }] });
@@ -25,11 +26,6 @@ export const TREND_MAX_POINTS = 1500;
 /** Trend margin around a load, minutes. */
 export const TREND_MARGIN_MIN = 30;
 
-export interface OvenRow {
-  id: number;
-  code: string;
-  name: string;
-}
 
 /** Every oven of the site. */
 export async function listOvens(): Promise<OvenRow[]> {
@@ -37,29 +33,6 @@ export async function listOvens(): Promise<OvenRow[]> {
   return rows;
 }
 
-export interface LoadListItem {
-  id: number;
-  ovenAssetId: number;
-  ovenCode: string;
-  ovenName: string;
-  openedAt: string;
-  closedAt: string | null;
-  status: 'open' | 'closed';
-  openedBy: 'auto' | 'user';
-  openedByName: string | null;
-  verdict: StoredCureRecord['verdict'] | null;
-  jobs: number;
-  equivalentMinutes: number | null;
-  peakC: number | null;
-  minutesAtOrAboveMin: number | null;
-  doorOpenings: number | null;
-  gaps: number | null;
-  windowName: string | null;
-  windowVersion: number | null;
-  alarmId: number | null;
-  /** For open loads: ramp / soak / cool / idle from the latest readings. */
-  phase: string | null;
-}
 
 interface LoadRow {
   id: number;
@@ -122,7 +95,7 @@ function toItem(r: LoadRow, phase: string | null): LoadListItem {
 }
 
 /** The phase of an open load from the last 3 h of zone readings (1-minute minima) and the latest setpoint. */
-export async function openLoadPhase(ovenAssetId: number, openedAtMs: number): Promise<{ phase: string; soakStartMs?: number; predictedEndMs?: number; setpointC: number | null; coldestC: number | null }> {
+export async function openLoadPhase(ovenAssetId: number, openedAtMs: number): Promise<OpenLoadPhase> {
   const pool = pgPool();
   const oven = await ovenChannels(pool, ovenAssetId);
   if (!oven) return { phase: 'idle', setpointC: null, coldestC: null };
@@ -191,16 +164,6 @@ export async function loadsCsv(items: LoadListItem[]): Promise<string> {
   );
 }
 
-export interface LoadAlarm {
-  id: number;
-  priority: string;
-  state: string;
-  sourceLabel: string;
-  message: string;
-  raisedAt: string;
-  clearedAt: string | null;
-  ackedBy: string | null;
-}
 
 /** Alarms on the oven, its zones or its channels (or on the load itself) raised or re-activated during [from, to]. */
 export async function alarmsDuring(ovenAssetId: number, loadId: number | null, fromMs: number, toMs: number): Promise<LoadAlarm[]> {
@@ -237,13 +200,6 @@ export async function alarmsDuring(ovenAssetId: number, loadId: number | null, f
   }));
 }
 
-export interface TrendSeries {
-  key: string;
-  label: string;
-  unit: string;
-  kind: 'setpoint' | 'zone' | 'door';
-  points: { x: number; y: number }[];
-}
 
 /** The oven's setpoint, zone air temperatures and door over [from, to], each downsampled (LTTB) to ≤ 1500 points. */
 export async function ovenTrend(ovenAssetId: number, fromMs: number, toMs: number): Promise<TrendSeries[]> {
@@ -268,27 +224,7 @@ export async function ovenTrend(ovenAssetId: number, fromMs: number, toMs: numbe
   return out;
 }
 
-export interface LoadJob {
-  jobId: number;
-  jobNumber: string;
-  status: string;
-  rackCode: string | null;
-  addedAt: string;
-  tests: number;
-  failed: number;
-}
 
-export interface LoadDetail extends LoadListItem {
-  closedBy: 'auto' | 'user' | null;
-  closedByName: string | null;
-  record: StoredCureRecord | null;
-  computedAt: string | null;
-  note: string | null;
-  jobList: LoadJob[];
-  alarms: LoadAlarm[];
-  openPhase: Awaited<ReturnType<typeof openLoadPhase>> | null;
-  window: { id: number; name: string; version: number; lacquer: string; substrate: string } | null;
-}
 
 /** One load with its record, jobs and the alarms during it; null when unknown. */
 export async function getLoad(id: number): Promise<LoadDetail | null> {
@@ -377,4 +313,10 @@ export async function addJobs(user: SessionUser, id: number, input: LoadAddJobs,
   const r = await addJobsToLoad(pgPool(), id, { jobNumbers: input.jobNumbers, rackCodes: input.rackCodes, userId: user.id });
   if (r.added.length) await audit(actorOf(user, address), { action: 'load.jobs.add', entity: 'oven_load', entityId: id, after: { added: r.added, racks: Object.keys(r.fromRacks) } });
   return r;
+}
+
+/** The site's name and time zone (for record headers). */
+export async function siteInfo(): Promise<{ name: string; timeZone: string }> {
+  const { rows } = await pgPool().query<{ name: string; time_zone: string }>('select name, time_zone from sites order by id limit 1');
+  return { name: rows[0]?.name ?? 'Coatrail', timeZone: rows[0]?.time_zone ?? 'UTC' };
 }

@@ -8,7 +8,7 @@ import { evaluateSpc } from '../../domain/spc/evaluate.ts';
 import { toCsv } from '../../shared/csv-table.ts';
 import { isoWeekKey } from '../../shared/site-time.ts';
 import { ADHESION_KINDS, AcceptanceSchema, TEST_KIND_LABELS, type Acceptance, type TestCreate, type TestKind, type TestListItem, type TestListQuery } from '../../shared/quality.ts';
-import { SpcEvaluateInputSchema, type SpcEvaluateOutput } from '../../shared/spc.ts';
+import { SpcEvaluateInputSchema } from '../../shared/spc.ts';
 import { audit } from '../audit.ts';
 import type { SessionUser } from '../auth.ts';
 import { pgPool } from '../db.ts';
@@ -16,6 +16,7 @@ import { actorOf } from '../guard.ts';
 import { HttpProblem } from '../http.ts';
 import { acceptanceSettings, attachFile, recordTest, type RecordedTest } from '../stores/quality-store.ts';
 import { siteTimeZone, writeSetting } from '../stores/settings-store.ts';
+import type { TestDetail, AdhesionWeek, AdhesionChart, FailureGroup } from '../../shared/trace-views.ts';
 
 interface TestRow {
   id: number;
@@ -104,22 +105,7 @@ export async function testsCsv(items: TestListItem[]): Promise<string> {
   );
 }
 
-export interface TestFile {
-  id: number;
-  filename: string;
-  mime: string;
-  sizeBytes: number;
-  sha256: string;
-  uploadedAt: string;
-  uploadedBy: string | null;
-}
 
-export interface TestDetail extends TestListItem {
-  inputs: Record<string, unknown>;
-  note: string | null;
-  acceptance: Acceptance;
-  fileList: TestFile[];
-}
 
 export async function getTest(id: number): Promise<TestDetail | null> {
   const pool = pgPool();
@@ -182,19 +168,7 @@ export async function putAcceptance(user: SessionUser, value: Acceptance, addres
   return parsed;
 }
 
-export interface AdhesionWeek {
-  week: string;
-  startMs: number;
-  tests: number;
-  failed: number;
-}
 
-export interface AdhesionChart {
-  weeks: AdhesionWeek[];
-  evaluation: SpcEvaluateOutput | null;
-  /** Why there is no chart (too few weeks with tests, …). */
-  message: string | null;
-}
 
 /**
  * Adhesion (cross-cut and boil) failure rate per ISO week in the site's time zone, over the last
@@ -228,14 +202,6 @@ export async function adhesionPChart(weeks = 12): Promise<AdhesionChart> {
   }
 }
 
-export interface FailureGroup {
-  key: string;
-  label: string;
-  tests: number;
-  failed: number;
-  /** Link target for the group (an oven's loads, a bath charge's baths page). */
-  href: string | null;
-}
 
 /** Adhesion tests and failures of the last `days` days grouped by the oven that cured the job. */
 export async function failuresByOven(days = 90): Promise<FailureGroup[]> {

@@ -26,6 +26,7 @@ import { actorOf } from '../guard.ts';
 import { HttpProblem } from '../http.ts';
 import { attachFile } from '../stores/quality-store.ts';
 import { readSetting, writeSetting } from '../stores/settings-store.ts';
+import type { SurveyComputation, SurveyItem, OvenSurveyStatus } from '../../shared/trace-views.ts';
 
 export const DEFAULT_SURVEY_SETTINGS: SurveySettings = {
   intervalDays: DEFAULT_SURVEY_INTERVAL_DAYS,
@@ -43,20 +44,6 @@ export async function putSurveySettings(user: SessionUser, value: SurveySettings
   return value;
 }
 
-export interface SurveyComputation {
-  result: UniformityResult;
-  setpointC: number;
-  surveyedAtMs: number;
-  stabilisedFromMinutes: number;
-  stabilisedAuto: boolean;
-  rows: number;
-  durationMinutes: number;
-  sensors: { name: string; correctionC: number; minC: number; maxC: number; meanC: number }[];
-  classTableName: string;
-  classTable: SurveySettings['classTable'];
-  /** Per sensor, minutes → °C (corrected), downsampled for the chart. */
-  series: { name: string; points: { x: number; y: number }[] }[];
-}
 
 /** Parse and compute a survey (nothing stored). 400 with line numbers for a bad file; 422 when the soak never stabilised. */
 export async function computeSurvey(input: SurveyInput): Promise<SurveyComputation> {
@@ -142,27 +129,6 @@ export async function recordSurvey(user: SessionUser, input: SurveyInput, addres
   return { id, ...c };
 }
 
-export interface SurveyItem {
-  id: number;
-  ovenAssetId: number;
-  ovenCode: string;
-  ovenName: string;
-  surveyedAt: string;
-  setpointC: number;
-  hottestDeviationC: number;
-  coldestDeviationC: number;
-  hottestSensor: string | null;
-  coldestSensor: string | null;
-  uniformityClass: number | null;
-  classToleranceC: number | null;
-  classTableName: string;
-  stabilisedAuto: boolean;
-  stabilisedFrom: string | null;
-  sensors: SurveyComputation['sensors'];
-  note: string | null;
-  recordedBy: string | null;
-  fileId: number | null;
-}
 
 export async function listSurveys(ovenAssetId?: number, id?: number): Promise<SurveyItem[]> {
   const { rows } = await pgPool().query<{
@@ -201,15 +167,6 @@ export async function listSurveys(ovenAssetId?: number, id?: number): Promise<Su
   }));
 }
 
-export interface OvenSurveyStatus {
-  ovenAssetId: number;
-  ovenCode: string;
-  ovenName: string;
-  last: SurveyItem | null;
-  dueAt: string | null;
-  overdue: boolean;
-  daysSince: number | null;
-}
 
 /** Each oven's last survey and whether it is overdue (older than the configured interval, or never surveyed). */
 export async function surveyStatus(): Promise<{ intervalDays: number; ovens: OvenSurveyStatus[] }> {

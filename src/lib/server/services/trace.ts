@@ -12,101 +12,14 @@ import type { StoredCureRecord } from '../../shared/jobs.ts';
 import type { Range } from '../../shared/windows.ts';
 import { pgPool } from '../db.ts';
 import { readSetting } from '../stores/settings-store.ts';
-import { alarmsDuring, type LoadAlarm } from './loads.ts';
+import { alarmsDuring } from './loads.ts';
+import type { TraceDipRun, TraceLoad, TraceTest, TraceSibling, TraceResult } from '../../shared/trace-views.ts';
 
-export interface TraceBathSnapshot {
-  charge: {
-    id: number;
-    chargedAt: string;
-    lotCode: string;
-    lacquer: string;
-    lotExpiresOn: string;
-    potLifeDays: number;
-    /** Age of the charge at the dip, and pot-life use then (domain bathAge: near end ≥ 80 %, common practice). */
-    age: BathAge | null;
-  } | null;
-  lastCheck: {
-    id: number;
-    at: string;
-    minutesBeforeDip: number;
-    kinematicMm2S: number;
-    method: string;
-    cup: string | null;
-    effluxSeconds: number | null;
-    bathTempC: number | null;
-    solidsPct: number | null;
-    by: string;
-  } | null;
-  /** The bath's viscosity sensor at the dip (latest reading within 30 min before it). */
-  sensorViscosityMm2S: number | null;
-  viscosityWindow: Range | null;
-  /** Where the last check's viscosity sits against the window. */
-  viscosityStatus: 'in' | 'low' | 'high' | 'unknown';
-}
 
-export interface TraceDipRun {
-  id: number;
-  dippedAt: string;
-  line: { id: number; code: string; name: string };
-  tank: { id: number; code: string; name: string } | null;
-  rackCode: string | null;
-  withdrawalSpeedMmS: number | null;
-  strokeSamples: number | null;
-  speedWindow: Range | null;
-  window: { id: number; name: string; version: number } | null;
-  bath: TraceBathSnapshot;
-  jobsInRun: number;
-}
 
-export interface TraceLoad {
-  id: number;
-  oven: { id: number; code: string; name: string };
-  openedAt: string;
-  closedAt: string | null;
-  status: 'open' | 'closed';
-  verdict: StoredCureRecord['verdict'] | null;
-  record: StoredCureRecord | null;
-  alarms: LoadAlarm[];
-  jobsInLoad: number;
-}
 
-export interface TraceTest {
-  id: number;
-  kind: TestKind;
-  result: TestResult;
-  testedAt: string;
-  testedBy: string;
-  summary: string;
-  boilCycles: number | null;
-  files: number;
-}
 
-export interface TraceSibling {
-  jobNumber: string;
-  status: string;
-  sameLoads: number[];
-  sameBathRuns: { dipRunId: number; dippedAt: string; hoursApart: number }[];
-  tests: number;
-  failed: number;
-  lastTest: { kind: TestKind; result: TestResult; testedAt: string } | null;
-  activeHoldId: number | null;
-}
 
-export interface TraceResult {
-  job: {
-    id: number;
-    jobNumber: string;
-    customerRef: string | null;
-    lensMaterial: string | null;
-    status: string;
-    activeHold: { id: number; reason: string; placedAt: string; placedBy: string | null } | null;
-  };
-  dipRuns: TraceDipRun[];
-  loads: TraceLoad[];
-  tests: TraceTest[];
-  siblings: TraceSibling[];
-  siblingWindowHours: number;
-}
 
 const iso = (d: Date | null) => (d ? d.toISOString() : null);
 
