@@ -10,7 +10,18 @@ export default defineConfig({
   adapter: node({ mode: 'standalone' }),
   integrations: [react(), tailwind({ applyBaseStyles: false })],
   server: { host: '127.0.0.1', port: 4321 },
-  security: { checkOrigin: true },
+  // Without allowedDomains Astro trusts no Host header and takes the request's origin to be
+  // "http://localhost" (no port), so its origin check refused every same-origin browser form,
+  // multipart upload and sign-out from http://127.0.0.1:PORT. Loopback names on any port are ours;
+  // behind a proxy, PUBLIC_ORIGIN (at build time) adds the public host.
+  security: {
+    checkOrigin: true,
+    allowedDomains: [
+      { hostname: '127.0.0.1' },
+      { hostname: 'localhost' },
+      ...(process.env.PUBLIC_ORIGIN ? [{ hostname: new URL(process.env.PUBLIC_ORIGIN).hostname }] : []),
+    ],
+  },
   devToolbar: { enabled: false },
   env: {
     schema: {

@@ -2,14 +2,32 @@
  * Demo process windows and bath log for the invented plant: one example lacquer, effective
  * windows for CR-39-type and polycarbonate (approved 30 days ago so the seeded history is
  * covered), their assignment to the dip lines and ovens, two lacquer lots, a charge per
- * hard-coat bath and a few weeks of bath checks (cup seconds → viscosity), solvent top-ups and
- * filter changes. EVERY VALUE HERE IS AN EXAMPLE — replace it with the lacquer maker's data
+ * hard-coat bath and its bath log since the charge: the operator's hourly checks (cup seconds →
+ * viscosity), solvent and fresh-lacquer additions and filter changes, all taken from the shared
+ * plant model (seeds/plant-model.ts) so they agree with the seeded viscosity readings. EVERY VALUE HERE IS AN EXAMPLE — replace it with the lacquer maker's data
  * sheet and the lab's own validation. Idempotent: does nothing when the lacquer exists.
  */
 import { QueryTypes, type Sequelize, type Transaction } from 'sequelize';
 import { bathAddition } from '../src/lib/domain/film/bath-maintenance.ts';
 import { viscosityFromCup, type CupId } from '../src/lib/domain/film/viscosity-cups.ts';
 import type { ProcessWindowLimits } from '../src/lib/shared/windows.ts';
+import {
+  BATH_CHARGES,
+  BATH_RATES,
+  DIP_LINES,
+  MINUTE_MS,
+  anchorOf,
+  atLocal,
+  bathStateAt,
+  bathTempC,
+  bathViscosityAt,
+  buildPlantModel,
+  demoBathEvents,
+  isShift,
+  localDayKey,
+  localHour,
+  type DipLineCode,
+} from './plant-model.ts';
 
 export const EXAMPLE_LACQUER = 'FH-Siloxane 30 (example)';
 export const EXAMPLE_NOTE = 'Example values — replace with the lacquer maker’s data sheet.';
@@ -33,18 +51,6 @@ export function exampleLimits(maxPartTempC: number): ProcessWindowLimits {
     maxRampCPerMin: 5,
     targetDryThicknessUm: 2.0,
     maxGapSeconds: 120,
-  };
-}
-
-/** Deterministic pseudo-random numbers (mulberry32) so every seeded plant tells the same story. */
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
   };
 }
 
@@ -103,73 +109,72 @@ export async function seedWindows(sequelize: Sequelize, opts: { nowMs?: number; 
       await run(`insert into window_assignments (asset_id, window_id, valid_from, assigned_by, note) values ($1, $2, $3, $4, 'demo seed') returning id`, [a, w, t0, engineer?.id ?? null], t);
     }
 
-    // Lots (the maker's lot numbers are invented) and one charge per hard-coat bath.
+    // Lots (the maker's lot numbers are invented) and one charge per hard-coat bath, at the times
+    // and solids the plant model (seeds/plant-model.ts) charges them, so the bath log matches the
+    // seeded viscosity readings.
+    const anchor = anchorOf(now);
     const dayStr = (ms: number) => new Date(ms).toISOString().slice(0, 10);
-    const lots: { id: number; solids: number }[] = [];
-    for (const [code, ago, solids] of [['FHS30-L0411', 45, 30.4], ['FHS30-L0587', 20, 30.2]] as const) {
+    const by = operator ?? { id: null, username: 'operator' };
+    const model = buildPlantModel(now);
+    const events = demoBathEvents(now, { days: 30 });
+    const cups: Record<DipLineCode, { cup: CupId; k: number; c: number }> = {
+      // ν = k(t − c): ASTM D4212 Zahn 1 and Shell 1 (their windows hold the example viscosity window).
+      'dip-1': { cup: 'zahn-1', k: 1.1, c: 29 },
+      'dip-2': { cup: 'shell-1', k: 0.226, c: 13 },
+    };
+    for (const line of DIP_LINES) {
+      const tank = asset(`${line}-hc`);
+      if (!tank) continue;
+      const spec = BATH_CHARGES[line];
+      const chargedAt = atLocal(localDayKey(anchor) - spec.daysBack, 6.25);
       const [lot] = await run<{ id: number }>(
         `insert into lacquer_lots (lacquer_id, lot_code, received_on, expires_on, solids_pct, note, created_by) values ($1, $2, $3, $4, $5, 'demo seed', $6) returning id`,
-        [lacquer!.id, code, dayStr(now - ago * DAY), dayStr(now - ago * DAY + 180 * DAY), solids, engineer?.id ?? null],
+        [lacquer!.id, `FHS30-L${line === 'dip-1' ? '0411' : '0587'}`, dayStr(chargedAt - 12 * DAY), dayStr(chargedAt + 168 * DAY), Math.round(spec.solids * 1000) / 10, engineer?.id ?? null],
         t,
       );
-      lots.push({ id: lot!.id, solids });
-    }
-    const baths: { tank: string; lot: (typeof lots)[number]; chargedDaysAgo: number; cup: CupId; seed: number }[] = [
-      { tank: 'dip-1-hc', lot: lots[0]!, chargedDaysAgo: 26, cup: 'zahn-1', seed: 11 },
-      { tank: 'dip-2-hc', lot: lots[1]!, chargedDaysAgo: 9, cup: 'shell-1', seed: 29 },
-    ];
-    const by = operator ?? { id: null, username: 'operator' };
-    for (const b of baths) {
-      const tank = asset(b.tank);
-      if (!tank) continue;
-      const chargedAt = now - b.chargedDaysAgo * DAY;
-      const massKg = 38;
       const [charge] = await run<{ id: number }>(
         `insert into bath_charges (tank_asset_id, lot_id, charged_at, mass_kg, pot_life_days, note, created_by) values ($1, $2, $3, $4, 30, 'demo seed', $5) returning id`,
-        [tank, b.lot.id, new Date(chargedAt), massKg, engineer?.id ?? null],
+        [tank, lot!.id, new Date(chargedAt), BATH_RATES.chargeMassKg, engineer?.id ?? null],
         t,
       );
-      const rand = rng(b.seed);
-      let solids = b.lot.solids;
-      let bathMass = massKg;
-      // Checks every 8 h; solvent evaporates (solids creep up, viscosity with them) until a top-up.
-      for (let at = chargedAt + 2 * 3_600_000; at < now - 3_600_000; at += 8 * 3_600_000) {
-        const evaporated = bathMass * (1 - solids / (solids + 0.12 + rand() * 0.08));
-        solids = (solids * bathMass) / (bathMass - evaporated);
-        bathMass -= evaporated;
-        const tempC = 12 + (rand() - 0.5) * 1.2;
-        // Example viscosity–solids relation of the invented lacquer: 9.0 mm²/s at 30 %, +1.6 mm²/s per % solids.
-        const nu = 9.0 + 1.6 * (solids - 30) + (rand() - 0.5) * 0.3;
-        const spec = b.cup === 'zahn-1' ? { k: 1.1, c: 29 } : { k: 0.226, c: 13 };
-        const seconds = Math.round((nu / spec.k + spec.c) * 10) / 10;
-        const cup = viscosityFromCup({ cup: b.cup, seconds, densityGCm3: 0.95 });
-        if (!cup.inRange || cup.kinematicMm2S === undefined) continue;
-        const solidsRead = Math.round(solids * 10) / 10;
+      const windowId = windowIds.get(line === 'dip-1' ? 'cr39-1.50' : 'pc-1.59') ?? null;
+      const bath = model.baths[line];
+      const cup = cups[line];
+      // The operator's hourly check at hh:20 during the shift (as the plant model has it).
+      const checks: { at: number; id: number; solidsPct: number; massKg: number }[] = [];
+      for (let at = chargedAt + 10 * MINUTE_MS; at <= anchor; at += 10 * MINUTE_MS) {
+        const h = localHour(at);
+        if (!isShift(at) || Math.abs(h - Math.floor(h) - 20 / 60) > 1e-6) continue;
+        const state = bathStateAt(bath, at);
+        const seconds = Math.round((bathViscosityAt(bath, at) / cup.k + cup.c) * 10) / 10;
+        const result = viscosityFromCup({ cup: cup.cup, seconds, densityGCm3: 0.95 });
+        if (!result.inRange || result.kinematicMm2S === undefined) continue;
+        const solidsPct = Math.round(state.solids * 1000) / 10;
         const [check] = await run<{ id: number }>(
           `insert into bath_checks (tank_asset_id, charge_id, at, by_user, by_label, cup, efflux_seconds, kinematic_mm2s, method, density_g_cm3, dynamic_mpas, bath_temp_c, solids_pct, window_id, note)
-           values ($1, $2, $3, $4, $5, $6, $7, $8, $9, 0.95, $10, $11, $12, (select window_id from window_assignments wa join assets a on a.parent_id = wa.asset_id where a.id = $1 limit 1), 'demo seed') returning id`,
-          [tank, charge!.id, new Date(at), by.id, by.username, b.cup, seconds, cup.kinematicMm2S, cup.source, cup.dynamicMPaS ?? null, Math.round(tempC * 10) / 10, solidsRead],
+           values ($1, $2, $3, $4, $5, $6, $7, $8, $9, 0.95, $10, $11, $12, $13, 'demo seed') returning id`,
+          [tank, charge!.id, new Date(at), by.id, by.username, cup.cup, seconds, result.kinematicMm2S, result.source, result.dynamicMPaS ?? null, Math.round(bathTempC(line, at) * 10) / 10, solidsPct, windowId],
           t,
         );
-        if (solidsRead >= 30.9) {
-          const rec = bathAddition({ bathMassKg: bathMass, solidsNowPct: solidsRead, solidsTargetPct: 30 });
-          if (rec.ok && rec.kind === 'solvent') {
-            const added = Math.round(rec.massKg * 100) / 100;
-            await run(
-              `insert into bath_additions (tank_asset_id, charge_id, at, by_user, by_label, kind, mass_kg, check_id, recommendation, note)
-               values ($1, $2, $3, $4, $5, 'solvent', $6, $7, $8::jsonb, 'demo seed') returning id`,
-              [tank, charge!.id, new Date(at + 15 * 60_000), by.id, by.username, added, check!.id, JSON.stringify(rec)],
-              t,
-            );
-            solids = (solids * bathMass) / (bathMass + added);
-            bathMass += added;
-          }
-        }
+        checks.push({ at, id: check!.id, solidsPct, massKg: state.massKg });
       }
-      for (let at = chargedAt + 7 * DAY; at < now; at += 7 * DAY) {
+      for (const e of events) {
+        if (e.tank !== `${line}-hc` || e.tMs < chargedAt || e.kind === 'charge') continue;
+        if (e.kind === 'filter-change') {
+          await run(
+            `insert into filter_changes (tank_asset_id, at, by_user, by_label, filter_type, rating_um, note) values ($1, $2, $3, $4, 'Pleated cartridge (example)', 1, 'demo seed') returning id`,
+            [tank, new Date(e.tMs), by.id, by.username],
+            t,
+          );
+          continue;
+        }
+        if (e.massKg === null || e.massKg <= 0) continue;
+        const check = [...checks].reverse().find((c) => c.at <= e.tMs) ?? null;
+        const recommendation = check ? bathAddition({ bathMassKg: check.massKg, solidsNowPct: check.solidsPct, solidsTargetPct: 30, lacquerSolidsPct: spec.solids * 100 }) : null;
         await run(
-          `insert into filter_changes (tank_asset_id, at, by_user, by_label, filter_type, rating_um, note) values ($1, $2, $3, $4, 'Pleated cartridge (example)', 1, 'demo seed') returning id`,
-          [tank, new Date(at), by.id, by.username],
+          `insert into bath_additions (tank_asset_id, charge_id, at, by_user, by_label, kind, mass_kg, lot_id, check_id, recommendation, note)
+           values ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10::jsonb, 'demo seed') returning id`,
+          [tank, charge!.id, new Date(e.tMs), by.id, by.username, e.kind === 'solvent-addition' ? 'solvent' : 'fresh-lacquer', e.massKg, e.kind === 'solvent-addition' ? null : lot!.id, check?.id ?? null, recommendation ? JSON.stringify(recommendation) : null],
           t,
         );
       }
