@@ -48,6 +48,8 @@ export interface WorkerStats {
   lagMs: number;
   dbHealthy: boolean;
   mode: 'memory' | 'journal';
+  /** Connected to the broker with the subscriptions granted. */
+  subscribed: boolean;
 }
 
 export interface RunningWorker {
@@ -151,15 +153,19 @@ export async function startWorker({ config, pool, log = () => {}, handlers = def
   };
 
   const topics = subscriptionTopics(config.INGEST_SHARED_GROUP);
+  let subscribed = false;
   client.on('connect', (connack) => {
     log(`connected to ${config.mqttUrl}${connack.sessionPresent ? ' (session resumed)' : ''}`);
     client.subscribe(topics, { qos: 1 }, (err, granted) => {
       if (err) log(`subscribe failed: ${err.message}`);
-      for (const g of granted ?? []) if (g.qos > 1) log(`subscription to ${g.topic} refused by the broker`);
+      const refused = (granted ?? []).filter((g) => g.qos > 1);
+      for (const g of refused) log(`subscription to ${g.topic} refused by the broker`);
+      subscribed = !err && refused.length === 0;
     });
   });
   client.on('close', () => {
     generation++;
+    subscribed = false;
   });
   client.on('error', (e) => log(`mqtt: ${e.message}`));
 
@@ -480,6 +486,7 @@ export async function startWorker({ config, pool, log = () => {}, handlers = def
       lagMs: lagMs(),
       dbHealthy,
       mode,
+      subscribed,
     }),
     async close() {
       closing = true;

@@ -1,0 +1,85 @@
+/**
+ * Child process of `npm run bench:ingest` (tests/bench/ingest.ts): either the real ingest
+ * worker (ingest/subscriber.ts, with a post-commit handler that times each stored reading:
+ * now − its sample time, where the publisher set the sample time to the publish time) or a
+ * plain MQTT subscriber (the broker-only limit). Talks to the parent over IPC:
+ *   parent → {expect: n}          start counting n readings (or messages)
+ *   child  → {ready} once connected; {done, count, lastMs, p50, p99, max} when n have arrived.
+ */
+import mqtt from 'mqtt';
+import { createPool } from '../../db/connection.ts';
+import { loadConfig } from '../../ingest/config.ts';
+import { postCommitHandlers, type PostCommitHandler } from '../../ingest/handlers/index.ts';
+import { startWorker } from '../../ingest/subscriber.ts';
+
+const mode = process.argv[2] === 'subscriber' ? 'subscriber' : 'worker';
+const send = (m: unknown) => process.send?.(m);
+
+let expected = 0;
+let count = 0;
+let latencies = new Float64Array(0);
+let timed = 0;
+
+function record(nowMs: number, tMs: number, timeIt: boolean) {
+  if (!expected) return;
+  if (timeIt && timed < latencies.length) latencies[timed++] = nowMs - tMs;
+  count++;
+  if (count === expected) {
+    const lat = latencies.subarray(0, timed).sort();
+    const q = (p: number) => (lat.length ? lat[Math.min(lat.length - 1, Math.floor(p * lat.length))]! : NaN);
+    send({ done: true, count, lastMs: nowMs, p50: q(0.5), p99: q(0.99), max: lat.length ? lat[lat.length - 1] : NaN });
+    expected = 0;
+  }
+}
+
+let timeSamples = true;
+process.on('message', (m: { expect?: number; time?: boolean }) => {
+  if (m.expect) {
+    expected = m.expect;
+    count = 0;
+    timed = 0;
+    timeSamples = m.time ?? true;
+    latencies = new Float64Array(m.expect);
+  }
+});
+
+if (mode === 'subscriber') {
+  const url = process.env['MQTT_URL']!;
+  const client = mqtt.connect(url, {
+    username: 'svc-web',
+    password: process.env['MQTT_SERVICE_PASSWORD']!,
+    protocolVersion: 4,
+    clean: true,
+    clientId: `bench-sub-${process.pid}`,
+  });
+  client.on('message', (_topic, buf) => {
+    const now = Date.now();
+    const p = JSON.parse(buf.toString('utf8')) as { t: number };
+    record(now, p.t, true);
+  });
+  client.on('connect', () => {
+    client.subscribe('coatrail/v1/+/+/+/+', { qos: 1 }, () => send({ ready: true }));
+  });
+} else {
+  const config = loadConfig();
+  const pool = createPool({ url: config.DATABASE_URL, max: 6, connectionTimeoutMillis: 5000 });
+  const timer: PostCommitHandler = {
+    name: 'bench-timer',
+    async onReadings(_ctx, rows) {
+      const now = Date.now();
+      for (const r of rows) record(now, r.tMs, timeSamples);
+    },
+  };
+  const worker = await startWorker({ config, pool, handlers: [timer, ...postCommitHandlers] });
+  const ready = setInterval(() => {
+    if (worker.stats().subscribed) {
+      clearInterval(ready);
+      send({ ready: true });
+    }
+  }, 100);
+  process.once('SIGTERM', async () => {
+    await worker.close();
+    await pool.end();
+    process.exit(0);
+  });
+}
