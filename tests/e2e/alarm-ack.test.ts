@@ -61,6 +61,7 @@ describe('alarm queue in the browser', () => {
     await page.screenshot({ path: path.join(OUT, 'alarm-queue-new.png'), fullPage: true });
 
     await row.getByRole('button', { name: 'Acknowledge' }).click();
+    await page.screenshot({ path: path.join(OUT, 'alarm-queue-ack-form.png'), fullPage: true });
     const form = page.getByRole('form', { name: /^Acknowledge: Line 1 room temperature/ });
     await form.getByRole('button', { name: 'Acknowledge' }).click();
     await form.getByRole('alert').filter({ hasText: 'an acknowledgement needs a comment' }).waitFor();

@@ -46,7 +46,7 @@ const STATE_ICON: Record<AlarmState, string> = {
   acked: '○',
   'rtn-unacked': '◌',
   normal: '–',
-  shelved: '⏸',
+  shelved: '‖',
   suppressed: '⊘',
   'out-of-service': '⊗',
 };
@@ -289,16 +289,11 @@ export default function AlarmQueue({ initial, role, timeZone, focusId, nowMs }: 
           <span aria-live="polite" className="text-ink-soft">
             {loading ? 'Refreshing…' : live.lastMs ? `Live — last change ${formatAge(now - live.lastMs)} ago` : 'Live — waiting for changes'}
           </span>
-          <button type="button" className="btn-quiet" aria-pressed={muted} onClick={toggleMute} title="Sound for new high and medium alarms">
-            <span aria-hidden="true">{muted ? '🔇' : '🔔'}</span> {muted ? 'Sound off' : 'Sound on'}
+          <button type="button" className="btn-quiet" aria-pressed={muted} onClick={toggleMute} title={soundBlocked && !muted ? 'The browser holds sound until you click or press a key on this page' : 'Sound for new high and medium alarms'}>
+            <SpeakerIcon muted={muted} /> {muted ? 'Sound off' : soundBlocked ? 'Sound on — click to allow' : 'Sound on'}
           </button>
         </div>
       </div>
-      {soundBlocked && !muted && (
-        <p className="text-sm text-ink-soft" role="status">
-          The browser holds sound until you click or press a key on this page.
-        </p>
-      )}
       {loadError && (
         <p className="caution" role="alert">
           Could not refresh the alarm list: {loadError}. Live changes still arrive; the list retries every minute.
@@ -398,10 +393,23 @@ export default function AlarmQueue({ initial, role, timeZone, focusId, nowMs }: 
       )}
       <p className="text-xs text-ink-soft">
         Legend: <span aria-hidden="true">●</span> needs acknowledgement · <span aria-hidden="true">○</span> acknowledged, still active ·{' '}
-        <span aria-hidden="true">◌</span> cleared, not yet acknowledged · <span aria-hidden="true">⏸</span> shelved ·{' '}
+        <span aria-hidden="true">◌</span> cleared, not yet acknowledged · <span aria-hidden="true">‖</span> shelved ·{' '}
         <span aria-hidden="true">⊗</span> out of service. Priority: ▲ high, ◆ medium, ■ low. Times in {timeZone}.
       </p>
     </div>
+  );
+}
+
+function SpeakerIcon({ muted }: { muted: boolean }) {
+  return (
+    <svg width="16" height="16" viewBox="0 0 16 16" aria-hidden="true" className="inline-block">
+      <path d="M2 6h3l4-3v10l-4-3H2z" fill="currentColor" />
+      {muted ? (
+        <path d="M11 5.5l4 5M15 5.5l-4 5" stroke="currentColor" strokeWidth="1.6" />
+      ) : (
+        <path d="M11 5.5c1.2 1.4 1.2 3.6 0 5M13 4c2 2.3 2 5.7 0 8" stroke="currentColor" strokeWidth="1.4" fill="none" />
+      )}
+    </svg>
   );
 }
 
