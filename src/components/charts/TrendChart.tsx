@@ -92,7 +92,7 @@ interface View {
 /** Series styles: muted line colours with distinct dash patterns (colour is not the only difference). */
 const STYLES = [
   { line: '#2d3a42', fill: 'rgba(45,58,66,0.16)', dash: [] as number[], name: 'solid' },
-  { line: '#2f6f73', fill: 'rgba(47,111,115,0.16)', dash: [7, 4], name: 'dashed' },
+  { line: '#1d5f8a', fill: 'rgba(29,95,138,0.16)', dash: [7, 4], name: 'dashed' },
   { line: '#5b4f8a', fill: 'rgba(91,79,138,0.14)', dash: [2, 3], name: 'dotted' },
   { line: '#6b5a2e', fill: 'rgba(107,90,46,0.14)', dash: [10, 3, 2, 3], name: 'dash-dot' },
   { line: '#3f5f3f', fill: 'rgba(63,95,63,0.14)', dash: [14, 4], name: 'long dash' },
@@ -340,13 +340,14 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
             type: 'box',
             yMin: b.min,
             yMax: b.max,
-            backgroundColor: 'rgba(47,111,115,0.07)',
+            // Only the first channel's window is shaded; the others are drawn as limit lines in their series' style.
+            backgroundColor: i === 0 ? 'rgba(47,111,115,0.07)' : 'rgba(0,0,0,0)',
             borderWidth: 0,
             label: {
               display: k === 0 && i < 3,
               content: `${ch.name}: window ${b.label} ${b.min}–${b.max} ${ch.unit}${b.lowApplies === 'soak' ? ' (low limit in soak only)' : b.lowApplies === 'load' ? ' (low limit while loaded)' : ''}`,
               position: { x: 'start', y: 'start' },
-              color: '#1f4e51',
+              color: i === 0 ? '#1f4e51' : style.line,
               font: { size: 11 },
               padding: 3,
             },
@@ -356,7 +357,7 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
             ['hi', b.max, [6, 4]],
             ...(b.target !== null ? [['tg', b.target, [1, 3]] as const] : []),
           ] as const) {
-            annotations[`w${id}-${k}-${key}`] = { ...base, type: 'line', yMin: y, yMax: y, borderColor: style.line === '#2d3a42' ? '#2f6f73' : style.line, borderWidth: 1, borderDash: dash };
+            annotations[`w${id}-${k}-${key}`] = { ...base, type: 'line', yMin: y, yMax: y, borderColor: i === 0 ? '#2f6f73' : style.line, borderWidth: i === 0 ? 1 : 1.4, borderDash: dash };
           }
         });
         windowChanges(bands).forEach((c, k) => {

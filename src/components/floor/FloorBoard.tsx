@@ -21,7 +21,7 @@ import {
   type LiveReading,
 } from '../../lib/shared/floor.ts';
 import type { ReadingsResponse } from '../../lib/shared/telemetry.ts';
-import { formatAge, formatClock, formatMinutes, formatSiteTime } from '../../lib/shared/time.ts';
+import { formatAge, formatClock, formatMinutes, formatSiteTime, siteDate } from '../../lib/shared/time.ts';
 import { placeOnBand, shapeReadings, type ChartPoint } from '../../lib/shared/trend.ts';
 
 const SPARK_MS = 60 * 60_000;
@@ -239,8 +239,8 @@ function Tile(props: {
       {tile.kind === 'oven' && <LoadLine tile={tile} now={now} tz={tz} wall={wall} tone={tone} />}
       {tile.alarms.length > 0 && (
         <ul className={`mt-2 space-y-0.5 ${wall ? 'text-lg' : 'text-sm'}`} aria-label={`Open alarms on ${tile.name}`}>
-          {tile.alarms.slice(0, wall ? 2 : 3).map((a) => (
-            <li key={a.id} style={{ color: tone[a.priority === 'medium' ? 'med' : a.priority] }}>
+          {tile.alarms.slice(0, wall ? 1 : 3).map((a) => (
+            <li key={a.id} className={wall ? 'truncate' : ''} style={{ color: tone[a.priority === 'medium' ? 'med' : a.priority] }} title={a.message}>
               <span aria-hidden="true">{PRIORITY_SHAPE[a.priority]}</span> <span className="font-bold">{PRIORITY_WORD[a.priority].toUpperCase()}</span>{' '}
               <span style={{ color: tone.ink }}>{a.message}</span>
               {a.state === 'unacked' || a.state === 'rtn-unacked' ? <span style={{ color: tone.normal }}> · not acknowledged</span> : null}
@@ -311,7 +311,9 @@ function LoadLine({ tile, now, tz, wall, tone }: { tile: FloorTile; now: number;
       · <span className="font-bold">{PHASE_WORDS[l.phase]}</span>
       {l.setpointC !== null ? <> at setpoint {l.setpointC.toFixed(0)} °C</> : null}
       {l.phase === 'soak' && soakMin !== null ? <> · soak {formatMinutes(soakMin)}</> : null}
-      {l.predictedEndMs !== null ? <> · predicted end {formatSiteTime(l.predictedEndMs, tz)}</> : null}
+      {l.predictedEndMs !== null ? (
+        <> · predicted end {siteDate(l.predictedEndMs, tz) === siteDate(now, tz) ? formatClock(l.predictedEndMs, tz) : formatSiteTime(l.predictedEndMs, tz)}</>
+      ) : null}
       <span style={{ color: tone.normal }}>
         {' '}
         · open {formatMinutes((now - l.openedAtMs) / 60_000)} · {l.jobs} job{l.jobs === 1 ? '' : 's'}
@@ -342,14 +344,56 @@ function ChannelRow(props: {
   const colour = abnormal ? tone.high : tone.ink;
   const valueText = latest ? formatValue(latest.value, c.unit, c.kind, span) : '—';
   const ageText = latest ? `${formatAge(now - latest.tMs)} ago` : 'no reading yet';
+  const stateWords = (
+    <>
+      {state === 'high' && !stale && <StateWord shape="▲" word="HIGH" colour={tone.high} wall={wall} />}
+      {state === 'low' && !stale && <StateWord shape="▼" word="LOW" colour={tone.high} wall={wall} />}
+      {doorOpenInSoak && !stale && <StateWord shape="◆" word="OPEN IN SOAK" colour={tone.high} wall={wall} />}
+      {stale && <StateWord shape="◌" word={latest ? 'NO DATA' : 'NO DATA YET'} colour={tone.med} wall={wall} />}
+    </>
+  );
+  const valueEl = (
+    <span
+      className={`num font-bold leading-tight ${wall ? 'text-4xl' : 'text-2xl'}`}
+      style={{ color: stale ? tone.faint : colour, textDecoration: stale && latest ? 'line-through' : undefined }}
+      data-value={latest ? String(latest.value) : ''}
+    >
+      {valueText}
+    </span>
+  );
+  if (wall) {
+    // Wall display: the name on one line; band, the value (large) and the trend on the next.
+    return (
+      <li className="py-1" data-channel={c.id}>
+        <div className="flex flex-wrap items-baseline gap-x-2 text-base leading-tight">
+          <span className="font-bold" style={{ color: tone.normal }}>
+            {c.shortName}
+          </span>
+          <span style={{ color: tone.faint }} data-age>
+            {ageText}
+          </span>
+          {c.alarms > 0 && c.alarmPriority && (
+            <span className="font-bold" style={{ color: tone[c.alarmPriority === 'medium' ? 'med' : c.alarmPriority] }}>
+              <span aria-hidden="true">{PRIORITY_SHAPE[c.alarmPriority]}</span> alarm
+            </span>
+          )}
+          {stateWords}
+        </div>
+        <div className="grid grid-cols-[minmax(0,1fr)_auto_auto] items-center gap-x-3">
+          <div className="min-w-[60px]">{c.kind !== 'door' && band && latest && <Band c={c} band={band} value={latest.value} tone={tone} wall={wall} abnormal={abnormal && !stale} />}</div>
+          <div className="text-right">{valueEl}</div>
+          <Spark c={c} points={props.spark} state={props.sparkState} now={now} tone={tone} wall={wall} />
+        </div>
+      </li>
+    );
+  }
   return (
-    <li className={`grid grid-cols-[minmax(0,1fr)_auto] items-center gap-x-3 ${wall ? 'py-1.5' : 'py-2'}`} data-channel={c.id}>
+    <li className="grid grid-cols-[minmax(0,1fr)_auto] items-center gap-x-3 py-2" data-channel={c.id}>
       <div className="min-w-0">
-        <div className={`flex flex-wrap items-baseline gap-x-2 ${wall ? 'text-base' : 'text-sm'}`}>
+        <div className="flex flex-wrap items-baseline gap-x-2 text-sm">
           <a href={`/charts/channel/${c.id}`} className="truncate font-bold" style={{ color: tone.normal }} title={c.name}>
             {c.shortName}
           </a>
-          {wall && <span style={{ color: tone.faint }}>{ageText}</span>}
           {c.alarms > 0 && c.alarmPriority && (
             <span className="font-bold" style={{ color: tone[c.alarmPriority === 'medium' ? 'med' : c.alarmPriority] }}>
               <span aria-hidden="true">{PRIORITY_SHAPE[c.alarmPriority]}</span> alarm
@@ -357,20 +401,11 @@ function ChannelRow(props: {
           )}
         </div>
         <div className="flex flex-wrap items-baseline gap-x-2">
-          <span
-            className={`num font-bold leading-tight ${wall ? 'text-4xl' : 'text-2xl'}`}
-            style={{ color: stale ? tone.faint : colour, textDecoration: stale && latest ? 'line-through' : undefined }}
-            data-value={latest ? String(latest.value) : ''}
-          >
-            {valueText}
-          </span>
-          {state === 'high' && !stale && <StateWord shape="▲" word="HIGH" colour={tone.high} wall={wall} />}
-          {state === 'low' && !stale && <StateWord shape="▼" word="LOW" colour={tone.high} wall={wall} />}
-          {doorOpenInSoak && !stale && <StateWord shape="◆" word="OPEN IN SOAK" colour={tone.high} wall={wall} />}
-          {stale && <StateWord shape="◌" word={latest ? 'NO DATA' : 'NO DATA YET'} colour={tone.med} wall={wall} />}
+          {valueEl}
+          {stateWords}
         </div>
         {c.kind !== 'door' && band && latest && <Band c={c} band={band} value={latest.value} tone={tone} wall={wall} abnormal={abnormal && !stale} />}
-        <div className={wall ? 'sr-only' : 'text-xs'} style={{ color: tone.normal }}>
+        <div className="text-xs" style={{ color: tone.normal }}>
           {c.window ? (
             <>
               window {c.window.min}–{c.window.max} {c.unit}
@@ -392,7 +427,7 @@ function ChannelRow(props: {
 
 function StateWord({ shape, word, colour, wall }: { shape: string; word: string; colour: string; wall: boolean }) {
   return (
-    <span className={`font-bold ${wall ? 'text-2xl' : 'text-sm'}`} style={{ color: colour }}>
+    <span className={`font-bold ${wall ? 'text-lg' : 'text-sm'}`} style={{ color: colour }}>
       <span aria-hidden="true">{shape}</span> {word}
     </span>
   );
@@ -401,7 +436,7 @@ function StateWord({ shape, word, colour, wall }: { shape: string; word: string;
 /** Where the value sits between its window limits (or in the channel range when there is no window). */
 function Band({ c, band, value, tone, wall, abnormal }: { c: FloorChannel; band: ReturnType<typeof placeOnBand>; value: number; tone: Tone; wall: boolean; abnormal: boolean }) {
   const W = 100;
-  const H = wall ? 16 : 12;
+  const H = wall ? 20 : 12;
   const x = band.at * W;
   const label = c.window
     ? `${c.shortName} ${value} ${c.unit}; window ${c.window.min} to ${c.window.max} ${c.unit}; ${band.state === 'normal' ? 'inside the window' : band.state === 'high' ? 'above the window' : 'below the window'}`
@@ -424,8 +459,8 @@ function Band({ c, band, value, tone, wall, abnormal }: { c: FloorChannel; band:
 }
 
 function Spark({ c, points, state, now, tone, wall }: { c: FloorChannel; points: ChartPoint[]; state: 'loading' | 'ready' | 'error'; now: number; tone: Tone; wall: boolean }) {
-  const W = wall ? 150 : 120;
-  const H = wall ? 46 : 40;
+  const W = wall ? 130 : 120;
+  const H = wall ? 40 : 40;
   const ys = points.flatMap((p) => (p.y === null ? [] : [p.y]));
   if (ys.length === 0) {
     return (
