@@ -154,6 +154,15 @@ describe('bad messages are refused with their reason; the good ones around them 
     expect(rj.body.items.some((x: { topic: string }) => x.topic === ch.topic)).toBe(true);
     expect((await api('/api/v1/ingest/rejections?reason=nonsense', { session: engineer })).status).toBe(400);
     expect((await api('/api/v1/ingest/rejections', { session: await signIn('operator') })).status).toBe(403);
+
+    // The Ingest screen (engineers): the unknown topic is listed, the refused-messages island is mounted.
+    const page = await api('/ingest', { session: engineer });
+    expect(page.status).toBe(200);
+    expect(page.body).toContain('Topics waiting for a channel');
+    expect(page.body).toContain(dev.topic('nope'));
+    expect(page.body).toContain('RefusedMessages');
+    expect((await api('/ingest', { session: await signIn('operator') })).status).toBe(403);
+    expect((await api('/ingest')).status).toBe(302);
   });
 
   it('stores the good samples of a batch and refuses only the bad ones, saying which', async () => {

@@ -29,7 +29,7 @@ const ISO_WITH_ZONE = /^\d{4}-\d{2}-\d{2}[T ]\d{2}:\d{2}(:\d{2}(\.\d{1,9})?)?(Z|
 /** A timestamp: ISO 8601 with zone or epoch ms → epoch ms (integer ms; sub-ms digits are rounded). */
 export const SampleTimeSchema = z
   .union([
-    z.number().finite(),
+    z.number(),
     z.string().regex(ISO_WITH_ZONE, 'an ISO 8601 time needs a zone designator (Z or ±hh:mm)'),
   ])
   .transform((t, ctx) => {
@@ -50,7 +50,7 @@ const UnitSchema = z.string().min(1).max(32);
 
 export const SampleSchema = z.object({
   t: SampleTimeSchema,
-  v: z.number().finite(),
+  v: z.number(),
   q: QualitySchema.optional(),
   u: UnitSchema.optional(),
 });
