@@ -7,8 +7,10 @@
  * - Line 1 withdrawal speed: one point per dip stroke (the line gateway publishes one mean per
  *   stroke), individuals chart, Western Electric rules 1–4, spec from the process window.
  * - Line 1 bath viscosity: one point per hourly check of the in-line viscometer, individuals
- *   chart, rule 1 only (the bath drifts between solvent top-ups, so run rules would only restate
- *   the drift; the capability panel's autocorrelation warning says so), spec from the window.
+ *   chart, rule 1 only, σ from the overall spread of the baseline: the bath drifts by design
+ *   between solvent top-ups (a sawtooth), so limits from the short-term σ would flag nearly every
+ *   check; these limits flag an excursion beyond the usual sawtooth (a missed top-up). The
+ *   capability panel's autocorrelation warning says why. Spec from the window.
  * - Oven A soak temperature: one point per oven load, the mean of both zone thermocouples over
  *   the soak (from the loads' cure records when loads are seeded, else from the plant model's
  *   cycle list that generated the history), individuals chart, WE 1–4.
@@ -71,6 +73,7 @@ export const DEMO_CHARACTERISTICS: DemoCharacteristic[] = [
       subgroupRule: { kind: 'per-manual-check', minSpacingMinutes: 60 },
       subgroupSize: 1,
       chart: 'imr',
+      chartParams: { sigmaBasis: 'overall' },
       rules: ['we1'],
       spec: { mode: 'window', key: 'viscosityMm2S' },
       unit: 'mm²/s',

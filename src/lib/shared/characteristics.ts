@@ -170,6 +170,13 @@ export const ChartParamsSchema = z
     k: z.number().min(0).max(10).optional(),
     h: z.number().positive().max(50).optional(),
     headStart: z.number().min(0).optional(),
+    /**
+     * Where σ comes from: `within` (default; R̄/d2, s̄/c4 or MR̄/d2 — Shewhart's short-term
+     * variation) or `overall` (the sample standard deviation of the baseline's observations). Use
+     * `overall` only for a characteristic that drifts by design between adjustments (a bath
+     * topped up by hand): its limits then mark unusual excursions, not the drift itself.
+     */
+    sigmaBasis: z.enum(['within', 'overall']).optional(),
   })
   .strict();
 export type ChartParams = z.infer<typeof ChartParamsSchema>;

@@ -13,8 +13,10 @@
  * - Capability: on the included observations, σ_within from the chart, against the spec.
  */
 import { capabilityStudy } from '../spc/capability.ts';
+import { sampleSd } from '../spc/math.ts';
 import { evaluateAgainstLimitSet, evaluateSpc, limitSetFromEvaluation } from '../spc/evaluate.ts';
-import { estimateShewhartLimits, shewhartStatistics, type ShewhartChart } from '../spc/shewhart.ts';
+import { suggestExclusions } from '../spc/phase1.ts';
+import { estimateShewhartLimits, shewhartOutsideReason, shewhartStatistics, standardsGivenLimits, type ShewhartChart } from '../spc/shewhart.ts';
 import type { ChartParams, CharacteristicChart, SpecLimits } from '../../shared/characteristics.ts';
 import {
   SpcEvaluateInputSchema,
@@ -81,6 +83,23 @@ export function runStudy(design: StudyDesign, subgroups: readonly (readonly numb
     throw new StudyError('baselineFrom', `The baseline cannot be charted: ${first?.message ?? 'invalid data'}.`);
   }
   const whole = evaluateSpc(parsed.data);
+  const n = subgroups[0]?.length ?? 1;
+  const underlying: ShewhartChart = chart === 'imr' || chart === 'xbar-r' || chart === 'xbar-s' ? chart : n > 1 ? 'xbar-r' : 'imr';
+  const stats = shewhartStatistics(underlying, dataFor(underlying, subgroups));
+  // Suggestions: the library's iteration; with an overall σ basis, the same iteration (the
+  // library's `suggestExclusions`) on limits from the overall σ of the remaining points.
+  const suggested =
+    params.sigmaBasis === 'overall'
+      ? suggestExclusions(
+          stats.map((_, i) => i),
+          (inc) => {
+            const obs = inc.flatMap((i) => [...(subgroups[i] ?? [])]);
+            const centre = inc.reduce((a, i) => a + stats[i]!.value, 0) / Math.max(1, inc.length);
+            return standardsGivenLimits(underlying, centre, sampleSd(obs), n);
+          },
+          (ls, i) => (ls.sigma !== null && ls.sigma > 0 && stats[i] ? shewhartOutsideReason(ls, stats[i]!) : null),
+        )
+      : (whole.phase1?.suggestedExclusions ?? []);
 
   const included: number[] = [];
   for (let i = 0; i < subgroups.length; i += 1) if (!excluded.has(i + 1)) included.push(i);
@@ -90,9 +109,6 @@ export function runStudy(design: StudyDesign, subgroups: readonly (readonly numb
   if (included.length < STUDY_MIN_POINTS) {
     throw new StudyError('exclusions', `At least ${STUDY_MIN_POINTS} points must remain to set limits; ${included.length} remain.`);
   }
-  const n = subgroups[0]?.length ?? 1;
-  const underlying: ShewhartChart = chart === 'imr' || chart === 'xbar-r' || chart === 'xbar-s' ? chart : n > 1 ? 'xbar-r' : 'imr';
-  const stats = shewhartStatistics(underlying, dataFor(underlying, subgroups));
   const est = estimateShewhartLimits(underlying, stats, included);
   if (!(est.sigma !== null && est.sigma > 0)) {
     throw new StudyError(
@@ -104,7 +120,20 @@ export function runStudy(design: StudyDesign, subgroups: readonly (readonly numb
   }
   let limitSet: SpcLimitSet;
   let evaluation: Pick<SpcEvaluateOutput, 'parameters' | 'notes'>;
-  if (chart === 'imr' || chart === 'xbar-r' || chart === 'xbar-s') {
+  const extraNotes: string[] = [];
+  if (params.sigmaBasis === 'overall') {
+    // σ from the overall sample standard deviation of the included observations, limits as
+    // "standards given" (centre ± 3σ/√n with the matching dispersion limits): for characteristics
+    // that drift by design between adjustments.
+    const overall = sampleSd(included.flatMap((i) => [...(subgroups[i] ?? [])]));
+    if (!(overall > 0)) throw new StudyError('exclusions', 'The included points give no spread (all values equal).');
+    const given = evaluateSpc(SpcEvaluateInputSchema.parse({ ...request, target: est.center, sigma: overall }));
+    limitSet = limitSetFromEvaluation(given);
+    evaluation = { parameters: { ...given.parameters, centerSource: 'phase1', sigmaSource: 'phase1' }, notes: given.notes };
+    extraNotes.push(
+      `σ here is the overall standard deviation of the baseline (${Number(overall.toPrecision(4))}), not the short-term σ within (${Number(est.sigma.toPrecision(4))}): the limits mark unusual excursions of a process that drifts by design between adjustments, not the drift itself.`,
+    );
+  } else if (chart === 'imr' || chart === 'xbar-r' || chart === 'xbar-s') {
     const { centerSource, sigmaSource, ...ls } = est;
     void centerSource;
     void sigmaSource;
@@ -126,9 +155,9 @@ export function runStudy(design: StudyDesign, subgroups: readonly (readonly numb
     const observations = included.flatMap((i) => [...(subgroups[i] ?? [])]);
     capability = capabilityStudy(observations, est.sigma, spec, { series: included.map((i) => stats[i]!.value) });
   }
-  const notes: string[] = [];
+  const notes: string[] = [...extraNotes];
   if (included.length < STUDY_RECOMMENDED_POINTS) {
     notes.push(`Only ${included.length} points set these limits; ${STUDY_RECOMMENDED_POINTS}–25 are recommended for trial limits (Montgomery §6.2.1).`);
   }
-  return { limitSet, points, suggested: whole.phase1?.suggestedExclusions ?? [], capability, includedPoints: included.length, notes, evaluation };
+  return { limitSet, points, suggested, capability, includedPoints: included.length, notes, evaluation };
 }

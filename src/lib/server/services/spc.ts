@@ -213,8 +213,10 @@ function capabilityOfPoints(c: Characteristic, points: (ChartPoint & { members?:
   if (used.length < 2) return { capability: null, basis: 'Too few points for a capability estimate.' };
   const newest = used[used.length - 1]!;
   const set = setInForceAt(setsInForceOrder(sets), newest.tMs);
-  let sigma = set?.sigma ?? null;
-  let sigmaFrom = set ? `limit set v${set.version}` : '';
+  // With an overall σ basis the set's σ is not the within-subgroup σ that Cp needs: estimate it.
+  const withinFromSet = c.chartParams.sigmaBasis !== 'overall';
+  let sigma = withinFromSet ? (set?.sigma ?? null) : null;
+  let sigmaFrom = set && withinFromSet ? `limit set v${set.version}` : '';
   if (sigma === null || !(sigma > 0)) {
     const u = underlyingChart(c);
     const groups = used.map((p) => p.members!);
@@ -452,4 +454,29 @@ export async function limitSetFor(id: number, setId: number): Promise<LimitSetVi
   const s = await getLimitSet(pgPool(), setId);
   if (!s || s.characteristicId !== id) throw new HttpProblem(404, 'Not found', 'No such limit set for this characteristic.');
   return s;
+}
+
+/** What the printable capability report needs: the observations behind the capability summary. */
+export async function capabilityReport(id: number, last: number) {
+  const c = await getCharacteristic(id);
+  const pool = pgPool();
+  const [points, sets, timeZone] = await Promise.all([pointsWithMembers(id, last), limitSetsOf(pool, id), siteTimeZone()]);
+  const newest = points[points.length - 1];
+  const { spec, note } = await resolveSpec(pool, c, newest?.tMs ?? Date.now());
+  const cap = capabilityOfPoints(c, points, sets, spec);
+  const used = points.filter((p) => !p.excluded);
+  return {
+    characteristic: c,
+    observations: used.flatMap((p) => p.members),
+    pointsUsed: used.length,
+    excludedPoints: points.length - used.length,
+    fromMs: points[0]?.tMs ?? null,
+    toMs: newest?.tMs ?? null,
+    spec,
+    specNote: note,
+    capability: cap.capability,
+    basis: cap.basis,
+    inForce: setInForceAt(setsInForceOrder(sets), newest?.tMs ?? Date.now()),
+    timeZone,
+  };
 }
