@@ -50,7 +50,7 @@ export default function WindowBar({ value, min, max, target, unit, label, digits
         {target !== undefined && <rect x={at(target) * W - 0.25} y={H * 0.05} width={0.5} height={H * 0.9} fill="#4a545b" />}
         {value !== null &&
           (state === 'in' ? (
-            <rect x={x - 0.9} y={0} width={1.8} height={H} fill={colour} />
+            <rect x={x - 0.6} y={0} width={1.2} height={H} fill={colour} />
           ) : (
             <polygon
               points={state === 'high' ? `${x - 2.4},0 ${x - 2.4},${H} ${x},${H / 2}` : `${x + 2.4},0 ${x + 2.4},${H} ${x},${H / 2}`}

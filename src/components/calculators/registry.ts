@@ -1,0 +1,112 @@
+/** The calculators: page slug, API path, what each model is, its sources and the limits of its validity. */
+export interface CalculatorInfo {
+  slug: string;
+  title: string;
+  summary: string;
+  endpoint: string;
+  sources: string[];
+  validity: string;
+}
+
+export const MODEL_CAUTION =
+  'Estimates within their stated validity. The lacquer maker’s data and the lab’s own validation govern limits, cure schedules and additions.';
+
+export const CALCULATORS: CalculatorInfo[] = [
+  {
+    slug: 'dip-thickness',
+    title: 'Dip-coat film thickness',
+    summary: 'Wet and dry film thickness from viscosity and withdrawal speed (Landau–Levich), with the capillary number and regime.',
+    endpoint: '/api/v1/calc/dip-thickness',
+    sources: ['L. Landau & B. Levich, Acta Physicochimica URSS 17 (1942) 42–54', 'C. J. Brinker & G. W. Scherer, Sol-Gel Science (1990), ch. 13'],
+    validity:
+      'Newtonian liquid, a lens the lacquer wets, steady withdrawal, and capillary number Ca = ηU/γ ≤ 10⁻² (a common-practice bound); above it the gravity–viscous estimate is shown with a warning. Dry thickness = wet × solids volume fraction ignores shrinkage beyond solvent loss.',
+  },
+  {
+    slug: 'speed-advisor',
+    title: 'Withdrawal-speed advisor',
+    summary: 'The withdrawal speed that gives the target thickness at the bath’s current viscosity.',
+    endpoint: '/api/v1/calc/speed-advisor',
+    sources: ['Landau & Levich 1942 (inverted)', 'Brinker & Scherer 1990, ch. 13'],
+    validity:
+      'Inverts the same film law as the dip-thickness calculator; with a calibrated constant the lab’s own fit replaces the theory and holds only over the speeds and viscosities it was fitted on.',
+  },
+  {
+    slug: 'calibration',
+    title: 'Thickness-constant calibration',
+    summary: 'Fit h = C·(ηU)^k to measured thickness against speed and viscosity by least squares, with its fit quality.',
+    endpoint: '/api/v1/calc/calibration',
+    sources: ['Landau & Levich 1942 (exponent 2/3)', 'Ordinary least squares in log space (simple-statistics)'],
+    validity: 'Valid between the lowest and highest ηU of the measurements; r² and the residual spread say how well the law fits your lacquer.',
+  },
+  {
+    slug: 'viscosity-cup',
+    title: 'Viscosity from a flow cup',
+    summary: 'Efflux seconds → kinematic viscosity (and dynamic with a density) for Zahn, Shell, Ford, ISO 2431 and DIN 4 mm cups.',
+    endpoint: '/api/v1/calc/viscosity-cup',
+    sources: ['ASTM D4212 (Zahn, Shell)', 'ASTM D1200 (Ford)', 'ISO 2431', 'DIN 53211 (withdrawn)'],
+    validity:
+      'Each cup only inside its valid efflux window; outside it the answer is “out of range — use another cup”, never an extrapolation. Some constants are marked “from memory” where they could not be checked against the standard’s text.',
+  },
+  {
+    slug: 'bath-addition',
+    title: 'Bath addition',
+    summary: 'Solvent or fresh lacquer to bring the bath’s solids back to target, by mass balance.',
+    endpoint: '/api/v1/calc/bath-addition',
+    sources: ['Steady-state solids mass balance (e.g. Himmelblau, Basic Principles and Calculations in Chemical Engineering)'],
+    validity: 'Assumes perfect mixing and that solvent carries no solids; the solids reading and the bath mass limit its accuracy.',
+  },
+  {
+    slug: 'cure-equivalent',
+    title: 'Equivalent cure minutes',
+    summary: 'Arrhenius equivalent minutes at a reference temperature for a temperature profile, and time at or above a temperature.',
+    endpoint: '/api/v1/calc/cure-equivalent',
+    sources: ['ASTM C1074 equivalent-age function (interval mean temperature)', 'Arrhenius law; R = 8.314462618 J/(mol·K)'],
+    validity: 'The activation energy must come from the lacquer maker or the lab’s validation; the sum assumes one rate-limiting reaction over the profile’s temperatures.',
+  },
+  {
+    slug: 'activation-energy',
+    title: 'Activation energy from two schedules',
+    summary: 'The activation energy that makes two isothermal cure schedules equivalent.',
+    endpoint: '/api/v1/calc/activation-energy',
+    sources: ['Arrhenius law: Ea = R·ln(tA/tB)/(1/TA − 1/TB)'],
+    validity: 'Only as good as the claim that the two schedules give the same cure; the hotter schedule must be the shorter one.',
+  },
+  {
+    slug: 'fringe-thickness',
+    title: 'Thickness from reflectance fringes',
+    summary: 'Coat thickness from two interference extrema, or from an uploaded reflectance spectrum.',
+    endpoint: '/api/v1/calc/fringe-thickness',
+    sources: ['H. A. Macleod, Thin-Film Optical Filters (normal incidence, non-absorbing film)'],
+    validity: 'Normal incidence, a non-absorbing coat, dispersion neglected. An index-matched coat shows too little contrast to measure, and the calculator says so.',
+  },
+  {
+    slug: 'crosscut',
+    title: 'Cross-cut class',
+    summary: 'Percent of the lattice removed → ISO 2409 class and ASTM D3359 method B class.',
+    endpoint: '/api/v1/calc/crosscut',
+    sources: ['ISO 2409 Table 1', 'ASTM D3359 method B'],
+    validity: 'Classification of the estimated area removed; the estimate itself comes from the inspector against the standards’ pictures.',
+  },
+  {
+    slug: 'abrasion',
+    title: 'Bayer abrasion ratio',
+    summary: 'Reference haze gain ÷ test haze gain.',
+    endpoint: '/api/v1/calc/abrasion',
+    sources: ['ASTM F735'],
+    validity: 'Compares lenses abraded in the same run against the uncoated CR-39 reference; ≥ 4 is called premium by common practice.',
+  },
+  {
+    slug: 'uniformity',
+    title: 'Oven uniformity survey',
+    summary: 'Hottest and coldest deviation from setpoint over a multi-sensor survey and the uniformity class.',
+    endpoint: '/api/v1/calc/uniformity',
+    sources: ['SAE AMS2750G furnace classes (used as a published template)'],
+    validity: 'Readings should cover the stabilised soak and carry each sensor’s calibration correction; the class table is a template, configurable per site.',
+  },
+];
+
+export function calculator(slug: string): CalculatorInfo {
+  const c = CALCULATORS.find((x) => x.slug === slug);
+  if (!c) throw new Error(`no calculator ${slug}`);
+  return c;
+}
