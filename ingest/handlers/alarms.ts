@@ -66,7 +66,7 @@ import {
   clearAlarmReturning,
   expireShelves,
   getAlarm,
-  raiseAlarm,
+  raiseAlarmReturning,
   recordEscalation,
   releaseEscalation,
   type RaiseAlarmInput,
@@ -187,8 +187,8 @@ export function createAlarmsHandler(): PostCommitHandler {
   }
 
   async function raise(ctx: WorkerContext, input: RaiseAlarmInput): Promise<void> {
-    const { id } = await raiseAlarm(ctx.pool, input);
-    await publish(ctx, id);
+    const r = await raiseAlarmReturning(ctx.pool, input);
+    ctx.publishLive('alarms', r.alarm);
   }
 
   async function clear(ctx: WorkerContext, sourceKey: string, atMs: number): Promise<void> {

@@ -157,6 +157,21 @@ async function insertEvent(
 
 const SYSTEM = { role: 'system' as const };
 
+/** Select the view of the rows of a data-modifying CTE named `changed` (joins for names). */
+const VIEW_OF_CHANGED = `select ${COLUMNS} from changed a left join users u on u.id = a.acked_by left join assets ast on ast.id = a.asset_id`;
+
+/** The row's state as the domain's transition reads it, and the optimistic guard on it. */
+const GUARD = `state = $2 and active = $3
+  and date_trunc('milliseconds', shelved_until) is not distinct from to_timestamp($4::float8 / 1000.0)`;
+
+function guardParams(r: AlarmRow): [AlarmState, boolean, number | null] {
+  return [r.state, r.active, ms(r.shelved_until)];
+}
+
+function isUniqueViolation(e: unknown): boolean {
+  return (e as { code?: string }).code === '23505';
+}
+
 /**
  * Report that a source's condition is abnormal. Creates an alarm (state `unacked`) when the
  * source has none open; otherwise applies `activate` to the open one: a returned-to-normal
@@ -166,65 +181,100 @@ const SYSTEM = { role: 'system' as const };
  * of an already active alarm writes none (no rows per sample).
  */
 export async function raiseAlarm(pool: pg.Pool, input: RaiseAlarmInput): Promise<{ id: number; created: boolean }> {
-  for (let attempt = 0; ; attempt++) {
-    try {
-      return await withTx(pool, (c) => raiseInTx(c, input));
-    } catch (e) {
-      // Two processes raising the same new source at once: the loser retries and updates.
-      if ((e as { code?: string }).code === '23505' && attempt < 2) continue;
-      throw e;
-    }
-  }
+  const r = await raiseAlarmReturning(pool, input);
+  return { id: r.alarm.id, created: r.created };
 }
 
-async function raiseInTx(c: pg.PoolClient, input: RaiseAlarmInput): Promise<{ id: number; created: boolean }> {
-  const open = await selectOne(c, `a.source_key = $1 and a.state <> 'normal'`, [input.sourceKey], true);
-  if (!open) {
-    const t = transition<AlarmRecord>({ state: 'normal', active: false }, { type: 'activate' }, { nowMs: input.atMs, ...SYSTEM });
-    if (!t.ok) throw new Error(`alarm store: ${t.reason}`);
-    const res = await c.query<{ id: number }>(
-      `insert into alarms (source_kind, source_key, source_label, asset_id, channel_id, characteristic_id, load_id,
-         priority, message, value, limit_value, state, active, raised_at, last_activated_at)
-       values ($1,$2,$3,$4,$5,$6,$7,$8,$9,$10,$11,$12,$13, to_timestamp($14 / 1000.0), to_timestamp($14 / 1000.0))
-       returning id`,
-      [
-        input.sourceKind,
-        input.sourceKey,
-        input.sourceLabel,
-        input.assetId ?? null,
-        input.channelId ?? null,
-        input.characteristicId ?? null,
-        input.loadId ?? null,
-        input.priority,
-        input.message,
-        finiteOrNull(input.value),
-        finiteOrNull(input.limit),
-        t.alarm.state,
-        t.alarm.active,
-        input.atMs,
-      ],
-    );
-    const id = res.rows[0]!.id;
-    await insertEvent(c, id, input.atMs, 'activate', 'normal', t.alarm.state, true, null, input.message);
-    return { id, created: true };
+/**
+ * {@link raiseAlarm}, returning the alarm as it now is (for the caller's live event) and
+ * whether the raise changed its state or activation (false for a plain update of an active alarm).
+ *
+ * Each write is one statement (the alarm row and its event together, atomically), guarded by
+ * the state the domain's `transition` was computed from; if another process changed the alarm
+ * in between, the statement touches nothing and the raise is computed again.
+ */
+export async function raiseAlarmReturning(
+  pool: pg.Pool,
+  input: RaiseAlarmInput,
+): Promise<{ alarm: AlarmView; created: boolean; activated: boolean }> {
+  for (let attempt = 0; attempt < 20; attempt++) {
+    const open = await selectOne(pool, `a.source_key = $1 and a.state <> 'normal'`, [input.sourceKey]);
+    try {
+      const out = open ? await reactivate(pool, open, input) : await insertNew(pool, input);
+      if (out) return out;
+    } catch (e) {
+      // Two processes raising the same new source at once: the loser tries again and updates.
+      if (!isUniqueViolation(e)) throw e;
+    }
   }
+  throw new Error(`alarm store: could not raise ${input.sourceKey} (kept changing under us)`);
+}
+
+async function insertNew(pool: pg.Pool, input: RaiseAlarmInput): Promise<{ alarm: AlarmView; created: boolean; activated: boolean }> {
+  const t = transition<AlarmRecord>({ state: 'normal', active: false }, { type: 'activate' }, { nowMs: input.atMs, ...SYSTEM });
+  if (!t.ok) throw new Error(`alarm store: ${t.reason}`);
+  const res = await pool.query<AlarmRow>(
+    `with changed as (
+       insert into alarms (source_kind, source_key, source_label, asset_id, channel_id, characteristic_id, load_id,
+         priority, message, value, limit_value, state, active, raised_at, last_activated_at)
+       values ($1,$2,$3,$4,$5,$6,$7,$8,$9,$10,$11,$12,$13, to_timestamp($14::float8 / 1000.0), to_timestamp($14::float8 / 1000.0))
+       returning *
+     ), ev as (
+       insert into alarm_events (alarm_id, at, event, from_state, to_state, active, comment)
+       select id, raised_at, 'activate', 'normal', state, true, message from changed
+     )
+     ${VIEW_OF_CHANGED}`,
+    [
+      input.sourceKind,
+      input.sourceKey,
+      input.sourceLabel,
+      input.assetId ?? null,
+      input.channelId ?? null,
+      input.characteristicId ?? null,
+      input.loadId ?? null,
+      input.priority,
+      input.message,
+      finiteOrNull(input.value),
+      finiteOrNull(input.limit),
+      t.alarm.state,
+      t.alarm.active,
+      input.atMs,
+    ],
+  );
+  return { alarm: toView(res.rows[0]!), created: true, activated: true };
+}
+
+async function reactivate(
+  pool: pg.Pool,
+  open: AlarmRow,
+  input: RaiseAlarmInput,
+): Promise<{ alarm: AlarmView; created: boolean; activated: boolean } | null> {
   const t = transition<AlarmRecord>(recordOf(open), { type: 'activate' }, { nowMs: input.atMs, ...SYSTEM });
   if (!t.ok) throw new Error(`alarm store: ${t.reason}`);
   const newActivation = !open.active;
-  await c.query(
-    `update alarms set state = $2, active = true, message = $3, value = $4, limit_value = $5, priority = $6,
-       source_label = $7, asset_id = coalesce($8, asset_id), channel_id = coalesce($9, channel_id),
-       characteristic_id = coalesce($10, characteristic_id), load_id = coalesce($11, load_id),
-       last_activated_at = case when $12 then to_timestamp($13 / 1000.0) else last_activated_at end,
-       activation_count = activation_count + case when $12 then 1 else 0 end,
-       cleared_at = case when $12 then null else cleared_at end,
-       acked_at = case when $2 = 'unacked' then null else acked_at end,
-       acked_by = case when $2 = 'unacked' then null else acked_by end,
-       escalation_steps_sent = case when $12 and $14 then '{}' else escalation_steps_sent end,
-       updated_at = now()
-     where id = $1`,
+  const res = await pool.query<AlarmRow>(
+    `with changed as (
+       update alarms set state = $5, active = true, message = $6, value = $7, limit_value = $8, priority = $9,
+         source_label = $10, asset_id = coalesce($11, asset_id), channel_id = coalesce($12, channel_id),
+         characteristic_id = coalesce($13, characteristic_id), load_id = coalesce($14, load_id),
+         last_activated_at = case when $15 then to_timestamp($16::float8 / 1000.0) else last_activated_at end,
+         activation_count = activation_count + case when $15 then 1 else 0 end,
+         cleared_at = case when $15 then null else cleared_at end,
+         acked_at = case when $5 = 'unacked' then null else acked_at end,
+         acked_by = case when $5 = 'unacked' then null else acked_by end,
+         -- A re-annunciated alarm (rtn-unacked → unacked) escalates again from its new activation.
+         escalation_steps_sent = case when $15 and $2 = 'rtn-unacked' then '{}' else escalation_steps_sent end,
+         updated_at = now()
+       where id = $1 and ${GUARD}
+       returning *
+     ), ev as (
+       insert into alarm_events (alarm_id, at, event, from_state, to_state, active, comment)
+       select id, to_timestamp($16::float8 / 1000.0), 'activate', $2, state, true, message from changed where $15
+     )
+     ${VIEW_OF_CHANGED}`,
     [
       open.id,
+      ...guardParams(open),
       t.alarm.state,
       input.message,
       finiteOrNull(input.value),
@@ -237,14 +287,10 @@ async function raiseInTx(c: pg.PoolClient, input: RaiseAlarmInput): Promise<{ id
       input.loadId ?? null,
       newActivation,
       input.atMs,
-      // A re-annunciated alarm (rtn-unacked → unacked) escalates again from its new activation.
-      open.state === 'rtn-unacked',
     ],
   );
-  if (newActivation) {
-    await insertEvent(c, open.id, input.atMs, 'activate', open.state, t.alarm.state, true, null, input.message);
-  }
-  return { id: open.id, created: false };
+  const row = res.rows[0];
+  return row ? { alarm: toView(row), created: false, activated: newActivation || t.changed } : null;
 }
 
 /**
@@ -259,18 +305,26 @@ export async function clearAlarm(pool: pg.Pool, sourceKey: string, atMs: number)
 
 /** {@link clearAlarm}, returning the alarm when it changed (for the caller's live event). */
 export async function clearAlarmReturning(pool: pg.Pool, sourceKey: string, atMs: number): Promise<AlarmView | null> {
-  return withTx(pool, async (c) => {
-    const open = await selectOne(c, `a.source_key = $1 and a.state <> 'normal'`, [sourceKey], true);
+  for (let attempt = 0; attempt < 20; attempt++) {
+    const open = await selectOne(pool, `a.source_key = $1 and a.state <> 'normal'`, [sourceKey]);
     if (!open || !open.active) return null;
     const t = transition<AlarmRecord>(recordOf(open), { type: 'clear' }, { nowMs: atMs, ...SYSTEM });
     if (!t.ok || !t.changed) return null;
-    await c.query(
-      `update alarms set state = $2, active = false, cleared_at = to_timestamp($3 / 1000.0), updated_at = now() where id = $1`,
-      [open.id, t.alarm.state, atMs],
+    const res = await pool.query<AlarmRow>(
+      `with changed as (
+         update alarms set state = $5, active = false, cleared_at = to_timestamp($6::float8 / 1000.0), updated_at = now()
+          where id = $1 and ${GUARD}
+         returning *
+       ), ev as (
+         insert into alarm_events (alarm_id, at, event, from_state, to_state, active)
+         select id, to_timestamp($6::float8 / 1000.0), 'clear', $2, state, false from changed
+       )
+       ${VIEW_OF_CHANGED}`,
+      [open.id, ...guardParams(open), t.alarm.state, atMs],
     );
-    await insertEvent(c, open.id, atMs, 'clear', open.state, t.alarm.state, false, null, null);
-    return toView((await selectOne(c, 'a.id = $1', [open.id]))!);
-  });
+    if (res.rows[0]) return toView(res.rows[0]);
+  }
+  throw new Error(`alarm store: could not clear ${sourceKey} (kept changing under us)`);
 }
 
 /** Who performs a transition and when. */
