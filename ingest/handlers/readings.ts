@@ -5,7 +5,7 @@
  * a reason; nothing is dropped silently and nothing here throws on bad input.
  */
 import { z } from 'zod';
-import { sameUnit, TelemetryPayloadSchema, type RejectionReason, type TelemetryPayload } from '../../src/lib/shared/telemetry.ts';
+import { parseTelemetryPayload, sameUnit, type RejectionReason, type TelemetryPayload } from '../../src/lib/shared/telemetry.ts';
 import type { ChannelMap } from '../channel-map.ts';
 import type { ParsedTopic } from '../topics.ts';
 
@@ -19,7 +19,7 @@ export function parseTelemetry(text: string): ParsedPayload {
   } catch (e) {
     return { ok: false, reason: 'malformed-json', detail: (e as Error).message.slice(0, 200) };
   }
-  const r = TelemetryPayloadSchema.safeParse(json);
+  const r = parseTelemetryPayload(json);
   if (!r.success) {
     return { ok: false, reason: 'schema', detail: z.prettifyError(r.error).replace(/\s*\n\s*/g, '; ').slice(0, 500) };
   }

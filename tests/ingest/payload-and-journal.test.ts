@@ -9,18 +9,25 @@ import path from 'node:path';
 import { afterEach, describe, expect, it } from 'vitest';
 import { Journal } from '../../ingest/journal.ts';
 import { parseTelemetry } from '../../ingest/handlers/readings.ts';
-import { ReadingsQuerySchema, sameUnit, TelemetryPayloadSchema } from '../../src/lib/shared/telemetry.ts';
+import { parseTelemetryPayload, ReadingsQuerySchema, sameUnit, TelemetryPayloadSchema } from '../../src/lib/shared/telemetry.ts';
+
+const parse = (x: unknown) => {
+  const r = parseTelemetryPayload(x);
+  if (!r.success) throw r.error;
+  return r.data;
+};
 
 describe('TelemetryPayloadSchema', () => {
   // 2026-12-02T10:00:00.250Z = 1 796 205 600 250 ms since the epoch (hand-computed: 20 789 days × 86 400 000 + 10 h + 250 ms).
   const T = 1_796_205_600_250;
 
   it('normalises one sample, a batch and a bare array to {u, samples}', () => {
-    expect(TelemetryPayloadSchema.parse({ t: T, v: 1.5 })).toEqual({ u: undefined, samples: [{ t: T, v: 1.5 }] });
-    expect(TelemetryPayloadSchema.parse({ t: '2026-12-02T10:00:00.250Z', v: 1 }).samples[0]!.t).toBe(T);
-    expect(TelemetryPayloadSchema.parse({ t: '2026-12-02T11:00:00.250+01:00', v: 1 }).samples[0]!.t).toBe(T);
-    expect(TelemetryPayloadSchema.parse({ u: '°C', samples: [{ t: T, v: 1, q: 2 }] })).toEqual({ u: '°C', samples: [{ t: T, v: 1, q: 2 }] });
-    expect(TelemetryPayloadSchema.parse([{ t: T, v: 1 }, { t: T + 1, v: 2 }]).samples).toHaveLength(2);
+    expect(parse({ t: T, v: 1.5 })).toEqual({ u: undefined, samples: [{ t: T, v: 1.5 }] });
+    expect(parse({ t: '2026-12-02T10:00:00.250Z', v: 1 }).samples[0]!.t).toBe(T);
+    expect(parse({ t: '2026-12-02T11:00:00.250+01:00', v: 1 }).samples[0]!.t).toBe(T);
+    expect(parse({ u: '°C', samples: [{ t: T, v: 1, q: 2 }] })).toEqual({ u: '°C', samples: [{ t: T, v: 1, q: 2 }] });
+    expect(parse([{ t: T, v: 1 }, { t: T + 1, v: 2 }]).samples).toHaveLength(2);
+    expect(parse({ t: T + 0.4, v: 1 }).samples[0]!.t).toBe(T); // sub-millisecond digits rounded
   });
 
   it('refuses times without a zone, epoch seconds, non-numbers, bad quality flags and empty batches', () => {
@@ -46,6 +53,18 @@ describe('TelemetryPayloadSchema', () => {
     expect(parseTelemetry('{"t": 1796205600250}')).toMatchObject({ ok: false, reason: 'schema' });
     expect(parseTelemetry('NaN')).toMatchObject({ ok: false, reason: 'malformed-json' });
     expect(parseTelemetry('{"t": 1796205600250, "v": 1}')).toMatchObject({ ok: true });
+  });
+
+  it('says what is wrong in words an engineer can act on', () => {
+    const detail = (p: string) => {
+      const r = parseTelemetry(p);
+      return r.ok ? null : r.detail;
+    };
+    expect(detail('{"t": 1796205600, "v": 1}')).toContain('epoch milliseconds, not seconds');
+    expect(detail('{"t": "2026-12-02 10:00:00", "v": 1}')).toContain('needs a zone designator');
+    expect(detail('{"t": 1796205600250, "value": 1}')).toMatch(/expected number.*at v/);
+    expect(detail('{"t": 1796205600250, "v": 1, "q": 7}')).toContain('q is 0 (good), 1 (uncertain) or 2 (bad)');
+    expect(detail('[{"t": 1796205600250, "v": "x"}]')).toMatch(/at \[0\]\.v/);
   });
 
   it('compares units by their canonical spelling, keeping case', () => {

@@ -26,20 +26,27 @@ export const T_MAX_MS = 4_102_444_800_000;
 /** ISO 8601 date-time with a zone designator (a subset of RFC 3339; fractional seconds allowed). */
 const ISO_WITH_ZONE = /^\d{4}-\d{2}-\d{2}[T ]\d{2}:\d{2}(:\d{2}(\.\d{1,9})?)?(Z|[+-]\d{2}:?\d{2})$/i;
 
-/** A timestamp: ISO 8601 with zone or epoch ms → epoch ms (integer ms; sub-ms digits are rounded). */
-export const SampleTimeSchema = z
-  .union([
-    z.number(),
-    z.string().regex(ISO_WITH_ZONE, 'an ISO 8601 time needs a zone designator (Z or ±hh:mm)'),
-  ])
-  .transform((t, ctx) => {
-    const ms = typeof t === 'number' ? Math.round(t) : Date.parse(t);
-    if (!Number.isFinite(ms) || ms < T_MIN_MS || ms >= T_MAX_MS) {
-      ctx.addIssue({ code: 'custom', message: 'time must lie in 2000–2099 (epoch milliseconds, not seconds)' });
-      return z.NEVER;
-    }
-    return ms;
-  });
+const TIME_RANGE_MESSAGE = 'time must lie in 2000–2099 (epoch milliseconds, not seconds)';
+
+/**
+ * A timestamp: epoch ms (a number in 2000–2099), or ISO 8601 with zone (→ epoch ms). The
+ * number branch has no transform on purpose: it is the hot path (about 0.3 µs a sample
+ * instead of 3 µs); {@link normalisePayload} rounds sub-millisecond digits.
+ */
+export const SampleTimeSchema = z.union([
+  z.number().min(T_MIN_MS, TIME_RANGE_MESSAGE).lt(T_MAX_MS, TIME_RANGE_MESSAGE),
+  z
+    .string()
+    .regex(ISO_WITH_ZONE, 'an ISO 8601 time needs a zone designator (Z or ±hh:mm)')
+    .transform((t, ctx) => {
+      const ms = Date.parse(t);
+      if (!(ms >= T_MIN_MS && ms < T_MAX_MS)) {
+        ctx.addIssue({ code: 'custom', message: TIME_RANGE_MESSAGE });
+        return z.NEVER;
+      }
+      return ms;
+    }),
+]);
 
 /** Quality flag: 0 good, 1 uncertain, 2 bad. */
 export const QualitySchema = z.union([z.literal(0), z.literal(1), z.literal(2)]);
@@ -54,24 +61,66 @@ export const SampleSchema = z.object({
   q: QualitySchema.optional(),
   u: UnitSchema.optional(),
 });
+export type Sample = z.infer<typeof SampleSchema>;
 
 /** Most samples one message may carry. */
 export const MAX_SAMPLES_PER_MESSAGE = 10_000;
 
-/** One sample, a `{samples}` batch or a bare array, normalised to `{u?, samples}`. */
-export const TelemetryPayloadSchema = z
-  .union([
-    SampleSchema,
-    z.object({ u: UnitSchema.optional(), samples: z.array(SampleSchema).min(1).max(MAX_SAMPLES_PER_MESSAGE) }),
-    z.array(SampleSchema).min(1).max(MAX_SAMPLES_PER_MESSAGE),
-  ])
-  .transform((p) => {
-    if (Array.isArray(p)) return { u: undefined, samples: p };
-    if ('samples' in p) return { u: p.u, samples: p.samples };
-    return { u: undefined, samples: [p] };
-  });
-export type TelemetryPayload = z.infer<typeof TelemetryPayloadSchema>;
-export type Sample = TelemetryPayload['samples'][number];
+/** The one schema of a telemetry message: one sample, a `{u?, samples}` batch, or a bare array of samples. */
+export const TelemetryPayloadSchema = z.union([
+  SampleSchema,
+  z.object({ u: UnitSchema.optional(), samples: z.array(SampleSchema).min(1).max(MAX_SAMPLES_PER_MESSAGE) }),
+  z.array(SampleSchema).min(1).max(MAX_SAMPLES_PER_MESSAGE),
+]);
+
+/** A validated message in one shape: the batch unit (if any) and its samples, times in whole epoch ms. */
+export interface TelemetryPayload {
+  u: string | undefined;
+  samples: Sample[];
+}
+
+/** One shape for the three accepted forms; sub-millisecond digits of epoch times are rounded. */
+export function normalisePayload(p: z.infer<typeof TelemetryPayloadSchema>): TelemetryPayload {
+  const out: TelemetryPayload = Array.isArray(p) ? { u: undefined, samples: p } : 'samples' in p ? { u: p.u, samples: p.samples } : { u: undefined, samples: [p] };
+  for (const s of out.samples) if (!Number.isInteger(s.t)) s.t = Math.round(s.t);
+  return out;
+}
+
+/**
+ * The same rules as {@link SampleSchema} without unions, used only to explain a refusal (a
+ * union's own error says little more than "Invalid input").
+ */
+const ExplainTimeSchema = z.unknown().superRefine((t, ctx) => {
+  if (typeof t === 'number') {
+    if (!(t >= T_MIN_MS && t < T_MAX_MS)) ctx.addIssue({ code: 'custom', message: TIME_RANGE_MESSAGE });
+  } else if (typeof t === 'string') {
+    if (!ISO_WITH_ZONE.test(t)) ctx.addIssue({ code: 'custom', message: 'an ISO 8601 time needs a zone designator (Z or ±hh:mm)' });
+    else if (!(Date.parse(t) >= T_MIN_MS && Date.parse(t) < T_MAX_MS)) ctx.addIssue({ code: 'custom', message: TIME_RANGE_MESSAGE });
+  } else {
+    ctx.addIssue({ code: 'custom', message: 't must be epoch milliseconds (a number) or an ISO 8601 time (a string)' });
+  }
+});
+const ExplainSampleSchema = z.object({
+  t: ExplainTimeSchema,
+  v: z.number(),
+  q: z.int().min(0, 'q is 0 (good), 1 (uncertain) or 2 (bad)').max(2, 'q is 0 (good), 1 (uncertain) or 2 (bad)').optional(),
+  u: UnitSchema.optional(),
+});
+
+/** Validate and normalise a parsed JSON message. */
+export function parseTelemetryPayload(json: unknown): { success: true; data: TelemetryPayload } | { success: false; error: z.ZodError } {
+  const r = TelemetryPayloadSchema.safeParse(json);
+  if (r.success) return { success: true, data: normalisePayload(r.data) };
+  const explain = Array.isArray(json)
+    ? z.array(ExplainSampleSchema).min(1).max(MAX_SAMPLES_PER_MESSAGE)
+    : json !== null && typeof json === 'object' && 'samples' in json
+      ? z.object({ u: UnitSchema.optional(), samples: z.array(ExplainSampleSchema).min(1).max(MAX_SAMPLES_PER_MESSAGE) })
+      : json !== null && typeof json === 'object'
+        ? ExplainSampleSchema
+        : z.object({ t: ExplainTimeSchema, v: z.number() }, { error: 'expected a JSON object {"t", "v"}, a {"samples": […]} batch or an array of samples' });
+  const e = explain.safeParse(json);
+  return { success: false, error: e.success ? r.error : e.error };
+}
 
 /** A device's status topic (`…/{device}/status`): plain `online` / `offline`, or JSON `{"status": …}`. */
 export const DeviceStatusSchema = z.enum(['online', 'offline']);
