@@ -3,8 +3,8 @@
 import { describe, expect, it } from 'vitest';
 import { parseCsv } from '../../src/lib/shared/csv-table.ts';
 import type { ReadingsResponse } from '../../src/lib/shared/telemetry.ts';
+import { AnnotationsQuerySchema } from '../../src/lib/shared/trend-query.ts';
 import {
-  AnnotationsQuerySchema,
   centredOn,
   clampToNow,
   gapThresholdMs,

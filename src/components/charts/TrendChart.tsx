@@ -31,6 +31,7 @@ import { formatClock, formatRange, formatSiteTime, fromLocalInput, tickLabel, ti
 import {
   clampToNow,
   EVENT_STYLE,
+  INITIAL_MAX_POINTS,
   maxPointsFor,
   panRange,
   placeMarkers,
@@ -78,8 +79,12 @@ interface Props {
 interface SeriesState {
   status: 'ok' | 'error';
   shaped?: ShapedSeries;
-  annotations?: AnnotationsResponse | null;
-  annotationsError?: string;
+  error?: string;
+}
+
+/** The window stretches and events of one channel (or why they could not be loaded). */
+interface Note {
+  a: AnnotationsResponse | null;
   error?: string;
 }
 
@@ -135,6 +140,7 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
   const [ids, setIds] = useState<number[]>(() => initialIds.filter((id) => byId.has(id)).slice(0, MAX_CHANNELS));
   const [view, setView] = useState<View>({ range: initialRange, live: initialLive, preset: initialPreset });
   const [series, setSeries] = useState<ReadonlyMap<number, SeriesState>>(new Map());
+  const [notes, setNotes] = useState<ReadonlyMap<number, Note>>(new Map());
   const [loading, setLoading] = useState<{ done: number; total: number } | null>({ done: 0, total: ids.length });
   const [reloadKey, setReloadKey] = useState(0);
   const [showEvents, setShowEvents] = useState(true);
@@ -147,43 +153,52 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
   const chartRef = useRef<ChartJS<'line', ChartPoint[]> | null>(null);
   const boxRef = useRef<HTMLDivElement | null>(null);
   const silent = useRef(false);
+  const firstLoad = useRef(true);
   const { fromMs, toMs } = view.range;
   const span = toMs - fromMs;
 
-  // Plot width decides how many points to ask for (about one per pixel, at most 2 000).
+  // Plot width: markers, thinning and tick count follow it; the next fetch asks for about one point per pixel.
   useEffect(() => {
     const el = boxRef.current;
     if (!el) return;
-    const ro = new ResizeObserver(() => setWidthPx(Math.round(el.clientWidth / 100) * 100 || 1000));
+    const ro = new ResizeObserver(() => setWidthPx(Math.round(el.clientWidth / 50) * 50 || 1000));
     ro.observe(el);
     return () => ro.disconnect();
   }, []);
-  const maxPoints = maxPointsFor(widthPx - 120);
 
-  // Fetch readings and annotations whenever the channels or the range change.
+  // Fetch readings (the chart draws as soon as they arrive) and, beside them, the window and events.
   useEffect(() => {
     const ac = new AbortController();
     const quiet = silent.current;
     silent.current = false;
+    const first = firstLoad.current;
+    firstLoad.current = false;
     const from = Math.round(fromMs);
     const to = Math.round(toMs);
-    const timer = setTimeout(async () => {
+    // The first load asks exactly what the page preloaded; later ones about one point per pixel (≤ 2 000).
+    const maxPoints = first ? INITIAL_MAX_POINTS : maxPointsFor((boxRef.current?.clientWidth ?? 1000) - 120);
+    const message = (e: unknown) => (e instanceof ApiError ? `${e.title}${e.detail ? `: ${e.detail}` : ''}` : e instanceof Error ? e.message : String(e));
+    const run = async () => {
       if (!quiet) setLoading({ done: 0, total: ids.length });
+      void Promise.all(
+        ids.map(async (id): Promise<[number, Note]> => {
+          try {
+            return [id, { a: await apiFetch<AnnotationsResponse>(`/api/v1/channels/${id}/annotations?from=${from}&to=${to}`, { signal: ac.signal }) }];
+          } catch (e) {
+            return [id, { a: null, error: message(e) }];
+          }
+        }),
+      ).then((r) => {
+        if (!ac.signal.aborted) setNotes(new Map(r));
+      });
       let done = 0;
       const results = await Promise.all(
         ids.map(async (id): Promise<[number, SeriesState]> => {
           try {
-            const [resp, ann] = await Promise.all([
-              apiFetch<ReadingsResponse>(`/api/v1/channels/${id}/readings?from=${from}&to=${to}&maxPoints=${maxPoints}`, { signal: ac.signal }),
-              apiFetch<AnnotationsResponse>(`/api/v1/channels/${id}/annotations?from=${from}&to=${to}`, { signal: ac.signal }).then(
-                (a) => ({ a, e: undefined as string | undefined }),
-                (e: unknown) => ({ a: null, e: e instanceof Error ? e.message : String(e) }),
-              ),
-            ]);
-            return [id, { status: 'ok', shaped: shapeReadings(resp), annotations: ann.a, ...(ann.e ? { annotationsError: ann.e } : {}) }];
+            const resp = await apiFetch<ReadingsResponse>(`/api/v1/channels/${id}/readings?from=${from}&to=${to}&maxPoints=${maxPoints}`, { signal: ac.signal });
+            return [id, { status: 'ok', shaped: shapeReadings(resp) }];
           } catch (e) {
-            const msg = e instanceof ApiError ? `${e.title}${e.detail ? `: ${e.detail}` : ''}` : e instanceof Error ? e.message : String(e);
-            return [id, { status: 'error', error: msg }];
+            return [id, { status: 'error', error: message(e) }];
           } finally {
             done++;
             if (!quiet && !ac.signal.aborted) setLoading({ done, total: ids.length });
@@ -193,12 +208,13 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
       if (ac.signal.aborted) return;
       setSeries(new Map(results));
       setLoading(null);
-    }, 80);
+    };
+    const timer = setTimeout(run, first ? 0 : 80);
     return () => {
       clearTimeout(timer);
       ac.abort();
     };
-  }, [ids, fromMs, toMs, maxPoints, reloadKey]);
+  }, [ids, fromMs, toMs, reloadKey]);
 
   // A live view (a preset ending now) follows the clock.
   useEffect(() => {
@@ -237,8 +253,8 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
   const markers: Marker[] = useMemo(() => {
     const seen = new Set<string>();
     const all: TrendEvent[] = [];
-    for (const st of series.values()) {
-      for (const e of st.annotations?.events ?? []) {
+    for (const n of notes.values()) {
+      for (const e of n.a?.events ?? []) {
         const k = `${e.tMs}|${e.kind}|${e.label}`;
         if (!seen.has(k)) {
           seen.add(k);
@@ -247,11 +263,11 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
       }
     }
     return placeMarkers(all, fromMs, toMs, Math.max(20, Math.round(widthPx / 9)));
-  }, [series, fromMs, toMs, widthPx]);
+  }, [notes, fromMs, toMs, widthPx]);
 
   const bandsByChannel = useMemo(
-    () => new Map(loaded.map(({ id, ch, st }) => [id, st?.annotations ? windowBands(st.annotations.windows, ch.kind) : []])),
-    [series, ids],
+    () => new Map(loaded.map(({ id, ch }) => [id, notes.get(id)?.a ? windowBands(notes.get(id)!.a!.windows, ch.kind) : []])),
+    [notes, ids],
   );
 
   const { data, totalPoints } = useMemo(() => {
@@ -740,8 +756,8 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
                     : st.shaped!.mode === 'raw'
                       ? `${st.shaped!.rows.length} raw readings`
                       : `${st.shaped!.rows.length} buckets of ${widthWords(st.shaped!.bucketMs ?? 0)} from the ${SOURCE_WORDS[st.shaped!.source]} (line = mean, band = min–max)`}
-              {st?.annotationsError ? ` · window and events not loaded (${st.annotationsError})` : ''}
-              {st?.annotations?.truncated ? ' · more events than shown: zoom in to see them all' : ''}
+              {notes.get(id)?.error ? ` · window and events not loaded (${notes.get(id)!.error})` : ''}
+              {notes.get(id)?.a?.truncated ? ' · more events than shown: zoom in to see them all' : ''}
             </li>
           ))}
           <li>

@@ -6,7 +6,6 @@
  *
  * For display only — bucketed or thinned data never feeds SPC statistics.
  */
-import { z } from 'zod';
 import { lttb } from '../domain/series/lttb.ts';
 import { toCsv } from './csv-table.ts';
 import type { ReadingsResponse } from './telemetry.ts';
@@ -602,6 +601,12 @@ export function centredOn(atMs: number, spanMs: number): ViewRange {
   return { fromMs, toMs: fromMs + span };
 }
 
+/**
+ * Points per series of a trend's first load: fixed (not measured from the plot) so the page can
+ * preload exactly that request before the island's scripts arrive.
+ */
+export const INITIAL_MAX_POINTS = 1000;
+
 /** Points to ask for per series: about one per pixel of plot width, between 100 and 2 000. */
 export function maxPointsFor(widthPx: number): number {
   return Math.min(2000, Math.max(100, Math.round(Number.isFinite(widthPx) ? widthPx : 1000)));
@@ -638,31 +643,7 @@ export function parseTrendQuery(params: URLSearchParams, nowMs: number): { range
 }
 
 // ---------------------------------------------------------------------------------------------
-// The annotations endpoint
-
-const msParam = (what: string) =>
-  z
-    .string()
-    .trim()
-    .regex(/^\d{12,14}$/, `${what} must be epoch milliseconds`)
-    .transform(Number);
-
-/** `GET /api/v1/channels/{id}/annotations?from&to` (epoch ms; at most 2 years; default the last hour). */
-export const AnnotationsQuerySchema = z
-  .object({ from: msParam('from').optional(), to: msParam('to').optional() })
-  .transform((q, ctx) => {
-    const to = q.to ?? Date.now();
-    const from = q.from ?? to - HOUR_MS;
-    if (!(from < to)) {
-      ctx.addIssue({ code: 'custom', path: ['from'], message: 'from must be before to' });
-      return z.NEVER;
-    }
-    if (to - from > MAX_SPAN_MS) {
-      ctx.addIssue({ code: 'custom', path: ['from'], message: 'the range may span at most 2 years' });
-      return z.NEVER;
-    }
-    return { from, to };
-  });
+// The annotations endpoint (its query schema lives in trend-query.ts, so islands do not bundle zod)
 
 /** Answer of the annotations endpoint: the window stretches and the events in the range. */
 export interface AnnotationsResponse {
@@ -673,4 +654,11 @@ export interface AnnotationsResponse {
   events: TrendEvent[];
   /** True when there were more events than the answer carries (the earliest are kept). */
   truncated: boolean;
+}
+
+/** The readings and annotations requests of a trend's first load (the page preloads them; the island then asks exactly these). */
+export function initialTrendRequests(ids: readonly number[], r: ViewRange): string[] {
+  const from = Math.round(r.fromMs);
+  const to = Math.round(r.toMs);
+  return ids.flatMap((id) => [`/api/v1/channels/${id}/readings?from=${from}&to=${to}&maxPoints=${INITIAL_MAX_POINTS}`, `/api/v1/channels/${id}/annotations?from=${from}&to=${to}`]);
 }

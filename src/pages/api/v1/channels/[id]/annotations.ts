@@ -2,7 +2,7 @@ import type { APIRoute } from 'astro';
 import { requireRole } from '../../../../../lib/server/guard.ts';
 import { HttpProblem, idParam, readQuery } from '../../../../../lib/server/http.ts';
 import { channelAnnotations } from '../../../../../lib/server/services/trend.ts';
-import { AnnotationsQuerySchema } from '../../../../../lib/shared/trend.ts';
+import { AnnotationsQuerySchema } from '../../../../../lib/shared/trend-query.ts';
 
 /**
  * What a channel's trend draws besides its readings, over `?from&to` (epoch ms; default the
