@@ -11,6 +11,17 @@ import type { ParsedTopic } from '../topics.ts';
 
 export type ParsedPayload = { ok: true; payload: TelemetryPayload } | { ok: false; reason: 'malformed-json' | 'schema'; detail: string };
 
+/** "samples[3].t: an ISO 8601 time needs a zone designator …; v: expected number, received string". */
+function describeIssues(error: z.ZodError): string {
+  return error.issues
+    .slice(0, 5)
+    .map((i) => {
+      const at = i.path.map((p, k) => (typeof p === 'number' ? `[${p}]` : k ? `.${String(p)}` : String(p))).join('');
+      return at ? `${at}: ${i.message}` : i.message;
+    })
+    .join('; ');
+}
+
 /** JSON.parse, then the shared schema. */
 export function parseTelemetry(text: string): ParsedPayload {
   let json: unknown;
@@ -20,9 +31,7 @@ export function parseTelemetry(text: string): ParsedPayload {
     return { ok: false, reason: 'malformed-json', detail: (e as Error).message.slice(0, 200) };
   }
   const r = parseTelemetryPayload(json);
-  if (!r.success) {
-    return { ok: false, reason: 'schema', detail: z.prettifyError(r.error).replace(/\s*\n\s*/g, '; ').slice(0, 500) };
-  }
+  if (!r.success) return { ok: false, reason: 'schema', detail: describeIssues(r.error).slice(0, 500) };
   return { ok: true, payload: r.data };
 }
 

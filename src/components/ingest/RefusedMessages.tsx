@@ -166,7 +166,7 @@ export default function RefusedMessages({ timeZone, counts }: Props) {
                     <td>
                       <span className="tag border-slate-line">{REJECTION_LABELS[r.reason] ?? r.reason}</span>
                     </td>
-                    <td className="num">{r.deviceUsername ?? '—'}</td>
+                    <td className="num whitespace-nowrap">{r.deviceUsername ?? '—'}</td>
                     <td className="num break-all">{r.topic}</td>
                     <td className="max-w-md">{r.detail ?? ''}</td>
                     <td>

@@ -103,7 +103,7 @@ const ExplainTimeSchema = z.unknown().superRefine((t, ctx) => {
 const ExplainSampleSchema = z.object({
   t: ExplainTimeSchema,
   v: z.number(),
-  q: z.int().min(0, 'q is 0 (good), 1 (uncertain) or 2 (bad)').max(2, 'q is 0 (good), 1 (uncertain) or 2 (bad)').optional(),
+  q: z.int().min(0, 'must be 0 (good), 1 (uncertain) or 2 (bad)').max(2, 'must be 0 (good), 1 (uncertain) or 2 (bad)').optional(),
   u: UnitSchema.optional(),
 });
 
