@@ -27,6 +27,7 @@ export default function UsersAdmin({ initial, timeZone, currentUserId }: Props) 
   const [busy, setBusy] = useState<string | null>(null);
   const [form, setForm] = useState(emptyForm);
   const [setPassword, setSetPassword] = useState(false);
+  const [showForm, setShowForm] = useState(initial.length === 0);
   const [fieldErrors, setFieldErrors] = useState<Record<string, string>>({});
   const { sort, toggle } = useSort<Key>({ key: 'username', dir: 1 });
 
@@ -53,6 +54,7 @@ export default function UsersAdmin({ initial, timeZone, currentUserId }: Props) 
       setUsers((all) => [...all, r.user]);
       setForm(emptyForm);
       setSetPassword(false);
+      setShowForm(false);
       setNotice({ kind: 'ok', text: r.invited ? `${r.user.username} created; a link to set a password went to ${r.user.email} (valid ${RESET_LINK_MINUTES} minutes).` : `${r.user.username} created with the password you set.` });
     } catch (err) {
       const fe = (err as { errors?: { path: string; message: string }[] }).errors ?? [];
@@ -107,7 +109,47 @@ export default function UsersAdmin({ initial, timeZone, currentUserId }: Props) 
   );
 
   return (
-    <div className="grid gap-5 xl:grid-cols-[1fr_340px]">
+    <div className="space-y-4">
+      {showForm && (
+        <section aria-labelledby="new-user-h" className="panel">
+          <div className="flex items-baseline justify-between gap-3">
+            <h2 id="new-user-h">New user</h2>
+            <button type="button" className="text-sm underline" onClick={() => setShowForm(false)}>
+              Close
+            </button>
+          </div>
+          <form onSubmit={create} className="mt-3 grid gap-3 sm:grid-cols-2 lg:grid-cols-4" noValidate>
+            {field('username', 'Username', { autoComplete: 'off', spellCheck: false })}
+            {field('displayName', 'Full name')}
+            {field('email', 'E-mail', { type: 'email' })}
+            <div>
+              <label htmlFor="nu-role">Role</label>
+              <select id="nu-role" value={form.role} onChange={(e) => setForm({ ...form, role: e.target.value as Role })}>
+                {ROLES.map((r) => (
+                  <option key={r} value={r}>
+                    {ROLE_LABELS[r]}
+                  </option>
+                ))}
+              </select>
+            </div>
+            <fieldset className="space-y-1 sm:col-span-2">
+              <legend className="mb-1 text-sm font-bold text-ink-soft">Password</legend>
+              <label className="flex items-center gap-2 font-normal">
+                <input type="radio" className="w-auto" name="pw" checked={!setPassword} onChange={() => setSetPassword(false)} /> E-mail them a link to set it (valid {RESET_LINK_MINUTES} min)
+              </label>
+              <label className="flex items-center gap-2 font-normal">
+                <input type="radio" className="w-auto" name="pw" checked={setPassword} onChange={() => setSetPassword(true)} /> Set an initial password now
+              </label>
+            </fieldset>
+            {setPassword ? field('password', `Initial password (${PASSWORD_MIN}+ characters)`, { type: 'password', autoComplete: 'new-password' }) : <div />}
+            <div className="self-end">
+              <button className="btn w-full justify-center" type="submit" disabled={busy === 'create'} aria-busy={busy === 'create'}>
+                {busy === 'create' ? 'Creating…' : 'Create user'}
+              </button>
+            </div>
+          </form>
+        </section>
+      )}
       <section aria-labelledby="users-h" className="min-w-0 space-y-3">
         <div className="flex flex-wrap items-end gap-3">
           <h2 id="users-h" className="mr-auto">
@@ -120,6 +162,11 @@ export default function UsersAdmin({ initial, timeZone, currentUserId }: Props) 
           <label className="flex items-center gap-2 font-normal">
             <input type="checkbox" className="w-auto" checked={showInactive} onChange={(e) => setShowInactive(e.target.checked)} /> Show deactivated
           </label>
+          {!showForm && (
+            <button type="button" className="btn" onClick={() => setShowForm(true)}>
+              + New user
+            </button>
+          )}
           <button
             type="button"
             className="btn-quiet"
@@ -163,7 +210,7 @@ export default function UsersAdmin({ initial, timeZone, currentUserId }: Props) 
                 return (
                   <tr key={u.id} className={u.active ? '' : 'text-ink-faint'}>
                     <td className="font-mono">{u.username}</td>
-                    <td>{u.displayName}</td>
+                    <td className="whitespace-nowrap">{u.displayName}</td>
                     <td>{u.email ?? <span className="text-ink-faint">none</span>}</td>
                     <td>
                       <label className="sr-only" htmlFor={`role-${u.id}`}>
@@ -171,7 +218,7 @@ export default function UsersAdmin({ initial, timeZone, currentUserId }: Props) 
                       </label>
                       <select
                         id={`role-${u.id}`}
-                        className="w-44 py-1"
+                        className="w-auto py-1"
                         value={u.role}
                         disabled={self || rowBusy || !u.active}
                         title={self ? 'Another administrator changes your own role.' : undefined}
@@ -229,37 +276,6 @@ export default function UsersAdmin({ initial, timeZone, currentUserId }: Props) 
         <p className="text-sm text-ink-soft">Users are never deleted: the records they made keep their name. Deactivating someone ends their sessions at once. Every change here is written to the audit trail.</p>
       </section>
 
-      <section aria-labelledby="new-user-h" className="panel h-fit">
-        <h2 id="new-user-h">New user</h2>
-        <form onSubmit={create} className="mt-3 space-y-3" noValidate>
-          {field('username', 'Username', { autoComplete: 'off', spellCheck: false })}
-          {field('displayName', 'Full name')}
-          {field('email', 'E-mail', { type: 'email' })}
-          <div>
-            <label htmlFor="nu-role">Role</label>
-            <select id="nu-role" value={form.role} onChange={(e) => setForm({ ...form, role: e.target.value as Role })}>
-              {ROLES.map((r) => (
-                <option key={r} value={r}>
-                  {ROLE_LABELS[r]}
-                </option>
-              ))}
-            </select>
-          </div>
-          <fieldset className="space-y-2">
-            <legend className="text-sm font-bold text-ink-soft">Password</legend>
-            <label className="flex items-center gap-2 font-normal">
-              <input type="radio" className="w-auto" name="pw" checked={!setPassword} onChange={() => setSetPassword(false)} /> E-mail them a link to set it ({RESET_LINK_MINUTES} min)
-            </label>
-            <label className="flex items-center gap-2 font-normal">
-              <input type="radio" className="w-auto" name="pw" checked={setPassword} onChange={() => setSetPassword(true)} /> Set an initial password now
-            </label>
-            {setPassword && field('password', `Initial password (at least ${PASSWORD_MIN} characters)`, { type: 'password', autoComplete: 'new-password' })}
-          </fieldset>
-          <button className="btn w-full justify-center" type="submit" disabled={busy === 'create'} aria-busy={busy === 'create'}>
-            {busy === 'create' ? 'Creating…' : 'Create user'}
-          </button>
-        </form>
-      </section>
     </div>
   );
 }
