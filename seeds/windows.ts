@@ -142,7 +142,8 @@ export async function seedWindows(sequelize: Sequelize, opts: { nowMs?: number; 
       const cup = cups[line];
       // The operator's hourly check at hh:20 during the shift (as the plant model has it).
       const checks: { at: number; id: number; solidsPct: number; massKg: number }[] = [];
-      for (let at = chargedAt + 10 * MINUTE_MS; at <= anchor; at += 10 * MINUTE_MS) {
+      const grid = 10 * MINUTE_MS;
+      for (let at = Math.ceil((chargedAt + 1) / grid) * grid; at <= anchor; at += grid) {
         const h = localHour(at);
         if (!isShift(at) || Math.abs(h - Math.floor(h) - 20 / 60) > 1e-6) continue;
         const state = bathStateAt(bath, at);

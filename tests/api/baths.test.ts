@@ -108,13 +108,16 @@ describe('bath checks', () => {
     expect(r.body.computation.band).toBe('high');
   });
 
-  it('without a weighed mass the bath mass comes from the solids balance', async () => {
+  it('without a weighed mass the bath is taken at its charged mass; inside ±0.2 wt % nothing is suggested', async () => {
     const r = await api('/api/v1/baths/checks', { method: 'POST', session: operator, json: { tankAssetId: tankId, measuredMm2S: 10.2, solidsPct: 31 } });
     expect(r.status).toBe(201);
-    // hand-computed: solids 38 kg × 30.4 % = 11.552 kg → M = 11.552/0.31 = 37.2645 kg; solvent = 37.2645·(31/30 − 1) = 1.24215 kg
-    expect(r.body.computation.bathMassKg).toBeCloseTo(37.2645, 3);
-    expect(r.body.computation.addition.massKg).toBeCloseTo(1.24215, 4);
+    // hand-computed: M = 38 kg charged; solvent = 38·(31/30 − 1) = 1.26667 kg
+    expect(r.body.computation.bathMassKg).toBe(38);
+    expect(r.body.computation.addition.massKg).toBeCloseTo(1.26667, 4);
     expect(r.body.check.measuredMm2S).toBe(10.2);
+    const near = await api('/api/v1/baths/checks', { method: 'POST', session: operator, json: { tankAssetId: tankId, measuredMm2S: 9.1, solidsPct: 30.15 } });
+    expect(near.body.computation.addition).toBeNull();
+    expect(near.body.computation.additionNote).toMatch(/within ±0.2 wt %/);
   });
 
   it('an efflux time outside the cup’s window is refused, nothing stored', async () => {
@@ -176,13 +179,30 @@ describe('additions, filter changes and the bath overview', () => {
     expect(mine.lastFilterChange.filterType).toBe('Pleated 1 µm');
   });
 
+  it('the seeded demo bath log holds hourly cup checks whose stored viscosity is the cup equation’s, and additions linked to them', async () => {
+    const { rows } = await pool.query(
+      `select k.cup, k.efflux_seconds, k.kinematic_mm2s from bath_checks k join assets a on a.id = k.tank_asset_id where a.code = 'dip-1-hc' and k.note = 'demo seed'`,
+    );
+    expect(rows.length).toBeGreaterThan(100);
+    for (const r of rows.slice(0, 50)) {
+      expect(r.cup).toBe('zahn-1');
+      // ASTM D4212 Zahn 1: ν = 1.1·(t − 29)
+      expect(r.kinematic_mm2s).toBeCloseTo(1.1 * (r.efflux_seconds - 29), 9);
+    }
+    const { rows: adds } = await pool.query(
+      `select count(*)::int as n, count(check_id)::int as linked from bath_additions ad join assets a on a.id = ad.tank_asset_id where a.code in ('dip-1-hc','dip-2-hc') and ad.note = 'demo seed'`,
+    );
+    expect(adds[0].n).toBeGreaterThan(0);
+    expect(adds[0].linked).toBe(adds[0].n);
+  });
+
   it('every entry is in the audit trail with its author', async () => {
     const { rows } = await pool.query(
       `select action, actor_label from audit_log where (entity = 'bath_check' and after->>'tankAssetId' = $1) or (entity in ('bath_addition','filter_change','bath_charge') and after->>'tankAssetId' = $1) order by id`,
       [String(tankId)],
     );
     const actions = rows.map((r) => r.action);
-    expect(actions.filter((a) => a === 'bath.check')).toHaveLength(3);
+    expect(actions.filter((a) => a === 'bath.check')).toHaveLength(4);
     expect(actions).toContain('bath.addition');
     expect(actions).toContain('bath.filter');
     expect(actions).toContain('bath.charge');

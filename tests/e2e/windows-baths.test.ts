@@ -78,6 +78,7 @@ describe('bath check on the tablet form (operator)', () => {
     const form = page.locator('form', { has: page.getByRole('button', { name: 'Log check' }) });
     await form.getByRole('button', { name: tankName }).waitFor();
     await page.locator('astro-island:not([ssr])').first().waitFor();
+    await page.screenshot({ path: path.join(OUT, 'baths-top.png') });
     await form.getByRole('button', { name: tankName }).click();
     await form.getByLabel('Cup', { exact: true }).selectOption('zahn-1');
     // ASTM D4212 Zahn 1: ν = 1.1·(41.5 − 29) = 13.75 mm²/s, above the example window's 12.5
@@ -117,6 +118,7 @@ describe('bath check on the tablet form (operator)', () => {
     const panel = page.locator('section', { has: page.getByRole('heading', { name: tankName }) });
     expect(await panel.textContent()).toContain('above the window high 12.50 mm²/s');
     await panel.screenshot({ path: path.join(OUT, 'bath-overview.png') });
+    await page.screenshot({ path: path.join(OUT, 'baths-page.png') });
     await page.context().close();
   });
 });
@@ -186,8 +188,10 @@ describe('process window draft and signed approval (engineer)', () => {
     expect(body).toContain('Signed: Emil Engineer (engineer)');
     expect(body).toContain('meaning “approved”');
     await page.screenshot({ path: path.join(OUT, 'window-approved.png'), fullPage: true });
-
     const id = Number(new URL(page.url()).pathname.split('/').pop());
+    await page.goto(`${base()}/windows`);
+    expect(await page.locator('main').textContent()).toContain(`E2E window ${tag}`);
+    await page.screenshot({ path: path.join(OUT, 'windows-index.png'), fullPage: true });
     const { rows } = await pool.query(`select action from audit_log where entity = 'process_window' and entity_id = $1 order by id`, [String(id)]);
     expect(rows.map((r) => r.action)).toEqual(['window.draft', 'window.approve']);
     await page.context().close();

@@ -270,7 +270,7 @@ export default function BathCheckForm({ tanks, canLog, defaultTankId }: Props) {
             id={`${id}-mass`}
             className={big}
             inputMode="decimal"
-            placeholder={live?.bathMassKg != null ? `≈ ${live.bathMassKg.toFixed(1)} estimated` : 'estimated'}
+            placeholder={tank?.context.estimatedBathMassKg != null ? `${tank.context.estimatedBathMassKg} kg if not weighed` : 'not weighed'}
             value={mass}
             onChange={(e) => setMass(e.target.value)}
             aria-invalid={!!fieldErrors['bathMassKg']}
@@ -329,8 +329,8 @@ export default function BathCheckForm({ tanks, canLog, defaultTankId }: Props) {
           )}
           {tank?.context.targetSolidsPct != null && (
             <p className="text-xs text-ink-soft">
-              Target {tank.context.targetSolidsPct} % solids (the lacquer’s nominal); fresh lacquer of the charged lot at {tank.context.lotSolidsPct ?? '—'} %. The bath mass
-              is estimated from the solids balance unless you enter a weighed mass.
+              Target {tank.context.targetSolidsPct} % solids (the lacquer’s nominal); fresh lacquer of the charged lot at {tank.context.lotSolidsPct ?? '—'} %. Without a
+              weighed mass the bath is taken at its charged mass{tank.context.estimatedBathMassKg !== null ? ` (${tank.context.estimatedBathMassKg} kg)` : ''}.
             </p>
           )}
         </div>

@@ -25,11 +25,14 @@ interface Props {
   hrefKey?: string;
   /** Initial sort (default: the first column, descending — newest first for time columns). */
   initialSort?: { key: string; dir: 1 | -1 };
+  /** Rows shown before "Show more" (the CSV export always holds every filtered row). */
+  pageSize?: number;
 }
 
-export default function RecordTable({ caption, columns, rows, filename, empty = 'Nothing recorded yet.', hrefKey, initialSort }: Props) {
+export default function RecordTable({ caption, columns, rows, filename, empty = 'Nothing recorded yet.', hrefKey, initialSort, pageSize = 50 }: Props) {
   const id = useId();
   const [filter, setFilter] = useState('');
+  const [limit, setLimit] = useState(pageSize);
   const { sort, toggle } = useSort<string>(initialSort ?? { key: columns[0]?.key ?? '', dir: -1 });
   const shown = useMemo(() => {
     const f = filter.trim().toLowerCase();
@@ -71,7 +74,7 @@ export default function RecordTable({ caption, columns, rows, filename, empty = 
               </tr>
             </thead>
             <tbody>
-              {shown.map((r, i) => (
+              {shown.slice(0, limit).map((r, i) => (
                 <tr key={i}>
                   {columns.map((c, j) => (
                     <td key={c.key} className={c.numeric ? 'num text-right' : ''}>
@@ -82,6 +85,14 @@ export default function RecordTable({ caption, columns, rows, filename, empty = 
               ))}
             </tbody>
           </table>
+          {shown.length > limit && (
+            <p className="mt-2 flex items-center gap-3 text-sm text-ink-soft">
+              Showing {limit} of {shown.length}.
+              <button type="button" className="btn-quiet" onClick={() => setLimit((l) => l + pageSize * 4)}>
+                Show more
+              </button>
+            </p>
+          )}
         </div>
       )}
     </div>

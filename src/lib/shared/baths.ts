@@ -159,10 +159,8 @@ export interface BathCheckContext {
   targetSolidsPct: number | null;
   /** Fresh lacquer's solids, wt % (the charged lot's). */
   lotSolidsPct: number | null;
-  /** Bath mass from the charge plus additions since, kg (evaporation and drag-out not counted). */
+  /** Working estimate of the bath mass, kg: the charged mass (a bath is kept topped up to its working level). */
   estimatedBathMassKg: number | null;
-  /** Solids in the bath, kg: charge × lot solids + fresh lacquer added × its solids (drag-out not counted). */
-  solidsMassKg: number | null;
 }
 
 export interface BathCheckComputation {
@@ -213,18 +211,32 @@ export function computeBathCheck(
 }
 
 /**
+ * Solids within this many wt % of the target call for no addition: ±0.2 wt %, about the
+ * repeatability of a gravimetric solids test (an invented default; see the lacquer maker's data).
+ */
+export const SOLIDS_DEADBAND_PCT = 0.2;
+
+/**
  * The addition that returns the bath's solids to target, by solids mass balance
- * (lib/domain/film/bath-maintenance `bathAddition`). Without a weighed bath mass the mass is
- * estimated: solids are conserved under evaporation, so M ≈ solids mass ÷ solids fraction.
+ * (lib/domain/film/bath-maintenance `bathAddition`), on the weighed bath mass or, without one,
+ * the working estimate (the charged mass). Inside ±{@link SOLIDS_DEADBAND_PCT} wt % nothing is
+ * suggested.
  */
 export function recommendAddition(
   solidsPct: number,
   bathMassKg: number | undefined,
   ctx: BathCheckContext,
 ): { addition: BathAddition | BathAdditionRefusal | null; bathMassKg: number | null; note?: string } {
-  const mass = bathMassKg ?? (ctx.solidsMassKg !== null ? ctx.solidsMassKg / (solidsPct / 100) : ctx.estimatedBathMassKg);
+  const mass = bathMassKg ?? ctx.estimatedBathMassKg;
   if (ctx.targetSolidsPct === null) return { addition: null, bathMassKg: mass, note: 'No solids target: the tank has no charge on record.' };
   if (mass === null) return { addition: null, bathMassKg: null, note: 'Enter the bath mass to get an addition.' };
+  if (Math.abs(solidsPct - ctx.targetSolidsPct) <= SOLIDS_DEADBAND_PCT + 1e-9) {
+    return {
+      addition: null,
+      bathMassKg: mass,
+      note: `Solids ${solidsPct} % are within ±${SOLIDS_DEADBAND_PCT} wt % of the ${ctx.targetSolidsPct} % target: no addition.`,
+    };
+  }
   const addition = bathAddition({
     bathMassKg: mass,
     solidsNowPct: solidsPct,
@@ -240,5 +252,8 @@ export function describeAddition(a: BathAddition | BathAdditionRefusal | null): 
   if (!a.ok) return `No addition: ${a.reason}.`;
   if (a.kind === 'none') return 'Solids are on target: no addition.';
   const what = a.kind === 'solvent' ? 'solvent' : 'fresh lacquer';
-  return `Add ${a.massKg.toFixed(2)} kg of ${what} (bath then ${a.resultingBathMassKg.toFixed(1)} kg at ${a.resultingSolidsPct.toFixed(1)} % solids).`;
+  const base = `Add ${a.massKg.toFixed(2)} kg of ${what} (bath then ${a.resultingBathMassKg.toFixed(1)} kg at ${a.resultingSolidsPct.toFixed(1)} % solids).`;
+  // More than a quarter of the bath is not a top-up: the reading or the lot's solids deserve a second look.
+  const before = a.resultingBathMassKg - a.massKg;
+  return a.massKg > 0.25 * before ? `${base} That is more than a quarter of the bath — check the solids reading and the lot’s solids before adding.` : base;
 }

@@ -116,20 +116,9 @@ export async function listCharges(tankId?: number, limit = 200): Promise<ChargeR
 export async function bathContext(tankId: number, at: Date, t?: Transaction): Promise<{ charge: ChargeRow | null; window: ProcessWindowInForce | null; ctx: BathCheckContext }> {
   const charge = await chargeAt(tankId, at, t);
   const window = await windowInForce(pgPool(), tankId, at.getTime());
-  let estimatedBathMassKg: number | null = null;
-  let solidsMassKg: number | null = null;
-  if (charge) {
-    const [sums] = await q<{ added: number; freshSolids: number }>(
-      `select coalesce(sum(ad.mass_kg), 0)::float8 as added,
-              coalesce(sum(case when ad.kind = 'fresh-lacquer' then ad.mass_kg * coalesce(lo.solids_pct, $4) / 100 else 0 end), 0)::float8 as "freshSolids"
-         from bath_additions ad left join lacquer_lots lo on lo.id = ad.lot_id
-        where ad.tank_asset_id = $1 and ad.at >= $2 and ad.at <= $3`,
-      [tankId, new Date(charge.chargedAt), at, charge.lotSolidsPct],
-      t,
-    );
-    estimatedBathMassKg = charge.massKg + (sums?.added ?? 0);
-    solidsMassKg = (charge.massKg * charge.lotSolidsPct) / 100 + (sums?.freshSolids ?? 0);
-  }
+  // Labs keep a bath topped up to its working level, and evaporation and drag-out are not
+  // metered: the charged mass is the working estimate unless the operator weighs the bath.
+  const estimatedBathMassKg = charge?.massKg ?? null;
   return {
     charge,
     window,
@@ -138,7 +127,6 @@ export async function bathContext(tankId: number, at: Date, t?: Transaction): Pr
       targetSolidsPct: charge?.lacquerSolidsPct ?? null,
       lotSolidsPct: charge?.lotSolidsPct ?? null,
       estimatedBathMassKg,
-      solidsMassKg,
     },
   };
 }
