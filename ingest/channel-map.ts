@@ -78,7 +78,17 @@ export class ChannelMap {
 
   private async load(): Promise<void> {
     const [ch, dev, as, settings] = await Promise.all([
-      this.pool.query<{ topic: string; id: number; device_id: number; asset_id: number; kind: string; unit: string; min: number; max: number; raw_retention_days: number }>(
+      this.pool.query<{
+        topic: string;
+        id: number;
+        device_id: number;
+        asset_id: number;
+        kind: string;
+        unit: string;
+        min: number;
+        max: number;
+        raw_retention_days: number;
+      }>(
         `select d.topic_prefix || '/' || a.code || '/' || c.key as topic, c.id, c.device_id, c.asset_id, c.kind, c.unit, c.min, c.max, c.raw_retention_days
            from channels c join assets a on a.id = c.asset_id join devices d on d.id = c.device_id`,
       ),
@@ -104,7 +114,8 @@ export class ChannelMap {
       });
     }
     const devices = new Map<string, DeviceInfo>();
-    for (const d of dev.rows) devices.set(d.topic_prefix, { id: d.id, username: d.username, siteCode: d.site_code, enabled: d.enabled });
+    for (const d of dev.rows)
+      devices.set(d.topic_prefix, { id: d.id, username: d.username, siteCode: d.site_code, enabled: d.enabled });
     this.channels = channels;
     this.devices = devices;
     this.assets = new Set(as.rows.map((r) => r.key));

@@ -49,7 +49,11 @@ export class Journal {
   /** Closed segments waiting for replay, oldest first. */
   private closed: string[];
 
-  constructor(baseDir: string, workerId: string, private log: (s: string) => void = () => {}) {
+  constructor(
+    baseDir: string,
+    workerId: string,
+    private log: (s: string) => void = () => {},
+  ) {
     this.dir = path.join(baseDir, workerId.replace(/[^A-Za-z0-9._-]/g, '_'));
     fs.mkdirSync(this.dir, { recursive: true });
     // Segments left by an earlier run (crash or stop while the database was away) come first.

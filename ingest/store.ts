@@ -31,7 +31,10 @@ export async function ensurePartitions(pool: pg.Pool, t: readonly number[]): Pro
   for (const w of missing) {
     for (let attempt = 0; ; attempt++) {
       try {
-        await pool.query('select ensure_reading_partitions(to_timestamp($1::float8 / 1000), to_timestamp($1::float8 / 1000) + interval \'1 ms\')', [w]);
+        await pool.query(
+          "select ensure_reading_partitions(to_timestamp($1::float8 / 1000), to_timestamp($1::float8 / 1000) + interval '1 ms')",
+          [w],
+        );
         break;
       } catch (e) {
         // Two workers creating the same week at once: the loser sees "already exists"; look again.
@@ -117,7 +120,9 @@ export async function commitBatch(pool: pg.Pool, batch: Batch): Promise<CommitRe
       const r = await client.query<{ i: number }>(INSERT_READINGS, [batch.ch, batch.t, batch.v, batch.q]);
       refused = r.rows.map((x) => x.i);
     }
-    const rejections: Rejection[] = refused.length ? [...batch.rejections, ...duplicateRejections(batch, refused)] : batch.rejections;
+    const rejections: Rejection[] = refused.length
+      ? [...batch.rejections, ...duplicateRejections(batch, refused)]
+      : batch.rejections;
     if (rejections.length) {
       await client.query(INSERT_REJECTIONS, [
         rejections.map((r) => r.rxMs),

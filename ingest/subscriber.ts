@@ -22,7 +22,12 @@
  */
 import mqtt, { type IClientOptions, type MqttClient } from 'mqtt';
 import type pg from 'pg';
-import { postCommitHandlers as defaultHandlers, type PostCommitHandler, type StoredReading, type WorkerContext } from './handlers/index.ts';
+import {
+  postCommitHandlers as defaultHandlers,
+  type PostCommitHandler,
+  type StoredReading,
+  type WorkerContext,
+} from './handlers/index.ts';
 import { Batch, parseTelemetry, processReadings, storedPayload, type ParsedPayload } from './handlers/readings.ts';
 import { processStatus } from './handlers/status.ts';
 import { ChannelMap } from './channel-map.ts';
@@ -83,10 +88,16 @@ export function subscriptionTopics(sharedGroup?: string): string[] {
   return sharedGroup ? topics.map((t) => `$share/${sharedGroup}/${t}`) : topics;
 }
 
-export async function startWorker({ config, pool, log = () => {}, handlers = defaultHandlers }: WorkerOptions): Promise<RunningWorker> {
+export async function startWorker({
+  config,
+  pool,
+  log = () => {},
+  handlers = defaultHandlers,
+}: WorkerOptions): Promise<RunningWorker> {
   const map = new ChannelMap(pool);
   const journal = new Journal(config.INGEST_JOURNAL_DIR, config.INGEST_WORKER_ID, log);
-  if (journal.closedSegments().length) log(`journal: ${journal.closedSegments().length} segment(s) from an earlier run to replay`);
+  if (journal.closedSegments().length)
+    log(`journal: ${journal.closedSegments().length} segment(s) from an earlier run to replay`);
 
   // ---- state ----
   const memory: Entry[] = [];
@@ -211,7 +222,10 @@ export async function startWorker({ config, pool, log = () => {}, handlers = def
     let parsed: ParsedPayload | null = null;
     let samples = 1;
     if (route.kind === 'sample') {
-      parsed = size > MAX_PAYLOAD_BYTES ? { ok: false, reason: 'schema', detail: `payload of ${size} bytes is larger than 2 MiB` } : parseTelemetry(payload);
+      parsed =
+        size > MAX_PAYLOAD_BYTES
+          ? { ok: false, reason: 'schema', detail: `payload of ${size} bytes is larger than 2 MiB` }
+          : parseTelemetry(payload);
       if (parsed.ok) samples = parsed.payload.samples.length;
     }
     return { topic, payload, rxMs, ack, route, parsed, samples };
@@ -290,14 +304,32 @@ export async function startWorker({ config, pool, log = () => {}, handlers = def
     for (const e of entries) {
       try {
         if (e.route.kind === 'sample') {
-          processReadings(map, batch, e, e.route, e.parsed ?? parseTelemetry(e.payload), { futureToleranceMs: config.FUTURE_TOLERANCE_MS });
+          processReadings(map, batch, e, e.route, e.parsed ?? parseTelemetry(e.payload), {
+            futureToleranceMs: config.FUTURE_TOLERANCE_MS,
+          });
         } else if (e.route.kind === 'status') {
           processStatus(map, batch, e, e.route);
         } else {
-          batch.rejections.push({ rxMs: e.rxMs, topic: e.topic, deviceUsername: null, channelId: null, reason: 'topic', detail: e.route.reason, payload: storedPayload(e.payload) });
+          batch.rejections.push({
+            rxMs: e.rxMs,
+            topic: e.topic,
+            deviceUsername: null,
+            channelId: null,
+            reason: 'topic',
+            detail: e.route.reason,
+            payload: storedPayload(e.payload),
+          });
         }
       } catch (err) {
-        batch.rejections.push({ rxMs: e.rxMs, topic: e.topic, deviceUsername: null, channelId: null, reason: 'schema', detail: `could not be processed: ${(err as Error).message}`, payload: storedPayload(e.payload) });
+        batch.rejections.push({
+          rxMs: e.rxMs,
+          topic: e.topic,
+          deviceUsername: null,
+          channelId: null,
+          reason: 'schema',
+          detail: `could not be processed: ${(err as Error).message}`,
+          payload: storedPayload(e.payload),
+        });
       }
     }
     const result = await commitBatch(pool, batch);
@@ -351,7 +383,11 @@ export async function startWorker({ config, pool, log = () => {}, handlers = def
 
   async function replayOne(file: string): Promise<void> {
     const { records, start, end, eof } = await journal.read(file, REPLAY_RECORDS);
-    if (records.length) await storeEntries(records.map((r) => makeEntry(r.topic, r.payload, r.rx, null)), false);
+    if (records.length)
+      await storeEntries(
+        records.map((r) => makeEntry(r.topic, r.payload, r.rx, null)),
+        false,
+      );
     await journal.advance(file, start, end, eof);
   }
 

@@ -8,7 +8,9 @@ import { sql, type Migration } from './types.ts';
 export const migration: Migration = {
   name: '20261202-1000-ingest-pipeline',
   async up(ctx) {
-    await sql(ctx, `
+    await sql(
+      ctx,
+      `
       alter table ingest_rejections add column detail text;
       create index ingest_rejections_reason on ingest_rejections(reason, id desc);
       insert into site_settings(key, value) values ('retention', '{
@@ -17,13 +19,17 @@ export const migration: Migration = {
         "hourRollupDays": null,
         "rejectionDays": 90
       }'::jsonb) on conflict (key) do nothing;
-    `);
+    `,
+    );
   },
   async down(ctx) {
-    await sql(ctx, `
+    await sql(
+      ctx,
+      `
       delete from site_settings where key = 'retention';
       drop index ingest_rejections_reason;
       alter table ingest_rejections drop column detail;
-    `);
+    `,
+    );
   },
 };

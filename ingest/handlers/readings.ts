@@ -9,7 +9,9 @@ import { parseTelemetryPayload, sameUnit, type RejectionReason, type TelemetryPa
 import type { ChannelMap } from '../channel-map.ts';
 import type { ParsedTopic } from '../topics.ts';
 
-export type ParsedPayload = { ok: true; payload: TelemetryPayload } | { ok: false; reason: 'malformed-json' | 'schema'; detail: string };
+export type ParsedPayload =
+  | { ok: true; payload: TelemetryPayload }
+  | { ok: false; reason: 'malformed-json' | 'schema'; detail: string };
 
 /** "samples[3].t: an ISO 8601 time needs a zone designator …; v: expected number, received string". */
 function describeIssues(error: z.ZodError): string {
@@ -100,7 +102,9 @@ const DAY_MS = 86_400_000;
 
 /** The raw payload as stored with a rejection (very large batches are cut, and say so). */
 export function storedPayload(text: string): string {
-  return text.length <= MAX_PAYLOAD_STORED ? text : text.slice(0, MAX_PAYLOAD_STORED) + `… [${text.length - MAX_PAYLOAD_STORED} more characters not kept]`;
+  return text.length <= MAX_PAYLOAD_STORED
+    ? text
+    : text.slice(0, MAX_PAYLOAD_STORED) + `… [${text.length - MAX_PAYLOAD_STORED} more characters not kept]`;
 }
 
 function iso(ms: number): string {
@@ -146,9 +150,19 @@ export function processReadings(
   const channel = map.channel(msg.topic);
   if (!channel) {
     const assetKnown = map.hasAsset(device.siteCode, topic.asset);
-    batch.unknown.push({ deviceId: device.id, topic: msg.topic, assetCode: topic.asset, channelKey: topic.channel, payload: storedPayload(msg.payload), rxMs: msg.rxMs });
+    batch.unknown.push({
+      deviceId: device.id,
+      topic: msg.topic,
+      assetCode: topic.asset,
+      channelKey: topic.channel,
+      payload: storedPayload(msg.payload),
+      rxMs: msg.rxMs,
+    });
     return assetKnown
-      ? reject('unknown-channel', `device ${device.username} has no channel “${topic.channel}” on asset ${topic.asset}; listed for an engineer to approve`)
+      ? reject(
+          'unknown-channel',
+          `device ${device.username} has no channel “${topic.channel}” on asset ${topic.asset}; listed for an engineer to approve`,
+        )
       : reject('unknown-asset', `no asset “${topic.asset}” at site ${topic.site}; listed for an engineer to approve`);
   }
   if (!parsed.ok) return reject(parsed.reason, parsed.detail, channel.id);
@@ -158,7 +172,13 @@ export function processReadings(
   }
 
   const index = batch.messages.length;
-  batch.messages.push({ topic: msg.topic, payload: msg.payload, deviceUsername: device.username, channelId: channel.id, rxMs: msg.rxMs });
+  batch.messages.push({
+    topic: msg.topic,
+    payload: msg.payload,
+    deviceUsername: device.username,
+    channelId: channel.id,
+    rxMs: msg.rxMs,
+  });
   const n = payload.samples.length;
   const latest = msg.rxMs + opts.futureToleranceMs;
   const oldest = msg.rxMs - channel.rawRetentionDays * DAY_MS;
@@ -174,10 +194,20 @@ export function processReadings(
   if (bad.unit.length) reject('wrong-unit', some(bad.unit.length, n, `not in “${channel.unit}”`, bad.unit), channel.id);
   if (bad.range.length) reject('out-of-range', some(bad.range.length, n, `outside ${range}`, bad.range), channel.id);
   if (bad.future.length) {
-    reject('future-timestamp', some(bad.future.length, n, `more than ${opts.futureToleranceMs / 1000} s ahead of arrival (${iso(msg.rxMs)})`, bad.future), channel.id);
+    reject(
+      'future-timestamp',
+      some(bad.future.length, n, `more than ${opts.futureToleranceMs / 1000} s ahead of arrival (${iso(msg.rxMs)})`, bad.future),
+      channel.id,
+    );
   }
-  if (bad.old.length) reject('too-old', some(bad.old.length, n, `older than the raw retention of ${channel.rawRetentionDays} days`, bad.old), channel.id);
-  if (bad.dup.length) reject('duplicate', some(bad.dup.length, n, 'repeated in the same batch (same channel and time)', bad.dup), channel.id);
+  if (bad.old.length)
+    reject(
+      'too-old',
+      some(bad.old.length, n, `older than the raw retention of ${channel.rawRetentionDays} days`, bad.old),
+      channel.id,
+    );
+  if (bad.dup.length)
+    reject('duplicate', some(bad.dup.length, n, 'repeated in the same batch (same channel and time)', bad.dup), channel.id);
 }
 
 /** After commit: the rows the database refused as already stored, as one rejection per message. */

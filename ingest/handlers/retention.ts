@@ -34,7 +34,9 @@ export const retentionHandler: PostCommitHandler = {
       throw e;
     });
     try {
-      const { rows } = await client.query<{ at: number | null }>(`select (value->>'atMs')::float8 as at from site_settings where key = 'retentionLastRun'`);
+      const { rows } = await client.query<{ at: number | null }>(
+        `select (value->>'atMs')::float8 as at from site_settings where key = 'retentionLastRun'`,
+      );
       const last = rows[0]?.at ?? null;
       if (last !== null && nowMs - last < DAY_MS) return;
       const lock = await client.query<{ ok: boolean }>('select pg_try_advisory_lock($1) as ok', [LOCK_KEY]);

@@ -29,7 +29,15 @@ export function processStatus(
   const prefix = `coatrail/v1/${topic.site}/${topic.device}`;
   const device = map.device(prefix);
   const reject = (reason: 'unknown-device' | 'schema', detail: string): void => {
-    batch.rejections.push({ rxMs: msg.rxMs, topic: msg.topic, deviceUsername: device?.username ?? topic.device, channelId: null, reason, detail, payload: storedPayload(msg.payload) });
+    batch.rejections.push({
+      rxMs: msg.rxMs,
+      topic: msg.topic,
+      deviceUsername: device?.username ?? topic.device,
+      channelId: null,
+      reason,
+      detail,
+      payload: storedPayload(msg.payload),
+    });
   };
   if (msg.payload.trim() === '') return; // clearing a retained status: nothing to record
   if (!device) return reject('unknown-device', `no device publishes under ${prefix}`);

@@ -53,7 +53,11 @@ const children: ChildProcess[] = [];
 
 function child(args: string[], env: NodeJS.ProcessEnv, ipc: boolean): ChildProcess {
   const log = fs.openSync(path.join(dir, `${path.basename(args[args.length - 1]!)}-${children.length}.log`), 'a');
-  const p = spawn(process.execPath, ['--import', 'tsx', ...args], { cwd: root, env, stdio: ['ignore', log, log, ...(ipc ? (['ipc'] as const) : [])] });
+  const p = spawn(process.execPath, ['--import', 'tsx', ...args], {
+    cwd: root,
+    env,
+    stdio: ['ignore', log, log, ...(ipc ? (['ipc'] as const) : [])],
+  });
   children.push(p);
   return p;
 }
@@ -84,7 +88,12 @@ async function stopChild(p: ChildProcess) {
 }
 
 /** Publish with QoS 1 keeping at most `window` messages awaiting their PUBACK. */
-async function publishAll(client: MqttClient, count: number, make: (i: number) => [string, string], opts: { window?: number; rate?: number } = {}): Promise<number> {
+async function publishAll(
+  client: MqttClient,
+  count: number,
+  make: (i: number) => [string, string],
+  opts: { window?: number; rate?: number } = {},
+): Promise<number> {
   const window = opts.window ?? 2000;
   let outstanding = 0;
   let wake: (() => void) | null = null;
@@ -112,7 +121,9 @@ async function publishAll(client: MqttClient, count: number, make: (i: number) =
 async function main() {
   fs.rmSync(dir, { recursive: true, force: true });
   fs.mkdirSync(dir, { recursive: true });
-  say(`N = ${N.toLocaleString('en-GB')} readings, batches of ${BATCH}, ${CHANNELS} channels, paced ${PACED_RATE}/s for ${PACED_S} s`);
+  say(
+    `N = ${N.toLocaleString('en-GB')} readings, batches of ${BATCH}, ${CHANNELS} channels, paced ${PACED_RATE}/s for ${PACED_S} s`,
+  );
   const saved = process.env['DATABASE_URL'];
   delete process.env['DATABASE_URL'];
   const pgh = await startLocalPostgres({ baseDir: path.join(dir, 'pg'), database: 'bench' });
@@ -121,12 +132,17 @@ async function main() {
   await migrateUp(seq);
   await seq.close();
   const pool = createPool({ url: pgh.url, max: 2 });
-  const { rows: site } = await pool.query<{ id: number }>(`insert into sites(code, name) values ('bench', 'Bench site') returning id`);
+  const { rows: site } = await pool.query<{ id: number }>(
+    `insert into sites(code, name) values ('bench', 'Bench site') returning id`,
+  );
   const { rows: dev } = await pool.query<{ id: number }>(
     `insert into devices(site_id, name, username, password_hash, topic_prefix) values ($1, 'Bench gateway', 'gw-bench', $2, 'coatrail/v1/bench/gw-bench') returning id`,
     [site[0]!.id, await hashPassword(DEVICE_PW)],
   );
-  const { rows: asset } = await pool.query<{ id: number }>(`insert into assets(site_id, kind, code, name) values ($1, 'tank', 'tank-1', 'Bench tank') returning id`, [site[0]!.id]);
+  const { rows: asset } = await pool.query<{ id: number }>(
+    `insert into assets(site_id, kind, code, name) values ($1, 'tank', 'tank-1', 'Bench tank') returning id`,
+    [site[0]!.id],
+  );
   await pool.query(
     `insert into channels(asset_id, device_id, key, name, kind, unit, min, max)
      select $1, $2, 'c' || g, 'Bench ' || g, 'other', 'mm/s', 0, 1000 from generate_series(1, ${CHANNELS + 1}) g`,
@@ -150,7 +166,12 @@ async function main() {
   const publisher = await (async () => {
     for (let i = 0; ; i++) {
       try {
-        return await mqtt.connectAsync(env['MQTT_URL']!, { username: 'gw-bench', password: DEVICE_PW, protocolVersion: 4, reconnectPeriod: 0 });
+        return await mqtt.connectAsync(env['MQTT_URL']!, {
+          username: 'gw-bench',
+          password: DEVICE_PW,
+          protocolVersion: 4,
+          reconnectPeriod: 0,
+        });
       } catch (e) {
         if (i > 100) throw e;
         await sleep(100);
@@ -187,7 +208,8 @@ async function main() {
     for (let done = 0; done < N; done += 10_000) {
       const rows = Math.min(10_000, N - done);
       const lines: string[] = [];
-      for (let i = 0; i < rows; i++) lines.push(`${copyChannel}\t${new Date(base + (done + i) * 1000).toISOString()}\t${(i % 1000) / 10}\t0\n`);
+      for (let i = 0; i < rows; i++)
+        lines.push(`${copyChannel}\t${new Date(base + (done + i) * 1000).toISOString()}\t${(i % 1000) / 10}\t0\n`);
       await pipeline(Readable.from(lines), client.query(copyFrom('COPY readings(channel_id, ts, value, quality) FROM STDIN')));
     }
   } finally {
@@ -248,7 +270,13 @@ async function main() {
     ['measurement', 'readings/s', 'p50', 'p99', 'vs. limit (target)'],
     ['broker limit (QoS 1, no database)', f(broker.rate), ms(broker.p50), ms(broker.p99), ''],
     ['COPY limit (rows into readings)', f(copy.rate), '', '', ''],
-    ['single-sample messages, publish → committed', f(singles.rate), ms(singles.p50), ms(singles.p99), `${pct(singles.rate / broker.rate)} of broker (≥ 80 %)`],
+    [
+      'single-sample messages, publish → committed',
+      f(singles.rate),
+      ms(singles.p50),
+      ms(singles.p99),
+      `${pct(singles.rate / broker.rate)} of broker (≥ 80 %)`,
+    ],
     [`batches of ${BATCH}, publish → committed`, f(batched.rate), '', '', `${pct(batched.rate / copy.rate)} of COPY (≥ 50 %)`],
     [`paced ${f(PACED_RATE)}/s single samples`, f(PACED_RATE), ms(pacedLat.p50), ms(pacedLat.p99), `p99 ≤ 150 ms`],
   ];
@@ -259,7 +287,9 @@ async function main() {
     if (k === 0) console.log(widths.map((w) => '-'.repeat(w)).join('  '));
   }
   console.log('');
-  say(`rows in readings at the end: ${f(total[0]!.n)} (expected ${f(N + N + messages * BATCH + paced)}); flush ${process.env['INGEST_FLUSH_MS'] ?? 20} ms`);
+  say(
+    `rows in readings at the end: ${f(total[0]!.n)} (expected ${f(N + N + messages * BATCH + paced)}); flush ${process.env['INGEST_FLUSH_MS'] ?? 20} ms`,
+  );
   fs.rmSync(dir, { recursive: true, force: true });
 }
 

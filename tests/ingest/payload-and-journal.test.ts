@@ -26,7 +26,12 @@ describe('TelemetryPayloadSchema', () => {
     expect(parse({ t: '2026-12-02T10:00:00.250Z', v: 1 }).samples[0]!.t).toBe(T);
     expect(parse({ t: '2026-12-02T11:00:00.250+01:00', v: 1 }).samples[0]!.t).toBe(T);
     expect(parse({ u: '°C', samples: [{ t: T, v: 1, q: 2 }] })).toEqual({ u: '°C', samples: [{ t: T, v: 1, q: 2 }] });
-    expect(parse([{ t: T, v: 1 }, { t: T + 1, v: 2 }]).samples).toHaveLength(2);
+    expect(
+      parse([
+        { t: T, v: 1 },
+        { t: T + 1, v: 2 },
+      ]).samples,
+    ).toHaveLength(2);
     expect(parse({ t: T + 0.4, v: 1 }).samples[0]!.t).toBe(T); // sub-millisecond digits rounded
   });
 
@@ -80,7 +85,11 @@ describe('TelemetryPayloadSchema', () => {
     const d = ReadingsQuerySchema.parse({});
     expect(d.to - d.from).toBe(3_600_000);
     expect(d.maxPoints).toBe(1000);
-    expect(ReadingsQuerySchema.parse({ from: '2026-12-02T10:00:00.250Z', to: String(T + 1000), maxPoints: '5000' })).toEqual({ from: T, to: T + 1000, maxPoints: 5000 });
+    expect(ReadingsQuerySchema.parse({ from: '2026-12-02T10:00:00.250Z', to: String(T + 1000), maxPoints: '5000' })).toEqual({
+      from: T,
+      to: T + 1000,
+      maxPoints: 5000,
+    });
     expect(ReadingsQuerySchema.safeParse({ from: String(T), to: String(T) }).success).toBe(false);
     expect(ReadingsQuerySchema.safeParse({ maxPoints: '5001' }).success).toBe(false);
   });
@@ -146,7 +155,9 @@ describe('Journal', () => {
     await j.rotate();
     j.append({ topic: 't', payload: 'early', rx: 100 }, null);
     await j.rotate();
-    const order = await Promise.all(new Journal(base, 'w3').closedSegments().map(async (s) => (await j.read(s, 10)).records[0]!.payload));
+    const order = await Promise.all(
+      new Journal(base, 'w3').closedSegments().map(async (s) => (await j.read(s, 10)).records[0]!.payload),
+    );
     expect(order).toEqual(['early', 'late']);
   });
 });

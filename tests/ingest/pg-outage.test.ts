@@ -49,7 +49,13 @@ beforeAll(async () => {
   await pool.query(`insert into sites(code, name, time_zone) values ('fernhollow', 'Outage test site', 'Europe/London')`);
   broker = await startOwnBroker(url, dir);
   worker = await startOwnWorker(
-    { databaseUrl: url, mqttUrl: `mqtt://127.0.0.1:${broker.port}`, workerId: 'outage', journalDir, extra: { INGEST_BUFFER_ROWS: '200' } },
+    {
+      databaseUrl: url,
+      mqttUrl: `mqtt://127.0.0.1:${broker.port}`,
+      workerId: 'outage',
+      journalDir,
+      extra: { INGEST_BUFFER_ROWS: '200' },
+    },
     dir,
   );
 }, 90_000);
@@ -69,7 +75,10 @@ describe('PostgreSQL outage', () => {
     const client = await connectDevice(broker.port, dev.username, dev.password);
     const n = 3000;
     const t0 = Date.now() - 3 * 3_600_000;
-    const journalFiles = () => (fs.existsSync(path.join(journalDir, 'outage')) ? fs.readdirSync(path.join(journalDir, 'outage')).filter((f) => f.endsWith('.jsonl')).length : 0);
+    const journalFiles = () =>
+      fs.existsSync(path.join(journalDir, 'outage'))
+        ? fs.readdirSync(path.join(journalDir, 'outage')).filter((f) => f.endsWith('.jsonl')).length
+        : 0;
     const value = (i: number) => 20 + (i % 100) / 10;
     // 800 readings with the database up, then it stops, then 2 200 more while it is down.
     await publishSeries(client, ch.topic, 800, { t0, perSecond: 1000, value });
@@ -89,10 +98,15 @@ describe('PostgreSQL outage', () => {
     } finally {
       if (saved) process.env['DATABASE_URL'] = saved;
     }
-    const stored = await waitFor(async () => {
-      const c = await countReadings(pool, ch.id);
-      return c >= n ? c : null;
-    }, 40_000, `${n} readings after the outage`, 250);
+    const stored = await waitFor(
+      async () => {
+        const c = await countReadings(pool, ch.id);
+        return c >= n ? c : null;
+      },
+      40_000,
+      `${n} readings after the outage`,
+      250,
+    );
     expect(stored).toBe(n);
     const { rows } = await pool.query<{ n: number; m: number; h: number }>(
       `select count(distinct ts)::int as n, (select sum(n)::int from readings_1m where channel_id = $1) as m,

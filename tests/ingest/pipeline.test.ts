@@ -39,7 +39,9 @@ afterAll(async () => {
 });
 
 async function rejectionsFor(topic: string): Promise<{ reason: string; detail: string | null; payload: string }[]> {
-  const { rows } = await pool.query('select reason, detail, payload from ingest_rejections where topic = $1 order by id', [topic]);
+  const { rows } = await pool.query('select reason, detail, payload from ingest_rejections where topic = $1 order by id', [
+    topic,
+  ]);
   return rows;
 }
 
@@ -48,9 +50,13 @@ describe('readings arrive and are queryable', () => {
     const ch = dev.channels['visc']!;
     const t0 = Math.floor(Date.now() / 60_000) * 60_000 - 10 * 60_000; // ten whole minutes ago
     // 20 single samples, one per second, values 10.0, 10.1, … 11.9 (hand-computed mean 10.95).
-    for (let i = 0; i < 20; i++) await client.publishAsync(ch.topic, JSON.stringify({ t: t0 + i * 1000, v: 10 + i / 10 }), { qos: 1 });
+    for (let i = 0; i < 20; i++)
+      await client.publishAsync(ch.topic, JSON.stringify({ t: t0 + i * 1000, v: 10 + i / 10 }), { qos: 1 });
     // A batch with ISO times, a quality flag and the unit spelt in ASCII.
-    const batch = { u: 'mm2/s', samples: [0, 1, 2].map((k) => ({ t: new Date(t0 + 30_000 + k * 1000).toISOString(), v: 20 + k, q: k === 2 ? 1 : 0 })) };
+    const batch = {
+      u: 'mm2/s',
+      samples: [0, 1, 2].map((k) => ({ t: new Date(t0 + 30_000 + k * 1000).toISOString(), v: 20 + k, q: k === 2 ? 1 : 0 })),
+    };
     await client.publishAsync(ch.topic, JSON.stringify(batch), { qos: 1 });
     // A bare array.
     await client.publishAsync(ch.topic, JSON.stringify([{ t: t0 + 40_000, v: 30 }]), { qos: 1 });
@@ -66,7 +72,9 @@ describe('readings arrive and are queryable', () => {
     expect(m[0]!.vmin).toBe(10);
     expect(m[0]!.vmax).toBe(30);
     expect(m[0]!.vsum).toBeCloseTo(312, 9);
-    const { rows: h } = await pool.query<{ n: number }>('select sum(n)::int as n from readings_1h where channel_id = $1', [ch.id]);
+    const { rows: h } = await pool.query<{ n: number }>('select sum(n)::int as n from readings_1h where channel_id = $1', [
+      ch.id,
+    ]);
     expect(h[0]!.n).toBe(24);
 
     const viewer = await signIn('viewer');
@@ -84,7 +92,11 @@ describe('readings arrive and are queryable', () => {
     const ch = dev.channels['temp']!;
     const mqtt = await import('mqtt');
     const { TEST_SERVICE_PASSWORD } = await import('../support/test-stack.ts');
-    const web = await mqtt.default.connectAsync(`mqtt://127.0.0.1:${port}`, { username: 'svc-web', password: TEST_SERVICE_PASSWORD, protocolVersion: 4 });
+    const web = await mqtt.default.connectAsync(`mqtt://127.0.0.1:${port}`, {
+      username: 'svc-web',
+      password: TEST_SERVICE_PASSWORD,
+      protocolVersion: 4,
+    });
     const live: { channelId: number; tMs: number; value: number }[] = [];
     web.on('message', (_t, buf) => live.push(...(JSON.parse(buf.toString()) as typeof live)));
     await web.subscribeAsync('coatrail/v1/_live/readings', { qos: 0 });
@@ -137,7 +149,10 @@ describe('bad messages are refused with their reason; the good ones around them 
     const reasons = all.map((r) => r.reason).sort();
     expect(reasons).toEqual(cases.map((c) => c.reason).sort());
     for (const c of cases) expect(all.some((r) => r.reason === c.reason && r.payload === c.payload)).toBe(true);
-    expect(all.filter((r) => r.reason === 'out-of-range').map((r) => r.detail!.replace(/ at .*/, ''))).toEqual(['outside -5–40 °C: 41', 'outside -5–40 °C: -5.5']);
+    expect(all.filter((r) => r.reason === 'out-of-range').map((r) => r.detail!.replace(/ at .*/, ''))).toEqual([
+      'outside -5–40 °C: 41',
+      'outside -5–40 °C: -5.5',
+    ]);
 
     // The unknown channel of a known device is listed for an engineer.
     const engineer = await signIn('engineer');
@@ -177,24 +192,39 @@ describe('bad messages are refused with their reason; the good ones around them 
     ];
     await client.publishAsync(ch.topic, JSON.stringify({ samples }), { qos: 1 });
     await waitFor(async () => (await countReadings(pool, ch.id)) === 3, 10_000, 'three good samples');
-    const rj = await waitFor(async () => {
-      const r = await rejectionsFor(ch.topic);
-      return r.length === 2 ? r : null;
-    }, 5000, 'two rejections');
+    const rj = await waitFor(
+      async () => {
+        const r = await rejectionsFor(ch.topic);
+        return r.length === 2 ? r : null;
+      },
+      5000,
+      'two rejections',
+    );
     expect(rj.map((r) => r.reason).sort()).toEqual(['duplicate', 'out-of-range']);
     expect(rj.find((r) => r.reason === 'out-of-range')!.detail).toMatch(/^1 of 5 samples outside 0–6000 rpm: 7000 at /);
   });
 
   it('records a device status message as online/offline with an event', async () => {
     await client.publishAsync(`${dev.prefix}/status`, 'offline', { qos: 1 });
-    await waitFor(async () => {
-      const { rows } = await pool.query<{ online: boolean }>('select online from devices where id = $1', [dev.id]);
-      return rows[0]!.online === false;
-    }, 10_000, 'the device to show offline');
-    const { rows } = await pool.query<{ kind: string; reason: string }>('select kind, reason from device_events where device_id = $1 order by id desc limit 1', [dev.id]);
+    await waitFor(
+      async () => {
+        const { rows } = await pool.query<{ online: boolean }>('select online from devices where id = $1', [dev.id]);
+        return rows[0]!.online === false;
+      },
+      10_000,
+      'the device to show offline',
+    );
+    const { rows } = await pool.query<{ kind: string; reason: string }>(
+      'select kind, reason from device_events where device_id = $1 order by id desc limit 1',
+      [dev.id],
+    );
     expect(rows[0]).toEqual({ kind: 'offline', reason: `status message on ${dev.prefix}/status` });
     await client.publishAsync(`${dev.prefix}/status`, JSON.stringify({ status: 'online' }), { qos: 1 });
-    await waitFor(async () => (await pool.query('select online from devices where id = $1', [dev.id])).rows[0].online === true, 10_000, 'online again');
+    await waitFor(
+      async () => (await pool.query('select online from devices where id = $1', [dev.id])).rows[0].online === true,
+      10_000,
+      'online again',
+    );
   });
 });
 

@@ -26,7 +26,10 @@ beforeAll(async () => {
   const dev = await createTestDevice(pool, [{ key: 'saw', unit: 'mm/s', min: 0, max: 100 }], 'rep');
   channelId = dev.channels['saw']!.id;
   day0 = Math.floor(Date.now() / DAY) * DAY - 3 * DAY; // a whole UTC day, three days ago
-  await pool.query('select ensure_reading_partitions(to_timestamp($1::float8 / 1000), to_timestamp($2::float8 / 1000))', [day0, day0 + DAY]);
+  await pool.query('select ensure_reading_partitions(to_timestamp($1::float8 / 1000), to_timestamp($2::float8 / 1000))', [
+    day0,
+    day0 + DAY,
+  ]);
   await pool.query(
     `insert into readings(channel_id, ts, value)
      select $1, ts, (extract(epoch from ts)::bigint % 3600) / 36.0
@@ -62,7 +65,15 @@ describe('GET /api/v1/channels/{id}/readings', () => {
   it('buckets a day into 5-minute min/max/mean from the minute rollup at maxPoints 1000', async () => {
     const r = await get(`from=${day0}&to=${day0 + DAY}&maxPoints=1000`);
     expect(r.status).toBe(200);
-    expect(r.body).toMatchObject({ channelId, unit: 'mm/s', from: day0, to: day0 + DAY, mode: 'bucketed', bucketMs: 300_000, source: 'minute' });
+    expect(r.body).toMatchObject({
+      channelId,
+      unit: 'mm/s',
+      from: day0,
+      to: day0 + DAY,
+      mode: 'bucketed',
+      bucketMs: 300_000,
+      source: 'minute',
+    });
     const b = r.body.buckets as { t: number; min: number; max: number; mean: number; n: number }[];
     expect(b).toHaveLength(288); // 86 400 s / 300 s
     expect(b.reduce((s, x) => s + x.n, 0)).toBe(86_400);
@@ -130,7 +141,15 @@ describe('GET /api/v1/channels/{id}/readings', () => {
     expect(d.body.mode).toBe('raw');
     expect(d.body.points).toEqual([]);
     expect(d.body.to - d.body.from).toBe(3_600_000);
-    for (const qs of [`from=${day0 + 10}&to=${day0}`, `from=${day0}&to=${day0}`, 'maxPoints=0', 'maxPoints=5001', 'maxPoints=abc', 'from=yesterday', 'from=2026-12-01T10:00:00']) {
+    for (const qs of [
+      `from=${day0 + 10}&to=${day0}`,
+      `from=${day0}&to=${day0}`,
+      'maxPoints=0',
+      'maxPoints=5001',
+      'maxPoints=abc',
+      'from=yesterday',
+      'from=2026-12-01T10:00:00',
+    ]) {
       const r = await get(qs);
       expect(r.status, qs).toBe(400);
       expect(r.headers.get('content-type')).toContain('application/problem+json');

@@ -35,7 +35,12 @@ let broker: OwnBroker;
 let worker: Child;
 let dev: TestDevice;
 
-const workerEnv = () => ({ databaseUrl: dbUrl, mqttUrl: `mqtt://127.0.0.1:${broker.port}`, workerId, journalDir: path.join(dir, 'journal') });
+const workerEnv = () => ({
+  databaseUrl: dbUrl,
+  mqttUrl: `mqtt://127.0.0.1:${broker.port}`,
+  workerId,
+  journalDir: path.join(dir, 'journal'),
+});
 
 beforeAll(async () => {
   dbUrl = inject('stack').databaseUrl;
@@ -82,10 +87,14 @@ describe('worker crash', () => {
     });
     expect(killedAt).toBe(1200);
     worker = await restarted!;
-    const stored = await waitFor(async () => {
-      const c = await countReadings(pool, ch.id);
-      return c >= n ? c : null;
-    }, 30_000, `${n} readings`);
+    const stored = await waitFor(
+      async () => {
+        const c = await countReadings(pool, ch.id);
+        return c >= n ? c : null;
+      },
+      30_000,
+      `${n} readings`,
+    );
     expect(stored).toBe(n);
     const { rows } = await pool.query<{ n: number; first: number; last: number; m: number }>(
       `select count(distinct ts)::int as n, min(extract(epoch from ts) * 1000)::float8 as first, max(extract(epoch from ts) * 1000)::float8 as last,
@@ -126,7 +135,9 @@ describe('clean shutdown', () => {
     await waitFor(async () => (await countReadings(pool, ch.id)) >= n, 30_000, `${n} readings`);
     expect(await countReadings(pool, ch.id)).toBe(n);
     // Everything committed before the stop was acknowledged: nothing came back as a duplicate.
-    const { rows } = await pool.query<{ n: number }>('select count(*)::int as n from ingest_rejections where topic = $1', [ch.topic]);
+    const { rows } = await pool.query<{ n: number }>('select count(*)::int as n from ingest_rejections where topic = $1', [
+      ch.topic,
+    ]);
     expect(rows[0]!.n).toBe(0);
     await client.endAsync();
   }, 60_000);

@@ -73,7 +73,13 @@ beforeAll(async () => {
   for (const id of ids) {
     workers.push(
       await startOwnWorker(
-        { databaseUrl: dbUrl, mqttUrl: `mqtt://127.0.0.1:${port}`, workerId: id, journalDir: path.join(dir, 'journal'), extra: { INGEST_SHARED_GROUP: 'coatrail-ingest' } },
+        {
+          databaseUrl: dbUrl,
+          mqttUrl: `mqtt://127.0.0.1:${port}`,
+          workerId: id,
+          journalDir: path.join(dir, 'journal'),
+          extra: { INGEST_SHARED_GROUP: 'coatrail-ingest' },
+        },
         dir,
       ),
     );
@@ -101,19 +107,22 @@ describe('two workers on a shared subscription behind mosquitto', () => {
     await client.endAsync();
     await waitFor(async () => (await countReadings(pool, ch.id)) >= n, 20_000, `${n} readings`);
     expect(await countReadings(pool, ch.id)).toBe(n);
-    const { rows: dup } = await pool.query<{ n: number }>(
-      `select count(*)::int as n from ingest_rejections where topic = $1`,
-      [ch.topic],
-    );
+    const { rows: dup } = await pool.query<{ n: number }>(`select count(*)::int as n from ingest_rejections where topic = $1`, [
+      ch.topic,
+    ]);
     expect(dup[0]!.n).toBe(0); // no message reached both workers
     // Each worker's share, from its heartbeat (committed rows; reported every second).
-    const shares = await waitFor(async () => {
-      const { rows } = await pool.query<{ worker_id: string; committed: number }>(
-        'select worker_id, committed from ingest_status where worker_id = any($1) order by worker_id',
-        [ids],
-      );
-      return rows.length === 2 && rows[0]!.committed + rows[1]!.committed === n ? rows : null;
-    }, 10_000, 'both heartbeats to count the stream');
+    const shares = await waitFor(
+      async () => {
+        const { rows } = await pool.query<{ worker_id: string; committed: number }>(
+          'select worker_id, committed from ingest_status where worker_id = any($1) order by worker_id',
+          [ids],
+        );
+        return rows.length === 2 && rows[0]!.committed + rows[1]!.committed === n ? rows : null;
+      },
+      10_000,
+      'both heartbeats to count the stream',
+    );
     for (const s of shares) expect(s.committed).toBeGreaterThan(0);
   }, 60_000);
 });

@@ -15,7 +15,12 @@ import { freePort } from '../../db/pg-control.ts';
 import { hashPassword } from '../../src/lib/server/passwords.ts';
 import { root } from './test-stack.ts';
 
-export async function waitFor<T>(check: () => Promise<T | null | undefined | false>, timeoutMs: number, what: string, everyMs = 100): Promise<T> {
+export async function waitFor<T>(
+  check: () => Promise<T | null | undefined | false>,
+  timeoutMs: number,
+  what: string,
+  everyMs = 100,
+): Promise<T> {
   const until = Date.now() + timeoutMs;
   let last: unknown = null;
   while (Date.now() < until) {
@@ -27,7 +32,9 @@ export async function waitFor<T>(check: () => Promise<T | null | undefined | fal
     }
     await new Promise((r) => setTimeout(r, everyMs));
   }
-  throw new Error(`timed out after ${timeoutMs} ms waiting for ${what}${last ? ` (last error: ${(last as Error).message})` : ''}`);
+  throw new Error(
+    `timed out after ${timeoutMs} ms waiting for ${what}${last ? ` (last error: ${(last as Error).message})` : ''}`,
+  );
 }
 
 export const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
@@ -75,10 +82,23 @@ export async function createTestDevice(pool: pg.Pool, channels: TestChannelSpec[
     );
     out[c.key] = { id: rows[0]!.id, topic: `${prefix}/${assetCode}/${c.key}` };
   }
-  return { id: dev[0]!.id, username, password, prefix, assetCode, channels: out, topic: (key) => `${prefix}/${assetCode}/${key}` };
+  return {
+    id: dev[0]!.id,
+    username,
+    password,
+    prefix,
+    assetCode,
+    channels: out,
+    topic: (key) => `${prefix}/${assetCode}/${key}`,
+  };
 }
 
-export async function connectDevice(port: number, username: string, password: string, opts: mqtt.IClientOptions = {}): Promise<MqttClient> {
+export async function connectDevice(
+  port: number,
+  username: string,
+  password: string,
+  opts: mqtt.IClientOptions = {},
+): Promise<MqttClient> {
   return mqtt.connectAsync(`mqtt://127.0.0.1:${port}`, {
     username,
     password,
@@ -138,7 +158,12 @@ export interface OwnBroker extends Child {
 /** The product's broker (ingest/broker-main.ts) on a free (or given) loopback port. */
 export async function startOwnBroker(databaseUrl: string, dir: string, port?: number): Promise<OwnBroker> {
   const p = port ?? (await freePort());
-  const child = startChild('broker', 'ingest/broker-main.ts', { ...process.env, DATABASE_URL: databaseUrl, MQTT_PORT: String(p), MQTT_SERVICE_PASSWORD: SERVICE_PASSWORD }, dir);
+  const child = startChild(
+    'broker',
+    'ingest/broker-main.ts',
+    { ...process.env, DATABASE_URL: databaseUrl, MQTT_PORT: String(p), MQTT_SERVICE_PASSWORD: SERVICE_PASSWORD },
+    dir,
+  );
   await waitFor(async () => portOpen(p), 20_000, `the broker on port ${p}`);
   return { ...child, port: p };
 }
@@ -153,17 +178,28 @@ export interface WorkerEnv {
 
 /** An ingest worker (ingest/main.ts); resolves once it has connected to the broker. */
 export async function startOwnWorker(w: WorkerEnv, dir: string): Promise<Child> {
-  const child = startChild(`worker-${w.workerId}`, 'ingest/main.ts', {
-    ...process.env,
-    DATABASE_URL: w.databaseUrl,
-    MQTT_URL: w.mqttUrl,
-    MQTT_SERVICE_PASSWORD: SERVICE_PASSWORD,
-    INGEST_WORKER_ID: w.workerId,
-    INGEST_JOURNAL_DIR: w.journalDir,
-    ...w.extra,
-  }, dir);
+  const child = startChild(
+    `worker-${w.workerId}`,
+    'ingest/main.ts',
+    {
+      ...process.env,
+      DATABASE_URL: w.databaseUrl,
+      MQTT_URL: w.mqttUrl,
+      MQTT_SERVICE_PASSWORD: SERVICE_PASSWORD,
+      INGEST_WORKER_ID: w.workerId,
+      INGEST_JOURNAL_DIR: w.journalDir,
+      ...w.extra,
+    },
+    dir,
+  );
   const before = child.log().split('connected to').length;
-  await waitFor(async () => child.log().split('connected to').length > before || (child.proc.exitCode !== null && Promise.reject(new Error(child.log()))), 20_000, `worker ${w.workerId} to connect`);
+  await waitFor(
+    async () =>
+      child.log().split('connected to').length > before ||
+      (child.proc.exitCode !== null && Promise.reject(new Error(child.log()))),
+    20_000,
+    `worker ${w.workerId} to connect`,
+  );
   return child;
 }
 

@@ -55,7 +55,11 @@ export default function RefusedMessages({ timeZone, counts }: Props) {
   const shown = useMemo(() => {
     const needle = text.trim().toLowerCase();
     const filtered = needle
-      ? rows.filter((r) => [r.topic, r.deviceUsername ?? '', r.detail ?? '', r.payload, REJECTION_LABELS[r.reason]].some((s) => s.toLowerCase().includes(needle)))
+      ? rows.filter((r) =>
+          [r.topic, r.deviceUsername ?? '', r.detail ?? '', r.payload, REJECTION_LABELS[r.reason]].some((s) =>
+            s.toLowerCase().includes(needle),
+          ),
+        )
       : rows;
     const k = sort.key;
     return [...filtered].sort((a, b) => {
@@ -68,7 +72,15 @@ export default function RefusedMessages({ timeZone, counts }: Props) {
   function exportCsv() {
     const csv = toCsv(
       ['received', 'reason', 'topic', 'device', 'channel_id', 'detail', 'payload'],
-      shown.map((r) => [new Date(r.receivedAtMs).toISOString(), r.reason, r.topic, r.deviceUsername, r.channelId, r.detail, r.payload]),
+      shown.map((r) => [
+        new Date(r.receivedAtMs).toISOString(),
+        r.reason,
+        r.topic,
+        r.deviceUsername,
+        r.channelId,
+        r.detail,
+        r.payload,
+      ]),
     );
     const url = URL.createObjectURL(new Blob([csv], { type: 'text/csv;charset=utf-8' }));
     const a = document.createElement('a');
@@ -83,7 +95,7 @@ export default function RefusedMessages({ timeZone, counts }: Props) {
       <button
         type="button"
         className="font-bold text-ink-soft hover:underline"
-        onClick={() => setSort((s) => ({ key, dir: s.key === key ? ((-s.dir) as 1 | -1) : key === 'receivedAtMs' ? -1 : 1 }))}
+        onClick={() => setSort((s) => ({ key, dir: s.key === key ? (-s.dir as 1 | -1) : key === 'receivedAtMs' ? -1 : 1 }))}
       >
         {label} {sort.key === key ? (sort.dir === 1 ? '▲' : '▼') : ''}
       </button>
@@ -129,7 +141,10 @@ export default function RefusedMessages({ timeZone, counts }: Props) {
       </div>
       {state === 'error' && (
         <p role="alert" className="caution mt-3">
-          {error} <button type="button" className="btn-quiet ml-2" onClick={() => void load(null)}>Try again</button>
+          {error}{' '}
+          <button type="button" className="btn-quiet ml-2" onClick={() => void load(null)}>
+            Try again
+          </button>
         </p>
       )}
       {state === 'loading' && rows.length === 0 && (
@@ -139,13 +154,17 @@ export default function RefusedMessages({ timeZone, counts }: Props) {
       )}
       {state !== 'loading' && state !== 'error' && shown.length === 0 && (
         <div className="empty mt-3" role="status">
-          {rows.length === 0 ? 'No refused messages' + (reason ? ` with reason “${REJECTION_LABELS[reason]}”.` : '.') : 'No loaded message matches the text.'}
+          {rows.length === 0
+            ? 'No refused messages' + (reason ? ` with reason “${REJECTION_LABELS[reason]}”.` : '.')
+            : 'No loaded message matches the text.'}
         </div>
       )}
       {shown.length > 0 && (
         <div className="mt-3 overflow-x-auto">
           <table>
-            <caption className="sr-only">Refused messages, {sort.key} {sort.dir === 1 ? 'ascending' : 'descending'}</caption>
+            <caption className="sr-only">
+              Refused messages, {sort.key} {sort.dir === 1 ? 'ascending' : 'descending'}
+            </caption>
             <thead>
               <tr>
                 {header('receivedAtMs', `Received (${timeZone})`)}
@@ -184,7 +203,9 @@ export default function RefusedMessages({ timeZone, counts }: Props) {
                   {open === r.id && (
                     <tr id={`rj-p-${r.id}`}>
                       <td colSpan={6}>
-                        <pre className="num max-h-64 overflow-auto whitespace-pre-wrap break-all rounded bg-slate-panel p-2 text-xs">{r.payload || '(empty payload)'}</pre>
+                        <pre className="num max-h-64 overflow-auto whitespace-pre-wrap break-all rounded bg-slate-panel p-2 text-xs">
+                          {r.payload || '(empty payload)'}
+                        </pre>
                       </td>
                     </tr>
                   )}

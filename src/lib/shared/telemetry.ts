@@ -81,7 +81,11 @@ export interface TelemetryPayload {
 
 /** One shape for the three accepted forms; sub-millisecond digits of epoch times are rounded. */
 export function normalisePayload(p: z.infer<typeof TelemetryPayloadSchema>): TelemetryPayload {
-  const out: TelemetryPayload = Array.isArray(p) ? { u: undefined, samples: p } : 'samples' in p ? { u: p.u, samples: p.samples } : { u: undefined, samples: [p] };
+  const out: TelemetryPayload = Array.isArray(p)
+    ? { u: undefined, samples: p }
+    : 'samples' in p
+      ? { u: p.u, samples: p.samples }
+      : { u: undefined, samples: [p] };
   for (const s of out.samples) if (!Number.isInteger(s.t)) s.t = Math.round(s.t);
   return out;
 }
@@ -94,8 +98,10 @@ const ExplainTimeSchema = z.unknown().superRefine((t, ctx) => {
   if (typeof t === 'number') {
     if (!(t >= T_MIN_MS && t < T_MAX_MS)) ctx.addIssue({ code: 'custom', message: TIME_RANGE_MESSAGE });
   } else if (typeof t === 'string') {
-    if (!ISO_WITH_ZONE.test(t)) ctx.addIssue({ code: 'custom', message: 'an ISO 8601 time needs a zone designator (Z or ±hh:mm)' });
-    else if (!(Date.parse(t) >= T_MIN_MS && Date.parse(t) < T_MAX_MS)) ctx.addIssue({ code: 'custom', message: TIME_RANGE_MESSAGE });
+    if (!ISO_WITH_ZONE.test(t))
+      ctx.addIssue({ code: 'custom', message: 'an ISO 8601 time needs a zone designator (Z or ±hh:mm)' });
+    else if (!(Date.parse(t) >= T_MIN_MS && Date.parse(t) < T_MAX_MS))
+      ctx.addIssue({ code: 'custom', message: TIME_RANGE_MESSAGE });
   } else {
     ctx.addIssue({ code: 'custom', message: 't must be epoch milliseconds (a number) or an ISO 8601 time (a string)' });
   }
@@ -108,7 +114,9 @@ const ExplainSampleSchema = z.object({
 });
 
 /** Validate and normalise a parsed JSON message. */
-export function parseTelemetryPayload(json: unknown): { success: true; data: TelemetryPayload } | { success: false; error: z.ZodError } {
+export function parseTelemetryPayload(
+  json: unknown,
+): { success: true; data: TelemetryPayload } | { success: false; error: z.ZodError } {
   const r = TelemetryPayloadSchema.safeParse(json);
   if (r.success) return { success: true, data: normalisePayload(r.data) };
   const explain = Array.isArray(json)
@@ -117,7 +125,10 @@ export function parseTelemetryPayload(json: unknown): { success: true; data: Tel
       ? z.object({ u: UnitSchema.optional(), samples: z.array(ExplainSampleSchema).min(1).max(MAX_SAMPLES_PER_MESSAGE) })
       : json !== null && typeof json === 'object'
         ? ExplainSampleSchema
-        : z.object({ t: ExplainTimeSchema, v: z.number() }, { error: 'expected a JSON object {"t", "v"}, a {"samples": […]} batch or an array of samples' });
+        : z.object(
+            { t: ExplainTimeSchema, v: z.number() },
+            { error: 'expected a JSON object {"t", "v"}, a {"samples": […]} batch or an array of samples' },
+          );
   const e = explain.safeParse(json);
   return { success: false, error: e.success ? r.error : e.error };
 }
@@ -222,7 +233,15 @@ export type ReadingsQuery = z.infer<typeof ReadingsQuerySchema>;
 
 /** The answer of the readings endpoint; times are epoch ms. */
 export type ReadingsResponse =
-  | { channelId: number; unit: string; from: number; to: number; mode: 'raw'; bucketMs: null; points: { t: number; v: number; q?: number }[] }
+  | {
+      channelId: number;
+      unit: string;
+      from: number;
+      to: number;
+      mode: 'raw';
+      bucketMs: null;
+      points: { t: number; v: number; q?: number }[];
+    }
   | {
       channelId: number;
       unit: string;

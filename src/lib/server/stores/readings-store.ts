@@ -12,7 +12,12 @@
  */
 import type pg from 'pg';
 import { BUCKET_LADDER_MS, chooseBucketMs, chooseSource } from '../../domain/series/buckets.ts';
-import { RetentionSettingsSchema, type ReadingsQuery, type ReadingsResponse, type RetentionSettings } from '../../shared/telemetry.ts';
+import {
+  RetentionSettingsSchema,
+  type ReadingsQuery,
+  type ReadingsResponse,
+  type RetentionSettings,
+} from '../../shared/telemetry.ts';
 
 const MINUTE_MS = 60_000;
 const HOUR_MS = 3_600_000;
@@ -69,14 +74,23 @@ export async function queryReadings(pool: pg.Pool, channel: ChannelBrief, q: Rea
       [channel.id, from, to, maxPoints + 1],
     );
     if (rows.length <= maxPoints) {
-      return { ...head, mode: 'raw', bucketMs: null, points: rows.map((r) => (r.q ? { t: r.t, v: r.v, q: r.q } : { t: r.t, v: r.v })) };
+      return {
+        ...head,
+        mode: 'raw',
+        bucketMs: null,
+        points: rows.map((r) => (r.q ? { t: r.t, v: r.v, q: r.q } : { t: r.t, v: r.v })),
+      };
     }
   }
   const bucketMs = alignedBucketMs(from, to, maxPoints);
   const preferred = chooseSource(to - from, maxPoints);
   // A rollup serves only widths that are whole multiples of its own bucket.
   const source: 'raw' | 'minute' | 'hour' =
-    preferred === 'hour' && bucketMs % HOUR_MS === 0 ? 'hour' : preferred !== 'raw' && bucketMs % MINUTE_MS === 0 ? 'minute' : 'raw';
+    preferred === 'hour' && bucketMs % HOUR_MS === 0
+      ? 'hour'
+      : preferred !== 'raw' && bucketMs % MINUTE_MS === 0
+        ? 'minute'
+        : 'raw';
   const sql =
     source === 'raw'
       ? `select (extract(epoch from b) * 1000)::float8 as t, min(value) as min, max(value) as max, avg(value) as mean, count(*)::int as n
@@ -159,7 +173,9 @@ export async function applyRetention(pool: pg.Pool, nowMs: number, settings?: Re
   const s = settings ?? (await retentionSettings(pool));
   const out: RetentionResult = { droppedPartitions: [], deletedRaw: 0, deletedMinute: 0, deletedHour: 0, deletedRejections: 0 };
   if (!s) return out;
-  const { rows: channels } = await pool.query<{ id: number; kind: string; raw_retention_days: number }>('select id, kind, raw_retention_days from channels');
+  const { rows: channels } = await pool.query<{ id: number; kind: string; raw_retention_days: number }>(
+    'select id, kind, raw_retention_days from channels',
+  );
   const days = (c: { kind: string; raw_retention_days: number }) => s.rawDaysByKind[c.kind] ?? c.raw_retention_days;
   const longest = channels.reduce((m, c) => Math.max(m, days(c)), 0);
   if (longest > 0) {
@@ -177,15 +193,31 @@ export async function applyRetention(pool: pg.Pool, nowMs: number, settings?: Re
     }
   }
   for (const c of channels) {
-    const r = await pool.query(`delete from readings where channel_id = $1 and ts < to_timestamp($2::float8 / 1000)`, [c.id, nowMs - days(c) * DAY_MS]);
+    const r = await pool.query(`delete from readings where channel_id = $1 and ts < to_timestamp($2::float8 / 1000)`, [
+      c.id,
+      nowMs - days(c) * DAY_MS,
+    ]);
     out.deletedRaw += r.rowCount ?? 0;
   }
   out.deletedMinute =
-    (await pool.query(`delete from readings_1m where bucket < to_timestamp($1::float8 / 1000)`, [nowMs - s.minuteRollupDays * DAY_MS])).rowCount ?? 0;
+    (
+      await pool.query(`delete from readings_1m where bucket < to_timestamp($1::float8 / 1000)`, [
+        nowMs - s.minuteRollupDays * DAY_MS,
+      ])
+    ).rowCount ?? 0;
   if (s.hourRollupDays !== null) {
-    out.deletedHour = (await pool.query(`delete from readings_1h where bucket < to_timestamp($1::float8 / 1000)`, [nowMs - s.hourRollupDays * DAY_MS])).rowCount ?? 0;
+    out.deletedHour =
+      (
+        await pool.query(`delete from readings_1h where bucket < to_timestamp($1::float8 / 1000)`, [
+          nowMs - s.hourRollupDays * DAY_MS,
+        ])
+      ).rowCount ?? 0;
   }
   out.deletedRejections =
-    (await pool.query(`delete from ingest_rejections where received_at < to_timestamp($1::float8 / 1000)`, [nowMs - s.rejectionDays * DAY_MS])).rowCount ?? 0;
+    (
+      await pool.query(`delete from ingest_rejections where received_at < to_timestamp($1::float8 / 1000)`, [
+        nowMs - s.rejectionDays * DAY_MS,
+      ])
+    ).rowCount ?? 0;
   return out;
 }
