@@ -17,10 +17,12 @@
  */
 import type pg from 'pg';
 import { judgeTest, type TestMeasurement } from '../src/lib/domain/quality/acceptance.ts';
-import { acceptanceSettings } from '../src/lib/server/stores/quality-store.ts';
+import { AMS2750G_CLASSES, uniformitySurvey } from '../src/lib/domain/oven/uniformity.ts';
+import { acceptanceSettings, attachFile } from '../src/lib/server/stores/quality-store.ts';
 import { recordPastLoad } from '../src/lib/server/stores/load-store.ts';
 import { windowInForce } from '../src/lib/server/stores/window-store.ts';
 import type { DefectType } from '../src/lib/shared/quality.ts';
+import { autoStabilisedIndex, parseSurveyCsv } from '../src/lib/shared/surveys.ts';
 import {
   HOUR_MS,
   MINUTE_MS,
@@ -227,12 +229,12 @@ export async function seedStory(pool: pg.Pool, opts: SeedStoryOptions = {}): Pro
       }
       continue;
     }
-    for (let i = 0; i < 2; i++) {
-      const pct = rng() < 0.004 ? Math.round((1 + rng() * 3) * 10) / 10 : 0; // an occasional class 1
+    // One adhesion test per load: a dry cross-cut, or (about one load in three) a cross-cut after two boil cycles.
+    const pct = rng() < 0.004 ? Math.round((1 + rng() * 3) * 10) / 10 : 0; // an occasional class 1
+    if (rng() < 0.3) {
+      tests.push({ job: pick(), kind: 'boil', at: onDay(cy.loadEndMs, 1, rng), inputs: { percentRemoved: pct, boilCycles: 2 }, m: { kind: 'boil', percentRemoved: pct, boilCycles: 2 }, boil: 2 });
+    } else {
       tests.push({ job: pick(), kind: 'crosscut', at: onDay(cy.loadEndMs, 1, rng), inputs: { percentRemoved: pct }, m: { kind: 'crosscut', percentRemoved: pct }, boil: 0 });
-    }
-    if (rng() < 0.5) {
-      tests.push({ job: pick(), kind: 'boil', at: onDay(cy.loadEndMs, 1, rng), inputs: { percentRemoved: 0, boilCycles: 2 }, m: { kind: 'boil', percentRemoved: 0, boilCycles: 2 }, boil: 2 });
     }
     const um = Math.round((1.9 + rng() * 0.6) * 100) / 100;
     tests.push({ job: pick(), kind: 'thickness', at: onDay(cy.loadEndMs, 1, rng), inputs: { method: 'measured', thicknessUm: um }, m: { kind: 'thickness', thicknessUm: um }, boil: null });
@@ -266,6 +268,7 @@ export async function seedStory(pool: pg.Pool, opts: SeedStoryOptions = {}): Pro
       judged.map((t) => t.boil),
     ],
   );
+  await seedSurveys(pool, nowMs, asset);
   const result: SeedStoryResult = {
     seeded: true,
     jobs: allJobs.length,
@@ -283,6 +286,55 @@ export async function seedStory(pool: pg.Pool, opts: SeedStoryOptions = {}): Pro
   return result;
 }
 
+/** Survey age per oven (days before now): oven B's last survey is older than the 90-day interval. */
+const SURVEY_DAYS_AGO: Record<string, number> = { 'oven-a': 41, 'oven-b': 118, 'oven-c': 63 };
+
+/**
+ * One uniformity survey per oven, from an invented 9-thermocouple survey file (1-minute rows,
+ * heat-up at about 3 °C/min to a per-sensor offset around the 110 °C setpoint, ±0.15 °C noise),
+ * computed like an uploaded one: automatic stabilised soak, AMS2750G class table.
+ */
+async function seedSurveys(pool: pg.Pool, nowMs: number, asset: Map<string, number>): Promise<void> {
+  const engineer = (await pool.query<{ id: number }>(`select id from users where username = 'engineer'`)).rows[0];
+  for (const [code, daysAgo] of Object.entries(SURVEY_DAYS_AGO)) {
+    const oven = asset.get(code);
+    if (!oven) continue;
+    const rng = rngFrom(seedOf('survey', code));
+    const start = Math.floor((nowMs - daysAgo * 86_400_000) / 60_000) * 60_000;
+    const spread = code === 'oven-b' ? 4.2 : 2.4;
+    // Every sensor settles no lower than setpoint − 1.6 °C, so the automatic stabilisation rule finds the soak.
+    const offsets = Array.from({ length: 9 }, () => -1.6 + rng() * (spread + 1.6));
+    const lines = ['time,' + offsets.map((_, i) => `TC${i + 1}`).join(',')];
+    for (let m = 0; m <= 110; m++) {
+      const cells = offsets.map((o) => {
+        const target = 110 + o;
+        const lin = 24 + 3 * m;
+        const v = lin < target - 3 ? lin : target - 3 * Math.exp(-(m - (target - 3 - 24) / 3) / 2.5);
+        return (v + 0.15 * rng.gauss()).toFixed(2);
+      });
+      lines.push(`${new Date(start + m * 60_000).toISOString()},${cells.join(',')}`);
+    }
+    const csv = lines.join('\n') + '\n';
+    const table = parseSurveyCsv(csv);
+    const idx = autoStabilisedIndex(table, 110);
+    if (idx === null) continue;
+    const r = uniformitySurvey({ setpointC: 110, sensors: table.sensors, stabilisedFromIndex: idx, classTable: AMS2750G_CLASSES });
+    const v = table.sensors.map((x) => {
+      const w = x.readingsC.slice(idx);
+      return { name: x.name, correctionC: 0, minC: Math.min(...w), maxC: Math.max(...w), meanC: w.reduce((a, b) => a + b, 0) / w.length };
+    });
+    const ins = await pool.query<{ id: number }>(
+      `insert into oven_surveys (oven_asset_id, surveyed_at, setpoint_c, sensors, stabilised_from, stabilised_auto, hottest_deviation_c, coldest_deviation_c,
+          uniformity_class, class_table_name, class_table, result, note, recorded_by)
+       values ($1, to_timestamp($2 / 1000.0), 110, $3::jsonb, to_timestamp($4 / 1000.0), true, $5, $6, $7, 'SAE AMS2750G furnace classes', $8::jsonb, $9::jsonb, 'demo seed (invented survey)', $10)
+       returning id`,
+      [oven, start, JSON.stringify(v), start + (table.minutes[idx] as number) * 60_000, r.hottestDeviationC, r.coldestDeviationC, r.uniformityClass, JSON.stringify(AMS2750G_CLASSES),
+        JSON.stringify({ ...r, rows: table.minutes.length, durationMinutes: table.minutes.at(-1), stabilisedFromMinutes: table.minutes[idx] }), engineer?.id ?? null],
+    );
+    await attachFile(pool, { surveyId: ins.rows[0]!.id, name: `survey-${code}.csv`, bytes: new TextEncoder().encode(csv), userId: engineer?.id ?? null });
+  }
+}
+
 /** Removes what seedStory wrote (on a database where the story's rows are the only ones of their kind). */
 export async function unseedStory(pool: pg.Pool): Promise<void> {
   const c = await pool.connect();
@@ -296,6 +348,7 @@ export async function unseedStory(pool: pg.Pool): Promise<void> {
     await c.query(`delete from dip_runs where source = 'seed'`);
     await c.query(`delete from jobs where id = any($1::int[]) and not exists (select 1 from dip_run_jobs x where x.job_id = jobs.id) and not exists (select 1 from holds h where h.job_id = jobs.id)`, [jobs.rows.map((r) => r.id)]);
     await c.query(`delete from racks k where not exists (select 1 from dip_runs d where d.rack_id = k.id)`);
+    await c.query(`delete from oven_surveys where note = 'demo seed (invented survey)'`);
     await c.query(`delete from site_settings where key = 'demoStory'`);
     await c.query('commit');
   } catch (e) {
