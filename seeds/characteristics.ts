@@ -54,7 +54,8 @@ export const DEMO_CHARACTERISTICS: DemoCharacteristic[] = [
     channels: [{ asset: 'dip-1-hc', key: 'withdrawal-speed' }],
     fields: CharacteristicInputSchema.parse({
       name: 'Line 1 withdrawal speed',
-      description: 'Mean withdrawal speed of each dip stroke on line 1 (hard-coat bath). Film thickness follows it (Landau–Levich).',
+      description:
+        'Mean withdrawal speed of each dip stroke on line 1 (hard-coat bath). Film thickness follows it (Landau–Levich).',
       channelIds: [1],
       subgroupRule: { kind: 'per-dip-stroke' },
       subgroupSize: 1,
@@ -68,7 +69,8 @@ export const DEMO_CHARACTERISTICS: DemoCharacteristic[] = [
     channels: [{ asset: 'dip-1-hc', key: 'viscosity' }],
     fields: CharacteristicInputSchema.parse({
       name: 'Line 1 bath viscosity',
-      description: 'Kinematic viscosity of the line 1 hard-coat bath at its hourly check (in-line viscometer). It creeps up as solvent evaporates until a top-up.',
+      description:
+        'Kinematic viscosity of the line 1 hard-coat bath at its hourly check (in-line viscometer). It creeps up as solvent evaporates until a top-up.',
       channelIds: [1],
       subgroupRule: { kind: 'per-manual-check', minSpacingMinutes: 60 },
       subgroupSize: 1,
@@ -105,13 +107,23 @@ export interface SeedCharacteristicsOptions {
 
 function poolOf(sequelize: Sequelize): pg.Pool {
   const c = sequelize.config;
-  const pool = new pg.Pool({ host: c.host, port: Number(c.port), user: c.username, password: c.password ?? undefined, database: c.database, max: 2 });
+  const pool = new pg.Pool({
+    host: c.host,
+    port: Number(c.port),
+    user: c.username,
+    password: c.password ?? undefined,
+    database: c.database,
+    max: 2,
+  });
   pool.on('error', () => {});
   return pool;
 }
 
 async function channelId(pool: pg.Pool, asset: string, key: string): Promise<number | null> {
-  const { rows } = await pool.query<{ id: number }>(`select c.id from channels c join assets a on a.id = c.asset_id where a.code = $1 and c.key = $2`, [asset, key]);
+  const { rows } = await pool.query<{ id: number }>(
+    `select c.id from channels c join assets a on a.id = c.asset_id where a.code = $1 and c.key = $2`,
+    [asset, key],
+  );
   return rows[0]?.id ?? null;
 }
 
@@ -144,17 +156,25 @@ async function soakSubgroups(pool: pg.Pool, ids: number[], nowMs: number): Promi
   }
   if (spans.length === 0) return [];
   const { rows } = await pool.query<{ i: number; n: number; avg: number | null }>(
-    `select s.i, count(r.value)::int as n, avg(r.value) as avg
+    `select s.i, r.n::int as n, r.avg
        from unnest($2::float8[], $3::float8[]) with ordinality as s(f, t, i)
-       left join readings r on r.channel_id = any($1::int[]) and r.ts >= to_timestamp(s.f / 1000) and r.ts <= to_timestamp(s.t / 1000) and r.quality = 0
-      group by s.i order by s.i`,
+       cross join lateral (select count(*) as n, avg(value) as avg from readings
+                            where channel_id = any($1::int[]) and ts >= to_timestamp(s.f / 1000) and ts <= to_timestamp(s.t / 1000) and quality = 0) r
+      order by s.i`,
     [ids, spans.map((s) => s.fromMs), spans.map((s) => s.toMs)],
   );
   const out: NewSubgroup[] = [];
   for (const r of rows) {
     const s = spans[Number(r.i) - 1];
     if (!s || r.avg === null || r.n === 0) continue;
-    out.push({ values: [r.avg], tFromMs: s.fromMs, tMs: s.endMs, readings: [{ n: r.n, mean: r.avg, soakFromMs: s.fromMs, soakToMs: s.toMs }], key: s.key, ovenLoadId: s.loadId });
+    out.push({
+      values: [r.avg],
+      tFromMs: s.fromMs,
+      tMs: s.endMs,
+      readings: [{ n: r.n, mean: r.avg, soakFromMs: s.fromMs, soakToMs: s.toMs }],
+      key: s.key,
+      ovenLoadId: s.loadId,
+    });
   }
   return out;
 }
@@ -192,15 +212,19 @@ export async function seedCharacteristics(sequelize: Sequelize, opts: SeedCharac
         if (fields.subgroupRule.kind === 'per-oven-load') {
           subgroups = await soakSubgroups(pool, ids, nowMs);
         } else {
-          const formed: FormedSubgroup[] = formSubgroups(fields.subgroupRule, fields.subgroupSize, await readingsOf(pool, ids), null, nowMs);
+          const formed: FormedSubgroup[] = formSubgroups(
+            fields.subgroupRule,
+            fields.subgroupSize,
+            await readingsOf(pool, ids),
+            null,
+            nowMs,
+          );
           subgroups = formed.map((f) => ({ ...f, readings: f.readings.map((r) => ({ c: r.channelId, t: r.tMs, v: r.value })) }));
         }
-        await pool.query(`insert into audit_log (actor_id, actor_label, action, entity, entity_id, after) values ($1, $2, 'characteristic.create', 'characteristic', $3, $4)`, [
-          engineer.id,
-          `${engineer.username} (demo seed)`,
-          String(id),
-          JSON.stringify(fields),
-        ]);
+        await pool.query(
+          `insert into audit_log (actor_id, actor_label, action, entity, entity_id, after) values ($1, $2, 'characteristic.create', 'characteristic', $3, $4)`,
+          [engineer.id, `${engineer.username} (demo seed)`, String(id), JSON.stringify(fields)],
+        );
         if (subgroups.length < 2) {
           await client.query('commit');
           log(`SPC seed: ${fields.name} has no history to study (${subgroups.length} points).`);
@@ -210,12 +234,20 @@ export async function seedCharacteristics(sequelize: Sequelize, opts: SeedCharac
         const baselineEnd = firstMs + BASELINE_DAYS * 86_400_000;
         const baseline = subgroups.filter((s) => s.tMs <= baselineEnd);
         const { spec } = await resolveSpec(pool, c, baselineEnd);
-        const first = runStudy({ chart: c.chart, params: c.chartParams, rules: c.rules, spec }, baseline.map((s) => s.values), new Set());
+        const first = runStudy(
+          { chart: c.chart, params: c.chartParams, rules: c.rules, spec },
+          baseline.map((s) => s.values),
+          new Set(),
+        );
         const exclusions = first.suggested.map((s) => ({
           index: s.index,
           reason: `Suggested by the Phase I iteration (round ${s.iteration}): ${s.reason}. Excluded in the seeded demo study.`,
         }));
-        const study = runStudy({ chart: c.chart, params: c.chartParams, rules: c.rules, spec }, baseline.map((s) => s.values), new Set(exclusions.map((e) => e.index)));
+        const study = runStudy(
+          { chart: c.chart, params: c.chartParams, rules: c.rules, spec },
+          baseline.map((s) => s.values),
+          new Set(exclusions.map((e) => e.index)),
+        );
         const draft = await insertDraftLimitSet(client, {
           characteristicId: id,
           chart: c.chart,
@@ -232,7 +264,14 @@ export async function seedCharacteristics(sequelize: Sequelize, opts: SeedCharac
           note: `Seeded demo study on the first ${BASELINE_DAYS} days of history.`,
           createdBy: engineer.id,
         });
-        const signature = { userId: engineer.id, username: engineer.username, displayName: engineer.displayName, meaning: 'approved', signedAt: new Date(nowMs).toISOString(), seeded: true };
+        const signature = {
+          userId: engineer.id,
+          username: engineer.username,
+          displayName: engineer.displayName,
+          meaning: 'approved',
+          signedAt: new Date(nowMs).toISOString(),
+          seeded: true,
+        };
         const approved = await approveLimitSetRow(client, draft.id, signature, firstMs, true);
         const rows = await judgeForStorage(c, subgroups, null, [approved], async () => []);
         for (let i = 0; i < rows.length; i += 2000) await insertPointRows(client, rows.slice(i, i + 2000));
@@ -247,12 +286,24 @@ export async function seedCharacteristics(sequelize: Sequelize, opts: SeedCharac
             engineer.id,
             `${engineer.username} (demo seed)`,
             String(approved.id),
-            JSON.stringify({ characteristicId: id, version: approved.version, center: approved.center, ucl: approved.ucl, lcl: approved.lcl, sigma: approved.sigma, effectiveFrom: approved.effectiveFrom, excluded: exclusions.length, seeded: true }),
+            JSON.stringify({
+              characteristicId: id,
+              version: approved.version,
+              center: approved.center,
+              ucl: approved.ucl,
+              lcl: approved.lcl,
+              sigma: approved.sigma,
+              effectiveFrom: approved.effectiveFrom,
+              excluded: exclusions.length,
+              seeded: true,
+            }),
             JSON.stringify(signature),
           ],
         );
         await client.query('commit');
-        log(`SPC seed: ${fields.name}: ${rows.length} points, limits v${approved.version} from ${baseline.length} baseline points (${exclusions.length} excluded).`);
+        log(
+          `SPC seed: ${fields.name}: ${rows.length} points, limits v${approved.version} from ${baseline.length} baseline points (${exclusions.length} excluded).`,
+        );
       } catch (e) {
         await client.query('rollback').catch(() => {});
         throw e;
@@ -271,7 +322,9 @@ export async function seedCharacteristics(sequelize: Sequelize, opts: SeedCharac
 export async function unseedCharacteristics(sequelize: Sequelize): Promise<void> {
   const pool = poolOf(sequelize);
   try {
-    await pool.query(`delete from characteristics where name = any($1::text[])`, [DEMO_CHARACTERISTICS.map((d) => d.fields.name)]);
+    await pool.query(`delete from characteristics where name = any($1::text[])`, [
+      DEMO_CHARACTERISTICS.map((d) => d.fields.name),
+    ]);
   } finally {
     await pool.end();
   }

@@ -23,7 +23,9 @@ import { sql, type Migration } from './types.ts';
 export const migration: Migration = {
   name: '20261202-1030-spc',
   async up(ctx) {
-    await sql(ctx, `
+    await sql(
+      ctx,
+      `
       create table characteristics (
         id serial primary key,
         name text not null unique check (length(name) between 1 and 120),
@@ -109,13 +111,17 @@ export const migration: Migration = {
       create index spc_points_t on spc_points(characteristic_id, t);
       create unique index spc_points_subgroup_key on spc_points(characteristic_id, subgroup_key) where subgroup_key is not null;
       create index spc_points_violations on spc_points(characteristic_id, t) where cardinality(violations) > 0;
-    `);
+    `,
+    );
   },
   async down(ctx) {
-    await sql(ctx, `
+    await sql(
+      ctx,
+      `
       drop table spc_points;
       drop table limit_sets;
       drop table characteristics;
-    `);
+    `,
+    );
   },
 };

@@ -54,7 +54,8 @@ async function refresh(ctx: WorkerContext, nowMs: number, force = false): Promis
   }
 }
 
-const fmt = (x: number | null | undefined) => (x === null || x === undefined || !Number.isFinite(x) ? '—' : Number(x.toPrecision(5)).toString());
+const fmt = (x: number | null | undefined) =>
+  x === null || x === undefined || !Number.isFinite(x) ? '—' : Number(x.toPrecision(5)).toString();
 
 /** The alarm message: rule ids and plain words, the value, and the limits it was judged against. */
 export function violationMessage(c: Pick<CharacteristicRecord, 'chart' | 'unit'>, p: ChartPoint): string {
@@ -68,7 +69,14 @@ export function violationMessage(c: Pick<CharacteristicRecord, 'chart' | 'unit'>
 
 async function afterPoints(ctx: WorkerContext, c: CharacteristicRecord, points: ChartPoint[]): Promise<void> {
   for (const p of points) {
-    const event: LivePointEvent = { characteristicId: c.id, index: p.index, value: p.value, violations: p.violations, tMs: p.tMs, point: p };
+    const event: LivePointEvent = {
+      characteristicId: c.id,
+      index: p.index,
+      value: p.value,
+      violations: p.violations,
+      tMs: p.tMs,
+      point: p,
+    };
     ctx.publishLive('points', event);
     const sourceKey = `char:${c.id}`;
     if (p.violations.length > 0) {
@@ -103,7 +111,9 @@ async function advance(ctx: WorkerContext, c: CharacteristicRecord, nowMs: numbe
 
 async function advanceLoads(ctx: WorkerContext, c: CharacteristicRecord): Promise<void> {
   const last = await lastPointOf(ctx.pool, c.id);
-  const pending = await pendingLoadSubgroups(ctx.pool, c, last?.tMs ?? 0);
+  // Without points yet, only loads closed since the characteristic was created (its back-fill
+  // plotted the earlier ones it was asked for).
+  const pending = await pendingLoadSubgroups(ctx.pool, c, last?.tMs ?? Date.parse(c.createdAt));
   if (pending.length === 0) return;
   const points = await recordSubgroups(ctx.pool, c, pending);
   if (points.length > 0) await afterPoints(ctx, c, points);
@@ -118,7 +128,8 @@ export const spcHandler: PostCommitHandler = {
     const nowMs = Date.now();
     await refresh(ctx, nowMs);
     const touched = new Map<number, CharacteristicRecord>();
-    for (const r of rows) for (const c of byChannel.get(r.channelId) ?? []) if (c.subgroupRule.kind !== 'per-oven-load') touched.set(c.id, c);
+    for (const r of rows)
+      for (const c of byChannel.get(r.channelId) ?? []) if (c.subgroupRule.kind !== 'per-oven-load') touched.set(c.id, c);
     for (const c of touched.values()) {
       try {
         await advance(ctx, c, nowMs);

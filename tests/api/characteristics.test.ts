@@ -37,12 +37,12 @@ beforeAll(async () => {
   const now = Date.now();
   times = Array.from({ length: 40 }, (_, i) => now - (41 - i) * 60_000);
   // A deterministic wobble around 10 (hand-made), and one wild value.
-  for (let i = 0; i < 40; i++) values.push(i + 1 === OUTLIER ? 13 : Math.round((10 + 0.1 * Math.sin(i * 1.7) + 0.05 * Math.cos(i * 0.9)) * 1000) / 1000);
-  await pool.query(`insert into readings (channel_id, ts, value, quality) select $1, to_timestamp(t / 1000.0), v, 0 from unnest($2::float8[], $3::float8[]) as x(t, v)`, [
-    channelId,
-    times,
-    values,
-  ]);
+  for (let i = 0; i < 40; i++)
+    values.push(i + 1 === OUTLIER ? 13 : Math.round((10 + 0.1 * Math.sin(i * 1.7) + 0.05 * Math.cos(i * 0.9)) * 1000) / 1000);
+  await pool.query(
+    `insert into readings (channel_id, ts, value, quality) select $1, to_timestamp(t / 1000.0), v, 0 from unnest($2::float8[], $3::float8[]) as x(t, v)`,
+    [channelId, times, values],
+  );
 });
 
 afterAll(async () => {
@@ -61,7 +61,10 @@ const fields = () => ({
   unit: 'u',
 });
 
-const baseline = () => ({ baselineFrom: new Date(times[0]! - 1000).toISOString(), baselineTo: new Date(times[39]! + 1000).toISOString() });
+const baseline = () => ({
+  baselineFrom: new Date(times[0]! - 1000).toISOString(),
+  baselineTo: new Date(times[39]! + 1000).toISOString(),
+});
 
 /** Hand-computed I-MR limits (Montgomery §6.4: x̄ ± 3·MR̄/d2, d2(2) = 2/√π ≈ 1.128, App. VI) excluding 1-based `skip`. */
 function imrLimits(xs: number[], skip: Set<number>) {
@@ -77,13 +80,25 @@ function imrLimits(xs: number[], skip: Set<number>) {
 describe('characteristics', () => {
   it('only engineers create; bad settings are 400 with the field path', async () => {
     expect((await api('/api/v1/characteristics', { method: 'POST', session: operator, json: fields() })).status).toBe(403);
-    const bad = await api('/api/v1/characteristics', { method: 'POST', session: engineer, json: { ...fields(), subgroupSize: 5 } });
+    const bad = await api('/api/v1/characteristics', {
+      method: 'POST',
+      session: engineer,
+      json: { ...fields(), subgroupSize: 5 },
+    });
     expect(bad.status).toBe(400);
     expect(bad.body.errors.map((e: { path: string }) => e.path)).toContain('subgroupSize');
-    const noChannel = await api('/api/v1/characteristics', { method: 'POST', session: engineer, json: { ...fields(), channelIds: [999999] } });
+    const noChannel = await api('/api/v1/characteristics', {
+      method: 'POST',
+      session: engineer,
+      json: { ...fields(), channelIds: [999999] },
+    });
     expect(noChannel.status).toBe(400);
     expect(noChannel.body.errors[0].path).toBe('channelIds.0');
-    const badSpec = await api('/api/v1/characteristics', { method: 'POST', session: engineer, json: { ...fields(), spec: { mode: 'fixed', lsl: 11, usl: 9 } } });
+    const badSpec = await api('/api/v1/characteristics', {
+      method: 'POST',
+      session: engineer,
+      json: { ...fields(), spec: { mode: 'fixed', lsl: 11, usl: 9 } },
+    });
     expect(badSpec.status).toBe(400);
     expect(badSpec.body.errors[0].path).toBe('spec.usl');
   });
@@ -97,7 +112,11 @@ describe('characteristics', () => {
     expect(pts.status).toBe(200);
     expect(pts.body.totalPoints).toBe(40);
     expect(pts.body.points.map((p: { value: number }) => p.value)).toEqual(values);
-    expect(pts.body.points.every((p: { limitSetId: number | null; violations: string[] }) => p.limitSetId === null && p.violations.length === 0)).toBe(true);
+    expect(
+      pts.body.points.every(
+        (p: { limitSetId: number | null; violations: string[] }) => p.limitSetId === null && p.violations.length === 0,
+      ),
+    ).toBe(true);
     expect(pts.body.spec).toEqual({ lsl: 9, usl: 11 });
     // The same name twice is refused.
     const dup = await api('/api/v1/characteristics', { method: 'POST', session: engineer, json: fields() });
@@ -125,10 +144,18 @@ describe('control-limit study and approval', () => {
   });
 
   it('excluding it needs a reason; with one, the limits come from the other 39 points (hand-computed)', async () => {
-    const noReason = await api(`/api/v1/characteristics/${charId}/study`, { method: 'POST', session: engineer, json: { ...baseline(), exclusions: [{ index: OUTLIER, reason: '' }] } });
+    const noReason = await api(`/api/v1/characteristics/${charId}/study`, {
+      method: 'POST',
+      session: engineer,
+      json: { ...baseline(), exclusions: [{ index: OUTLIER, reason: '' }] },
+    });
     expect(noReason.status).toBe(400);
     expect(noReason.body.errors[0].path).toBe('exclusions.0.reason');
-    const outside = await api(`/api/v1/characteristics/${charId}/study`, { method: 'POST', session: engineer, json: { ...baseline(), exclusions: [{ index: 99, reason: 'not there' }] } });
+    const outside = await api(`/api/v1/characteristics/${charId}/study`, {
+      method: 'POST',
+      session: engineer,
+      json: { ...baseline(), exclusions: [{ index: 99, reason: 'not there' }] },
+    });
     expect(outside.status).toBe(400);
     expect(outside.body.errors[0].path).toBe('exclusions');
     const r = await api(`/api/v1/characteristics/${charId}/study`, {
@@ -144,28 +171,50 @@ describe('control-limit study and approval', () => {
     expect(r.body.dispersion.center).toBeCloseTo(hand.mrBar, 9);
     expect(r.body.includedPoints).toBe(39);
     expect(r.body.points[OUTLIER - 1].excludedInStudy).toBe(true);
-    expect((await api(`/api/v1/characteristics/${charId}/study`, { method: 'POST', session: operator, json: baseline() })).status).toBe(403);
+    expect(
+      (await api(`/api/v1/characteristics/${charId}/study`, { method: 'POST', session: operator, json: baseline() })).status,
+    ).toBe(403);
   });
 
   it('saves a draft, then approval needs the right role, meaning, password and time', async () => {
     const d = await api(`/api/v1/characteristics/${charId}/limit-sets`, {
       method: 'POST',
       session: engineer,
-      json: { ...baseline(), exclusions: [{ index: OUTLIER, reason: 'Sensor knocked during a bath check' }], note: 'first study' },
+      json: {
+        ...baseline(),
+        exclusions: [{ index: OUTLIER, reason: 'Sensor knocked during a bath check' }],
+        note: 'first study',
+      },
     });
     expect(d.status, JSON.stringify(d.body)).toBe(201);
-    expect(d.body).toMatchObject({ status: 'draft', version: 1, effectiveFrom: null, approvedSignature: null, baselinePoints: 40 });
+    expect(d.body).toMatchObject({
+      status: 'draft',
+      version: 1,
+      effectiveFrom: null,
+      approvedSignature: null,
+      baselinePoints: 40,
+    });
     v1 = d.body.id;
     v1Limits = { center: d.body.center, ucl: d.body.ucl, lcl: d.body.lcl };
     const url = `/api/v1/characteristics/${charId}/limit-sets/${v1}/approve`;
-    expect((await api(url, { method: 'POST', session: operator, json: { password: TEST_PASSWORD, meaning: 'approved' } })).status).toBe(403);
-    const wrong = await api(url, { method: 'POST', session: engineer, json: { password: 'not-the-password', meaning: 'approved' } });
+    expect(
+      (await api(url, { method: 'POST', session: operator, json: { password: TEST_PASSWORD, meaning: 'approved' } })).status,
+    ).toBe(403);
+    const wrong = await api(url, {
+      method: 'POST',
+      session: engineer,
+      json: { password: 'not-the-password', meaning: 'approved' },
+    });
     expect(wrong.status).toBe(403);
     expect(wrong.body.errors[0].path).toBe('password');
     const meaning = await api(url, { method: 'POST', session: engineer, json: { password: TEST_PASSWORD, meaning: 'reviewed' } });
     expect(meaning.status).toBe(400);
     expect(meaning.body.errors[0].path).toBe('meaning');
-    const past = await api(url, { method: 'POST', session: engineer, json: { password: TEST_PASSWORD, meaning: 'approved', effectiveFrom: new Date(times[10]!).toISOString() } });
+    const past = await api(url, {
+      method: 'POST',
+      session: engineer,
+      json: { password: TEST_PASSWORD, meaning: 'approved', effectiveFrom: new Date(times[10]!).toISOString() },
+    });
     expect(past.status).toBe(400);
     expect(past.body.errors[0].path).toBe('effectiveFrom');
     const still = await api(`/api/v1/characteristics/${charId}/limit-sets/${v1}`, { session: viewer });
@@ -173,12 +222,20 @@ describe('control-limit study and approval', () => {
   });
 
   it('approves with the signature; the excluded point is marked on the chart; the audit trail holds the signature', async () => {
-    const r = await api(`/api/v1/characteristics/${charId}/limit-sets/${v1}/approve`, { method: 'POST', session: engineer, json: { password: TEST_PASSWORD, meaning: 'approved' } });
+    const r = await api(`/api/v1/characteristics/${charId}/limit-sets/${v1}/approve`, {
+      method: 'POST',
+      session: engineer,
+      json: { password: TEST_PASSWORD, meaning: 'approved' },
+    });
     expect(r.status, JSON.stringify(r.body)).toBe(200);
     expect(r.body.status).toBe('approved');
     expect(r.body.approvedSignature).toMatchObject({ username: 'engineer', meaning: 'approved' });
     expect(Date.parse(r.body.effectiveFrom)).toBeGreaterThan(times[39]!);
-    const again = await api(`/api/v1/characteristics/${charId}/limit-sets/${v1}/approve`, { method: 'POST', session: engineer, json: { password: TEST_PASSWORD, meaning: 'approved' } });
+    const again = await api(`/api/v1/characteristics/${charId}/limit-sets/${v1}/approve`, {
+      method: 'POST',
+      session: engineer,
+      json: { password: TEST_PASSWORD, meaning: 'approved' },
+    });
     expect(again.status).toBe(409);
     const pts = await api(`/api/v1/characteristics/${charId}/points?last=100`, { session: viewer });
     const out = pts.body.points[OUTLIER - 1];
@@ -186,16 +243,27 @@ describe('control-limit study and approval', () => {
     expect(out.exclusionReason).toContain('Sensor knocked');
     // Points judged before the approval keep their (absent) limits: never re-judged.
     expect(pts.body.points.every((p: { limitSetId: number | null }) => p.limitSetId === null)).toBe(true);
-    const { rows } = await pool.query(`select signature from audit_log where action = 'limits.approve' and entity = 'limit-set' and entity_id = $1`, [String(v1)]);
+    const { rows } = await pool.query(
+      `select signature from audit_log where action = 'limits.approve' and entity = 'limit-set' and entity_id = $1`,
+      [String(v1)],
+    );
     expect(rows).toHaveLength(1);
     expect(rows[0].signature).toMatchObject({ username: 'engineer', meaning: 'approved' });
   });
 
   it('a second approval supersedes the first, which stays readable and unchanged', async () => {
-    const d = await api(`/api/v1/characteristics/${charId}/limit-sets`, { method: 'POST', session: engineer, json: { ...baseline(), note: 'all points' } });
+    const d = await api(`/api/v1/characteristics/${charId}/limit-sets`, {
+      method: 'POST',
+      session: engineer,
+      json: { ...baseline(), note: 'all points' },
+    });
     expect(d.status).toBe(201);
     expect(d.body.version).toBe(2);
-    const a = await api(`/api/v1/characteristics/${charId}/limit-sets/${d.body.id}/approve`, { method: 'POST', session: engineer, json: { password: TEST_PASSWORD, meaning: 'approved' } });
+    const a = await api(`/api/v1/characteristics/${charId}/limit-sets/${d.body.id}/approve`, {
+      method: 'POST',
+      session: engineer,
+      json: { password: TEST_PASSWORD, meaning: 'approved' },
+    });
     expect(a.status).toBe(200);
     const sets = await api(`/api/v1/characteristics/${charId}/limit-sets`, { session: viewer });
     expect(sets.body.map((s: { version: number; status: string }) => [s.version, s.status])).toEqual([
@@ -214,20 +282,47 @@ describe('control-limit study and approval', () => {
   it('a draft can be discarded; approved and superseded sets cannot', async () => {
     const d = await api(`/api/v1/characteristics/${charId}/limit-sets`, { method: 'POST', session: engineer, json: baseline() });
     expect(d.status).toBe(201);
-    expect((await api(`/api/v1/characteristics/${charId}/limit-sets/${d.body.id}`, { method: 'DELETE', session: engineer, headers: { origin: base() } })).status).toBe(204);
+    expect(
+      (
+        await api(`/api/v1/characteristics/${charId}/limit-sets/${d.body.id}`, {
+          method: 'DELETE',
+          session: engineer,
+          headers: { origin: base() },
+        })
+      ).status,
+    ).toBe(204);
     expect((await api(`/api/v1/characteristics/${charId}/limit-sets/${d.body.id}`, { session: viewer })).status).toBe(404);
-    expect((await api(`/api/v1/characteristics/${charId}/limit-sets/${v1}`, { method: 'DELETE', session: engineer, headers: { origin: base() } })).status).toBe(409);
+    expect(
+      (
+        await api(`/api/v1/characteristics/${charId}/limit-sets/${v1}`, {
+          method: 'DELETE',
+          session: engineer,
+          headers: { origin: base() },
+        })
+      ).status,
+    ).toBe(409);
   });
 });
 
 describe('editing', () => {
   it('how points are formed is fixed once there are points (409); rules and spec can change (audited)', async () => {
-    const structural = await api(`/api/v1/characteristics/${charId}`, { method: 'PUT', session: engineer, json: { ...fields(), chart: 'ewma' } });
+    const structural = await api(`/api/v1/characteristics/${charId}`, {
+      method: 'PUT',
+      session: engineer,
+      json: { ...fields(), chart: 'ewma' },
+    });
     expect(structural.status).toBe(409);
-    const ok = await api(`/api/v1/characteristics/${charId}`, { method: 'PUT', session: engineer, json: { ...fields(), rules: ['we1', 'we2'], spec: { mode: 'fixed', usl: 12 } } });
+    const ok = await api(`/api/v1/characteristics/${charId}`, {
+      method: 'PUT',
+      session: engineer,
+      json: { ...fields(), rules: ['we1', 'we2'], spec: { mode: 'fixed', usl: 12 } },
+    });
     expect(ok.status, JSON.stringify(ok.body)).toBe(200);
     expect(ok.body.rules).toEqual(['we1', 'we2']);
-    const { rows } = await pool.query(`select before, after from audit_log where action = 'characteristic.update' and entity_id = $1`, [String(charId)]);
+    const { rows } = await pool.query(
+      `select before, after from audit_log where action = 'characteristic.update' and entity_id = $1`,
+      [String(charId)],
+    );
     expect(rows.length).toBeGreaterThan(0);
     expect(rows[rows.length - 1].after.rules).toEqual(['we1', 'we2']);
     expect((await api(`/api/v1/characteristics/${charId}`, { method: 'PUT', session: viewer, json: fields() })).status).toBe(403);

@@ -13,7 +13,8 @@ beforeAll(async () => {
   operator = await signIn('operator');
 });
 
-const evaluate = (json: unknown, session: Session | null = viewer) => api('/api/v1/spc/evaluate', { method: 'POST', session, json });
+const evaluate = (json: unknown, session: Session | null = viewer) =>
+  api('/api/v1/spc/evaluate', { method: 'POST', session, json });
 
 /** The problem's field paths. */
 const paths = (body: { errors?: { path: string }[] }) => (body.errors ?? []).map((e) => e.path);
@@ -38,8 +39,13 @@ describe('published examples through HTTP', () => {
   });
 
   it('EWMA — NIST/SEMATECH e-Handbook §6.3.2.4 (target 50, s 2.0539, λ 0.3, L 3): printed z series and asymptotic limits 52.5884 / 47.4115', async () => {
-    const values = [52.0, 47.0, 53.0, 49.3, 50.1, 47.0, 51.0, 50.1, 51.2, 50.5, 49.6, 47.6, 49.9, 51.3, 47.8, 51.2, 52.6, 52.4, 53.6, 52.1];
-    const printed = [50.6, 49.52, 50.56, 50.18, 50.16, 49.21, 49.75, 49.85, 50.26, 50.33, 50.11, 49.36, 49.52, 50.05, 49.38, 49.92, 50.73, 51.23, 51.94, 51.99];
+    const values = [
+      52.0, 47.0, 53.0, 49.3, 50.1, 47.0, 51.0, 50.1, 51.2, 50.5, 49.6, 47.6, 49.9, 51.3, 47.8, 51.2, 52.6, 52.4, 53.6, 52.1,
+    ];
+    const printed = [
+      50.6, 49.52, 50.56, 50.18, 50.16, 49.21, 49.75, 49.85, 50.26, 50.33, 50.11, 49.36, 49.52, 50.05, 49.38, 49.92, 50.73, 51.23,
+      51.94, 51.99,
+    ];
     const r = await evaluate({ chart: 'ewma', values, target: 50, sigma: 2.0539, lambda: 0.3, L: 3, limits: 'asymptotic' });
     expect(r.status).toBe(200);
     printed.forEach((z, i) => expect(r.body.points[i].value).toBeCloseTo(z, 2));
@@ -50,7 +56,10 @@ describe('published examples through HTTP', () => {
   });
 
   it('tabular CUSUM — NIST/SEMATECH e-Handbook §6.3.2.3 (target 325, k 0.3175, h 4.1959 in data units): C⁺ first beyond h at group 14 (4.94), 19.035 at group 20', async () => {
-    const means = [324.925, 324.675, 324.725, 324.35, 325.35, 325.225, 324.125, 324.525, 325.225, 324.6, 324.625, 325.15, 328.325, 327.25, 327.825, 328.5, 326.675, 327.775, 326.875, 328.35];
+    const means = [
+      324.925, 324.675, 324.725, 324.35, 325.35, 325.225, 324.125, 324.525, 325.225, 324.6, 324.625, 325.15, 328.325, 327.25,
+      327.825, 328.5, 326.675, 327.775, 326.875, 328.35,
+    ];
     // σ of the group means 0.635 (NIST): k = 0.3175/0.635 = 0.5σ, h = 4.1959/0.635σ.
     const r = await evaluate({ chart: 'cusum', values: means, target: 325, sigma: 0.635, k: 0.5, h: 4.1959 / 0.635 });
     expect(r.status).toBe(200);
@@ -113,7 +122,12 @@ describe('published examples through HTTP', () => {
     [1.5797, 1.3663, 1.624, 1.3732, 1.6887],
   ];
   it('X̄-R — Montgomery hard-bake flow width (Table 6.1), spec 1.50 ± 0.50 µm: x̿ 1.5056, R̄ 0.32521, UCL 1.6932, LCL 1.3180, R UCL 0.68749, Cp ≈ 1.19', async () => {
-    const r = await evaluate({ chart: 'xbar-r', subgroups: HARD_BAKE, spec: { lsl: 1.0, usl: 2.0 }, phase1: { first: 1, last: 25 } });
+    const r = await evaluate({
+      chart: 'xbar-r',
+      subgroups: HARD_BAKE,
+      spec: { lsl: 1.0, usl: 2.0 },
+      phase1: { first: 1, last: 25 },
+    });
     expect(r.status).toBe(200);
     expect(r.body.limits.center).toBeCloseTo(1.5056, 4);
     expect(r.body.dispersion.center).toBeCloseTo(0.32521, 5);
@@ -144,7 +158,17 @@ describe('bad input: 400 problem+json with the offending field path', () => {
     await refused({ chart: 'imr', values: [1] }, 'values');
   });
   it('unequal subgroup sizes for X̄-R → the odd subgroup', async () => {
-    await refused({ chart: 'xbar-r', subgroups: [[1, 2, 3], [2, 3, 4], [1, 2]] }, 'subgroups.2');
+    await refused(
+      {
+        chart: 'xbar-r',
+        subgroups: [
+          [1, 2, 3],
+          [2, 3, 4],
+          [1, 2],
+        ],
+      },
+      'subgroups.2',
+    );
   });
   it('a subgroup of one for X̄-S → that subgroup', async () => {
     await refused({ chart: 'xbar-s', subgroups: [[1, 2], [3]] }, 'subgroups.1');
@@ -166,7 +190,16 @@ describe('bad input: 400 problem+json with the offending field path', () => {
     await refused({ chart: 'imr', values: [1, null, 3] }, 'values.1');
   });
   it('"NaN" inside a subgroup → subgroups.i.j', async () => {
-    await refused({ chart: 'xbar-r', subgroups: [[1, 2, 3], [1, 'NaN', 3]] }, 'subgroups.1.1');
+    await refused(
+      {
+        chart: 'xbar-r',
+        subgroups: [
+          [1, 2, 3],
+          [1, 'NaN', 3],
+        ],
+      },
+      'subgroups.1.1',
+    );
   });
   it('a number too large for a double (1e999 parses to Infinity) → values.i', async () => {
     const r = await fetch(`${base()}/api/v1/spc/evaluate`, {
@@ -191,7 +224,16 @@ describe('bad input: 400 problem+json with the offending field path', () => {
     await refused({ chart: 'imr', values: [1, 2, 3], rules: ['we1', 'we1'] }, 'rules.1');
   });
   it('data the chart does not take → that field; data it needs missing → that field', async () => {
-    await refused({ chart: 'imr', subgroups: [[1, 2], [3, 4]] }, 'subgroups');
+    await refused(
+      {
+        chart: 'imr',
+        subgroups: [
+          [1, 2],
+          [3, 4],
+        ],
+      },
+      'subgroups',
+    );
     await refused({ chart: 'xbar-r', values: [1, 2, 3] }, 'subgroups');
   });
   it('phase1 out of range → phase1.last; reversed → phase1.first', async () => {
@@ -207,11 +249,19 @@ describe('bad input: 400 problem+json with the offending field path', () => {
     await refused({ chart: 'imr', values: [1, 2, 3], target: 2, sigma: -1 }, 'sigma');
   });
   it('malformed JSON → 400 problem; another content type → 415', async () => {
-    const bad = await fetch(`${base()}/api/v1/spc/evaluate`, { method: 'POST', headers: { 'content-type': 'application/json', cookie: viewer.cookie }, body: '{"chart":' });
+    const bad = await fetch(`${base()}/api/v1/spc/evaluate`, {
+      method: 'POST',
+      headers: { 'content-type': 'application/json', cookie: viewer.cookie },
+      body: '{"chart":',
+    });
     expect(bad.status).toBe(400);
     expect(bad.headers.get('content-type')).toContain('application/problem+json');
     // (A same-origin browser form; Astro's own CSRF check refuses cross-site text/plain bodies first.)
-    const text = await fetch(`${base()}/api/v1/spc/evaluate`, { method: 'POST', headers: { 'content-type': 'text/plain', cookie: viewer.cookie, origin: base() }, body: 'x' });
+    const text = await fetch(`${base()}/api/v1/spc/evaluate`, {
+      method: 'POST',
+      headers: { 'content-type': 'text/plain', cookie: viewer.cookie, origin: base() },
+      body: 'x',
+    });
     expect(text.status).toBe(415);
   });
   it('anonymous → 401; any signed-in role may evaluate', async () => {

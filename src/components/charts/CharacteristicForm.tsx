@@ -49,7 +49,9 @@ export function CharacteristicForm({ channels, existing, hasPoints }: Props) {
   const [ruleKind, setRuleKind] = useState<SubgroupRuleKind>(e?.subgroupRule.kind ?? 'per-dip-stroke');
   const [minutes, setMinutes] = useState(e?.subgroupRule.kind === 'per-n-minutes' ? String(e.subgroupRule.minutes) : '10');
   const [mode, setMode] = useState<'first' | 'means'>(e?.subgroupRule.kind === 'per-n-minutes' ? e.subgroupRule.mode : 'first');
-  const [spacing, setSpacing] = useState(e?.subgroupRule.kind === 'per-manual-check' ? String(e.subgroupRule.minSpacingMinutes) : '60');
+  const [spacing, setSpacing] = useState(
+    e?.subgroupRule.kind === 'per-manual-check' ? String(e.subgroupRule.minSpacingMinutes) : '60',
+  );
   const [size, setSize] = useState(String(e?.subgroupSize ?? 1));
   const [chart, setChart] = useState<CharacteristicChart>(e?.chart ?? 'imr');
   const [lambda, setLambda] = useState(str(e?.chartParams.lambda));
@@ -107,7 +109,12 @@ export function CharacteristicForm({ channels, existing, hasPoints }: Props) {
         ? { mode: 'none' }
         : specMode === 'window'
           ? { mode: 'window', key: windowKey }
-          : { mode: 'fixed', ...(num(lsl) !== undefined ? { lsl: num(lsl) } : {}), ...(num(usl) !== undefined ? { usl: num(usl) } : {}), ...(num(target) !== undefined ? { target: num(target) } : {}) };
+          : {
+              mode: 'fixed',
+              ...(num(lsl) !== undefined ? { lsl: num(lsl) } : {}),
+              ...(num(usl) !== undefined ? { usl: num(usl) } : {}),
+              ...(num(target) !== undefined ? { target: num(target) } : {}),
+            };
     return {
       name,
       description,
@@ -138,7 +145,10 @@ export function CharacteristicForm({ channels, existing, hasPoints }: Props) {
     setErrors({});
     setBusy(true);
     try {
-      const saved = await apiFetch<Characteristic>(e ? `/api/v1/characteristics/${e.id}` : '/api/v1/characteristics', { method: e ? 'PUT' : 'POST', body: b });
+      const saved = await apiFetch<Characteristic>(e ? `/api/v1/characteristics/${e.id}` : '/api/v1/characteristics', {
+        method: e ? 'PUT' : 'POST',
+        body: b,
+      });
       window.location.href = `/charts/control/${saved.id}`;
     } catch (err) {
       if (err instanceof ApiError) {
@@ -171,7 +181,13 @@ export function CharacteristicForm({ channels, existing, hasPoints }: Props) {
         <legend className="px-1 font-bold">What is charted</legend>
         <div>
           <label htmlFor="cf-name">Name</label>
-          <input id="cf-name" value={name} onChange={(x) => setName(x.target.value)} maxLength={120} aria-describedby={errors['name'] ? 'err-name' : undefined} />
+          <input
+            id="cf-name"
+            value={name}
+            onChange={(x) => setName(x.target.value)}
+            maxLength={120}
+            aria-describedby={errors['name'] ? 'err-name' : undefined}
+          />
           {err('name')}
         </div>
         <div>
@@ -182,7 +198,11 @@ export function CharacteristicForm({ channels, existing, hasPoints }: Props) {
           <span className="mb-1 block text-sm font-bold text-ink-soft" id="cf-ch-l">
             Source channel(s){fixed && ' — fixed: the chart already has points'}
           </span>
-          <div className="grid max-h-72 gap-x-6 gap-y-1 overflow-auto rounded border border-slate-line bg-white p-2 sm:grid-cols-2" role="group" aria-labelledby="cf-ch-l">
+          <div
+            className="grid max-h-72 gap-x-6 gap-y-1 overflow-auto rounded border border-slate-line bg-white p-2 sm:grid-cols-2"
+            role="group"
+            aria-labelledby="cf-ch-l"
+          >
             {byAsset.map(([asset, list]) => (
               <div key={asset}>
                 <p className="text-xs font-bold uppercase text-ink-faint">{asset}</p>
@@ -210,7 +230,13 @@ export function CharacteristicForm({ channels, existing, hasPoints }: Props) {
         </div>
         <div className="max-w-xs">
           <label htmlFor="cf-unit">Unit</label>
-          <input id="cf-unit" value={unit} onChange={(x) => setUnit(x.target.value)} placeholder={firstUnit ?? 'e.g. mm/s'} maxLength={20} />
+          <input
+            id="cf-unit"
+            value={unit}
+            onChange={(x) => setUnit(x.target.value)}
+            placeholder={firstUnit ?? 'e.g. mm/s'}
+            maxLength={20}
+          />
           {err('unit')}
         </div>
       </fieldset>
@@ -220,7 +246,12 @@ export function CharacteristicForm({ channels, existing, hasPoints }: Props) {
         <div className="grid gap-3 sm:grid-cols-3">
           <div>
             <label htmlFor="cf-rule">Formed</label>
-            <select id="cf-rule" value={ruleKind} disabled={fixed} onChange={(x) => setRuleKind(x.target.value as SubgroupRuleKind)}>
+            <select
+              id="cf-rule"
+              value={ruleKind}
+              disabled={fixed}
+              onChange={(x) => setRuleKind(x.target.value as SubgroupRuleKind)}
+            >
               {(Object.keys(SUBGROUP_RULE_LABELS) as SubgroupRuleKind[]).map((r) => (
                 <option key={r} value={r}>
                   {SUBGROUP_RULE_LABELS[r]}
@@ -232,7 +263,15 @@ export function CharacteristicForm({ channels, existing, hasPoints }: Props) {
             <>
               <div>
                 <label htmlFor="cf-min">Window (minutes)</label>
-                <input id="cf-min" type="number" min={1} max={1440} value={minutes} disabled={fixed} onChange={(x) => setMinutes(x.target.value)} />
+                <input
+                  id="cf-min"
+                  type="number"
+                  min={1}
+                  max={1440}
+                  value={minutes}
+                  disabled={fixed}
+                  onChange={(x) => setMinutes(x.target.value)}
+                />
                 {err('subgroupRule.minutes')}
               </div>
               <div>
@@ -247,13 +286,30 @@ export function CharacteristicForm({ channels, existing, hasPoints }: Props) {
           {ruleKind === 'per-manual-check' && (
             <div>
               <label htmlFor="cf-spacing">Checks at least (minutes apart)</label>
-              <input id="cf-spacing" type="number" min={0} max={1440} value={spacing} disabled={fixed} onChange={(x) => setSpacing(x.target.value)} />
+              <input
+                id="cf-spacing"
+                type="number"
+                min={0}
+                max={1440}
+                value={spacing}
+                disabled={fixed}
+                onChange={(x) => setSpacing(x.target.value)}
+              />
               {err('subgroupRule.minSpacingMinutes')}
             </div>
           )}
           <div>
             <label htmlFor="cf-size">Subgroup size n</label>
-            <input id="cf-size" type="number" min={1} max={25} value={size} disabled={fixed} onChange={(x) => setSize(x.target.value)} aria-describedby={errors['subgroupSize'] ? 'err-subgroupSize' : undefined} />
+            <input
+              id="cf-size"
+              type="number"
+              min={1}
+              max={25}
+              value={size}
+              disabled={fixed}
+              onChange={(x) => setSize(x.target.value)}
+              aria-describedby={errors['subgroupSize'] ? 'err-subgroupSize' : undefined}
+            />
             {err('subgroupSize')}
           </div>
         </div>
@@ -281,7 +337,9 @@ export function CharacteristicForm({ channels, existing, hasPoints }: Props) {
           <label htmlFor="cf-sb">σ for the limits</label>
           <select id="cf-sb" value={sigmaBasis} onChange={(x) => setSigmaBasis(x.target.value as 'within' | 'overall')}>
             <option value="within">within subgroups (R̄/d2, s̄/c4 or MR̄/d2) — the usual choice</option>
-            <option value="overall">overall spread of the baseline — only for a characteristic that drifts by design between adjustments</option>
+            <option value="overall">
+              overall spread of the baseline — only for a characteristic that drifts by design between adjustments
+            </option>
           </select>
         </div>
         {chart === 'ewma' && (
@@ -298,7 +356,11 @@ export function CharacteristicForm({ channels, existing, hasPoints }: Props) {
             </div>
             <div>
               <label htmlFor="cf-el">Limits</label>
-              <select id="cf-el" value={ewmaLimits} onChange={(x) => setEwmaLimits(x.target.value as '' | 'exact' | 'asymptotic')}>
+              <select
+                id="cf-el"
+                value={ewmaLimits}
+                onChange={(x) => setEwmaLimits(x.target.value as '' | 'exact' | 'asymptotic')}
+              >
                 <option value="">exact, time-varying (default)</option>
                 <option value="exact">exact, time-varying</option>
                 <option value="asymptotic">asymptotic</option>
@@ -327,12 +389,19 @@ export function CharacteristicForm({ channels, existing, hasPoints }: Props) {
         )}
         <div role="group" aria-labelledby="cf-rules-l">
           <span id="cf-rules-l" className="mb-1 block text-sm font-bold text-ink-soft">
-            Run rules {(chart === 'ewma' || chart === 'cusum') && '(EWMA and CUSUM report their own signal; run rules do not apply to them)'}
+            Run rules{' '}
+            {(chart === 'ewma' || chart === 'cusum') &&
+              '(EWMA and CUSUM report their own signal; run rules do not apply to them)'}
           </span>
           <div className="grid gap-x-6 sm:grid-cols-2">
             {SPC_RULE_IDS.map((r) => (
               <label key={r} className="flex items-center gap-2 font-normal text-ink">
-                <input type="checkbox" className="w-auto" checked={rules.includes(r)} onChange={(x) => setRules(x.target.checked ? [...rules, r] : rules.filter((y) => y !== r))} />
+                <input
+                  type="checkbox"
+                  className="w-auto"
+                  checked={rules.includes(r)}
+                  onChange={(x) => setRules(x.target.checked ? [...rules, r] : rules.filter((y) => y !== r))}
+                />
                 {RULE_LABELS[r]}
               </label>
             ))}
@@ -392,7 +461,15 @@ export function CharacteristicForm({ channels, existing, hasPoints }: Props) {
         {!e && (
           <div>
             <label htmlFor="cf-bf">Plot history from the last (days)</label>
-            <input id="cf-bf" type="number" min={0} max={60} value={backfillDays} onChange={(x) => setBackfillDays(x.target.value)} className="w-28" />
+            <input
+              id="cf-bf"
+              type="number"
+              min={0}
+              max={60}
+              value={backfillDays}
+              onChange={(x) => setBackfillDays(x.target.value)}
+              className="w-28"
+            />
             {err('backfillDays')}
           </div>
         )}

@@ -32,7 +32,9 @@ export function CharacteristicTable({ rows, timeZone }: { rows: CharacteristicRo
   const { sort, toggle } = useSort<Key>({ key: 'asset', dir: 1 });
   const shown = useMemo(() => {
     const f = filter.trim().toLowerCase();
-    const list = f ? rows.filter((r) => `${r.name} ${r.assetName} ${r.chartLabel} ${r.ruleText}`.toLowerCase().includes(f)) : rows;
+    const list = f
+      ? rows.filter((r) => `${r.name} ${r.assetName} ${r.chartLabel} ${r.ruleText}`.toLowerCase().includes(f))
+      : rows;
     const get = (r: CharacteristicRow) =>
       sort.key === 'name'
         ? r.name
@@ -51,7 +53,20 @@ export function CharacteristicTable({ rows, timeZone }: { rows: CharacteristicRo
   const csv = () =>
     downloadCsv(
       'control-charts.csv',
-      ['name', 'asset', 'chart', 'subgroups', 'unit', 'limits_version', 'limits_in_force_from', 'points', 'last_point_time', 'last_value', 'last_signals', 'signals_in_last_50'],
+      [
+        'name',
+        'asset',
+        'chart',
+        'subgroups',
+        'unit',
+        'limits_version',
+        'limits_in_force_from',
+        'points',
+        'last_point_time',
+        'last_value',
+        'last_signals',
+        'signals_in_last_50',
+      ],
       shown.map((r) => [
         r.name,
         r.assetName,
@@ -73,7 +88,14 @@ export function CharacteristicTable({ rows, timeZone }: { rows: CharacteristicRo
       <div className="mb-2 flex flex-wrap items-end gap-3">
         <div>
           <label htmlFor="char-filter">Filter</label>
-          <input id="char-filter" type="search" value={filter} onChange={(e) => setFilter(e.target.value)} placeholder="name, line, oven…" className="w-64" />
+          <input
+            id="char-filter"
+            type="search"
+            value={filter}
+            onChange={(e) => setFilter(e.target.value)}
+            placeholder="name, line, oven…"
+            className="w-64"
+          />
         </div>
         <button type="button" className="btn-quiet" onClick={csv}>
           CSV
@@ -128,7 +150,9 @@ export function CharacteristicTable({ rows, timeZone }: { rows: CharacteristicRo
                 {r.limitsVersion !== null ? (
                   <>
                     v{r.limitsVersion}
-                    {r.limitsEffectiveFrom && <span className="text-ink-soft"> since {formatSiteTime(r.limitsEffectiveFrom, timeZone)}</span>}
+                    {r.limitsEffectiveFrom && (
+                      <span className="text-ink-soft"> since {formatSiteTime(r.limitsEffectiveFrom, timeZone)}</span>
+                    )}
                   </>
                 ) : (
                   <span>none approved</span>
@@ -144,7 +168,10 @@ export function CharacteristicTable({ rows, timeZone }: { rows: CharacteristicRo
                     </span>{' '}
                     <span className="text-ink-soft">{formatSiteTime(r.lastPoint.tMs, timeZone)}</span>
                     {r.lastPoint.violations.length > 0 && (
-                      <span className="tag ml-1 border-alert-high text-alert-high" title={r.lastPoint.violations.map(violationLabel).join('; ')}>
+                      <span
+                        className="tag ml-1 border-alert-high text-alert-high"
+                        title={r.lastPoint.violations.map(violationLabel).join('; ')}
+                      >
                         ▲ {r.lastPoint.violations.join(', ')}
                       </span>
                     )}
@@ -153,7 +180,9 @@ export function CharacteristicTable({ rows, timeZone }: { rows: CharacteristicRo
                   <span className="text-ink-soft">no points yet</span>
                 )}
               </td>
-              <td className="text-sm">{r.recentViolations > 0 ? <span>▲ {r.recentViolations}</span> : <span className="text-ink-soft">none</span>}</td>
+              <td className="text-sm">
+                {r.recentViolations > 0 ? <span>▲ {r.recentViolations}</span> : <span className="text-ink-soft">none</span>}
+              </td>
               <td className="text-sm">
                 <a href={`/charts/control/${r.id}/capability`}>capability</a>
               </td>

@@ -8,7 +8,15 @@
  */
 import { useCallback, useEffect, useRef, useState } from 'react';
 import { apiFetch, ApiError, subscribeLive } from '../../lib/client/api.ts';
-import { CHART_LABELS, CHART_STATISTIC, violationLabel, type ChartData, type ChartPoint, type LimitSetView, type LivePointEvent } from '../../lib/shared/characteristics.ts';
+import {
+  CHART_LABELS,
+  CHART_STATISTIC,
+  violationLabel,
+  type ChartData,
+  type ChartPoint,
+  type LimitSetView,
+  type LivePointEvent,
+} from '../../lib/shared/characteristics.ts';
 import { controlChartCsv } from '../../lib/shared/control-chart.ts';
 import { formatSiteTime, fromLocalInput } from '../../lib/shared/time.ts';
 import type { SpcCapability } from '../../lib/shared/spc.ts';
@@ -138,7 +146,10 @@ export function ControlChart({ initial, initialLast }: Props) {
     setTimeout(() => URL.revokeObjectURL(url), 1000);
   };
 
-  const signals = data.points.filter((p) => p.violations.length > 0).slice(-30).reverse();
+  const signals = data.points
+    .filter((p) => p.violations.length > 0)
+    .slice(-30)
+    .reverse();
   const excludedCount = data.points.filter((p) => p.excluded).length;
   const hasDispersion = CHART_STATISTIC[c.chart].dispersion !== null;
   const first = data.points[0];
@@ -186,21 +197,35 @@ export function ControlChart({ initial, initialLast }: Props) {
           >
             <div>
               <label htmlFor="cc-from">From ({tz})</label>
-              <input id="cc-from" type="datetime-local" value={fromText} onChange={(e) => setFromText(e.target.value)} className="w-auto" />
+              <input
+                id="cc-from"
+                type="datetime-local"
+                value={fromText}
+                onChange={(e) => setFromText(e.target.value)}
+                className="w-auto"
+              />
             </div>
             <div>
               <label htmlFor="cc-to">To</label>
-              <input id="cc-to" type="datetime-local" value={toText} onChange={(e) => setToText(e.target.value)} className="w-auto" />
+              <input
+                id="cc-to"
+                type="datetime-local"
+                value={toText}
+                onChange={(e) => setToText(e.target.value)}
+                className="w-auto"
+              />
             </div>
             <button className="btn-quiet" type="submit">
               Show period
             </button>
           </form>
           <label className="flex items-center gap-1.5 font-normal text-ink">
-            <input type="checkbox" className="w-auto" checked={zones} onChange={(e) => setZones(e.target.checked)} /> 1σ / 2σ zone lines
+            <input type="checkbox" className="w-auto" checked={zones} onChange={(e) => setZones(e.target.checked)} /> 1σ / 2σ zone
+            lines
           </label>
           <label className="flex items-center gap-1.5 font-normal text-ink">
-            <input type="checkbox" className="w-auto" checked={showSpec} onChange={(e) => setShowSpec(e.target.checked)} /> Spec limits
+            <input type="checkbox" className="w-auto" checked={showSpec} onChange={(e) => setShowSpec(e.target.checked)} /> Spec
+            limits
           </label>
           <div className="ml-auto flex gap-2">
             <button type="button" className="btn-quiet" onClick={() => exportPng('main')} disabled={data.points.length === 0}>
@@ -219,7 +244,13 @@ export function ControlChart({ initial, initialLast }: Props) {
           </span>
           {status === 'loading' && <span role="status">Loading…</span>}
           <span>
-            {range.kind === 'last' ? (live === 'on' ? '● Live: new points appear as they close' : live === 'connecting' ? '○ Connecting to live updates…' : '○ Not live') : '○ A fixed period (not live)'}
+            {range.kind === 'last'
+              ? live === 'on'
+                ? '● Live: new points appear as they close'
+                : live === 'connecting'
+                  ? '○ Connecting to live updates…'
+                  : '○ Not live'
+              : '○ A fixed period (not live)'}
           </span>
         </div>
         {error && (
@@ -231,7 +262,8 @@ export function ControlChart({ initial, initialLast }: Props) {
 
         <section className="panel" aria-labelledby="cc-main-h">
           <h2 id="cc-main-h" className="mb-1 text-base">
-            {c.chart === 'cusum' ? 'Cumulative sums C⁺ and −C⁻ against ±H' : CHART_STATISTIC[c.chart].value} ({c.unit}) <span className="font-normal text-ink-soft">· {CHART_LABELS[c.chart]}</span>
+            {c.chart === 'cusum' ? 'Cumulative sums C⁺ and −C⁻ against ±H' : CHART_STATISTIC[c.chart].value} ({c.unit}){' '}
+            <span className="font-normal text-ink-soft">· {CHART_LABELS[c.chart]}</span>
           </h2>
           <Legend zones={zones} spec={showSpec && !!data.spec} excluded={excludedCount} />
           {data.points.length === 0 ? (
@@ -253,7 +285,9 @@ export function ControlChart({ initial, initialLast }: Props) {
               label={`${c.name}: control chart of the last ${data.points.length} points`}
             />
           )}
-          <p className="mt-1 text-xs text-ink-soft no-print">Click a point for its readings and the records it belongs to. Hover for values and rules.</p>
+          <p className="mt-1 text-xs text-ink-soft no-print">
+            Click a point for its readings and the records it belongs to. Hover for values and rules.
+          </p>
         </section>
 
         {hasDispersion && data.points.length > 0 && (
@@ -317,7 +351,11 @@ export function ControlChart({ initial, initialLast }: Props) {
                       {p.violations.map((v) => violationLabel(v)).join('; ')}
                     </td>
                     <td>
-                      <button type="button" className="btn-quiet px-2 py-0.5 text-xs" onClick={() => void pick(data.points.indexOf(p))}>
+                      <button
+                        type="button"
+                        className="btn-quiet px-2 py-0.5 text-xs"
+                        onClick={() => void pick(data.points.indexOf(p))}
+                      >
                         Details
                       </button>
                     </td>
@@ -330,8 +368,16 @@ export function ControlChart({ initial, initialLast }: Props) {
       </div>
 
       <aside className="space-y-4">
-        {picked && <PointPanel point={picked} detail={detail} state={detailState} unit={c.unit} tz={tz} onClose={() => setPicked(null)} />}
-        <CapabilityPanel cap={data.capability} basis={data.capabilityBasis} spec={data.spec} specNote={data.specNote} unit={c.unit} />
+        {picked && (
+          <PointPanel point={picked} detail={detail} state={detailState} unit={c.unit} tz={tz} onClose={() => setPicked(null)} />
+        )}
+        <CapabilityPanel
+          cap={data.capability}
+          basis={data.capabilityBasis}
+          spec={data.spec}
+          specNote={data.specNote}
+          unit={c.unit}
+        />
       </aside>
     </div>
   );
@@ -386,7 +432,21 @@ function Legend({ zones, spec, excluded }: { zones: boolean; spec: boolean; excl
   );
 }
 
-function PointPanel({ point, detail, state, unit, tz, onClose }: { point: ChartPoint; detail: PointDetail | null; state: 'idle' | 'loading' | 'error'; unit: string; tz: string; onClose: () => void }) {
+function PointPanel({
+  point,
+  detail,
+  state,
+  unit,
+  tz,
+  onClose,
+}: {
+  point: ChartPoint;
+  detail: PointDetail | null;
+  state: 'idle' | 'loading' | 'error';
+  unit: string;
+  tz: string;
+  onClose: () => void;
+}) {
   const chName = new Map((detail?.channels ?? []).map((c) => [c.id, c.name]));
   return (
     <section className="panel" aria-labelledby="pp-h" aria-live="polite">
@@ -403,13 +463,13 @@ function PointPanel({ point, detail, state, unit, tz, onClose }: { point: ChartP
         <dd>{formatSiteTime(point.tMs, tz, { seconds: true })}</dd>
         <dt className="text-ink-soft">Value</dt>
         <dd className="num">
-          {fmtNum(point.value)} {unit}
+          {fmtNum(point.value, 6)} {unit}
         </dd>
         {point.limitSetId !== null && (
           <>
             <dt className="text-ink-soft">Judged against</dt>
             <dd className="num">
-              CL {fmtNum(point.center)} · UCL {fmtNum(point.ucl)} · LCL {fmtNum(point.lcl)}
+              CL {fmtNum(point.center, 6)} · UCL {fmtNum(point.ucl, 6)} · LCL {fmtNum(point.lcl, 6)}
               {detail?.limitSet ? ` (limits v${detail.limitSet.version})` : ''}
             </dd>
           </>
@@ -482,7 +542,9 @@ function PointPanel({ point, detail, state, unit, tz, onClose }: { point: ChartP
                 <li key={i}>
                   {r.n !== undefined && `${r.n} readings`}
                   {r.mean !== undefined && `, mean ${fmtNum(r.mean, 5)} ${unit}`}
-                  {r.soakFromMs !== undefined && r.soakToMs !== undefined && ` over the soak ${formatSiteTime(r.soakFromMs, tz)} – ${formatSiteTime(r.soakToMs, tz)}`}
+                  {r.soakFromMs !== undefined &&
+                    r.soakToMs !== undefined &&
+                    ` over the soak ${formatSiteTime(r.soakFromMs, tz)} – ${formatSiteTime(r.soakToMs, tz)}`}
                   {r.v !== undefined && `${fmtNum(r.v, 6)} ${unit}`}
                 </li>
               ))}
@@ -501,7 +563,8 @@ function PointPanel({ point, detail, state, unit, tz, onClose }: { point: ChartP
               ))}
               {detail.ovenLoads.map((l) => (
                 <li key={`l${l.id}`}>
-                  <a href={`/loads/${l.id}`}>Oven load {l.id}</a> · {formatSiteTime(l.openedAt, tz)} – {l.closedAt ? formatSiteTime(l.closedAt, tz) : 'open'}
+                  <a href={`/loads/${l.id}`}>Oven load {l.id}</a> · {formatSiteTime(l.openedAt, tz)} –{' '}
+                  {l.closedAt ? formatSiteTime(l.closedAt, tz) : 'open'}
                   {l.verdict ? ` · ${l.verdict}` : ''}
                 </li>
               ))}
@@ -513,14 +576,34 @@ function PointPanel({ point, detail, state, unit, tz, onClose }: { point: ChartP
   );
 }
 
+/** Expected ppm: three significant figures, "< 0.001" for the vanishingly small (normal-tail) values. */
+export function fmtPpm(v: number | null | undefined): string {
+  if (v === null || v === undefined || !Number.isFinite(v)) return '—';
+  if (v === 0) return '0';
+  if (v < 0.001) return '< 0.001';
+  return fmtNum(v, 3);
+}
+
 /** Capability summary: indices with intervals, ppm, normality and autocorrelation in plain words. */
-export function CapabilityPanel({ cap, basis, spec, specNote, unit }: { cap: SpcCapability | null; basis: string | null; spec: ChartData['spec']; specNote: string | null; unit: string }) {
-  const row = (label: string, v: number | null, extra?: string) => (
+export function CapabilityPanel({
+  cap,
+  basis,
+  spec,
+  specNote,
+  unit,
+}: {
+  cap: SpcCapability | null;
+  basis: string | null;
+  spec: ChartData['spec'];
+  specNote: string | null;
+  unit: string;
+}) {
+  const row = (label: string, v: number | null, extra?: string, text?: string) => (
     <tr>
       <th scope="row" className="bg-transparent font-normal">
         {label}
       </th>
-      <td className="num text-right">{fmtNum(v, 3)}</td>
+      <td className="num text-right">{text ?? fmtNum(v, 3)}</td>
       <td className="text-xs text-ink-soft">{extra ?? ''}</td>
     </tr>
   );
@@ -531,28 +614,44 @@ export function CapabilityPanel({ cap, basis, spec, specNote, unit }: { cap: Spc
       </h2>
       {spec ? (
         <p className="text-sm text-ink-soft">
-          Spec: {spec.lsl !== undefined ? `LSL ${fmtNum(spec.lsl)}` : 'no LSL'} · {spec.usl !== undefined ? `USL ${fmtNum(spec.usl)}` : 'no USL'}
+          Spec: {spec.lsl !== undefined ? `LSL ${fmtNum(spec.lsl)}` : 'no LSL'} ·{' '}
+          {spec.usl !== undefined ? `USL ${fmtNum(spec.usl)}` : 'no USL'}
           {spec.target !== undefined ? ` · target ${fmtNum(spec.target)}` : ''} {unit}
         </p>
       ) : null}
       {specNote && <p className="text-xs text-ink-soft">{specNote}</p>}
       {!cap ? (
-        <p className="mt-2 text-sm text-ink-soft">{spec ? (basis ?? 'Not enough points.') : 'Set a specification to see capability.'}</p>
+        <p className="mt-2 text-sm text-ink-soft">
+          {spec ? (basis ?? 'Not enough points.') : 'Set a specification to see capability.'}
+        </p>
       ) : (
         <>
           <table className="mt-2">
             <tbody>
-              {row('Cp', cap.cp, cap.cpInterval ? `${Math.round(cap.cpInterval.confidence * 100)} %: ${fmtNum(cap.cpInterval.lower, 3)}–${fmtNum(cap.cpInterval.upper, 3)}` : undefined)}
-              {row('Cpk', cap.cpk, cap.cpkInterval ? `${Math.round(cap.cpkInterval.confidence * 100)} %: ${fmtNum(cap.cpkInterval.lower, 3)}–${fmtNum(cap.cpkInterval.upper, 3)}` : undefined)}
+              {row(
+                'Cp',
+                cap.cp,
+                cap.cpInterval
+                  ? `${Math.round(cap.cpInterval.confidence * 100)} %: ${fmtNum(cap.cpInterval.lower, 3)}–${fmtNum(cap.cpInterval.upper, 3)}`
+                  : undefined,
+              )}
+              {row(
+                'Cpk',
+                cap.cpk,
+                cap.cpkInterval
+                  ? `${Math.round(cap.cpkInterval.confidence * 100)} %: ${fmtNum(cap.cpkInterval.lower, 3)}–${fmtNum(cap.cpkInterval.upper, 3)}`
+                  : undefined,
+              )}
               {row('Pp', cap.pp)}
               {row('Ppk', cap.ppk)}
               {row('Cpm', cap.cpm)}
-              {row('ppm out of spec (within)', cap.ppmWithin?.total ?? null)}
-              {row('ppm out of spec (overall)', cap.ppmOverall?.total ?? null)}
+              {row('ppm out of spec (within)', null, undefined, fmtPpm(cap.ppmWithin?.total))}
+              {row('ppm out of spec (overall)', null, undefined, fmtPpm(cap.ppmOverall?.total))}
             </tbody>
           </table>
           <p className="mt-2 text-sm">
-            Mean {fmtNum(cap.mean)} {unit} · σ within {fmtNum(cap.sigmaWithin, 3)} · σ overall {fmtNum(cap.sigmaOverall, 3)} {unit}
+            Mean {fmtNum(cap.mean)} {unit} · σ within {fmtNum(cap.sigmaWithin, 3)} · σ overall {fmtNum(cap.sigmaOverall, 3)}{' '}
+            {unit}
           </p>
           <p className="mt-2 text-sm">
             {cap.normality === null
@@ -566,7 +665,9 @@ export function CapabilityPanel({ cap, basis, spec, specNote, unit }: { cap: Spc
               <strong>⚠ Correlated points.</strong> {cap.autocorrelation.warning}
             </p>
           ) : cap.autocorrelation ? (
-            <p className="mt-2 text-sm text-ink-soft">Successive points look independent (lag-1 r = {fmtNum(cap.autocorrelation.lag1, 2)}).</p>
+            <p className="mt-2 text-sm text-ink-soft">
+              Successive points look independent (lag-1 r = {fmtNum(cap.autocorrelation.lag1, 2)}).
+            </p>
           ) : null}
           {basis && <p className="mt-2 text-xs text-ink-soft">Based on {basis}</p>}
         </>

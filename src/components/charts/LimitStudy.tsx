@@ -32,7 +32,14 @@ interface Row {
   reason: string;
 }
 
-export function LimitStudy({ characteristic: c, timeZone: tz, initialFromMs, initialToMs, drafts: initialDrafts, canApprove }: Props) {
+export function LimitStudy({
+  characteristic: c,
+  timeZone: tz,
+  initialFromMs,
+  initialToMs,
+  drafts: initialDrafts,
+  canApprove,
+}: Props) {
   const [fromText, setFromText] = useState(toLocalInput(initialFromMs, tz));
   const [toText, setToText] = useState(toLocalInput(initialToMs, tz));
   const [result, setResult] = useState<StudyResult | null>(null);
@@ -49,7 +56,10 @@ export function LimitStudy({ characteristic: c, timeZone: tz, initialFromMs, ini
   const period = () => {
     const f = fromLocalInput(fromText, tz);
     const t = fromLocalInput(toText, tz);
-    return { baselineFrom: Number.isFinite(f) ? new Date(f).toISOString() : fromText, baselineTo: Number.isFinite(t) ? new Date(t + 59_999).toISOString() : toText };
+    return {
+      baselineFrom: Number.isFinite(f) ? new Date(f).toISOString() : fromText,
+      baselineTo: Number.isFinite(t) ? new Date(t + 59_999).toISOString() : toText,
+    };
   };
   const payload = (rows: Row[]) => ({ ...period(), exclusions: rows.map((r) => ({ index: r.index, reason: r.reason })) });
 
@@ -77,7 +87,16 @@ export function LimitStudy({ characteristic: c, timeZone: tz, initialFromMs, ini
   );
 
   const points: ChartPoint[] = useMemo(
-    () => (result ? result.points.map((p) => ({ ...p, violations: p.trialViolations, excluded: p.excludedInStudy, exclusionReason: exclusions.find((x) => x.index === baselineIndex(result, p))?.reason ?? null, limitSetId: -1 })) : []),
+    () =>
+      result
+        ? result.points.map((p) => ({
+            ...p,
+            violations: p.trialViolations,
+            excluded: p.excludedInStudy,
+            exclusionReason: exclusions.find((x) => x.index === baselineIndex(result, p))?.reason ?? null,
+            limitSetId: -1,
+          }))
+        : [],
     [result, exclusions],
   );
   const trialSet: LimitSetView[] = useMemo(
@@ -119,7 +138,11 @@ export function LimitStudy({ characteristic: c, timeZone: tz, initialFromMs, ini
   );
 
   const toggleExclusion = (index: number, reason = '') => {
-    setExclusions((rows) => (rows.some((r) => r.index === index) ? rows.filter((r) => r.index !== index) : [...rows, { index, reason }].sort((a, b) => a.index - b.index)));
+    setExclusions((rows) =>
+      rows.some((r) => r.index === index)
+        ? rows.filter((r) => r.index !== index)
+        : [...rows, { index, reason }].sort((a, b) => a.index - b.index),
+    );
   };
   const useSuggestions = () => {
     if (!result) return;
@@ -132,7 +155,9 @@ export function LimitStudy({ characteristic: c, timeZone: tz, initialFromMs, ini
     setState('saving');
     setError(null);
     try {
-      const d = await apiFetch<LimitSetView>(`/api/v1/characteristics/${c.id}/limit-sets`, { body: { ...payload(exclusions), note } });
+      const d = await apiFetch<LimitSetView>(`/api/v1/characteristics/${c.id}/limit-sets`, {
+        body: { ...payload(exclusions), note },
+      });
       setDrafts((x) => [d, ...x]);
       return d;
     } catch (e) {
@@ -154,7 +179,8 @@ export function LimitStudy({ characteristic: c, timeZone: tz, initialFromMs, ini
 
   const pointAt = (index: number) => result?.points[index - 1];
   const excludedSet = new Set(exclusions.map((e) => e.index));
-  const stale = result && (result.exclusions.length !== exclusions.length || result.exclusions.some((e) => !excludedSet.has(e.index)));
+  const stale =
+    result && (result.exclusions.length !== exclusions.length || result.exclusions.some((e) => !excludedSet.has(e.index)));
 
   return (
     <div className="space-y-4">
@@ -168,7 +194,13 @@ export function LimitStudy({ characteristic: c, timeZone: tz, initialFromMs, ini
       >
         <div>
           <label htmlFor="st-from">Baseline from ({tz})</label>
-          <input id="st-from" type="datetime-local" className="w-auto" value={fromText} onChange={(e) => setFromText(e.target.value)} />
+          <input
+            id="st-from"
+            type="datetime-local"
+            className="w-auto"
+            value={fromText}
+            onChange={(e) => setFromText(e.target.value)}
+          />
           {error?.fields['baselineFrom'] && <p className="mt-1 text-sm text-alert-high">✕ {error.fields['baselineFrom']}</p>}
         </div>
         <div>
@@ -179,7 +211,9 @@ export function LimitStudy({ characteristic: c, timeZone: tz, initialFromMs, ini
         <button className="btn" type="submit" disabled={state !== 'idle'} aria-busy={state === 'running'}>
           {state === 'running' ? 'Computing…' : 'Run study'}
         </button>
-        <p className="basis-full text-xs text-ink-soft">Use a period when the process ran as it should: 20–25 subgroups at least (Montgomery §6.2.1); more is better.</p>
+        <p className="basis-full text-xs text-ink-soft">
+          Use a period when the process ran as it should: 20–25 subgroups at least (Montgomery §6.2.1); more is better.
+        </p>
       </form>
 
       {error && (
@@ -203,17 +237,20 @@ export function LimitStudy({ characteristic: c, timeZone: tz, initialFromMs, ini
                   Trial chart: {result.points.length} baseline points, {result.includedPoints} set the limits
                 </h2>
                 <label className="flex items-center gap-1.5 font-normal text-ink">
-                  <input type="checkbox" className="w-auto" checked={zones} onChange={(e) => setZones(e.target.checked)} /> 1σ / 2σ zones
+                  <input type="checkbox" className="w-auto" checked={zones} onChange={(e) => setZones(e.target.checked)} /> 1σ /
+                  2σ zones
                 </label>
               </div>
               <p className="text-sm">
-                Trial limits: centre <span className="num">{fmtNum(result.limits.center)}</span> · UCL <span className="num">{fmtNum(result.limits.ucl)}</span> · LCL{' '}
-                <span className="num">{fmtNum(result.limits.lcl)}</span> {c.unit} · σ within <span className="num">{fmtNum(result.sigma)}</span> {c.unit}
+                Trial limits: centre <span className="num">{fmtNum(result.limits.center)}</span> · UCL{' '}
+                <span className="num">{fmtNum(result.limits.ucl)}</span> · LCL{' '}
+                <span className="num">{fmtNum(result.limits.lcl)}</span> {c.unit} · σ within{' '}
+                <span className="num">{fmtNum(result.sigma)}</span> {c.unit}
                 {result.dispersion && (
                   <>
                     {' '}
-                    · {CHART_STATISTIC[c.chart].dispersion} centre <span className="num">{fmtNum(result.dispersion.center)}</span>, UCL{' '}
-                    <span className="num">{fmtNum(result.dispersion.ucl)}</span>
+                    · {CHART_STATISTIC[c.chart].dispersion} centre <span className="num">{fmtNum(result.dispersion.center)}</span>
+                    , UCL <span className="num">{fmtNum(result.dispersion.ucl)}</span>
                   </>
                 )}
               </p>
@@ -239,7 +276,18 @@ export function LimitStudy({ characteristic: c, timeZone: tz, initialFromMs, ini
               />
               <p className="text-xs text-ink-soft">Click a point to exclude it (or include it again); give the reason below.</p>
               {CHART_STATISTIC[c.chart].dispersion && (
-                <SpcPlot chart={c.chart} points={points} limitSets={trialSet} spec={null} unit={c.unit} timeZone={tz} zones={false} dispersion height={170} label="Trial dispersion chart" />
+                <SpcPlot
+                  chart={c.chart}
+                  points={points}
+                  limitSets={trialSet}
+                  spec={null}
+                  unit={c.unit}
+                  timeZone={tz}
+                  zones={false}
+                  dispersion
+                  height={170}
+                  label="Trial dispersion chart"
+                />
               )}
             </section>
 
@@ -248,8 +296,8 @@ export function LimitStudy({ characteristic: c, timeZone: tz, initialFromMs, ini
                 Suggested exclusions ({result.suggested.length})
               </h2>
               <p className="text-sm text-ink-soft">
-                Points beyond the trial limits, found by recomputing the limits without them until none remain. They are only suggestions: exclude a point when you know its
-                assignable cause.
+                Points beyond the trial limits, found by recomputing the limits without them until none remain. They are only
+                suggestions: exclude a point when you know its assignable cause.
               </p>
               {result.suggested.length === 0 ? (
                 <p className="mt-2 text-sm">None: every baseline point is within its trial limits.</p>
@@ -281,7 +329,13 @@ export function LimitStudy({ characteristic: c, timeZone: tz, initialFromMs, ini
                             <td className="num">{s.iteration}</td>
                             <td className="text-sm">{s.reason}</td>
                             <td>
-                              <input type="checkbox" className="w-auto" aria-label={`Exclude point ${s.index}`} checked={excludedSet.has(s.index)} onChange={() => toggleExclusion(s.index)} />
+                              <input
+                                type="checkbox"
+                                className="w-auto"
+                                aria-label={`Exclude point ${s.index}`}
+                                checked={excludedSet.has(s.index)}
+                                onChange={() => toggleExclusion(s.index)}
+                              />
                             </td>
                           </tr>
                         );
@@ -289,14 +343,20 @@ export function LimitStudy({ characteristic: c, timeZone: tz, initialFromMs, ini
                     </tbody>
                   </table>
                   {result.suggested.length > 20 && (
-                    <button type="button" className="btn-quiet mt-2" onClick={() => setAllSuggestions((v) => !v)} aria-expanded={allSuggestions}>
+                    <button
+                      type="button"
+                      className="btn-quiet mt-2"
+                      onClick={() => setAllSuggestions((v) => !v)}
+                      aria-expanded={allSuggestions}
+                    >
                       {allSuggestions ? 'Show the first 20 only' : `Show all ${result.suggested.length}`}
                     </button>
                   )}
                   {result.suggested.length > result.points.length / 4 && (
                     <p className="caution mt-2">
-                      The iteration suggests excluding {result.suggested.length} of {result.points.length} points: the baseline is not in statistical control (for example, it
-                      drifts). Excluding that many leaves limits that describe only part of the process; look for the cause, pick another period, or chart it differently.
+                      The iteration suggests excluding {result.suggested.length} of {result.points.length} points: the baseline is
+                      not in statistical control (for example, it drifts). Excluding that many leaves limits that describe only
+                      part of the process; look for the cause, pick another period, or chart it differently.
                     </p>
                   )}
                 </>
@@ -331,7 +391,11 @@ export function LimitStudy({ characteristic: c, timeZone: tz, initialFromMs, ini
                             value={r.reason}
                             maxLength={500}
                             placeholder="e.g. rack caught on the lift; viscometer cleaned"
-                            onChange={(e) => setExclusions((rows) => rows.map((x) => (x.index === r.index ? { ...x, reason: e.target.value } : x)))}
+                            onChange={(e) =>
+                              setExclusions((rows) =>
+                                rows.map((x) => (x.index === r.index ? { ...x, reason: e.target.value } : x)),
+                              )
+                            }
                           />
                           {fieldErr && <p className="mt-1 text-sm text-alert-high">✕ {fieldErr}</p>}
                         </div>
@@ -365,7 +429,12 @@ export function LimitStudy({ characteristic: c, timeZone: tz, initialFromMs, ini
                   {canApprove ? 'Save and approve…' : 'Save as draft'}
                 </button>
                 {canApprove && (
-                  <button type="button" className="btn-quiet" disabled={state !== 'idle' || !!stale} onClick={() => void saveDraft()}>
+                  <button
+                    type="button"
+                    className="btn-quiet"
+                    disabled={state !== 'idle' || !!stale}
+                    onClick={() => void saveDraft()}
+                  >
                     Save as draft only
                   </button>
                 )}
@@ -374,7 +443,13 @@ export function LimitStudy({ characteristic: c, timeZone: tz, initialFromMs, ini
             </section>
           </div>
           <aside>
-            <CapabilityPanel cap={result.capability} basis={result.capability ? `the ${result.includedPoints} included baseline points.` : null} spec={result.spec} specNote={null} unit={c.unit} />
+            <CapabilityPanel
+              cap={result.capability}
+              basis={result.capability ? `the ${result.includedPoints} included baseline points.` : null}
+              spec={result.spec}
+              specNote={null}
+              unit={c.unit}
+            />
           </aside>
         </div>
       )}
@@ -453,13 +528,16 @@ export function LimitStudy({ characteristic: c, timeZone: tz, initialFromMs, ini
             {signing.sigma !== null && <> · σ {fmtNum(signing.sigma)}</>}
           </p>
           <p>
-            Baseline: {signing.baselinePoints} points ({formatSiteTime(signing.baselineFrom, tz)} – {formatSiteTime(signing.baselineTo, tz)}), {signing.excluded.length} excluded.
+            Baseline: {signing.baselinePoints} points ({formatSiteTime(signing.baselineFrom, tz)} –{' '}
+            {formatSiteTime(signing.baselineTo, tz)}), {signing.excluded.length} excluded.
           </p>
           <label htmlFor="st-eff" className="mt-2">
             Takes effect ({tz}; empty: now)
           </label>
           <input id="st-eff" type="datetime-local" value={effectiveText} onChange={(e) => setEffectiveText(e.target.value)} />
-          <p className="mt-1 text-xs">New points are judged against these limits from then on; points already judged keep their limits.</p>
+          <p className="mt-1 text-xs">
+            New points are judged against these limits from then on; points already judged keep their limits.
+          </p>
         </SignDialog>
       )}
     </div>

@@ -20,8 +20,14 @@ import {
 import annotationPlugin, { type AnnotationOptions } from 'chartjs-plugin-annotation';
 import { forwardRef, useMemo } from 'react';
 import { Chart } from 'react-chartjs-2';
-import { CHART_STATISTIC, type ChartPoint, type CharacteristicChart, type LimitSetView, type SpecLimits } from '../../lib/shared/characteristics.ts';
-import { pointTooltip, shapeControlChart, yRange } from '../../lib/shared/control-chart.ts';
+import {
+  CHART_STATISTIC,
+  type ChartPoint,
+  type CharacteristicChart,
+  type LimitSetView,
+  type SpecLimits,
+} from '../../lib/shared/characteristics.ts';
+import { dispersionSignals, locationSignals, pointTooltip, shapeControlChart, yRange } from '../../lib/shared/control-chart.ts';
 import { tickLabel, zonesOver } from '../../lib/shared/time.ts';
 
 ChartJS.register(LineController, LineElement, PointElement, LinearScale, Tooltip, annotationPlugin);
@@ -83,7 +89,7 @@ export const SpcPlot = forwardRef<LineChart | undefined, SpcPlotProps>(function 
       fill: false,
     });
     if (dispersion) {
-      const sig = points.map((p) => p.violations.some((v) => v.startsWith('dispersion')));
+      const sig = points.map((p) => dispersionSignals(p.violations).length > 0);
       return {
         datasets: [
           {
@@ -103,7 +109,7 @@ export const SpcPlot = forwardRef<LineChart | undefined, SpcPlotProps>(function 
         ],
       };
     }
-    const kind = points.map((p) => (p.violations.length > 0 ? 'v' : p.excluded ? 'e' : 'n'));
+    const kind = points.map((p) => (locationSignals(p.violations).length > 0 ? 'v' : p.excluded ? 'e' : 'n'));
     const sets = [
       {
         label: chart === 'cusum' ? 'C⁺ (upper sum)' : CHART_STATISTIC[chart].value,
@@ -174,19 +180,6 @@ export const SpcPlot = forwardRef<LineChart | undefined, SpcPlotProps>(function 
         if (spec.usl !== undefined && range?.shown.includes('usl')) specLine('usl', spec.usl, 'USL', [7, 4]);
         if (spec.lsl !== undefined && range?.shown.includes('lsl')) specLine('lsl', spec.lsl, 'LSL', [7, 4]);
         if (spec.target !== undefined && range?.shown.includes('target')) specLine('target', spec.target, 'Target', [2, 4]);
-        for (const o of range?.offScale ?? []) {
-          a[`off-${o.key}`] = {
-            type: 'label',
-            xValue: shaped.x[0] ?? 0,
-            yValue: o.side === 'above' ? range!.max : range!.min,
-            position: { x: 'start', y: o.side === 'above' ? 'start' : 'end' },
-            content: `${o.key.toUpperCase()} ${fmtNum(o.value)} ${unit} ${o.side === 'above' ? '↑ above' : '↓ below'} the chart`,
-            color: COLORS.spec,
-            backgroundColor: 'rgba(244,243,239,0.9)',
-            font: { size: 11, weight: 'bold' },
-            padding: 2,
-          };
-        }
       }
       // Label the signals and exclusions without piling text up: at most one label per few points.
       const gap = Math.max(2, Math.ceil(shaped.x.length / 45));
@@ -194,7 +187,12 @@ export const SpcPlot = forwardRef<LineChart | undefined, SpcPlotProps>(function 
       let lastX = Number.POSITIVE_INFINITY;
       for (let k = shaped.markers.length - 1; k >= 0 && recent.length < 40; k--) {
         const m = shaped.markers[k]!;
-        if (lastX - m.x < gap) continue;
+        if (lastX - m.x < gap) {
+          // Crowded: a signal's label wins over an "excluded" one.
+          const kept = recent[recent.length - 1];
+          if (kept && kept.kind === 'excluded' && m.kind === 'violation') recent[recent.length - 1] = m;
+          continue;
+        }
         recent.push(m);
         lastX = m.x;
       }
@@ -217,7 +215,7 @@ export const SpcPlot = forwardRef<LineChart | undefined, SpcPlotProps>(function 
       const lastCl = shaped.center[lastI];
       const edge = (key: string, y: number | null | undefined, text: string) => {
         if (y === null || y === undefined) return;
-        const content = text.endsWith('—') ? text.slice(0, -2) : `${text} ${fmtNum(y)}`;
+        const content = text.endsWith('—') ? text.slice(0, -2) : `${text} ${fmtNum(y, 6)}`;
         a[key] = {
           type: 'label',
           xValue: shaped.x[lastI]!,
@@ -233,8 +231,13 @@ export const SpcPlot = forwardRef<LineChart | undefined, SpcPlotProps>(function 
       if (lastI >= 0 && chart !== 'cusum') {
         // Labels closer than ~14 px would overlap: then one label names all three.
         const pxPerUnit = range ? (height - 70) / (range.max - range.min || 1) : Infinity;
-        const crowded = lastUcl !== null && lastUcl !== undefined && lastCl !== null && lastCl !== undefined && (lastUcl - lastCl) * pxPerUnit < 14;
-        if (crowded) edge('ec', lastCl, `CL ${fmtNum(lastCl)} · UCL ${fmtNum(lastUcl)} · LCL ${fmtNum(lastLcl)} —`);
+        const crowded =
+          lastUcl !== null &&
+          lastUcl !== undefined &&
+          lastCl !== null &&
+          lastCl !== undefined &&
+          (lastUcl - lastCl) * pxPerUnit < 14;
+        if (crowded) edge('ec', lastCl, `CL ${fmtNum(lastCl, 6)} · UCL ${fmtNum(lastUcl, 6)} · LCL ${fmtNum(lastLcl, 6)} —`);
         else {
           edge('eu', lastUcl, 'UCL');
           edge('el', lastLcl, 'LCL');
@@ -287,9 +290,13 @@ export const SpcPlot = forwardRef<LineChart | undefined, SpcPlotProps>(function 
           type: 'linear',
           min: shaped.x[0] !== undefined ? shaped.x[0] - 0.5 : undefined,
           max: shaped.x.length ? shaped.x[shaped.x.length - 1]! + 0.5 : undefined,
-          title: { display: !dispersion, text: points.length ? `Subgroup order · times in ${zonesOver(first, last, timeZone)}` : 'Subgroup order' },
+          title: {
+            display: !dispersion,
+            text: points.length ? `Subgroup order · times in ${zonesOver(first, last, timeZone)}` : 'Subgroup order',
+          },
           ticks: {
             maxTicksLimit: 8,
+            includeBounds: false,
             callback: (v) => {
               const n = Math.round(Number(v));
               const t = timeOf.get(n);
@@ -299,7 +306,10 @@ export const SpcPlot = forwardRef<LineChart | undefined, SpcPlotProps>(function 
           grid: { color: '#e3e4e0' },
         },
         y: {
-          title: { display: true, text: `${dispersion ? (CHART_STATISTIC[chart].dispersion ?? 'Spread') : chart === 'cusum' ? 'Cumulative sum' : CHART_STATISTIC[chart].value} (${unit})` },
+          title: {
+            display: true,
+            text: `${dispersion ? (CHART_STATISTIC[chart].dispersion ?? 'Spread') : chart === 'cusum' ? 'Cumulative sum' : CHART_STATISTIC[chart].value} (${unit})`,
+          },
           grid: { color: '#e3e4e0' },
           ...(dispersion ? { min: 0, grace: '6%' } : range ? { min: range.min, max: range.max } : { grace: '6%' }),
         },
@@ -313,7 +323,7 @@ export const SpcPlot = forwardRef<LineChart | undefined, SpcPlotProps>(function 
             title: () => '',
             label: (item: TooltipItem<'line'>) => {
               const p = points[item.dataIndex];
-              return p ? pointTooltip(p, unit, chart, timeZone, fmtNum) : '';
+              return p ? pointTooltip(p, unit, chart, timeZone, (x) => fmtNum(x, 6)) : '';
             },
           },
         },
@@ -321,17 +331,28 @@ export const SpcPlot = forwardRef<LineChart | undefined, SpcPlotProps>(function 
     };
   }, [annotations, points, shaped, timeZone, spanMs, timeOf, unit, chart, dispersion, range, onPick]);
 
+  const off = range?.offScale ?? [];
   return (
-    <div
-      style={{ height }}
-      className="relative"
-      data-spc-plot={dispersion ? 'dispersion' : 'statistic'}
-      data-points={points.length}
-      data-limit-points={shaped.ucl.filter((u) => u !== null).length}
-      data-signals={shaped.markers.filter((m) => m.kind === 'violation').length}
-      data-excluded={shaped.markers.filter((m) => m.kind === 'excluded').length}
-    >
-      <Chart ref={ref as never} type="line" data={data} options={options} aria-label={label} role="img" />
-    </div>
+    <>
+      {off.length > 0 && (
+        <p className="text-xs text-ink-soft">
+          Off the scale (so the points stay readable):{' '}
+          {off
+            .map((o) => `${o.key.toUpperCase()} ${fmtNum(o.value)} ${unit} ${o.side === 'above' ? '↑ above' : '↓ below'}`)
+            .join(' · ')}
+        </p>
+      )}
+      <div
+        style={{ height }}
+        className="relative"
+        data-spc-plot={dispersion ? 'dispersion' : 'statistic'}
+        data-points={points.length}
+        data-limit-points={shaped.ucl.filter((u) => u !== null).length}
+        data-signals={shaped.markers.filter((m) => m.kind === 'violation').length}
+        data-excluded={shaped.markers.filter((m) => m.kind === 'excluded').length}
+      >
+        <Chart ref={ref as never} type="line" data={data} options={options} aria-label={label} role="img" />
+      </div>
+    </>
   );
 });

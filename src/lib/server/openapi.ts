@@ -39,6 +39,7 @@ import {
 } from '../shared/baths.ts';
 import type { Action } from '../shared/roles.ts';
 import { SpcEvaluateInputSchema } from '../shared/spc.ts';
+import { ApproveLimitSetSchema, CharacteristicInputSchema, StudyInputSchema } from '../shared/characteristics.ts';
 import { SpectrumOptionsSchema } from '../shared/spectrum.ts';
 import { WindowApproveSchema, WindowAssignSchema, WindowDraftCreateSchema, WindowDraftUpdateSchema, WINDOW_STATUSES } from '../shared/windows.ts';
 
@@ -160,15 +161,15 @@ export const OPERATIONS: Operation[] = [
   // SPC
   { method: 'POST', path: '/api/v1/spc/evaluate', summary: 'Stateless SPC on posted data (product.md §6)', access: 'spc.evaluate', tag: 'spc', body: SpcEvaluateInputSchema },
   { method: 'GET', path: '/api/v1/characteristics', summary: 'Characteristics', access: 'view', tag: 'spc' },
-  { method: 'POST', path: '/api/v1/characteristics', summary: 'Define a characteristic', access: 'characteristic.edit', tag: 'spc' },
+  { method: 'POST', path: '/api/v1/characteristics', summary: 'Define a characteristic', access: 'characteristic.edit', tag: 'spc', body: CharacteristicInputSchema },
   { method: 'GET', path: '/api/v1/characteristics/{id}', summary: 'One characteristic', access: 'view', tag: 'spc' },
-  { method: 'PUT', path: '/api/v1/characteristics/{id}', summary: 'Change a characteristic', access: 'characteristic.edit', tag: 'spc' },
-  { method: 'POST', path: '/api/v1/characteristics/{id}/study', summary: 'Phase I trial limits (not stored)', access: 'limits.study', tag: 'spc' },
+  { method: 'PUT', path: '/api/v1/characteristics/{id}', summary: 'Change a characteristic', access: 'characteristic.edit', tag: 'spc', body: CharacteristicInputSchema },
+  { method: 'POST', path: '/api/v1/characteristics/{id}/study', summary: 'Phase I trial limits (not stored)', access: 'limits.study', tag: 'spc', body: StudyInputSchema },
   { method: 'GET', path: '/api/v1/characteristics/{id}/limit-sets', summary: 'Control-limit sets', access: 'view', tag: 'spc' },
-  { method: 'POST', path: '/api/v1/characteristics/{id}/limit-sets', summary: 'Propose a control-limit set', access: 'limits.study', tag: 'spc' },
+  { method: 'POST', path: '/api/v1/characteristics/{id}/limit-sets', summary: 'Propose a control-limit set', access: 'limits.study', tag: 'spc', body: StudyInputSchema },
   { method: 'GET', path: '/api/v1/characteristics/{id}/limit-sets/{setId}', summary: 'One control-limit set', access: 'view', tag: 'spc' },
   { method: 'DELETE', path: '/api/v1/characteristics/{id}/limit-sets/{setId}', summary: 'Withdraw a proposed limit set', access: 'limits.study', tag: 'spc' },
-  { method: 'POST', path: '/api/v1/characteristics/{id}/limit-sets/{setId}/approve', summary: 'Approve a limit set (electronic signature)', access: 'limits.approve', tag: 'spc' },
+  { method: 'POST', path: '/api/v1/characteristics/{id}/limit-sets/{setId}/approve', summary: 'Approve a limit set (electronic signature)', access: 'limits.approve', tag: 'spc', body: ApproveLimitSetSchema },
   { method: 'GET', path: '/api/v1/characteristics/{id}/points', summary: 'Chart points', access: 'view', tag: 'spc' },
   { method: 'GET', path: '/api/v1/characteristics/{id}/points/{pointId}', summary: 'One chart point', access: 'view', tag: 'spc' },
   // process windows

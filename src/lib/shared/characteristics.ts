@@ -126,7 +126,9 @@ export function describeSubgroupRule(rule: SubgroupRule, n: number): string {
         ? `first ${n} reading${n === 1 ? '' : 's'} of each ${rule.minutes}-minute window`
         : `${n} block mean${n === 1 ? '' : 's'} of each ${rule.minutes}-minute window`;
     case 'per-manual-check':
-      return rule.minSpacingMinutes > 0 ? `one point per check (at least ${rule.minSpacingMinutes} min apart)` : 'one point per check';
+      return rule.minSpacingMinutes > 0
+        ? `one point per check (at least ${rule.minSpacingMinutes} min apart)`
+        : 'one point per check';
   }
 }
 
@@ -144,8 +146,10 @@ export const SpecSourceSchema = z.discriminatedUnion('mode', [
     })
     .strict()
     .superRefine((s, ctx) => {
-      if (s.lsl === undefined && s.usl === undefined) ctx.addIssue({ code: 'custom', path: ['lsl'], message: 'Give at least one of LSL and USL.' });
-      if (s.lsl !== undefined && s.usl !== undefined && !(s.lsl < s.usl)) ctx.addIssue({ code: 'custom', path: ['usl'], message: 'USL must be above LSL.' });
+      if (s.lsl === undefined && s.usl === undefined)
+        ctx.addIssue({ code: 'custom', path: ['lsl'], message: 'Give at least one of LSL and USL.' });
+      if (s.lsl !== undefined && s.usl !== undefined && !(s.lsl < s.usl))
+        ctx.addIssue({ code: 'custom', path: ['usl'], message: 'USL must be above LSL.' });
       if (s.target !== undefined && ((s.lsl !== undefined && s.target < s.lsl) || (s.usl !== undefined && s.target > s.usl))) {
         ctx.addIssue({ code: 'custom', path: ['target'], message: 'The target must lie within the specification limits.' });
       }
@@ -208,9 +212,13 @@ export const CharacteristicInputSchema = z
   .superRefine((c, ctx) => {
     const issue = (path: (string | number)[], message: string) => ctx.addIssue({ code: 'custom', path, message });
     if (c.chart === 'imr' && c.subgroupSize !== 1) issue(['subgroupSize'], 'The individuals chart takes subgroups of 1.');
-    if ((c.chart === 'xbar-r' || c.chart === 'xbar-s') && c.subgroupSize < 2) issue(['subgroupSize'], 'X̄ charts need subgroups of 2 to 25.');
+    if ((c.chart === 'xbar-r' || c.chart === 'xbar-s') && c.subgroupSize < 2)
+      issue(['subgroupSize'], 'X̄ charts need subgroups of 2 to 25.');
     if ((c.subgroupRule.kind === 'per-oven-load' || c.subgroupRule.kind === 'per-manual-check') && c.subgroupSize !== 1) {
-      issue(['subgroupSize'], 'One load or one check is one observation: use a subgroup size of 1 (an individuals, EWMA or CUSUM chart).');
+      issue(
+        ['subgroupSize'],
+        'One load or one check is one observation: use a subgroup size of 1 (an individuals, EWMA or CUSUM chart).',
+      );
     }
     if (new Set(c.channelIds).size !== c.channelIds.length) issue(['channelIds'], 'A channel is listed twice.');
     const seen = new Set<string>();
@@ -218,8 +226,12 @@ export const CharacteristicInputSchema = z
       if (seen.has(r)) issue(['rules', i], `Rule ${r} is listed twice.`);
       seen.add(r);
     });
-    if (c.chart !== 'ewma') for (const f of ['lambda', 'L', 'limits'] as const) if (c.chartParams[f] !== undefined) issue(['chartParams', f], 'Applies to the EWMA chart only.');
-    if (c.chart !== 'cusum') for (const f of ['k', 'h', 'headStart'] as const) if (c.chartParams[f] !== undefined) issue(['chartParams', f], 'Applies to the CUSUM chart only.');
+    if (c.chart !== 'ewma')
+      for (const f of ['lambda', 'L', 'limits'] as const)
+        if (c.chartParams[f] !== undefined) issue(['chartParams', f], 'Applies to the EWMA chart only.');
+    if (c.chart !== 'cusum')
+      for (const f of ['k', 'h', 'headStart'] as const)
+        if (c.chartParams[f] !== undefined) issue(['chartParams', f], 'Applies to the CUSUM chart only.');
     if (c.chart === 'cusum' && c.chartParams.headStart !== undefined && !(c.chartParams.headStart < (c.chartParams.h ?? 5))) {
       issue(['chartParams', 'headStart'], 'The head start must be below the decision interval h.');
     }
@@ -258,10 +270,12 @@ export const StudyInputSchema = z
   })
   .strict()
   .superRefine((s, ctx) => {
-    if (!(Date.parse(s.baselineFrom) < Date.parse(s.baselineTo))) ctx.addIssue({ code: 'custom', path: ['baselineTo'], message: 'The baseline must end after it starts.' });
+    if (!(Date.parse(s.baselineFrom) < Date.parse(s.baselineTo)))
+      ctx.addIssue({ code: 'custom', path: ['baselineTo'], message: 'The baseline must end after it starts.' });
     const seen = new Set<number>();
     s.exclusions.forEach((e, i) => {
-      if (seen.has(e.index)) ctx.addIssue({ code: 'custom', path: ['exclusions', i, 'index'], message: `Point ${e.index} is excluded twice.` });
+      if (seen.has(e.index))
+        ctx.addIssue({ code: 'custom', path: ['exclusions', i, 'index'], message: `Point ${e.index} is excluded twice.` });
       seen.add(e.index);
     });
   });
@@ -318,7 +332,14 @@ export interface LimitSetView {
   note: string;
   effectiveFrom: string | null;
   effectiveFromMs: number | null;
-  approvedSignature: { userId: number; username: string; displayName: string; meaning: string; signedAt: string; seeded?: boolean } | null;
+  approvedSignature: {
+    userId: number;
+    username: string;
+    displayName: string;
+    meaning: string;
+    signedAt: string;
+    seeded?: boolean;
+  } | null;
   approvedAt: string | null;
   seeded: boolean;
   createdAt: string;

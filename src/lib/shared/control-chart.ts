@@ -26,7 +26,7 @@ export interface ShapedControlChart {
   dispersionCenter: (number | null)[];
   dispersionUcl: (number | null)[];
   dispersionLcl: (number | null)[];
-  /** Points with a violation (triangles with the rule ids) and excluded ones (hollow, "excluded"). */
+  /** Points where the statistic signals (triangles with the rule ids) and excluded ones (hollow, "excluded"). */
   markers: ControlMarker[];
   /** Where a limit set starts on the chart (the first point judged under it). */
   steps: { x: number; version: number; setId: number }[];
@@ -42,15 +42,32 @@ export interface ControlMarker {
   label: string;
 }
 
+/** Signals of the plotted statistic (run rules, EWMA, CUSUM) — not those of the R/S/MR chart. */
+export function locationSignals(violations: readonly string[]): string[] {
+  return violations.filter((v) => !v.startsWith('dispersion-'));
+}
+
+/** Signals of the companion R/S/MR chart. */
+export function dispersionSignals(violations: readonly string[]): string[] {
+  return violations.filter((v) => v.startsWith('dispersion-'));
+}
+
 /** The 1σ and 2σ zone lines from a centre and UCL (σ of the statistic = (UCL − centre)/3). */
-export function zoneLines(center: number | null, ucl: number | null): { plus1: number | null; minus1: number | null; plus2: number | null; minus2: number | null } {
+export function zoneLines(
+  center: number | null,
+  ucl: number | null,
+): { plus1: number | null; minus1: number | null; plus2: number | null; minus2: number | null } {
   if (center === null || ucl === null) return { plus1: null, minus1: null, plus2: null, minus2: null };
   const s = (ucl - center) / 3;
   return { plus1: center + s, minus1: center - s, plus2: center + 2 * s, minus2: center - 2 * s };
 }
 
 /** Shape a chart's points (in index order) with the characteristic's limit sets. */
-export function shapeControlChart(chart: CharacteristicChart, points: readonly ChartPoint[], sets: readonly LimitSetView[]): ShapedControlChart {
+export function shapeControlChart(
+  chart: CharacteristicChart,
+  points: readonly ChartPoint[],
+  sets: readonly LimitSetView[],
+): ShapedControlChart {
   const byId = new Map(sets.map((s) => [s.id, s]));
   const out: ShapedControlChart = {
     x: [],
@@ -92,18 +109,32 @@ export function shapeControlChart(chart: CharacteristicChart, points: readonly C
     out.dispersionCenter.push(set?.dispersion?.center ?? null);
     out.dispersionUcl.push(set?.dispersion?.ucl ?? null);
     out.dispersionLcl.push(set?.dispersion?.lcl ?? null);
-    if (p.limitSetId !== null && p.limitSetId !== lastSet && set) out.steps.push({ x: p.index, version: set.version, setId: set.id });
+    // A step where the set changes between two plotted points (or at the chart's very first point);
+    // the first point of a window that starts inside a set's reign is not a step.
+    if (p.limitSetId !== null && set && (i > 0 ? p.limitSetId !== lastSet : p.index === 1))
+      out.steps.push({ x: p.index, version: set.version, setId: set.id });
     lastSet = p.limitSetId;
-    if (p.violations.length > 0) out.markers.push({ i, x: p.index, y: out.value[i]!, kind: 'violation', label: p.violations.join(', ') });
+    const location = locationSignals(p.violations);
+    if (location.length > 0) out.markers.push({ i, x: p.index, y: out.value[i]!, kind: 'violation', label: location.join(', ') });
     else if (p.excluded) out.markers.push({ i, x: p.index, y: out.value[i]!, kind: 'excluded', label: 'excluded' });
   });
   return out;
 }
 
 /** Plain-words tooltip lines for one point. */
-export function pointTooltip(p: ChartPoint, unit: string, chart: CharacteristicChart, timeZone: string, fmt: (x: number | null | undefined) => string): string[] {
+export function pointTooltip(
+  p: ChartPoint,
+  unit: string,
+  chart: CharacteristicChart,
+  timeZone: string,
+  fmt: (x: number | null | undefined) => string,
+): string[] {
   const lines = [`Point ${p.index} · ${isoInZone(p.tMs, timeZone).slice(0, 19).replace('T', ' ')} (${timeZone})`];
-  if (chart === 'cusum') lines.push(`C⁺ ${fmt(p.extra.cPlus)} · C⁻ ${fmt(p.extra.cMinus)} ${unit} (decision interval ${fmt(p.ucl)})`, `Observation ${fmt(p.value)} ${unit}`);
+  if (chart === 'cusum')
+    lines.push(
+      `C⁺ ${fmt(p.extra.cPlus)} · C⁻ ${fmt(p.extra.cMinus)} ${unit} (decision interval ${fmt(p.ucl)})`,
+      `Observation ${fmt(p.value)} ${unit}`,
+    );
   else lines.push(`${fmt(p.value)} ${unit}${p.n > 1 ? ` (mean of ${p.n})` : ''}`);
   if (chart === 'ewma') lines.push(`Observation ${fmt(p.observation)} ${unit}`);
   if (p.dispersion !== null) lines.push(`Spread ${fmt(p.dispersion)} ${unit}`);
@@ -115,11 +146,44 @@ export function pointTooltip(p: ChartPoint, unit: string, chart: CharacteristicC
 }
 
 /** The chart's data as CSV (RFC 4180), times as ISO 8601 with the site's offset. */
-export function controlChartCsv(points: readonly ChartPoint[], unit: string, chart: CharacteristicChart, timeZone: string): string {
-  const header = ['index', 'time', `value_${unit}`, `observation_${unit}`, `spread_${unit}`, 'n', `center_${unit}`, `ucl_${unit}`, `lcl_${unit}`, 'violations', 'excluded', 'exclusion_reason', 'limit_set_id'];
+export function controlChartCsv(
+  points: readonly ChartPoint[],
+  unit: string,
+  chart: CharacteristicChart,
+  timeZone: string,
+): string {
+  const header = [
+    'index',
+    'time',
+    `value_${unit}`,
+    `observation_${unit}`,
+    `spread_${unit}`,
+    'n',
+    `center_${unit}`,
+    `ucl_${unit}`,
+    `lcl_${unit}`,
+    'violations',
+    'excluded',
+    'exclusion_reason',
+    'limit_set_id',
+  ];
   if (chart === 'cusum') header.push(`c_plus_${unit}`, `c_minus_${unit}`);
   const rows = points.map((p) => {
-    const r: unknown[] = [p.index, isoInZone(p.tMs, timeZone), p.value, p.observation, p.dispersion, p.n, p.center, p.ucl, p.lcl, p.violations.join(' '), p.excluded ? 'yes' : '', p.exclusionReason ?? '', p.limitSetId];
+    const r: unknown[] = [
+      p.index,
+      isoInZone(p.tMs, timeZone),
+      p.value,
+      p.observation,
+      p.dispersion,
+      p.n,
+      p.center,
+      p.ucl,
+      p.lcl,
+      p.violations.join(' '),
+      p.excluded ? 'yes' : '',
+      p.exclusionReason ?? '',
+      p.limitSetId,
+    ];
     if (chart === 'cusum') r.push(p.extra.cPlus ?? null, p.extra.cMinus ?? null);
     return r;
   });

@@ -32,7 +32,11 @@ export function histogram(xs: readonly number[], include: readonly number[] = []
   const width = niceStep((hi - lo) / k);
   const start = Math.floor(lo / width) * width;
   const n = Math.max(1, Math.ceil((hi - start) / width + 1e-9));
-  const bins: HistogramBin[] = Array.from({ length: n }, (_, i) => ({ from: start + i * width, to: start + (i + 1) * width, count: 0 }));
+  const bins: HistogramBin[] = Array.from({ length: n }, (_, i) => ({
+    from: start + i * width,
+    to: start + (i + 1) * width,
+    count: 0,
+  }));
   for (const x of xs) {
     const i = Math.min(n - 1, Math.max(0, Math.floor((x - start) / width)));
     bins[i]!.count += 1;

@@ -27,7 +27,8 @@ const pt = (index: number, value: number, extra: Partial<ChartPoint> = {}): Char
   extra: {},
   ...extra,
 });
-const set = (id: number, version: number, dispersion: LimitSetView['dispersion']) => ({ id, version, dispersion }) as LimitSetView;
+const set = (id: number, version: number, dispersion: LimitSetView['dispersion']) =>
+  ({ id, version, dispersion }) as LimitSetView;
 
 describe('zone lines', () => {
   it('centre ± 1σ and ± 2σ with σ = (UCL − centre)/3', () => {
@@ -43,7 +44,10 @@ describe('shapeControlChart', () => {
     pt(3, 14, { center: 10, ucl: 13, lcl: 7, limitSetId: 1, violations: ['we1'], dispersion: 3.5 }),
     pt(4, 9, { center: 9.5, ucl: 11, lcl: 8, limitSetId: 2, excluded: true, exclusionReason: 'probe cleaned' }),
   ];
-  const s = shapeControlChart('imr', points, [set(1, 1, { center: 1, ucl: 3.3, lcl: 0 }), set(2, 2, { center: 0.6, ucl: 2, lcl: 0 })]);
+  const s = shapeControlChart('imr', points, [
+    set(1, 1, { center: 1, ucl: 3.3, lcl: 0 }),
+    set(2, 2, { center: 0.6, ucl: 2, lcl: 0 }),
+  ]);
   it('limits step where a new set took effect, and are absent before the first', () => {
     expect(s.ucl).toEqual([null, 13, 13, 11]);
     expect(s.steps).toEqual([
@@ -59,8 +63,24 @@ describe('shapeControlChart', () => {
       { i: 3, x: 4, y: 9, kind: 'excluded', label: 'excluded' },
     ]);
   });
+  it('a moving-range signal is marked on the MR chart, not on the statistic; a window starting inside a set has no step', () => {
+    const w = shapeControlChart(
+      'imr',
+      [
+        pt(7, 10, { center: 10, ucl: 13, lcl: 7, limitSetId: 1 }),
+        pt(8, 12.9, { center: 10, ucl: 13, lcl: 7, limitSetId: 1, violations: ['dispersion-ucl'] }),
+      ],
+      [set(1, 1, null)],
+    );
+    expect(w.markers).toEqual([]);
+    expect(w.steps).toEqual([]);
+  });
   it('CUSUM plots C⁺ and −C⁻ against ±H', () => {
-    const c = shapeControlChart('cusum', [pt(1, 325, { center: 0, ucl: 4.2, lcl: -4.2, limitSetId: 1, extra: { cPlus: 1.5, cMinus: 0.25 } })], [set(1, 1, null)]);
+    const c = shapeControlChart(
+      'cusum',
+      [pt(1, 325, { center: 0, ucl: 4.2, lcl: -4.2, limitSetId: 1, extra: { cPlus: 1.5, cMinus: 0.25 } })],
+      [set(1, 1, null)],
+    );
     expect(c.value).toEqual([1.5]);
     expect(c.lower).toEqual([-0.25]);
     expect(c.ucl).toEqual([4.2]);
@@ -69,7 +89,12 @@ describe('shapeControlChart', () => {
 
 describe('CSV', () => {
   it('one row per point, times with the site offset, units in the header', () => {
-    const csv = controlChartCsv([pt(3, 14, { violations: ['we1', 'we2'], center: 10, ucl: 13, lcl: 7, limitSetId: 1 })], 'mm/s', 'imr', 'Europe/London');
+    const csv = controlChartCsv(
+      [pt(3, 14, { violations: ['we1', 'we2'], center: 10, ucl: 13, lcl: 7, limitSetId: 1 })],
+      'mm/s',
+      'imr',
+      'Europe/London',
+    );
     const [header, row] = csv.trim().split('\r\n');
     expect(header).toContain('value_mm/s');
     expect(row).toBe('3,2026-12-01T09:03:00.000+00:00,14,14,,1,10,13,7,we1 we2,,,1');
@@ -78,7 +103,11 @@ describe('CSV', () => {
 
 describe('y range and spec limits off scale (hand-computed)', () => {
   const judged = (vals: number[], c: number, u: number, l: number) =>
-    shapeControlChart('imr', vals.map((v, i) => pt(i + 1, v, { center: c, ucl: u, lcl: l, limitSetId: 1 })), [set(1, 1, null)]);
+    shapeControlChart(
+      'imr',
+      vals.map((v, i) => pt(i + 1, v, { center: c, ucl: u, lcl: l, limitSetId: 1 })),
+      [set(1, 1, null)],
+    );
   it('a spec far outside the data and limits is reported off scale instead of flattening the chart', () => {
     const r = yRange(judged([109.0, 109.1, 109.05], 109.05, 109.09, 109.02), { lsl: 105, usl: 115, target: 110 });
     expect(r.shown).toEqual([]);

@@ -33,7 +33,9 @@ describe('one at a time = all at once (hand-constructed shift, NIST §6.3.2.2 li
         got.push(...judgeSubgroups(limits, [...RULES], history, next));
         history.push(...next);
       }
-      expect(got.map((p) => [p.index, p.value, p.ucl, p.violations])).toEqual(whole.points.map((p) => [p.index, p.value, p.ucl, p.violations]));
+      expect(got.map((p) => [p.index, p.value, p.ucl, p.violations])).toEqual(
+        whole.points.map((p) => [p.index, p.value, p.ucl, p.violations]),
+      );
     }
   });
   it(`Shewhart charts need only the last ${SHEWHART_HISTORY} points of history`, () => {
@@ -46,10 +48,21 @@ describe('one at a time = all at once (hand-constructed shift, NIST §6.3.2.2 li
 });
 
 describe('EWMA replays from the start of the set (NIST/SEMATECH e-Handbook §6.3.2.4 data)', () => {
-  const values = [52.0, 47.0, 53.0, 49.3, 50.1, 47.0, 51.0, 50.1, 51.2, 50.5, 49.6, 47.6, 49.9, 51.3, 47.8, 51.2, 52.6, 52.4, 53.6, 52.1];
-  const set = limitSetFromEvaluation(evaluateSpc(SpcEvaluateInputSchema.parse({ chart: 'ewma', values, target: 50, sigma: 2.0539, lambda: 0.3, L: 3, limits: 'asymptotic' })));
+  const values = [
+    52.0, 47.0, 53.0, 49.3, 50.1, 47.0, 51.0, 50.1, 51.2, 50.5, 49.6, 47.6, 49.9, 51.3, 47.8, 51.2, 52.6, 52.4, 53.6, 52.1,
+  ];
+  const set = limitSetFromEvaluation(
+    evaluateSpc(
+      SpcEvaluateInputSchema.parse({ chart: 'ewma', values, target: 50, sigma: 2.0539, lambda: 0.3, L: 3, limits: 'asymptotic' }),
+    ),
+  );
   it('the 20th z is 51.99 (as printed) when the first 19 are history', () => {
-    const p = judgeSubgroups(set, [], values.slice(0, 19).map((x) => [x]), [[values[19]!]]);
+    const p = judgeSubgroups(
+      set,
+      [],
+      values.slice(0, 19).map((x) => [x]),
+      [[values[19]!]],
+    );
     expect(p[0]?.value).toBeCloseTo(51.99, 2);
     expect(p[0]?.index).toBe(20);
   });

@@ -44,7 +44,13 @@ describe('per manual check', () => {
     const sg = formSubgroups({ kind: 'per-manual-check', minSpacingMinutes: 60 }, 1, rs, null, 200 * MIN);
     expect(sg.map((s) => s.values[0])).toEqual([9, 9.2, 9.4]);
     // Continuing after a stored check at 60 min: 70 is too close, 125 counts.
-    const more = formSubgroups({ kind: 'per-manual-check', minSpacingMinutes: 60 }, 1, rs, { tMs: 60 * MIN, key: null }, 200 * MIN);
+    const more = formSubgroups(
+      { kind: 'per-manual-check', minSpacingMinutes: 60 },
+      1,
+      rs,
+      { tMs: 60 * MIN, key: null },
+      200 * MIN,
+    );
     expect(more.map((s) => s.values[0])).toEqual([9.4]);
   });
 });
@@ -57,12 +63,25 @@ describe('per N minutes', () => {
     expect(windowStart(base + 9 * MIN + 59_999, w)).toBe(base);
   });
   it('"first": the first n readings of each window close its subgroup; the rest of the window is not used', () => {
-    const rs = [r(base + 1000, 1), r(base + 2000, 2), r(base + 3000, 3), r(base + 4000, 4), r(base + w * MIN + 1000, 5), r(base + w * MIN + 2000, 6)];
+    const rs = [
+      r(base + 1000, 1),
+      r(base + 2000, 2),
+      r(base + 3000, 3),
+      r(base + 4000, 4),
+      r(base + w * MIN + 1000, 5),
+      r(base + w * MIN + 2000, 6),
+    ];
     const sg = formSubgroups({ kind: 'per-n-minutes', minutes: w, mode: 'first' }, 3, rs, null, base + 11 * MIN);
     expect(sg.map((s) => s.values)).toEqual([[1, 2, 3]]); // the second window has only 2 so far
     expect(sg[0]).toMatchObject({ tMs: base + 3000, key: `w:${base}` });
     // After that point, the 4th reading of the same window does not start a new subgroup.
-    const after = formSubgroups({ kind: 'per-n-minutes', minutes: w, mode: 'first' }, 3, rs, { tMs: base + 3000, key: `w:${base}` }, base + 11 * MIN);
+    const after = formSubgroups(
+      { kind: 'per-n-minutes', minutes: w, mode: 'first' },
+      3,
+      rs,
+      { tMs: base + 3000, key: `w:${base}` },
+      base + 11 * MIN,
+    );
     expect(after).toEqual([]);
   });
   it('"means": a window closes when a later reading arrives or the clock passes its end; each member is a block mean', () => {
@@ -71,7 +90,13 @@ describe('per N minutes', () => {
     expect(open).toEqual([]);
     const byClock = formSubgroups({ kind: 'per-n-minutes', minutes: w, mode: 'means' }, 2, rs, null, base + w * MIN);
     expect(byClock.map((s) => s.values)).toEqual([[2, 4.5]]);
-    const byLater = formSubgroups({ kind: 'per-n-minutes', minutes: w, mode: 'means' }, 2, [...rs, r(base + w * MIN + 10, 9)], null, base + 5 * MIN);
+    const byLater = formSubgroups(
+      { kind: 'per-n-minutes', minutes: w, mode: 'means' },
+      2,
+      [...rs, r(base + w * MIN + 10, 9)],
+      null,
+      base + 5 * MIN,
+    );
     expect(byLater.map((s) => s.values)).toEqual([[2, 4.5]]);
     expect(byLater[0]?.readings).toHaveLength(5);
   });

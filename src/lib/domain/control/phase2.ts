@@ -30,9 +30,13 @@ export function historyNeeded(chart: SpcLimitSet['chart']): number | null {
 }
 
 /** The SPC data shape of subgroups for a chart: values for n = 1 (I-MR, EWMA, CUSUM), else subgroups. */
-export function dataFor(chart: SpcLimitSet['chart'], subgroups: readonly (readonly number[])[]): { values?: number[]; subgroups?: number[][] } {
+export function dataFor(
+  chart: SpcLimitSet['chart'],
+  subgroups: readonly (readonly number[])[],
+): { values?: number[]; subgroups?: number[][] } {
   const n = subgroups[0]?.length ?? 1;
-  if (chart === 'imr' || ((chart === 'ewma' || chart === 'cusum') && n === 1)) return { values: subgroups.map((s) => s[0] as number) };
+  if (chart === 'imr' || ((chart === 'ewma' || chart === 'cusum') && n === 1))
+    return { values: subgroups.map((s) => s[0] as number) };
   return { subgroups: subgroups.map((s) => [...s]) };
 }
 

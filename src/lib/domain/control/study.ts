@@ -16,7 +16,13 @@ import { capabilityStudy } from '../spc/capability.ts';
 import { sampleSd } from '../spc/math.ts';
 import { evaluateAgainstLimitSet, evaluateSpc, limitSetFromEvaluation } from '../spc/evaluate.ts';
 import { suggestExclusions } from '../spc/phase1.ts';
-import { estimateShewhartLimits, shewhartOutsideReason, shewhartStatistics, standardsGivenLimits, type ShewhartChart } from '../spc/shewhart.ts';
+import {
+  estimateShewhartLimits,
+  shewhartOutsideReason,
+  shewhartStatistics,
+  standardsGivenLimits,
+  type ShewhartChart,
+} from '../spc/shewhart.ts';
 import type { ChartParams, CharacteristicChart, SpecLimits } from '../../shared/characteristics.ts';
 import {
   SpcEvaluateInputSchema,
@@ -66,7 +72,11 @@ export const STUDY_RECOMMENDED_POINTS = 20;
  * Compute a study. `subgroups` are the baseline's subgroups in time order (each of the
  * characteristic's size n); `excluded` holds 1-based positions within the baseline.
  */
-export function runStudy(design: StudyDesign, subgroups: readonly (readonly number[])[], excluded: ReadonlySet<number>): StudyOutcome {
+export function runStudy(
+  design: StudyDesign,
+  subgroups: readonly (readonly number[])[],
+  excluded: ReadonlySet<number>,
+): StudyOutcome {
   const { chart, params, rules } = design;
   const data = dataFor(chart, subgroups);
   const spec = design.spec && (design.spec.lsl !== undefined || design.spec.usl !== undefined) ? design.spec : null;
@@ -84,7 +94,8 @@ export function runStudy(design: StudyDesign, subgroups: readonly (readonly numb
   }
   const whole = evaluateSpc(parsed.data);
   const n = subgroups[0]?.length ?? 1;
-  const underlying: ShewhartChart = chart === 'imr' || chart === 'xbar-r' || chart === 'xbar-s' ? chart : n > 1 ? 'xbar-r' : 'imr';
+  const underlying: ShewhartChart =
+    chart === 'imr' || chart === 'xbar-r' || chart === 'xbar-s' ? chart : n > 1 ? 'xbar-r' : 'imr';
   const stats = shewhartStatistics(underlying, dataFor(underlying, subgroups));
   // Suggestions: the library's iteration; with an overall σ basis, the same iteration (the
   // library's `suggestExclusions`) on limits from the overall σ of the remaining points.
@@ -104,10 +115,14 @@ export function runStudy(design: StudyDesign, subgroups: readonly (readonly numb
   const included: number[] = [];
   for (let i = 0; i < subgroups.length; i += 1) if (!excluded.has(i + 1)) included.push(i);
   for (const idx of excluded) {
-    if (idx < 1 || idx > subgroups.length) throw new StudyError('exclusions', `Point ${idx} is not in the baseline (it holds ${subgroups.length} points).`);
+    if (idx < 1 || idx > subgroups.length)
+      throw new StudyError('exclusions', `Point ${idx} is not in the baseline (it holds ${subgroups.length} points).`);
   }
   if (included.length < STUDY_MIN_POINTS) {
-    throw new StudyError('exclusions', `At least ${STUDY_MIN_POINTS} points must remain to set limits; ${included.length} remain.`);
+    throw new StudyError(
+      'exclusions',
+      `At least ${STUDY_MIN_POINTS} points must remain to set limits; ${included.length} remain.`,
+    );
   }
   const est = estimateShewhartLimits(underlying, stats, included);
   if (!(est.sigma !== null && est.sigma > 0)) {
@@ -139,7 +154,13 @@ export function runStudy(design: StudyDesign, subgroups: readonly (readonly numb
     void sigmaSource;
     limitSet = ls;
     evaluation = {
-      parameters: { center: est.center, sigma: est.sigma, centerSource: 'phase1', sigmaSource: 'phase1', subgroupSize: est.subgroupSize },
+      parameters: {
+        center: est.center,
+        sigma: est.sigma,
+        centerSource: 'phase1',
+        sigmaSource: 'phase1',
+        subgroupSize: est.subgroupSize,
+      },
       notes: whole.notes,
     };
   } else {
@@ -157,7 +178,9 @@ export function runStudy(design: StudyDesign, subgroups: readonly (readonly numb
   }
   const notes: string[] = [...extraNotes];
   if (included.length < STUDY_RECOMMENDED_POINTS) {
-    notes.push(`Only ${included.length} points set these limits; ${STUDY_RECOMMENDED_POINTS}–25 are recommended for trial limits (Montgomery §6.2.1).`);
+    notes.push(
+      `Only ${included.length} points set these limits; ${STUDY_RECOMMENDED_POINTS}–25 are recommended for trial limits (Montgomery §6.2.1).`,
+    );
   }
   return { limitSet, points, suggested, capability, includedPoints: included.length, notes, evaluation };
 }

@@ -87,7 +87,13 @@ export function blockMeans(values: readonly number[], n: number): number[] | nul
  * under `rule` with subgroup size `n`. `nowMs` closes time windows that received no later reading.
  * `per-oven-load` subgroups come from closed loads, not from readings: it returns none here.
  */
-export function formSubgroups(rule: SubgroupRule, n: number, readings: readonly SourceReading[], last: LastPoint | null, nowMs: number): FormedSubgroup[] {
+export function formSubgroups(
+  rule: SubgroupRule,
+  n: number,
+  readings: readonly SourceReading[],
+  last: LastPoint | null,
+  nowMs: number,
+): FormedSubgroup[] {
   const fresh = readings.filter((r) => last === null || r.tMs > last.tMs).sort(byTime);
   const out: FormedSubgroup[] = [];
   switch (rule.kind) {
@@ -96,7 +102,13 @@ export function formSubgroups(rule: SubgroupRule, n: number, readings: readonly 
     case 'per-dip-stroke': {
       for (let i = 0; i + n <= fresh.length; i += n) {
         const rs = fresh.slice(i, i + n);
-        out.push({ values: rs.map((r) => r.value), tFromMs: rs[0]!.tMs, tMs: rs[rs.length - 1]!.tMs, readings: rs, key: `r:${rs[0]!.tMs}:${rs[0]!.channelId}` });
+        out.push({
+          values: rs.map((r) => r.value),
+          tFromMs: rs[0]!.tMs,
+          tMs: rs[rs.length - 1]!.tMs,
+          readings: rs,
+          key: `r:${rs[0]!.tMs}:${rs[0]!.channelId}`,
+        });
       }
       return out;
     }
@@ -128,7 +140,13 @@ export function formSubgroups(rule: SubgroupRule, n: number, readings: readonly 
         if (rule.mode === 'first') {
           if (rs.length < n) continue;
           const used = rs.slice(0, n);
-          out.push({ values: used.map((r) => r.value), tFromMs: used[0]!.tMs, tMs: used[n - 1]!.tMs, readings: used, key: `w:${w}` });
+          out.push({
+            values: used.map((r) => r.value),
+            tFromMs: used[0]!.tMs,
+            tMs: used[n - 1]!.tMs,
+            readings: used,
+            key: `w:${w}`,
+          });
         } else {
           const ended = w !== newest || nowMs >= w + width;
           if (!ended) continue;

@@ -45,7 +45,8 @@ import {
   type CharacteristicRecord,
 } from '../stores/spc-store.ts';
 
-const invalid = (path: string, message: string) => new HttpProblem(400, 'Invalid input', `${path}: ${message}`, { errors: [{ path, message }] });
+const invalid = (path: string, message: string) =>
+  new HttpProblem(400, 'Invalid input', `${path}: ${message}`, { errors: [{ path, message }] });
 
 /** The site's time zone (the demo's is Europe/London). */
 export async function siteTimeZone(): Promise<string> {
@@ -60,7 +61,10 @@ async function decorate(records: CharacteristicRecord[]): Promise<Characteristic
     `select id, name, unit, asset_id as "assetId" from channels where id = any($1::int[])`,
     [ids],
   );
-  const { rows: assets } = await pgPool().query<{ id: number; name: string }>(`select id, name from assets where id = any($1::int[])`, [records.map((r) => r.assetId)]);
+  const { rows: assets } = await pgPool().query<{ id: number; name: string }>(
+    `select id, name from assets where id = any($1::int[])`,
+    [records.map((r) => r.assetId)],
+  );
   const chanById = new Map(chans.map((c) => [c.id, c]));
   const assetName = new Map(assets.map((a) => [a.id, a.name]));
   return records.map((r) => ({
@@ -96,7 +100,10 @@ export async function characteristicSummaries(): Promise<CharacteristicSummary[]
          from limit_sets where characteristic_id = any($1::int[]) group by characteristic_id`,
       [ids],
     ),
-    pool.query<{ cid: number; n: number }>(`select characteristic_id as cid, count(*)::int as n from spc_points where characteristic_id = any($1::int[]) group by 1`, [ids]),
+    pool.query<{ cid: number; n: number }>(
+      `select characteristic_id as cid, count(*)::int as n from spc_points where characteristic_id = any($1::int[]) group by 1`,
+      [ids],
+    ),
     pool.query<{ cid: number; tMs: number; value: number; violations: string[]; recent: number }>(
       `select c.id as cid, p."tMs", p.value, p.violations, r.recent
          from unnest($1::int[]) as c(id)
@@ -131,25 +138,40 @@ export async function getCharacteristic(id: number): Promise<Characteristic> {
 }
 
 async function checkChannels(fields: CharacteristicFields): Promise<number> {
-  const { rows } = await pgPool().query<{ id: number; unit: string; kind: string }>(`select id, unit, kind from channels where id = any($1::int[])`, [fields.channelIds]);
+  const { rows } = await pgPool().query<{ id: number; unit: string; kind: string }>(
+    `select id, unit, kind from channels where id = any($1::int[])`,
+    [fields.channelIds],
+  );
   const found = new Map(rows.map((r) => [r.id, r]));
   fields.channelIds.forEach((id, i) => {
     if (!found.has(id)) throw invalid(`channelIds.${i}`, `There is no channel ${id}.`);
   });
   const units = new Set(rows.map((r) => r.unit));
-  if (units.size > 1) throw invalid('channelIds', `The source channels measure in different units (${[...units].join(', ')}); a subgroup must pool like with like.`);
-  if (rows.some((r) => r.kind === 'door')) throw invalid('channelIds', 'A door switch (open/closed) is not a measurement to chart.');
+  if (units.size > 1)
+    throw invalid(
+      'channelIds',
+      `The source channels measure in different units (${[...units].join(', ')}); a subgroup must pool like with like.`,
+    );
+  if (rows.some((r) => r.kind === 'door'))
+    throw invalid('channelIds', 'A door switch (open/closed) is not a measurement to chart.');
   const top = await topAssetOfChannel(pgPool(), fields.channelIds[0]!);
   if (top === null) throw invalid('channelIds.0', 'The channel has no asset.');
   return top;
 }
 
 async function checkName(name: string, exceptId: number | null): Promise<void> {
-  const { rows } = await pgPool().query(`select id from characteristics where lower(name) = lower($1) and id is distinct from $2`, [name, exceptId]);
+  const { rows } = await pgPool().query(
+    `select id from characteristics where lower(name) = lower($1) and id is distinct from $2`,
+    [name, exceptId],
+  );
   if (rows.length > 0) throw invalid('name', 'Another characteristic has this name.');
 }
 
-export async function createCharacteristic(user: SessionUser, input: CharacteristicFields, address: string | null): Promise<Characteristic> {
+export async function createCharacteristic(
+  user: SessionUser,
+  input: CharacteristicFields,
+  address: string | null,
+): Promise<Characteristic> {
   const fields = CharacteristicInputSchema.parse(input);
   await checkName(fields.name, null);
   const assetId = await checkChannels(fields);
@@ -169,7 +191,12 @@ export async function createCharacteristic(user: SessionUser, input: Characteris
 /** Fields that define how points are formed; they cannot change once points exist. */
 const STRUCTURAL = ['chart', 'subgroupSize', 'subgroupRule', 'channelIds'] as const;
 
-export async function updateCharacteristic(user: SessionUser, id: number, input: CharacteristicFields, address: string | null): Promise<Characteristic> {
+export async function updateCharacteristic(
+  user: SessionUser,
+  id: number,
+  input: CharacteristicFields,
+  address: string | null,
+): Promise<Characteristic> {
   const before = await getCharacteristic(id);
   const { backfillDays: _ignored, ...fields } = CharacteristicInputSchema.parse(input);
   void _ignored;
@@ -179,21 +206,57 @@ export async function updateCharacteristic(user: SessionUser, id: number, input:
   if (points > 0) {
     for (const k of STRUCTURAL) {
       if (JSON.stringify(before[k]) !== JSON.stringify(fields[k])) {
-        throw new HttpProblem(409, 'Cannot change how points are formed', `The chart already holds ${points} points formed with the current ${k}; create a new characteristic instead (this one stays readable).`, {
-          errors: [{ path: k, message: 'Fixed once the chart has points.' }],
-        });
+        throw new HttpProblem(
+          409,
+          'Cannot change how points are formed',
+          `The chart already holds ${points} points formed with the current ${k}; create a new characteristic instead (this one stays readable).`,
+          {
+            errors: [{ path: k, message: 'Fixed once the chart has points.' }],
+          },
+        );
       }
     }
   }
   await pgPool().query(
     `update characteristics set name = $2, description = $3, asset_id = $4, channel_ids = $5, subgroup_rule = $6, subgroup_size = $7, chart = $8,
         chart_params = $9, rules = $10, spec = $11, unit = $12, active = $13, updated_at = now() where id = $1`,
-    [id, fields.name, fields.description, assetId, fields.channelIds, JSON.stringify(fields.subgroupRule), fields.subgroupSize, fields.chart, JSON.stringify(fields.chartParams), fields.rules, JSON.stringify(fields.spec), fields.unit, fields.active],
+    [
+      id,
+      fields.name,
+      fields.description,
+      assetId,
+      fields.channelIds,
+      JSON.stringify(fields.subgroupRule),
+      fields.subgroupSize,
+      fields.chart,
+      JSON.stringify(fields.chartParams),
+      fields.rules,
+      JSON.stringify(fields.spec),
+      fields.unit,
+      fields.active,
+    ],
   );
   const after = await getCharacteristic(id);
-  const { channels: _c, assetName: _a, createdAt: _ca, updatedAt: _ua, ...b } = before;
-  void _c, _a, _ca, _ua;
-  await audit(actorOf(user, address), { action: 'characteristic.update', entity: 'characteristic', entityId: id, before: b, after: fields });
+  const b = {
+    name: before.name,
+    description: before.description,
+    channelIds: before.channelIds,
+    subgroupRule: before.subgroupRule,
+    subgroupSize: before.subgroupSize,
+    chart: before.chart,
+    chartParams: before.chartParams,
+    rules: before.rules,
+    spec: before.spec,
+    unit: before.unit,
+    active: before.active,
+  };
+  await audit(actorOf(user, address), {
+    action: 'characteristic.update',
+    entity: 'characteristic',
+    entityId: id,
+    before: b,
+    after: fields,
+  });
   return after;
 }
 
@@ -207,7 +270,12 @@ function underlyingChart(c: { chart: Characteristic['chart']; subgroupSize: numb
  * Capability of the points shown (excluded points left out): σ_within from the limit set in force
  * at the newest point when there is one, else estimated from these points' chart.
  */
-function capabilityOfPoints(c: Characteristic, points: (ChartPoint & { members?: number[] })[], sets: LimitSetView[], spec: SpecLimits | null): { capability: SpcCapability | null; basis: string | null } {
+function capabilityOfPoints(
+  c: Characteristic,
+  points: (ChartPoint & { members?: number[] })[],
+  sets: LimitSetView[],
+  spec: SpecLimits | null,
+): { capability: SpcCapability | null; basis: string | null } {
   if (!spec || (spec.lsl === undefined && spec.usl === undefined)) return { capability: null, basis: null };
   const used = points.filter((p) => !p.excluded && p.members && p.members.length > 0);
   if (used.length < 2) return { capability: null, basis: 'Too few points for a capability estimate.' };
@@ -221,7 +289,11 @@ function capabilityOfPoints(c: Characteristic, points: (ChartPoint & { members?:
     const u = underlyingChart(c);
     const groups = used.map((p) => p.members!);
     const stats = shewhartStatistics(u, dataFor(u, groups));
-    const est = estimateShewhartLimits(u, stats, stats.map((_, i) => i));
+    const est = estimateShewhartLimits(
+      u,
+      stats,
+      stats.map((_, i) => i),
+    );
     sigma = est.sigma;
     sigmaFrom = 'these points';
   }
@@ -235,7 +307,9 @@ export async function chartData(id: number, q: { fromMs?: number; toMs?: number;
   const characteristic = await getCharacteristic(id);
   const pool = pgPool();
   const [points, limitSets, totalPoints, timeZone] = await Promise.all([
-    q.fromMs !== undefined || q.toMs !== undefined ? baselineOf(pool, id, q.fromMs ?? 0, q.toMs ?? 8.64e15) : pointsWithMembers(id, q.last ?? 200),
+    q.fromMs !== undefined || q.toMs !== undefined
+      ? baselineOf(pool, id, q.fromMs ?? 0, q.toMs ?? 8.64e15)
+      : pointsWithMembers(id, q.last ?? 200),
     limitSetsOf(pool, id),
     countPoints(pool, id),
     siteTimeZone(),
@@ -300,7 +374,12 @@ export async function pointDetail(id: number, pointId: number) {
     channels: c.channels,
     limitSet,
     dipRuns: dipRuns.map((d) => ({ id: d.id, dippedAt: d.dippedAt.toISOString(), withdrawalSpeedMmS: d.speed })),
-    ovenLoads: ovenLoads.map((l) => ({ id: l.id, openedAt: l.openedAt.toISOString(), closedAt: l.closedAt?.toISOString() ?? null, verdict: l.verdict })),
+    ovenLoads: ovenLoads.map((l) => ({
+      id: l.id,
+      openedAt: l.openedAt.toISOString(),
+      closedAt: l.closedAt?.toISOString() ?? null,
+      verdict: l.verdict,
+    })),
   };
 }
 
@@ -327,7 +406,10 @@ async function studyFor(c: Characteristic, fromMs: number, toMs: number, exclusi
 }
 
 /** A trial study: nothing is stored. */
-export async function trialStudy(id: number, input: { baselineFrom: string; baselineTo: string; exclusions: { index: number; reason: string }[] }): Promise<StudyResult> {
+export async function trialStudy(
+  id: number,
+  input: { baselineFrom: string; baselineTo: string; exclusions: { index: number; reason: string }[] },
+): Promise<StudyResult> {
   const c = await getCharacteristic(id);
   const fromMs = Date.parse(input.baselineFrom);
   const toMs = Date.parse(input.baselineTo);
@@ -339,7 +421,16 @@ export async function trialStudy(id: number, input: { baselineFrom: string; base
     baselineTo: new Date(toMs).toISOString(),
     points: baseline.map(({ members: _m, ...p }, i) => {
       const j = outcome.points[i]!;
-      return { ...p, value: j.value, dispersion: j.dispersionValue, center: j.center, ucl: j.ucl, lcl: j.lcl, trialViolations: j.violations, excludedInStudy: excluded.has(i + 1) };
+      return {
+        ...p,
+        value: j.value,
+        dispersion: j.dispersionValue,
+        center: j.center,
+        ucl: j.ucl,
+        lcl: j.lcl,
+        trialViolations: j.violations,
+        excludedInStudy: excluded.has(i + 1),
+      };
     }),
     limits: { center: outcome.limitSet.center, ucl: outcome.limitSet.ucl, lcl: outcome.limitSet.lcl },
     dispersion: outcome.limitSet.dispersion,
@@ -383,7 +474,20 @@ export async function draftLimitSet(
     note: input.note,
     createdBy: user.id,
   });
-  await audit(actorOf(user, address), { action: 'limits.draft', entity: 'limit-set', entityId: draft.id, after: { characteristicId: id, version: draft.version, center: draft.center, ucl: draft.ucl, lcl: draft.lcl, sigma: draft.sigma, excluded: draft.excluded } });
+  await audit(actorOf(user, address), {
+    action: 'limits.draft',
+    entity: 'limit-set',
+    entityId: draft.id,
+    after: {
+      characteristicId: id,
+      version: draft.version,
+      center: draft.center,
+      ucl: draft.ucl,
+      lcl: draft.lcl,
+      sigma: draft.sigma,
+      excluded: draft.excluded,
+    },
+  });
   return draft;
 }
 
@@ -391,22 +495,41 @@ export async function draftLimitSet(
  * Approve a draft with the engineer's electronic signature. The previous approved set is
  * superseded but stays readable and keeps governing the points before the new effective-from.
  */
-export async function approveLimitSet(user: SessionUser, id: number, setId: number, input: ApproveLimitSet, address: string | null): Promise<LimitSetView> {
+export async function approveLimitSet(
+  user: SessionUser,
+  id: number,
+  setId: number,
+  input: ApproveLimitSet,
+  address: string | null,
+): Promise<LimitSetView> {
   const pool = pgPool();
   const draft = await getLimitSet(pool, setId);
-  if (!draft || draft.characteristicId !== id) throw new HttpProblem(404, 'Not found', 'No such limit set for this characteristic.');
-  if (draft.status !== 'draft') throw new HttpProblem(409, 'Already decided', `Limit set v${draft.version} is ${draft.status}; study again to make a new draft.`);
+  if (!draft || draft.characteristicId !== id)
+    throw new HttpProblem(404, 'Not found', 'No such limit set for this characteristic.');
+  if (draft.status !== 'draft')
+    throw new HttpProblem(
+      409,
+      'Already decided',
+      `Limit set v${draft.version} is ${draft.status}; study again to make a new draft.`,
+    );
   const c = await getCharacteristic(id);
-  if (c.chart !== draft.chart) throw new HttpProblem(409, 'Chart changed', 'The characteristic’s chart type changed since this draft; study again.');
+  if (c.chart !== draft.chart)
+    throw new HttpProblem(409, 'Chart changed', 'The characteristic’s chart type changed since this draft; study again.');
   const last = await lastPointOf(pool, id);
   const sets = setsInForceOrder(await limitSetsOf(pool, id));
   const previous = sets[sets.length - 1];
-  const floorMs = Math.max(last ? last.tMs + 1 : 0, previous?.effectiveFromMs !== null && previous ? previous.effectiveFromMs! + 1 : 0);
+  const floorMs = Math.max(
+    last ? last.tMs + 1 : 0,
+    previous?.effectiveFromMs !== null && previous ? previous.effectiveFromMs! + 1 : 0,
+  );
   let effectiveFromMs: number;
   if (input.effectiveFrom) {
     effectiveFromMs = Date.parse(input.effectiveFrom);
     if (effectiveFromMs < floorMs) {
-      throw invalid('effectiveFrom', `Limits cannot take effect before points already judged (the latest is at ${new Date(floorMs - 1).toISOString()}); past points are never re-judged.`);
+      throw invalid(
+        'effectiveFrom',
+        `Limits cannot take effect before points already judged (the latest is at ${new Date(floorMs - 1).toISOString()}); past points are never re-judged.`,
+      );
     }
   } else {
     effectiveFromMs = Math.max(Date.now(), floorMs);
@@ -428,8 +551,19 @@ export async function approveLimitSet(user: SessionUser, id: number, setId: numb
     action: 'limits.approve',
     entity: 'limit-set',
     entityId: setId,
-    before: previous ? { supersededVersion: previous.version, center: previous.center, ucl: previous.ucl, lcl: previous.lcl } : null,
-    after: { characteristicId: id, version: approved.version, center: approved.center, ucl: approved.ucl, lcl: approved.lcl, sigma: approved.sigma, effectiveFrom: approved.effectiveFrom, excluded: approved.excluded },
+    before: previous
+      ? { supersededVersion: previous.version, center: previous.center, ucl: previous.ucl, lcl: previous.lcl }
+      : null,
+    after: {
+      characteristicId: id,
+      version: approved.version,
+      center: approved.center,
+      ucl: approved.ucl,
+      lcl: approved.lcl,
+      sigma: approved.sigma,
+      effectiveFrom: approved.effectiveFrom,
+      excluded: approved.excluded,
+    },
     signature,
   });
   return approved;
@@ -439,10 +573,17 @@ export async function approveLimitSet(user: SessionUser, id: number, setId: numb
 export async function discardDraft(user: SessionUser, id: number, setId: number, address: string | null): Promise<void> {
   const pool = pgPool();
   const draft = await getLimitSet(pool, setId);
-  if (!draft || draft.characteristicId !== id) throw new HttpProblem(404, 'Not found', 'No such limit set for this characteristic.');
-  if (draft.status !== 'draft') throw new HttpProblem(409, 'Not a draft', `Limit set v${draft.version} is ${draft.status} and stays on record.`);
+  if (!draft || draft.characteristicId !== id)
+    throw new HttpProblem(404, 'Not found', 'No such limit set for this characteristic.');
+  if (draft.status !== 'draft')
+    throw new HttpProblem(409, 'Not a draft', `Limit set v${draft.version} is ${draft.status} and stays on record.`);
   await pool.query(`delete from limit_sets where id = $1 and status = 'draft'`, [setId]);
-  await audit(actorOf(user, address), { action: 'limits.discard-draft', entity: 'limit-set', entityId: setId, before: { characteristicId: id, version: draft.version } });
+  await audit(actorOf(user, address), {
+    action: 'limits.discard-draft',
+    entity: 'limit-set',
+    entityId: setId,
+    before: { characteristicId: id, version: draft.version },
+  });
 }
 
 export async function limitSetsFor(id: number): Promise<LimitSetView[]> {

@@ -61,8 +61,13 @@ function toCharacteristic(r: Record<string, unknown>): CharacteristicRecord {
   };
 }
 
-export async function listCharacteristicRecords(pool: Queryable, opts: { activeOnly?: boolean } = {}): Promise<CharacteristicRecord[]> {
-  const { rows } = await pool.query(`select ${CHAR_COLUMNS} from characteristics ${opts.activeOnly ? 'where active' : ''} order by name`);
+export async function listCharacteristicRecords(
+  pool: Queryable,
+  opts: { activeOnly?: boolean } = {},
+): Promise<CharacteristicRecord[]> {
+  const { rows } = await pool.query(
+    `select ${CHAR_COLUMNS} from characteristics ${opts.activeOnly ? 'where active' : ''} order by name`,
+  );
   return rows.map(toCharacteristic);
 }
 
@@ -88,12 +93,31 @@ export async function topAssetOfChannel(pool: Queryable, channelId: number): Pro
 }
 
 /** Insert a characteristic (validated fields); returns its id. */
-export async function insertCharacteristic(pool: Queryable, fields: CharacteristicFields, assetId: number, createdBy: number | null): Promise<number> {
+export async function insertCharacteristic(
+  pool: Queryable,
+  fields: CharacteristicFields,
+  assetId: number,
+  createdBy: number | null,
+): Promise<number> {
   const f = CharacteristicInputSchema.parse(fields);
   const { rows } = await pool.query<{ id: number }>(
     `insert into characteristics (name, description, asset_id, channel_ids, subgroup_rule, subgroup_size, chart, chart_params, rules, spec, unit, active, created_by)
      values ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13) returning id`,
-    [f.name, f.description, assetId, f.channelIds, JSON.stringify(f.subgroupRule), f.subgroupSize, f.chart, JSON.stringify(f.chartParams), f.rules, JSON.stringify(f.spec), f.unit, f.active, createdBy],
+    [
+      f.name,
+      f.description,
+      assetId,
+      f.channelIds,
+      JSON.stringify(f.subgroupRule),
+      f.subgroupSize,
+      f.chart,
+      JSON.stringify(f.chartParams),
+      f.rules,
+      JSON.stringify(f.spec),
+      f.unit,
+      f.active,
+      createdBy,
+    ],
   );
   return rows[0]!.id;
 }
@@ -147,7 +171,9 @@ function toLimitSet(r: Record<string, unknown>): LimitSetView {
 
 /** Every limit set of a characteristic (drafts included), newest version first. */
 export async function limitSetsOf(pool: Queryable, characteristicId: number): Promise<LimitSetView[]> {
-  const { rows } = await pool.query(`select ${LS_COLUMNS} from limit_sets where characteristic_id = $1 order by version desc`, [characteristicId]);
+  const { rows } = await pool.query(`select ${LS_COLUMNS} from limit_sets where characteristic_id = $1 order by version desc`, [
+    characteristicId,
+  ]);
   return rows.map(toLimitSet);
 }
 
@@ -158,7 +184,15 @@ export async function getLimitSet(pool: Queryable, id: number): Promise<LimitSet
 
 /** The library's limit-set shape of a stored set. */
 export function toSpcLimitSet(ls: LimitSetView): SpcLimitSet {
-  const base: SpcLimitSet = { chart: ls.chart, center: ls.center, ucl: ls.ucl, lcl: ls.lcl, sigma: ls.sigma, subgroupSize: ls.n, dispersion: ls.dispersion };
+  const base: SpcLimitSet = {
+    chart: ls.chart,
+    center: ls.center,
+    ucl: ls.ucl,
+    lcl: ls.lcl,
+    sigma: ls.sigma,
+    subgroupSize: ls.n,
+    dispersion: ls.dispersion,
+  };
   if (ls.chart === 'ewma') return { ...base, lambda: ls.params.lambda, L: ls.params.L, ewmaLimits: ls.params.limits };
   if (ls.chart === 'cusum') return { ...base, k: ls.params.k, h: ls.params.h, headStart: ls.params.headStart };
   return base;
@@ -166,7 +200,9 @@ export function toSpcLimitSet(ls: LimitSetView): SpcLimitSet {
 
 /** Sets that have been in force (approved or superseded), oldest effective first. */
 export function setsInForceOrder(sets: readonly LimitSetView[]): LimitSetView[] {
-  return sets.filter((s) => s.status !== 'draft' && s.effectiveFromMs !== null).sort((a, b) => a.effectiveFromMs! - b.effectiveFromMs! || a.version - b.version);
+  return sets
+    .filter((s) => s.status !== 'draft' && s.effectiveFromMs !== null)
+    .sort((a, b) => a.effectiveFromMs! - b.effectiveFromMs! || a.version - b.version);
 }
 
 /** The set in force at `tMs` among `ordered` (from `setsInForceOrder`), or null. */
@@ -235,10 +271,18 @@ export async function insertDraftLimitSet(client: Queryable, s: NewLimitSet): Pr
  * effective-from), the draft's excluded points are marked on the chart. Runs inside the caller's
  * transaction (`client`).
  */
-export async function approveLimitSetRow(client: pg.PoolClient, id: number, signature: object, effectiveFromMs: number, seeded = false): Promise<LimitSetView> {
+export async function approveLimitSetRow(
+  client: pg.PoolClient,
+  id: number,
+  signature: object,
+  effectiveFromMs: number,
+  seeded = false,
+): Promise<LimitSetView> {
   const ls = await getLimitSet(client, id);
   if (!ls) throw new Error(`limit set ${id} not found`);
-  await client.query(`update limit_sets set status = 'superseded' where characteristic_id = $1 and status = 'approved'`, [ls.characteristicId]);
+  await client.query(`update limit_sets set status = 'superseded' where characteristic_id = $1 and status = 'approved'`, [
+    ls.characteristicId,
+  ]);
   const { rows } = await client.query(
     `update limit_sets set status = 'approved', effective_from = $2, approved_signature = $3, approved_at = now(), seeded = $4
       where id = $1 and status = 'draft' returning ${LS_COLUMNS}`,
@@ -270,7 +314,10 @@ function toPoint(r: Record<string, unknown>): ChartPoint {
   return { ...(r as unknown as ChartPoint), id: Number(r['id']) };
 }
 
-export async function lastPointOf(pool: Queryable, characteristicId: number): Promise<{ index: number; tMs: number; key: string | null; observation: number } | null> {
+export async function lastPointOf(
+  pool: Queryable,
+  characteristicId: number,
+): Promise<{ index: number; tMs: number; key: string | null; observation: number } | null> {
   const { rows } = await pool.query<{ index: number; tMs: number; key: string | null; observation: number }>(
     `select idx as "index", (extract(epoch from t) * 1000)::float8 as "tMs", subgroup_key as key, observation
        from spc_points where characteristic_id = $1 order by idx desc limit 1`,
@@ -280,7 +327,11 @@ export async function lastPointOf(pool: Queryable, characteristicId: number): Pr
 }
 
 /** Points in a time range (inclusive), or the most recent `last` points, in index order. */
-export async function pointsOf(pool: Queryable, characteristicId: number, q: { fromMs?: number; toMs?: number; last?: number }): Promise<ChartPoint[]> {
+export async function pointsOf(
+  pool: Queryable,
+  characteristicId: number,
+  q: { fromMs?: number; toMs?: number; last?: number },
+): Promise<ChartPoint[]> {
   if (q.fromMs !== undefined || q.toMs !== undefined) {
     const { rows } = await pool.query(
       `select ${POINT_COLUMNS} from spc_points where characteristic_id = $1 and t >= $2 and t <= $3 order by idx limit 20000`,
@@ -296,7 +347,12 @@ export async function pointsOf(pool: Queryable, characteristicId: number, q: { f
 }
 
 /** Members (subgroup values) of the points in a time range, in index order, with their index. */
-export async function baselineOf(pool: Queryable, characteristicId: number, fromMs: number, toMs: number): Promise<(ChartPoint & { members: number[] })[]> {
+export async function baselineOf(
+  pool: Queryable,
+  characteristicId: number,
+  fromMs: number,
+  toMs: number,
+): Promise<(ChartPoint & { members: number[] })[]> {
   const { rows } = await pool.query(
     `select ${POINT_COLUMNS}, members from spc_points where characteristic_id = $1 and t >= $2 and t <= $3 order by idx limit 20000`,
     [characteristicId, new Date(fromMs), new Date(toMs)],
@@ -304,17 +360,25 @@ export async function baselineOf(pool: Queryable, characteristicId: number, from
   return rows.map((r) => ({ ...toPoint(r), members: r.members as number[] }));
 }
 
-export async function pointById(pool: Queryable, characteristicId: number, pointId: number): Promise<(ChartPoint & { members: number[]; readings: unknown[]; key: string | null }) | null> {
+export async function pointById(
+  pool: Queryable,
+  characteristicId: number,
+  pointId: number,
+): Promise<(ChartPoint & { members: number[]; readings: unknown[]; key: string | null }) | null> {
   const { rows } = await pool.query(
     `select ${POINT_COLUMNS}, members, readings, subgroup_key as key from spc_points where characteristic_id = $1 and id = $2`,
     [characteristicId, pointId],
   );
   const r = rows[0];
-  return r ? { ...toPoint(r), members: r.members as number[], readings: r.readings as unknown[], key: r.key as string | null } : null;
+  return r
+    ? { ...toPoint(r), members: r.members as number[], readings: r.readings as unknown[], key: r.key as string | null }
+    : null;
 }
 
 export async function countPoints(pool: Queryable, characteristicId: number): Promise<number> {
-  const { rows } = await pool.query<{ n: number }>(`select count(*)::int as n from spc_points where characteristic_id = $1`, [characteristicId]);
+  const { rows } = await pool.query<{ n: number }>(`select count(*)::int as n from spc_points where characteristic_id = $1`, [
+    characteristicId,
+  ]);
   return rows[0]?.n ?? 0;
 }
 
@@ -351,7 +415,11 @@ export interface PointRow {
 }
 
 /** Statistic of a subgroup with no limit set in force (plotted, not judged). */
-function unjudged(chart: CharacteristicChart, members: readonly number[], previousObservation: number | null): { value: number; dispersion: number | null } {
+function unjudged(
+  chart: CharacteristicChart,
+  members: readonly number[],
+  previousObservation: number | null,
+): { value: number; dispersion: number | null } {
   const value = mean(members);
   if (members.length > 1) return { value, dispersion: chart === 'xbar-s' ? sampleSd(members) : range(members) };
   return { value, dispersion: chart === 'imr' && previousObservation !== null ? Math.abs(value - previousObservation) : null };
@@ -386,29 +454,51 @@ export async function judgeForStorage(
       const history = await historyFor(set.id, historyNeeded(set.chart));
       // Members judged earlier in this same call are history too.
       const local = out.filter((p) => p.limitSetId === set.id).map((p) => p.members);
-      const judged = judgeSubgroups(spcSet, c.rules, [...history, ...local], group.map((g) => g.values));
+      const judged = judgeSubgroups(
+        spcSet,
+        c.rules,
+        [...history, ...local],
+        group.map((g) => g.values),
+      );
       judged.forEach((p, k) => {
         const g = group[k]!;
         index += 1;
         const observation = p.observation ?? mean(g.values);
-        out.push(row(c.id, index, g, {
-          value: p.value,
-          observation: set.chart === 'ewma' ? observation : set.chart === 'cusum' ? p.value : p.value,
-          dispersion: p.dispersionValue,
-          center: p.center,
-          ucl: p.ucl,
-          lcl: p.lcl,
-          violations: p.violations,
-          limitSetId: set.id,
-          extra: set.chart === 'cusum' ? { cPlus: p.cPlus, cMinus: p.cMinus, nPlus: p.nPlus, nMinus: p.nMinus, shiftEstimate: p.shiftEstimate ?? null } : {},
-        }));
+        out.push(
+          row(c.id, index, g, {
+            value: p.value,
+            observation: set.chart === 'ewma' ? observation : set.chart === 'cusum' ? p.value : p.value,
+            dispersion: p.dispersionValue,
+            center: p.center,
+            ucl: p.ucl,
+            lcl: p.lcl,
+            violations: p.violations,
+            limitSetId: set.id,
+            extra:
+              set.chart === 'cusum'
+                ? { cPlus: p.cPlus, cMinus: p.cMinus, nPlus: p.nPlus, nMinus: p.nMinus, shiftEstimate: p.shiftEstimate ?? null }
+                : {},
+          }),
+        );
         prevObs = set.chart === 'ewma' ? observation : p.value;
       });
     } else {
       for (const g of group) {
         index += 1;
         const u = unjudged(c.chart, g.values, prevObs);
-        out.push(row(c.id, index, g, { value: u.value, observation: u.value, dispersion: u.dispersion, center: null, ucl: null, lcl: null, violations: [], limitSetId: null, extra: {} }));
+        out.push(
+          row(c.id, index, g, {
+            value: u.value,
+            observation: u.value,
+            dispersion: u.dispersion,
+            center: null,
+            ucl: null,
+            lcl: null,
+            violations: [],
+            limitSetId: null,
+            extra: {},
+          }),
+        );
         prevObs = u.value;
       }
     }
@@ -485,7 +575,11 @@ export async function insertPointRows(client: Queryable, rows: readonly PointRow
  * Judge and store new subgroups of a characteristic (oldest first). Subgroups that close at or
  * before the last stored point, or whose key is already stored, are ignored. Returns the stored points.
  */
-export async function recordSubgroups(pool: pg.Pool, c: CharacteristicRecord, subgroups: readonly NewSubgroup[]): Promise<ChartPoint[]> {
+export async function recordSubgroups(
+  pool: pg.Pool,
+  c: CharacteristicRecord,
+  subgroups: readonly NewSubgroup[],
+): Promise<ChartPoint[]> {
   if (subgroups.length === 0) return [];
   const client = await pool.connect();
   try {
@@ -496,7 +590,10 @@ export async function recordSubgroups(pool: pg.Pool, c: CharacteristicRecord, su
     if (fresh.length > 0) {
       const keys = fresh.map((s) => s.key).filter((k): k is string => !!k);
       if (keys.length > 0) {
-        const { rows } = await client.query<{ k: string }>(`select subgroup_key as k from spc_points where characteristic_id = $1 and subgroup_key = any($2)`, [c.id, keys]);
+        const { rows } = await client.query<{ k: string }>(
+          `select subgroup_key as k from spc_points where characteristic_id = $1 and subgroup_key = any($2)`,
+          [c.id, keys],
+        );
         const seen = new Set(rows.map((r) => r.k));
         fresh = fresh.filter((s) => !s.key || !seen.has(s.key));
       }
@@ -527,10 +624,15 @@ export async function recordSubgroups(pool: pg.Pool, c: CharacteristicRecord, su
 }
 
 /** Readings of the source channels strictly after `afterMs` (at most `limit`, oldest first). */
-export async function sourceReadingsAfter(pool: Queryable, channelIds: readonly number[], afterMs: number, limit = 5000): Promise<SourceReading[]> {
+export async function sourceReadingsAfter(
+  pool: Queryable,
+  channelIds: readonly number[],
+  afterMs: number,
+  limit = 5000,
+): Promise<SourceReading[]> {
   const { rows } = await pool.query<SourceReading>(
     `select channel_id as "channelId", (extract(epoch from ts) * 1000)::float8 as "tMs", value
-       from readings where channel_id = any($1::int[]) and ts > $2 order by ts, channel_id limit $3`,
+       from readings where channel_id = any($1::int[]) and ts > $2 and quality = 0 order by ts, channel_id limit $3`,
     [channelIds, new Date(afterMs), limit],
   );
   return rows;
@@ -543,7 +645,12 @@ export const BACKFILL_MAX_READINGS = 200_000;
  * Plot a new characteristic's points from stored history since `fromMs` (readings, or closed oven
  * loads), unjudged unless a limit set is in force. Returns the number of points stored.
  */
-export async function backfillCharacteristic(pool: pg.Pool, c: CharacteristicRecord, fromMs: number, nowMs: number): Promise<number> {
+export async function backfillCharacteristic(
+  pool: pg.Pool,
+  c: CharacteristicRecord,
+  fromMs: number,
+  nowMs: number,
+): Promise<number> {
   if (c.subgroupRule.kind === 'per-oven-load') {
     const pending = await pendingLoadSubgroups(pool, c, fromMs);
     return (await recordSubgroups(pool, c, pending)).length;
@@ -624,7 +731,15 @@ export async function recordLoadSubgroup(
  * its cure alarm tells that story.
  */
 export async function pendingLoadSubgroups(pool: Queryable, c: CharacteristicRecord, afterMs: number): Promise<NewSubgroup[]> {
-  const { rows } = await pool.query<{ id: number; computed: boolean; fromMs: number | null; toMs: number | null; tMs: number; n: number | null; avg: number | null }>(
+  const { rows } = await pool.query<{
+    id: number;
+    computed: boolean;
+    fromMs: number | null;
+    toMs: number | null;
+    tMs: number;
+    n: number | null;
+    avg: number | null;
+  }>(
     `with oven as (
        select a.id from assets a where a.id = $1 and a.kind = 'oven'
        union select a.parent_id from assets a where a.id = $1 and a.kind = 'zone'),
@@ -647,7 +762,14 @@ export async function pendingLoadSubgroups(pool: Queryable, c: CharacteristicRec
   for (const r of rows) {
     if (!r.computed) break;
     if (r.fromMs === null || r.toMs === null || r.avg === null || !r.n) continue;
-    out.push({ values: [r.avg], tFromMs: r.fromMs, tMs: r.tMs, readings: [{ n: r.n, mean: r.avg, soakFromMs: r.fromMs, soakToMs: r.toMs }], key: `load:${r.id}`, ovenLoadId: r.id });
+    out.push({
+      values: [r.avg],
+      tFromMs: r.fromMs,
+      tMs: r.tMs,
+      readings: [{ n: r.n, mean: r.avg, soakFromMs: r.fromMs, soakToMs: r.toMs }],
+      key: `load:${r.id}`,
+      ovenLoadId: r.id,
+    });
   }
   return out;
 }
@@ -655,7 +777,11 @@ export async function pendingLoadSubgroups(pool: Queryable, c: CharacteristicRec
 // --- specification --------------------------------------------------------------------------
 
 /** The specification of a characteristic at `atMs` (fixed, or from the process window in force). */
-export async function resolveSpec(pool: pg.Pool, c: Pick<CharacteristicRecord, 'spec' | 'channelIds' | 'assetId'>, atMs: number): Promise<{ spec: SpecLimits | null; note: string | null }> {
+export async function resolveSpec(
+  pool: pg.Pool,
+  c: Pick<CharacteristicRecord, 'spec' | 'channelIds' | 'assetId'>,
+  atMs: number,
+): Promise<{ spec: SpecLimits | null; note: string | null }> {
   const s = c.spec;
   if (s.mode === 'none') return { spec: null, note: 'No specification is set for this characteristic.' };
   if (s.mode === 'fixed') {
@@ -668,7 +794,8 @@ export async function resolveSpec(pool: pg.Pool, c: Pick<CharacteristicRecord, '
   const { rows } = await pool.query<{ asset_id: number }>(`select asset_id from channels where id = $1`, [c.channelIds[0]]);
   const assetId = rows[0]?.asset_id ?? c.assetId;
   const w = await windowInForce(pool, assetId, atMs);
-  if (!w) return { spec: null, note: 'The specification comes from the process window, but no window is in force for this asset.' };
+  if (!w)
+    return { spec: null, note: 'The specification comes from the process window, but no window is in force for this asset.' };
   const range = (w.limits as unknown as Record<string, { min: number; max: number; target?: number } | undefined>)[s.key];
   if (!range) return { spec: null, note: `The process window in force (${w.name} v${w.version}) sets no ${s.key} range.` };
   const spec: SpecLimits = { lsl: range.min, usl: range.max };
