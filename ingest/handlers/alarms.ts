@@ -69,6 +69,7 @@ import {
   raiseAlarmReturning,
   recordEscalation,
   releaseEscalation,
+  type AlarmHint,
   type RaiseAlarmInput,
 } from '../../src/lib/server/stores/alarm-store.ts';
 import {
@@ -81,6 +82,10 @@ import { windowInForce } from '../../src/lib/server/stores/window-store.ts';
 import type { PostCommitHandler, StoredReading, WorkerContext } from './index.ts';
 
 const CHECK_EVERY_MS = 5_000;
+/** Readings waiting to be judged before the worker is made to wait for the alarm handler. */
+const MAX_BACKLOG_ROWS = 20_000;
+/** Channels judged at once within a batch (the worker's pool has 4 connections). */
+const CHANNEL_LANES = 3;
 const CHANNELS_EVERY_MS = 60_000;
 const CONFIGS_EVERY_MS = 2_000;
 const WINDOW_TTL_MS = 30_000;
@@ -172,6 +177,9 @@ export function createAlarmsHandler(): PostCommitHandler {
   let warnedNoSmtp = false;
   let siteZone = 'UTC';
   let chain: Promise<unknown> = Promise.resolve();
+  let backlog = 0;
+  // Load figures for the worker log (one line per 10 s while readings flow).
+  const load = { rows: 0, busyMs: 0, raises: 0, clears: 0, since: Date.now() };
   const disabled = (process.env['INGEST_ALARMS'] ?? 'on') === 'off';
 
   /** Run one piece of work at a time (detector state is shared between readings and ticks). */
@@ -186,14 +194,30 @@ export function createAlarmsHandler(): PostCommitHandler {
     if (alarm) ctx.publishLive('alarms', alarm);
   }
 
+  /**
+   * The open alarm of each source as this worker last saw it (or 'none'), so a raise or clear
+   * is usually one statement; a stale entry (e.g. acknowledged on the web meanwhile) costs one
+   * extra read in the store.
+   */
+  const known = new Map<string, AlarmHint>();
+  const remember = (key: string, a: AlarmView) => known.set(key, a.state === 'normal' ? 'none' : a);
+
   async function raise(ctx: WorkerContext, input: RaiseAlarmInput): Promise<void> {
-    const r = await raiseAlarmReturning(ctx.pool, input);
+    const r = await raiseAlarmReturning(ctx.pool, input, known.get(input.sourceKey));
+    remember(input.sourceKey, r.alarm);
+    load.raises++;
     ctx.publishLive('alarms', r.alarm);
   }
 
   async function clear(ctx: WorkerContext, sourceKey: string, atMs: number): Promise<void> {
-    const view = await clearAlarmReturning(ctx.pool, sourceKey, atMs);
-    if (view) await publish(ctx, null, view);
+    const view = await clearAlarmReturning(ctx.pool, sourceKey, atMs, known.get(sourceKey));
+    load.clears++;
+    if (view) {
+      remember(sourceKey, view);
+      await publish(ctx, null, view);
+    } else {
+      known.delete(sourceKey);
+    }
   }
 
   async function loadChannels(ctx: WorkerContext, nowMs: number): Promise<void> {
@@ -368,6 +392,23 @@ export function createAlarmsHandler(): PostCommitHandler {
 
   async function onReadings(ctx: WorkerContext, rows: StoredReading[]): Promise<void> {
     if (disabled || rows.length === 0) return;
+    const started = performance.now();
+    try {
+      await evaluateReadings(ctx, rows);
+    } finally {
+      load.rows += rows.length;
+      load.busyMs += performance.now() - started;
+      if (Date.now() - load.since >= 10_000) {
+        ctx.log(
+          `alarms: ${load.rows} readings judged in ${((Date.now() - load.since) / 1000).toFixed(0)} s ` +
+            `(${load.raises} raises, ${load.clears} clears, ${(load.busyMs / 1000).toFixed(1)} s busy)`,
+        );
+        Object.assign(load, { rows: 0, busyMs: 0, raises: 0, clears: 0, since: Date.now() });
+      }
+    }
+  }
+
+  async function evaluateReadings(ctx: WorkerContext, rows: StoredReading[]): Promise<void> {
     const nowMs = Date.now();
     if (nowMs - configsAt > CONFIGS_EVERY_MS) await loadConfigs(ctx, nowMs);
     const byChannel = new Map<number, StoredReading[]>();
@@ -384,17 +425,23 @@ export function createAlarmsHandler(): PostCommitHandler {
       list.sort((a, b) => a.tMs - b.tMs);
       if (ch.kind === 'setpoint' && ch.ovenAssetId !== null) setpoints.set(ch.ovenAssetId, list[list.length - 1]!.value);
     }
-    for (const [id, list] of byChannel) {
-      const ch = channels.get(id);
-      if (!ch) continue;
-      const newest = list[list.length - 1]!.tMs;
-      lastSeen.set(id, Math.max(lastSeen.get(id) ?? 0, newest));
-      if (staleActive.has(id)) {
-        staleActive.delete(id);
-        await clear(ctx, `stale:channel:${id}`, newest);
+    // Channels are independent: judge a few at a time (each channel's readings stay in order).
+    const queue = [...byChannel];
+    const lane = async () => {
+      for (let next = queue.shift(); next; next = queue.shift()) {
+        const [id, list] = next;
+        const ch = channels.get(id);
+        if (!ch) continue;
+        const newest = list[list.length - 1]!.tMs;
+        lastSeen.set(id, Math.max(lastSeen.get(id) ?? 0, newest));
+        if (staleActive.has(id)) {
+          staleActive.delete(id);
+          await clear(ctx, `stale:channel:${id}`, newest);
+        }
+        await evaluateChannel(ctx, ch, list);
       }
-      await evaluateChannel(ctx, ch, list);
-    }
+    };
+    await Promise.all(Array.from({ length: Math.min(CHANNEL_LANES, queue.length) }, lane));
   }
 
   async function checkStale(ctx: WorkerContext, nowMs: number): Promise<void> {
@@ -648,7 +695,13 @@ export function createAlarmsHandler(): PostCommitHandler {
       });
     },
     onReadings(ctx, rows) {
-      return serial(() => onReadings(ctx, rows));
+      // Judge in the background, in order, so the other post-commit handlers need not wait for
+      // the alarm writes; past a backlog, hold the worker back instead of growing without bound.
+      backlog += rows.length;
+      const done = serial(() => onReadings(ctx, rows))
+        .catch((e: Error) => ctx.log(`alarms: judging ${rows.length} readings failed: ${e.stack ?? e.message}`))
+        .finally(() => (backlog -= rows.length));
+      return backlog > MAX_BACKLOG_ROWS ? done : Promise.resolve();
     },
     onTick(ctx, nowMs) {
       if (disabled) return Promise.resolve();

@@ -164,8 +164,38 @@ const VIEW_OF_CHANGED = `select ${COLUMNS} from changed a left join users u on u
 const GUARD = `state = $2 and active = $3
   and date_trunc('milliseconds', shelved_until) is not distinct from to_timestamp($4::float8 / 1000.0)`;
 
-function guardParams(r: AlarmRow): [AlarmState, boolean, number | null] {
-  return [r.state, r.active, ms(r.shelved_until)];
+/** What the state model reads of an open alarm, and its id: enough to compute and guard a transition. */
+export interface OpenAlarmState {
+  id: number;
+  state: AlarmState;
+  active: boolean;
+  shelvedUntilMs: number | null;
+}
+
+/**
+ * What a caller already knows about a source's open alarm (e.g. the worker, from the alarm it
+ * got back last time): the alarm, or 'none' when the source has no open alarm. A stale hint
+ * costs one extra read; a right one saves it.
+ */
+export type AlarmHint = OpenAlarmState | 'none';
+
+function guardParams(o: OpenAlarmState): [AlarmState, boolean, number | null] {
+  return [o.state, o.active, o.shelvedUntilMs];
+}
+
+async function readOpen(pool: Queryable, sourceKey: string): Promise<OpenAlarmState | null> {
+  const res = await pool.query<{ id: number; state: AlarmState; active: boolean; shelved_until: Date | null }>(
+    `select id, state, active, shelved_until from alarms where source_key = $1 and state <> 'normal'`,
+    [sourceKey],
+  );
+  const r = res.rows[0];
+  return r ? { id: r.id, state: r.state, active: r.active, shelvedUntilMs: ms(r.shelved_until) } : null;
+}
+
+function fromHint(hint: AlarmHint | undefined): OpenAlarmState | null | undefined {
+  if (hint === undefined) return undefined;
+  if (hint === 'none' || hint.state === 'normal') return null;
+  return hint;
 }
 
 function isUniqueViolation(e: unknown): boolean {
@@ -196,9 +226,11 @@ export async function raiseAlarm(pool: pg.Pool, input: RaiseAlarmInput): Promise
 export async function raiseAlarmReturning(
   pool: pg.Pool,
   input: RaiseAlarmInput,
+  hint?: AlarmHint,
 ): Promise<{ alarm: AlarmView; created: boolean; activated: boolean }> {
+  const hinted = fromHint(hint);
   for (let attempt = 0; attempt < 20; attempt++) {
-    const open = await selectOne(pool, `a.source_key = $1 and a.state <> 'normal'`, [input.sourceKey]);
+    const open = attempt === 0 && hinted !== undefined ? hinted : await readOpen(pool, input.sourceKey);
     try {
       const out = open ? await reactivate(pool, open, input) : await insertNew(pool, input);
       if (out) return out;
@@ -246,7 +278,7 @@ async function insertNew(pool: pg.Pool, input: RaiseAlarmInput): Promise<{ alarm
 
 async function reactivate(
   pool: pg.Pool,
-  open: AlarmRow,
+  open: OpenAlarmState,
   input: RaiseAlarmInput,
 ): Promise<{ alarm: AlarmView; created: boolean; activated: boolean } | null> {
   const t = transition<AlarmRecord>(recordOf(open), { type: 'activate' }, { nowMs: input.atMs, ...SYSTEM });
@@ -304,9 +336,15 @@ export async function clearAlarm(pool: pg.Pool, sourceKey: string, atMs: number)
 }
 
 /** {@link clearAlarm}, returning the alarm when it changed (for the caller's live event). */
-export async function clearAlarmReturning(pool: pg.Pool, sourceKey: string, atMs: number): Promise<AlarmView | null> {
+export async function clearAlarmReturning(
+  pool: pg.Pool,
+  sourceKey: string,
+  atMs: number,
+  hint?: AlarmHint,
+): Promise<AlarmView | null> {
+  const hinted = fromHint(hint);
   for (let attempt = 0; attempt < 20; attempt++) {
-    const open = await selectOne(pool, `a.source_key = $1 and a.state <> 'normal'`, [sourceKey]);
+    const open = attempt === 0 && hinted !== undefined ? hinted : await readOpen(pool, sourceKey);
     if (!open || !open.active) return null;
     const t = transition<AlarmRecord>(recordOf(open), { type: 'clear' }, { nowMs: atMs, ...SYSTEM });
     if (!t.ok || !t.changed) return null;
@@ -388,7 +426,8 @@ function eventText(event: AlarmEvent): string | null {
   }
 }
 
-function recordOf(r: AlarmRow): AlarmRecord {
+function recordOf(r: AlarmRow | OpenAlarmState): AlarmRecord {
+  if ('shelvedUntilMs' in r) return { state: r.state, active: r.active, shelvedUntilMs: r.shelvedUntilMs };
   return { state: r.state, active: r.active, shelvedUntilMs: ms(r.shelved_until) };
 }
 
