@@ -23,7 +23,6 @@ import {
   localHour,
   ovenSampleAt,
   siteOffsetMs,
-  viscosityOfSolids,
   type OvenCycle,
 } from '../../seeds/plant-model.ts';
 
