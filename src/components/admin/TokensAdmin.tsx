@@ -2,7 +2,7 @@
  * Admin → API tokens for machine clients (lab systems): create a named token with a role
  * (the secret is shown this once), list with prefix, role, creation, last use, and revoke.
  */
-import { useMemo, useState, type FormEvent } from 'react';
+import { useMemo, useState, type SubmitEvent } from 'react';
 import { apiFetch } from '../../lib/client/api.ts';
 import { CreateTokenSchema, type TokenView } from '../../lib/shared/admin.ts';
 import { ROLE_LABELS, ROLES, type Role } from '../../lib/shared/roles.ts';
@@ -25,7 +25,7 @@ export default function TokensAdmin({ initial, timeZone, origin }: { initial: To
 
   const shown = useMemo(() => sortRows(tokens.filter((t) => showRevoked || !t.revokedAt), (t) => t[sort.key], sort.dir), [tokens, sort, showRevoked]);
 
-  async function create(e: FormEvent) {
+  async function create(e: SubmitEvent<HTMLFormElement>) {
     e.preventDefault();
     const parsed = CreateTokenSchema.safeParse({ name, role });
     if (!parsed.success) return setNameError(parsed.error.issues[0]?.message ?? 'Check the name.');

@@ -2,7 +2,7 @@
  * Admin → Users: create people with a role and e-mail, change roles, deactivate and
  * reactivate (never delete: records keep their author), e-mail a one-time password link.
  */
-import { useMemo, useState, type FormEvent } from 'react';
+import { useMemo, useState, type SubmitEvent } from 'react';
 import { apiFetch } from '../../lib/client/api.ts';
 import { CreateUserSchema, PASSWORD_MIN, RESET_LINK_MINUTES, type UserView } from '../../lib/shared/admin.ts';
 import { ROLE_LABELS, ROLES, type Role } from '../../lib/shared/roles.ts';
@@ -39,7 +39,7 @@ export default function UsersAdmin({ initial, timeZone, currentUserId }: Props) 
 
   const replace = (u: UserView) => setUsers((all) => all.map((x) => (x.id === u.id ? u : x)));
 
-  async function create(e: FormEvent) {
+  async function create(e: SubmitEvent<HTMLFormElement>) {
     e.preventDefault();
     const body = { ...form, password: setPassword && form.password ? form.password : undefined };
     const parsed = CreateUserSchema.safeParse(body);

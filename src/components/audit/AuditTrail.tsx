@@ -3,7 +3,7 @@
  * through, sort the page by any column, open a row to compare before → after, and export every
  * matching row as CSV (server side).
  */
-import { Fragment, useCallback, useEffect, useMemo, useState, type FormEvent } from 'react';
+import { Fragment, useCallback, useEffect, useMemo, useState, type SubmitEvent } from 'react';
 import { apiFetch } from '../../lib/client/api.ts';
 import type { AuditPage, AuditRowView } from '../../lib/shared/admin.ts';
 import { formatSiteTime } from '../../lib/shared/site-time.ts';
@@ -130,7 +130,7 @@ export default function AuditTrail({ initial, initialFilters, timeZone, entities
   const rows = useMemo(() => sortRows(page.rows, (r) => (sort.key === 'at' ? r.id : r[sort.key]), sort.dir), [page, sort]);
   const pages = Math.max(1, Math.ceil(page.total / page.pageSize));
 
-  function submit(e: FormEvent) {
+  function submit(e: SubmitEvent<HTMLFormElement>) {
     e.preventDefault();
     void load(filters, 1, pageSize);
   }

@@ -4,7 +4,7 @@
  * channels and approve topics a device sent that no channel matched), and the `mqtt` CLI line
  * that publishes one sample for the selected device.
  */
-import { useEffect, useMemo, useState, type FormEvent } from 'react';
+import { useEffect, useMemo, useState, type SubmitEvent } from 'react';
 import { apiFetch, subscribeLive } from '../../lib/client/api.ts';
 import {
   CHANNEL_KINDS,
@@ -132,7 +132,7 @@ export default function PlantSetup(props: Props) {
     setDevices(await apiFetch<DeviceView[]>('/api/v1/devices'));
   }
 
-  async function createDevice(e: FormEvent) {
+  async function createDevice(e: SubmitEvent<HTMLFormElement>) {
     e.preventDefault();
     const parsed = CreateDeviceSchema.safeParse({ name: newDeviceName });
     if (!parsed.success) return setDeviceError(parsed.error.issues[0]?.message ?? 'Name the device.');
@@ -179,7 +179,7 @@ export default function PlantSetup(props: Props) {
     }
   }
 
-  async function createChannel(e: FormEvent) {
+  async function createChannel(e: SubmitEvent<HTMLFormElement>) {
     e.preventDefault();
     const body = {
       assetId: Number(chForm.assetId) || undefined,
@@ -209,7 +209,7 @@ export default function PlantSetup(props: Props) {
     }
   }
 
-  async function approve(e: FormEvent, u: UnknownChannelView) {
+  async function approve(e: SubmitEvent<HTMLFormElement>, u: UnknownChannelView) {
     e.preventDefault();
     const parsed = ApproveUnknownChannelSchema.safeParse({ ...apForm, min: apForm.min === '' ? undefined : Number(apForm.min), max: apForm.max === '' ? undefined : Number(apForm.max) });
     if (!parsed.success) return setApErrors(Object.fromEntries(parsed.error.issues.map((i) => [String(i.path[0] ?? ''), i.message])));

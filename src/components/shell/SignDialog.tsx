@@ -11,7 +11,7 @@
  * `onSign` should throw (e.g. the ApiError of apiFetch) when the server refuses; the dialog
  * shows the message and stays open. On success the caller closes it (usually by unmounting).
  */
-import { useEffect, useId, useRef, useState, type FormEvent, type ReactNode } from 'react';
+import { useEffect, useId, useRef, useState, type ReactNode, type SubmitEvent } from 'react';
 import { ApiError } from '../../lib/client/api.ts';
 
 export interface SignDialogProps {
@@ -51,7 +51,7 @@ export default function SignDialog({ title, meaningOptions, onSign, onCancel, ch
 
   const meaning = (freeText || choice === OTHER ? other : choice).trim();
 
-  async function submit(e: FormEvent) {
+  async function submit(e: SubmitEvent<HTMLFormElement>) {
     e.preventDefault();
     if (!meaning) return setError('Choose the meaning of your signature.');
     if (!password) return setError('Enter your password.');

@@ -18,7 +18,7 @@ export const UsernameSchema = z
   .toLowerCase()
   .regex(/^[a-z0-9._-]{2,40}$/, 'Use 2–40 lower-case letters, digits, dot, dash or underscore.');
 
-export const EmailSchema = z.string().trim().toLowerCase().email('Enter an e-mail address.').max(200);
+export const EmailSchema = z.string().trim().toLowerCase().max(200).pipe(z.email('Enter an e-mail address.'));
 
 export const CreateUserSchema = z.object({
   username: UsernameSchema,

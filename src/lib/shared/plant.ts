@@ -57,7 +57,8 @@ export function codeFromName(name: string, maxLength = 32): string {
   return code || 'x';
 }
 
-const finite = (what: string) => z.number({ error: `Enter the ${what} as a number.` }).finite();
+/** zod 4 numbers refuse Infinity and NaN already. */
+const finite = (what: string) => z.number({ error: `Enter the ${what} as a number.` });
 
 /** Name, kind, unit and valid range: shared by a new channel and the approval of an unknown one. */
 export const ChannelSpecSchema = z
