@@ -10,7 +10,7 @@ import pg from 'pg';
 import { chromium, type Browser, type Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { base, signIn } from '../support/http.ts';
-import { root } from '../support/test-stack.ts';
+import { root, TEST_PASSWORD } from '../support/test-stack.ts';
 
 const OUT = path.join(root, 'test-results');
 let browser: Browser;
@@ -129,5 +129,29 @@ describe('control chart in the browser', () => {
     await page.getByText(/Trial limits: centre/).waitFor();
     await page.waitForTimeout(300);
     await page.screenshot({ path: path.join(OUT, 'limit-study.png'), fullPage: true });
+  }, 60_000);
+
+  it('an engineer studies a baseline and approves new limits with a signature; the chart shows them in force', async () => {
+    const { rows } = await pool.query<{ id: number }>(`select id from characteristics where name = 'Line 1 withdrawal speed'`);
+    const id = rows[0]!.id;
+    await page.goto(`${base()}/charts/characteristics/${id}/study`);
+    await page.getByRole('button', { name: 'Run study' }).click();
+    await page.getByText(/Trial limits: centre/).waitFor({ timeout: 10_000 });
+    await page.getByRole('button', { name: 'Save and approve…' }).click();
+    const dialog = page.getByRole('dialog', { name: /Approve control limits v\d+ for Line 1 withdrawal speed/ });
+    await dialog.waitFor();
+    await dialog.getByLabel('Your password').fill('not-my-password');
+    await dialog.getByRole('button', { name: 'Approve limits' }).click();
+    await dialog.getByRole('alert').filter({ hasText: 'Not signed.' }).waitFor();
+    await page.screenshot({ path: path.join(OUT, 'limit-approve-refused.png') });
+    await dialog.getByLabel('Your password').fill(TEST_PASSWORD);
+    await dialog.getByRole('button', { name: 'Approve limits' }).click();
+    await page.waitForURL(`${base()}/charts/control/${id}`, { timeout: 10_000 });
+    const sets = page.getByRole('region', { name: 'Limit sets' });
+    await sets.getByText('✓ in force').waitFor();
+    const text = (await sets.textContent()) ?? '';
+    expect(text).toContain('superseded');
+    expect(text).toMatch(/Emil Engineer \(approved\)/);
+    await page.screenshot({ path: path.join(OUT, 'limit-approved.png'), fullPage: true });
   }, 60_000);
 });

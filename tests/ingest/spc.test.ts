@@ -116,7 +116,8 @@ describe('live SPC evaluation in the ingest worker', () => {
     expect(ucl).toBeGreaterThan(10);
     expect(ucl).toBeLessThan(11);
     await new Promise((r) => setTimeout(r, 50));
-    await publish(Date.now(), 14);
+    const sentAt = Date.now();
+    await publish(sentAt, 14);
     const hit = await waitFor(
       async () => {
         const p = await points();
@@ -126,6 +127,8 @@ describe('live SPC evaluation in the ingest worker', () => {
       10_000,
       'the 26th point',
     );
+    // Figure, not a test: publish → point stored (includes the 100 ms polling of this test).
+    console.log(`[spc] publish → stored point with its violation: ${Date.now() - sentAt} ms`);
     expect(hit.value).toBe(14);
     expect(hit.violations).toContain('we1');
     expect(hit.limit_set_id).toBe(draft.body.id);

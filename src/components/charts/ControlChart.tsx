@@ -603,7 +603,7 @@ export function CapabilityPanel({
       <th scope="row" className="bg-transparent font-normal">
         {label}
       </th>
-      <td className="num text-right">{text ?? fmtNum(v, 3)}</td>
+      <td className="num whitespace-nowrap text-right">{text ?? fmtNum(v, 3)}</td>
       <td className="text-xs text-ink-soft">{extra ?? ''}</td>
     </tr>
   );
