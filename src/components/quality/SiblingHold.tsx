@@ -70,6 +70,7 @@ export default function SiblingHold({ jobNumber, siblings, hours, timeZone, canH
       const r = await apiFetch<Placed>('/api/v1/holds', { body: { jobNumbers, reason: reason.trim() } });
       setResult(r);
       setSelected(new Set());
+      setIncludeSelf(false);
       setTimeout(() => window.location.reload(), 1500);
     } catch (err) {
       setError(err instanceof ApiError ? (err.errors.map((f) => f.message).join(' ') || err.detail || err.title) : 'The hold was not placed.');

@@ -39,7 +39,7 @@ export function ResultBadge({ result }: { result: 'pass' | 'fail' }) {
 
 const JOB: Record<JobStatus, { shape: string; cls: string }> = {
   active: { shape: '·', cls: 'text-ink-soft border-slate-line' },
-  held: { shape: '⏸', cls: 'text-alert-med border-alert-med bg-[#fff6e8]' },
+  held: { shape: '‖', cls: 'text-alert-med border-alert-med bg-[#fff6e8]' },
   released: { shape: '✓', cls: 'text-ink-soft border-slate-line' },
   recoat: { shape: '↺', cls: 'text-ink border-ink-soft' },
   scrapped: { shape: '✕', cls: 'text-ink border-ink-soft' },
