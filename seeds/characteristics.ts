@@ -6,7 +6,7 @@
  *
  * - Line 1 withdrawal speed: one point per dip stroke (the line gateway publishes one mean per
  *   stroke), individuals chart, Western Electric rules 1–4, spec from the process window.
- * - Line 1 bath viscosity: one point per hourly check of the in-line viscometer, individuals
+ * - Line 1 bath viscosity: one point per 10-minute check of the in-line viscometer, individuals
  *   chart, rule 1 only, σ from the overall spread of the baseline: the bath drifts by design
  *   between solvent top-ups (a sawtooth), so limits from the short-term σ would flag nearly every
  *   check; these limits flag an excursion beyond the usual sawtooth (a missed top-up). The
@@ -70,9 +70,9 @@ export const DEMO_CHARACTERISTICS: DemoCharacteristic[] = [
     fields: CharacteristicInputSchema.parse({
       name: 'Line 1 bath viscosity',
       description:
-        'Kinematic viscosity of the line 1 hard-coat bath at its hourly check (in-line viscometer). It creeps up as solvent evaporates until a top-up.',
+        'Kinematic viscosity of the line 1 hard-coat bath at each 10-minute check (in-line viscometer). It creeps up as solvent evaporates until a top-up.',
       channelIds: [1],
-      subgroupRule: { kind: 'per-manual-check', minSpacingMinutes: 60 },
+      subgroupRule: { kind: 'per-manual-check', minSpacingMinutes: 10 },
       subgroupSize: 1,
       chart: 'imr',
       chartParams: { sigmaBasis: 'overall' },
