@@ -8,6 +8,8 @@
  */
 import { z } from 'zod';
 import { LoginSchema } from '../shared/auth.ts';
+import { AckAlarmSchema, BulkAckSchema, OutOfServiceSchema, ShelveAlarmSchema } from '../shared/alarms.ts';
+import { AlarmConfigInputSchema, AlarmKpiQuerySchema, AlarmListQuerySchema, EscalationSettingsSchema } from '../shared/alarm-views.ts';
 import {
   ActivationEnergyInputSchema,
   AbrasionInputSchema,
@@ -144,20 +146,20 @@ export const OPERATIONS: Operation[] = [
   { method: 'GET', path: '/api/v1/surveys/settings', summary: 'Survey interval and uniformity class table', access: 'view', tag: 'ovens' },
   { method: 'PUT', path: '/api/v1/surveys/settings', summary: 'Change the survey settings', access: 'plant.configure', tag: 'ovens' },
   // alarms
-  { method: 'GET', path: '/api/v1/alarms', summary: 'Alarms (?state=…)', access: 'view', tag: 'alarms' },
-  { method: 'POST', path: '/api/v1/alarms/ack', summary: 'Acknowledge several alarms with one comment', access: 'alarm.ack', tag: 'alarms' },
-  { method: 'GET', path: '/api/v1/alarms/kpi', summary: 'Alarm-system performance (ISA-18.2 benchmarks)', access: 'alarm.health', tag: 'alarms' },
+  { method: 'GET', path: '/api/v1/alarms', summary: 'Alarms (?state=ISA state names or open, ?priority=, ?limit=)', access: 'view', tag: 'alarms', query: AlarmListQuerySchema },
+  { method: 'POST', path: '/api/v1/alarms/ack', summary: 'Acknowledge several alarms with one comment', access: 'alarm.ack', tag: 'alarms', body: BulkAckSchema },
+  { method: 'GET', path: '/api/v1/alarms/kpi', summary: 'Alarm-system performance (ISA-18.2 benchmarks); ?format=csv', access: 'alarm.health', tag: 'alarms', query: AlarmKpiQuerySchema },
   { method: 'GET', path: '/api/v1/alarms/{id}', summary: 'One alarm with its history', access: 'view', tag: 'alarms' },
-  { method: 'POST', path: '/api/v1/alarms/{id}/ack', summary: 'Acknowledge an alarm with a comment', access: 'alarm.ack', tag: 'alarms' },
-  { method: 'POST', path: '/api/v1/alarms/{id}/shelve', summary: 'Shelve an alarm for minutes with a reason', access: 'alarm.shelve', tag: 'alarms' },
+  { method: 'POST', path: '/api/v1/alarms/{id}/ack', summary: 'Acknowledge an alarm with a comment', access: 'alarm.ack', tag: 'alarms', body: AckAlarmSchema },
+  { method: 'POST', path: '/api/v1/alarms/{id}/shelve', summary: 'Shelve an alarm for minutes with a reason', access: 'alarm.shelve', tag: 'alarms', body: ShelveAlarmSchema },
   { method: 'POST', path: '/api/v1/alarms/{id}/unshelve', summary: 'Unshelve an alarm', access: 'alarm.shelve', tag: 'alarms' },
-  { method: 'POST', path: '/api/v1/alarms/{id}/out-of-service', summary: 'Take an alarm out of service', access: 'alarm.configure', tag: 'alarms' },
-  { method: 'POST', path: '/api/v1/alarms/{id}/return-to-service', summary: 'Return an alarm to service', access: 'alarm.configure', tag: 'alarms' },
+  { method: 'POST', path: '/api/v1/alarms/{id}/out-of-service', summary: 'Take an alarm out of service', access: 'alarm.configure', tag: 'alarms', body: OutOfServiceSchema },
+  { method: 'POST', path: '/api/v1/alarms/{id}/return-to-service', summary: 'Return an alarm to service', access: 'alarm.configure', tag: 'alarms', body: OutOfServiceSchema },
   { method: 'GET', path: '/api/v1/alarm-configs', summary: 'Limit-alarm settings', access: 'alarm.configure', tag: 'alarms' },
-  { method: 'PUT', path: '/api/v1/alarm-configs/{channelId}', summary: 'Set a channel’s limit alarm', access: 'alarm.configure', tag: 'alarms' },
+  { method: 'PUT', path: '/api/v1/alarm-configs/{channelId}', summary: 'Set a channel’s limit and no-data alarm', access: 'alarm.configure', tag: 'alarms', body: AlarmConfigInputSchema },
   { method: 'DELETE', path: '/api/v1/alarm-configs/{channelId}', summary: 'Remove a channel’s limit alarm', access: 'alarm.configure', tag: 'alarms' },
   { method: 'GET', path: '/api/v1/alarm-configs/escalation', summary: 'Escalation rules', access: 'alarm.configure', tag: 'alarms' },
-  { method: 'PUT', path: '/api/v1/alarm-configs/escalation', summary: 'Set the escalation rules', access: 'alarm.configure', tag: 'alarms' },
+  { method: 'PUT', path: '/api/v1/alarm-configs/escalation', summary: 'Set the escalation rules', access: 'alarm.configure', tag: 'alarms', body: EscalationSettingsSchema },
   // SPC
   { method: 'POST', path: '/api/v1/spc/evaluate', summary: 'Stateless SPC on posted data (product.md §6)', access: 'spc.evaluate', tag: 'spc', body: SpcEvaluateInputSchema },
   { method: 'GET', path: '/api/v1/characteristics', summary: 'Characteristics', access: 'view', tag: 'spc' },
