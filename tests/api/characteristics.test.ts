@@ -328,3 +328,27 @@ describe('editing', () => {
     expect((await api(`/api/v1/characteristics/${charId}`, { method: 'PUT', session: viewer, json: fields() })).status).toBe(403);
   });
 });
+
+describe('point details', () => {
+  it('a seeded withdrawal-speed point lists its raw reading and the dip run it belongs to', async () => {
+    const { rows } = await pool.query<{ cid: number; pid: number; run: number; t: Date }>(
+      `select c.id as cid, p.id as pid, d.id as run, p.t
+         from characteristics c
+         join spc_points p on p.characteristic_id = c.id
+         join dip_runs d on d.line_asset_id = c.asset_id and abs(extract(epoch from (coalesce(d.stroke_ended_at, d.dipped_at) - p.t))) < 30
+        where c.name = 'Line 1 withdrawal speed'
+        order by p.idx desc limit 1`,
+    );
+    const r = rows[0];
+    expect(r, 'the demo seed has dip runs on line 1 at the strokes of the seeded history').toBeDefined();
+    const d = await api(`/api/v1/characteristics/${r!.cid}/points/${r!.pid}`, { session: viewer });
+    expect(d.status).toBe(200);
+    expect(d.body.members).toHaveLength(1);
+    expect(d.body.readings).toHaveLength(1);
+    expect(d.body.readings[0].v).toBe(d.body.members[0]);
+    expect(d.body.dipRuns.map((x: { id: number }) => x.id)).toContain(r!.run);
+    expect(d.body.limitSet.status).toMatch(/approved|superseded/);
+    const other = await api(`/api/v1/characteristics/${charId}/points/${r!.pid}`, { session: viewer });
+    expect(other.status).toBe(404); // a point is only found under its own characteristic
+  });
+});
