@@ -177,6 +177,25 @@ describe('GET /api/v1/channels/{id}/annotations', () => {
     ]);
   });
 
+  it('over more than two days reads door openings from the minute rollup (runs of open minutes)', async () => {
+    // Minute buckets of the door: open (vmax 1) at 10:20 and 10:21, closed at 10:22, open at 11:00.
+    await pool.query(
+      `insert into readings_1m (channel_id, bucket, vmin, vmax, vsum, n) values ($1, $2, 0, 1, 30, 60), ($1, $3, 1, 1, 60, 60), ($1, $4, 0, 0, 0, 60), ($1, $5, 0, 1, 12, 60)
+       on conflict do nothing`,
+      [ids['door'], at(20), at(21), at(22), at(60)],
+    );
+    try {
+      const from = T0 - 2 * 86_400_000;
+      const a = (await api(`/api/v1/channels/${ids['air']}/annotations?from=${from}&to=${T0 + 2 * 86_400_000}`, { session: viewer })).body as AnnotationsResponse;
+      expect(a.events.filter((e) => e.kind === 'door-open').map((e) => [e.tMs, e.label])).toEqual([
+        [T0 + 20 * MIN, 'Door open in 2 consecutive minutes (minute resolution)'],
+        [T0 + 60 * MIN, 'Door open within one minute (minute resolution)'],
+      ]);
+    } finally {
+      await pool.query('delete from readings_1m where channel_id = $1 and bucket >= $2 and bucket < $3', [ids['door'], at(0), at(120)]);
+    }
+  });
+
   it('answers 400 with a field path for a reversed range, 404 for an unknown channel', async () => {
     const bad = await api(`/api/v1/channels/${ids['air']}/annotations?from=${T0 + MIN}&to=${T0}`, { session: viewer });
     expect(bad.status).toBe(400);

@@ -8,7 +8,7 @@
  *    rows in time order across channels as a live plant writes them), vacuums, and builds the
  *    minute and hour rollups with one SQL each. When the projected generation time passes
  *    10 minutes, the remaining days keep the queried channel at 1 Hz and thin the 49 others
- *    (every k-th second) — the output says so;
+ *    (one reading every k seconds) — the output says so;
  * 2. times the readings endpoint's query path for one channel over the 30 days with
  *    maxPoints = 1000 (the store function directly, then over HTTP against the built web server),
  *    p50 and p95 over 25 runs, beside the time of a full raw SELECT of the same range (ratio);
@@ -145,7 +145,7 @@ async function main() {
               const allowedPerDay = (budgetLeft * PARALLEL * rowsPerMs) / remainingDays;
               const othersPerDay = Math.max(1, allowedPerDay - 86_400);
               everyK = Math.max(2, Math.ceil(((CHANNELS - 1) * 86_400) / othersPerDay));
-              log(`first day took ${secs(ms)}: ${DAYS} days would take about ${secs(projected)}; the other ${CHANNELS - 1} channels keep every ${everyK}th second from now on`);
+              log(`first day took ${secs(ms)}: ${DAYS} days would take about ${secs(projected)}; the other ${CHANNELS - 1} channels get one reading every ${everyK} s from now on`);
             }
           }
           if (done % 5 === 0) log(`  ${done}/${DAYS} days, ${(totalRows / 1e6).toFixed(1)} M rows, ${secs(performance.now() - genT0)}`);
@@ -169,7 +169,7 @@ async function main() {
     const density =
       thinned.length === 0
         ? `all ${CHANNELS} channels at 1 Hz`
-        : `queried channel at 1 Hz for all ${DAYS} days; the other ${CHANNELS - 1} at 1 Hz for ${DAYS - thinned.length} days and every ${everyK}th second for ${thinned.length} days (generation budget)`;
+        : `queried channel at 1 Hz for all ${DAYS} days; the other ${CHANNELS - 1} at 1 Hz for ${DAYS - thinned.length} days and one reading every ${everyK} s for ${thinned.length} days (${BUDGET_MS / 60_000}-minute generation budget)`;
     rows.push(['Generated readings', `${(totalRows / 1e6).toFixed(1)} M rows (${size} with index)`, density]);
     rows.push(['  generate_series INSERTs', secs(genMs), `first day ${secs(firstDayMs)}; ${PARALLEL} days at a time`]);
     rows.push(['  VACUUM ANALYZE readings', secs(vacuumMs), 'visibility map for index-only scans']);

@@ -13,7 +13,6 @@ import {
   LineController,
   LineElement,
   PointElement,
-  TimeScale,
   Tooltip,
   type ChartData,
   type ChartOptions,
@@ -21,7 +20,6 @@ import {
   type Scale,
   type TooltipItem,
 } from 'chart.js';
-import 'chartjs-adapter-date-fns';
 import annotationPlugin from 'chartjs-plugin-annotation';
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import { Chart } from 'react-chartjs-2';
@@ -55,7 +53,9 @@ import {
   type ViewRange,
 } from '../../lib/shared/trend.ts';
 
-ChartJS.register(LineController, LineElement, PointElement, LinearScale, TimeScale, Tooltip, Legend, Filler, annotationPlugin);
+// The time axis is a linear axis over epoch ms with our own ticks and labels in the site's zone
+// (chart.js's time scale would need a date adapter and aligns ticks to the browser's zone).
+ChartJS.register(LineController, LineElement, PointElement, LinearScale, Tooltip, Legend, Filler, annotationPlugin);
 
 export interface TrendChannelOption {
   id: number;
@@ -416,7 +416,7 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
     const hasMarkers = showEvents && markers.length > 0;
     const scales: Record<string, any> = {
       x: {
-        type: 'time',
+        type: 'linear',
         min: fromMs,
         max: toMs,
         ticks: { callback: (v: string | number) => tickLabel(Number(v), tz, span), maxRotation: 0, autoSkipPadding: 18, color: '#4a545b' },
@@ -717,7 +717,7 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
           {!loading && !anyData && errors.length === 0 && (
             <div className="absolute inset-0 flex items-center justify-center" role="status">
               <div className="empty max-w-md text-center">
-                <p className="font-bold text-ink">No readings between {formatRange(fromMs, toMs, tz)}.</p>
+                <p className="font-bold text-ink">No readings in {formatRange(fromMs, toMs, tz)}.</p>
                 <p className="mt-1 text-sm">The device may have been offline, or the channel is new.</p>
                 <div className="mt-3 flex justify-center gap-2">
                   <button type="button" className="btn-quiet" onClick={() => go(zoomRange(view.range, 4))}>

@@ -101,7 +101,7 @@ async function doorOpenings(doorId: number, from: number, to: number): Promise<T
       group by grp order by 1`,
     [doorId, at(from), at(to)],
   );
-  return rows.map((r) => ({ tMs: r.t, kind: 'door-open', label: `Door open within ${r.minutes} min (minute rollup)` }));
+  return rows.map((r) => ({ tMs: r.t, kind: 'door-open', label: r.minutes === 1 ? 'Door open within one minute (minute resolution)' : `Door open in ${r.minutes} consecutive minutes (minute resolution)` }));
 }
 
 /** Window stretches and events for a channel's trend over [from, to]; null when the channel does not exist. */
