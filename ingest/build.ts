@@ -13,8 +13,13 @@ function newestMtime(dir: string): number {
   return newest;
 }
 
-/** Returns true when it built. Throws with a plain message when the build fails. */
-export function buildIfNeeded(root: string, log: (s: string) => void = () => {}): boolean {
+/**
+ * Returns true when it built. Throws with a plain message when the build fails.
+ * `snapshotTo`: also copy the finished `dist/` there while still holding the lock, so a caller
+ * (the test stack) can run a server from a build that a later parallel build cannot replace
+ * under it (a replaced chunk makes the running server answer 500).
+ */
+export function buildIfNeeded(root: string, log: (s: string) => void = () => {}, opts: { snapshotTo?: string } = {}): boolean {
   // Several test runs may start at once (contributors' parallel runs): one builds at a time.
   const lock = path.join(root, 'var', 'build.lock');
   fs.mkdirSync(path.dirname(lock), { recursive: true });
@@ -31,7 +36,12 @@ export function buildIfNeeded(root: string, log: (s: string) => void = () => {})
     }
   }
   try {
-    return buildLocked(root, log);
+    const built = buildLocked(root, log);
+    if (opts.snapshotTo) {
+      fs.rmSync(opts.snapshotTo, { recursive: true, force: true });
+      fs.cpSync(path.join(root, 'dist'), opts.snapshotTo, { recursive: true });
+    }
+    return built;
   } finally {
     fs.rmSync(lock, { recursive: true, force: true });
   }

@@ -45,7 +45,9 @@ async function waitFor(check: () => Promise<boolean>, timeoutMs: number, what: s
 }
 
 export async function startTestStack(): Promise<TestStack> {
-  buildIfNeeded(root, (s) => console.log(`[test] ${s}`));
+  // The web server runs from this run's own copy of the build: another run may rebuild dist/ meanwhile.
+  const distCopy = path.join(root, 'var', `test-dist-${process.pid}`);
+  buildIfNeeded(root, (s) => console.log(`[test] ${s}`), { snapshotTo: distCopy });
   const pgBaseDir = path.join(root, 'var', `test-pg-${process.pid}`);
   fs.rmSync(pgBaseDir, { recursive: true, force: true });
   const saved = process.env['DATABASE_URL'];
@@ -87,7 +89,7 @@ export async function startTestStack(): Promise<TestStack> {
   };
   start('broker', ['--import', 'tsx', 'ingest/broker-main.ts']);
   start('worker', ['--import', 'tsx', 'ingest/main.ts']);
-  start('web', ['dist/server/entry.mjs']);
+  start('web', [path.join(distCopy, 'server', 'entry.mjs')]);
   const baseUrl = `http://127.0.0.1:${webPort}`;
   await waitFor(async () => (await fetch(`${baseUrl}/api/health`)).status === 200, 40_000, 'the web server to report healthy');
   return {
@@ -109,6 +111,7 @@ export async function startTestStack(): Promise<TestStack> {
       await pool.end();
       await stopLocalPostgres(pgBaseDir);
       if (!process.env['KEEP_TEST_DB']) fs.rmSync(pgBaseDir, { recursive: true, force: true });
+      fs.rmSync(distCopy, { recursive: true, force: true });
     },
   };
 }
