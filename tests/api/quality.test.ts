@@ -21,13 +21,13 @@ let viewer: Session;
 const jobs: string[] = [];
 
 /** A minimal PNG: the 8-byte signature (ISO/IEC 15948 §5.2) and an IHDR chunk header, padded. */
-function pngBytes(size = 64): Uint8Array {
+function pngBytes(size = 64): Uint8Array<ArrayBuffer> {
   const b = new Uint8Array(size);
   b.set([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 0, 0, 0, 13, 0x49, 0x48, 0x44, 0x52]);
   return b;
 }
 
-async function upload(testId: number, name: string, bytes: Uint8Array | string, session: Session | null = quality) {
+async function upload(testId: number, name: string, bytes: Uint8Array<ArrayBuffer> | string, session: Session | null = quality) {
   const form = new FormData();
   form.append('file', new Blob([bytes]), name);
   // A browser sends its origin with a form upload; Astro refuses cross-site form posts without it.

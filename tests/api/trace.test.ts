@@ -166,6 +166,13 @@ describe('trace of a failed job', () => {
     expect(by[J[12]!]).toMatchObject({ tests: 0, lastTest: null, activeHoldId: null });
   });
 
+  it('each dip run is linked to the charge in its tank at the dip time', async () => {
+    const d1 = await api(`/api/v1/dip-runs/${dips['D1']}`, { session: viewer });
+    const d2 = await api(`/api/v1/dip-runs/${dips['D2']}`, { session: viewer });
+    expect(d1.body.bathChargeId).toBe(line.chargeId);
+    expect(d2.body.bathChargeId).toBe(charge2);
+  });
+
   it('a wider window (±9 h) takes in the dip 9 h earlier, still not the other charge or line', async () => {
     const tr = await trace(J[0]!, 9);
     expect(names(tr.siblings)).toEqual([J[1], J[2], J[3], J[4], J[6], J[7], J[8], J[12]].sort());

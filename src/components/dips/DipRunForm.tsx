@@ -6,7 +6,7 @@
  * (and their job numbers put on the rack). The server links the bath charge and the last bath
  * check at the dip time and measures the stroke's mean withdrawal speed from stored readings.
  */
-import { useState, type FormEvent } from 'react';
+import { useState, type SyntheticEvent } from 'react';
 import { apiFetch, ApiError } from '../../lib/client/api.ts';
 import { DipRunCreateSchema, MAX_JOBS_PER_SCAN, parseJobList, type JobCsvRow } from '../../lib/shared/jobs.ts';
 import { fromLocalInput, toLocalInput } from '../../lib/shared/time.ts';
@@ -74,7 +74,7 @@ export default function DipRunForm({ lines, timeZone }: { lines: { id: number; n
     }
   }
 
-  async function submit(e: FormEvent) {
+  async function submit(e: SyntheticEvent) {
     e.preventDefault();
     setMsg(null);
     if (parsed.invalid.length) return setMsg({ kind: 'error', text: `Not job numbers: ${parsed.invalid.map((x) => `line ${x.line} “${x.value}”`).join(', ')}.` });

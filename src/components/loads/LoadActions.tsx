@@ -3,7 +3,7 @@
  * recompute a closed load's record, print. The scan box takes a barcode scanner's input (one
  * code per line; the scanner's Enter ends a line) or typed numbers separated by commas/spaces.
  */
-import { useState, type FormEvent } from 'react';
+import { useState, type SyntheticEvent } from 'react';
 import { apiFetch, ApiError } from '../../lib/client/api.ts';
 import { parseJobList } from '../../lib/shared/jobs.ts';
 
@@ -28,7 +28,7 @@ export default function LoadActions({ loadId, status, canManage, canRecompute }:
   const [msg, setMsg] = useState<Msg>(null);
   const parsed = parseJobList(scan);
 
-  async function addJobs(e: FormEvent) {
+  async function addJobs(e: SyntheticEvent) {
     e.preventDefault();
     if (parsed.invalid.length) return setMsg({ kind: 'error', text: `Not a job or rack code: ${parsed.invalid.map((x) => `line ${x.line} “${x.value}”`).join(', ')}.` });
     if (!parsed.jobNumbers.length) return setMsg({ kind: 'error', text: 'Scan or type at least one code.' });

@@ -3,7 +3,7 @@
  * live refresh when a load opens, changes phase or closes (`loads` events), and — for the floor
  * roles — opening a load by hand.
  */
-import { useEffect, useMemo, useState, type FormEvent } from 'react';
+import { useEffect, useMemo, useState, type SyntheticEvent } from 'react';
 import { apiFetch, ApiError, subscribeLive } from '../../lib/client/api.ts';
 import { VERDICT_LABELS } from '../../lib/shared/jobs.ts';
 import { formatSiteTime } from '../../lib/shared/site-time.ts';
@@ -63,7 +63,7 @@ export default function LoadTable({ initial, timeZone, query, ovens, canManage }
     return sortRows(f, get, sort.dir);
   }, [rows, text, sort]);
 
-  async function open(e: FormEvent) {
+  async function open(e: SyntheticEvent) {
     e.preventDefault();
     setOpening(true);
     setError(null);

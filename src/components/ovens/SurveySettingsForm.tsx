@@ -1,12 +1,12 @@
 /** Survey settings (engineer): the interval after which an oven's survey is overdue, and the uniformity class table. */
-import { useState, type FormEvent } from 'react';
+import { useState, type SyntheticEvent } from 'react';
 import { apiFetch, ApiError } from '../../lib/client/api.ts';
 import { SurveySettingsSchema, type SurveySettings } from '../../lib/shared/surveys.ts';
 
 export default function SurveySettingsForm({ initial }: { initial: SurveySettings }) {
   const [s, setS] = useState(initial);
   const [msg, setMsg] = useState<{ kind: 'ok' | 'error'; text: string } | null>(null);
-  async function save(e: FormEvent) {
+  async function save(e: SyntheticEvent) {
     e.preventDefault();
     const p = SurveySettingsSchema.safeParse(s);
     if (!p.success) return setMsg({ kind: 'error', text: p.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join(' ') });

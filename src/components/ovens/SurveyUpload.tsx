@@ -8,7 +8,7 @@
  */
 import { CategoryScale, Chart as ChartJS, Legend, LinearScale, LineController, LineElement, PointElement, Tooltip, type ChartData, type ChartOptions } from 'chart.js';
 import annotationPlugin from 'chartjs-plugin-annotation';
-import { useState, type FormEvent } from 'react';
+import { useState, type SyntheticEvent } from 'react';
 import { Chart } from 'react-chartjs-2';
 import { apiFetch, ApiError } from '../../lib/client/api.ts';
 import { SurveyInputSchema } from '../../lib/shared/surveys.ts';
@@ -48,7 +48,7 @@ export default function SurveyUpload({ ovens, timeZone }: { ovens: { id: number;
     };
   }
 
-  async function send(e: FormEvent | null, save: boolean) {
+  async function send(e: SyntheticEvent | null, save: boolean) {
     e?.preventDefault();
     setErrors([]);
     const p = SurveyInputSchema.safeParse(body());

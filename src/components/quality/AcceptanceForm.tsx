@@ -3,7 +3,7 @@
  * boiling, the lowest Bayer ratio, the cured-thickness range and the defects accepted per type.
  * Tests already recorded keep the settings they were judged by.
  */
-import { useState, type FormEvent } from 'react';
+import { useState, type SyntheticEvent } from 'react';
 import { apiFetch, ApiError } from '../../lib/client/api.ts';
 import { AcceptanceSchema, DEFECT_LABELS, DEFECT_TYPES, type Acceptance, type DefectType } from '../../lib/shared/quality.ts';
 
@@ -14,7 +14,7 @@ export default function AcceptanceForm({ initial, canEdit }: { initial: Acceptan
   const [msg, setMsg] = useState<{ kind: 'ok' | 'error'; text: string } | null>(null);
   const [busy, setBusy] = useState(false);
 
-  async function save(e: FormEvent) {
+  async function save(e: SyntheticEvent) {
     e.preventDefault();
     const p = AcceptanceSchema.safeParse(a);
     if (!p.success) return setMsg({ kind: 'error', text: p.error.issues.map((i) => i.message).join(' ') });

@@ -3,7 +3,7 @@
  * server decides the type from the file's content (PNG, JPEG, PDF, UTF-8 text or CSV) and says
  * why it refuses anything else. Upload progress is shown.
  */
-import { useRef, useState, type FormEvent } from 'react';
+import { useRef, useState, type SyntheticEvent } from 'react';
 import { MAX_UPLOAD_BYTES } from '../../lib/shared/file-types.ts';
 
 export default function FileUpload({ testId }: { testId: number }) {
@@ -11,7 +11,7 @@ export default function FileUpload({ testId }: { testId: number }) {
   const [progress, setProgress] = useState<number | null>(null);
   const [msg, setMsg] = useState<{ kind: 'ok' | 'error'; text: string } | null>(null);
 
-  function submit(e: FormEvent) {
+  function submit(e: SyntheticEvent) {
     e.preventDefault();
     const file = input.current?.files?.[0];
     if (!file) return setMsg({ kind: 'error', text: 'Choose a file.' });

@@ -2,7 +2,7 @@
  * Write a nonconformance: tie failed test(s) to a suspected cause (the oven load, the bath
  * charge, both, or other) and to the holds already placed, with a description.
  */
-import { useState, type FormEvent } from 'react';
+import { useState, type SyntheticEvent } from 'react';
 import { apiFetch, ApiError } from '../../lib/client/api.ts';
 import { NcCreateSchema, SUSPECTED_CAUSES, SUSPECTED_CAUSE_LABELS } from '../../lib/shared/quality.ts';
 
@@ -33,7 +33,7 @@ export default function NcForm({ jobNumber, tests, loads, charges, holds, defaul
     return next;
   };
 
-  async function submit(e: FormEvent) {
+  async function submit(e: SyntheticEvent) {
     e.preventDefault();
     const body = {
       title: title.trim(),

@@ -4,7 +4,7 @@
  * selected jobs (quality), with a reason. Quick selections: the whole load, the failed, the
  * untested. Sortable, filterable, CSV of what is shown.
  */
-import { useMemo, useState, type FormEvent } from 'react';
+import { useMemo, useState, type SyntheticEvent } from 'react';
 import { apiFetch, ApiError } from '../../lib/client/api.ts';
 import { formatSiteTime } from '../../lib/shared/site-time.ts';
 import { TEST_KIND_LABELS } from '../../lib/shared/quality.ts';
@@ -59,7 +59,7 @@ export default function SiblingHold({ jobNumber, siblings, hours, timeZone, canH
   const selectWhere = (pred: (s: TraceSibling) => boolean) => setSelected(new Set(siblings.filter((s) => holdable(s) && pred(s)).map((s) => s.jobNumber)));
   const count = selected.size + (includeSelf && selfHoldable ? 1 : 0);
 
-  async function hold(e: FormEvent) {
+  async function hold(e: SyntheticEvent) {
     e.preventDefault();
     setError(null);
     if (count === 0) return setError('Select at least one job to hold.');

@@ -5,7 +5,7 @@
  * acceptance are shown while typing (the same domain functions the server uses); the server's
  * judgement is the one stored. Files (photos, reports) can be attached once the test is saved.
  */
-import { useState, type FormEvent } from 'react';
+import { useState, type SyntheticEvent } from 'react';
 import { apiFetch, ApiError } from '../../lib/client/api.ts';
 import { judgeTest, type TestMeasurement } from '../../lib/domain/quality/acceptance.ts';
 import { parseJobList } from '../../lib/shared/jobs.ts';
@@ -73,7 +73,7 @@ export default function TestForm({ acceptance, timeZone, initialJob }: { accepta
     preview = null;
   }
 
-  async function submit(e: FormEvent) {
+  async function submit(e: SyntheticEvent) {
     e.preventDefault();
     setErrors([]);
     const parsed = TestCreateSchema.safeParse(body());
