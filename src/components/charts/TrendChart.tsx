@@ -548,7 +548,7 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
     return `coatrail-trend-${names}-${toLocalInput(fromMs, tz).replace(/[:T]/g, '')}-${toLocalInput(toMs, tz).replace(/[:T]/g, '')}`;
   };
 
-  const applyCustom = (e: React.FormEvent) => {
+  const applyCustom = (e: React.SyntheticEvent) => {
     e.preventDefault();
     const a = fromLocalInput(custom.from, tz);
     const b = fromLocalInput(custom.to, tz);
