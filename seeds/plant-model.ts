@@ -46,7 +46,7 @@ export const DIP_LINES = ['dip-1', 'dip-2'] as const;
 export type DipLineCode = (typeof DIP_LINES)[number];
 
 /** Withdrawal-speed targets per line, mm/s. */
-export const WITHDRAWAL_TARGET_MM_S: Record<DipLineCode, number> = { 'dip-1': 2.0, 'dip-2': 1.6 };
+export const WITHDRAWAL_TARGET_MM_S: Record<DipLineCode, number> = { 'dip-1': 2.0, 'dip-2': 2.0 };
 /** Cure setpoint of the demo ovens, °C; standby setpoint between loads, °C. */
 export const CURE_SETPOINT_C = 110;
 export const STANDBY_SETPOINT_C = 25;

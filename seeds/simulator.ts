@@ -11,10 +11,10 @@
  * - Ovens every 2 s (setpoint, door, zone 1 and zone 2 air), bath temperature and room every
  *   10 s, viscosity every 60 s, withdrawal speed once per dip stroke (~every 40 s), UV
  *   irradiance and spin speed every 5 s. Single samples are `{"t": <epoch ms>, "v": <number>}`.
- * - Demo time: oven cycles are compressed to ~25 minutes (load in, ramp, 13-minute soak, cool,
- *   unload) so a new user sees the phases change; the bath evaporates sixty times faster
- *   (one minute of wall time is one running hour). SIM_REAL_TIME_OVENS=1 runs real-length
- *   cycles instead (180-minute soak; cure records then come out complete).
+ * - Oven cycles run at real length (180-minute soak), so live cure records come out complete;
+ *   SIM_FAST_OVENS=1 compresses them to ~25 minutes to watch the phases change (their cure
+ *   records are then honestly under-cured). The bath evaporates sixty times faster (one minute
+ *   of wall time is one running hour).
  * - In the first minutes: oven A's door opens mid-soak (≈ 8 °C dip), oven B's zone 2
  *   thermocouple stops reporting for 2 minutes, and line 1's viscosity drifts above the
  *   window high (12.5 mm²/s) from about minute 5 until a solvent addition at minute 8 brings
@@ -68,7 +68,9 @@ if (!secret) {
   process.exit(1);
 }
 const url = process.env['MQTT_URL'] || `mqtt://127.0.0.1:${process.env['MQTT_PORT'] || 1883}`;
-const realTimeOvens = ['1', 'true', 'yes'].includes((process.env['SIM_REAL_TIME_OVENS'] ?? '').toLowerCase());
+// Real-length oven cycles by default, so live cure records are honest (a compressed cycle cannot
+// reach the window's equivalent minutes and would fill the queue with cure alarms).
+const realTimeOvens = !['1', 'true', 'yes'].includes((process.env['SIM_FAST_OVENS'] ?? '').toLowerCase());
 const say = (s: string) => console.log(`[simulator] ${s}`);
 
 const startMs = Math.ceil(Date.now() / 1000) * 1000;
@@ -195,7 +197,8 @@ function addCycle(sim: OvenSim, loadStartMs: number, kind: OvenCycleKind): OvenC
   const a = ovens.get('oven-a')!;
   const first = addCycle(a, startMs + 15_000, 'normal');
   first.kind = 'door-opened';
-  const doorAt = first.soakStartMs + (realTimeOvens ? 40 : 0.8) * MINUTE_MS;
+  // Real-length cycles: the door opens in the first minutes while the oven heats (still a cure in progress).
+  const doorAt = realTimeOvens ? startMs + 5 * MINUTE_MS : first.soakStartMs + 0.8 * MINUTE_MS;
   first.doorOpenings.push({ startMs: doorAt, endMs: doorAt + (realTimeOvens ? 150_000 : 45_000), reason: 'mid-soak' });
   first.doorOpenings.sort((x, y) => x.startMs - y.startMs);
   const b = ovens.get('oven-b')!;
