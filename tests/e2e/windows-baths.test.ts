@@ -120,7 +120,7 @@ describe('bath check on the tablet form (operator)', () => {
     await panel.screenshot({ path: path.join(OUT, 'bath-overview.png') });
     await page.screenshot({ path: path.join(OUT, 'baths-page.png') });
     await page.context().close();
-  });
+  }, 90_000);
 });
 
 describe('calculator pages (viewer)', () => {
@@ -150,7 +150,7 @@ describe('calculator pages (viewer)', () => {
     expect(Math.abs(thickness - 2000) / 2000).toBeLessThan(0.005);
     await page.screenshot({ path: path.join(OUT, 'calc-fringe-spectrum.png'), fullPage: true });
     await page.context().close();
-  });
+  }, 90_000);
 });
 
 describe('process window draft and signed approval (engineer)', () => {
@@ -195,5 +195,5 @@ describe('process window draft and signed approval (engineer)', () => {
     const { rows } = await pool.query(`select action from audit_log where entity = 'process_window' and entity_id = $1 order by id`, [String(id)]);
     expect(rows.map((r) => r.action)).toEqual(['window.draft', 'window.approve']);
     await page.context().close();
-  });
+  }, 90_000);
 });
