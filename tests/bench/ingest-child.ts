@@ -4,7 +4,8 @@
  * now − its sample time, where the publisher set the sample time to the publish time) or a
  * plain MQTT subscriber (the broker-only limit). Talks to the parent over IPC:
  *   parent → {expect: n}          start counting n readings (or messages)
- *   child  → {ready} once connected; {done, count, lastMs, p50, p99, max} when n have arrived.
+ *   child  → {ready} once connected; {done, count, lastMs, p50, p99, max, cpuMs} when n have
+ *            arrived (cpuMs: this process's CPU time since {expect}).
  */
 import mqtt from 'mqtt';
 import { createPool } from '../../db/connection.ts';
@@ -19,6 +20,7 @@ let expected = 0;
 let count = 0;
 let latencies = new Float64Array(0);
 let timed = 0;
+let cpuAtStart = process.cpuUsage();
 
 function record(nowMs: number, tMs: number, timeIt: boolean) {
   if (!expected) return;
@@ -27,7 +29,8 @@ function record(nowMs: number, tMs: number, timeIt: boolean) {
   if (count === expected) {
     const lat = latencies.subarray(0, timed).sort();
     const q = (p: number) => (lat.length ? lat[Math.min(lat.length - 1, Math.floor(p * lat.length))]! : NaN);
-    send({ done: true, count, lastMs: nowMs, p50: q(0.5), p99: q(0.99), max: lat.length ? lat[lat.length - 1] : NaN });
+    const cpu = process.cpuUsage(cpuAtStart);
+    send({ done: true, count, lastMs: nowMs, p50: q(0.5), p99: q(0.99), max: lat.length ? lat[lat.length - 1] : NaN, cpuMs: (cpu.user + cpu.system) / 1000 });
     expected = 0;
   }
 }
@@ -40,6 +43,7 @@ process.on('message', (m: { expect?: number; time?: boolean }) => {
     timed = 0;
     timeSamples = m.time ?? true;
     latencies = new Float64Array(m.expect);
+    cpuAtStart = process.cpuUsage();
   }
 });
 
@@ -70,7 +74,9 @@ if (mode === 'subscriber') {
       for (const r of rows) record(now, r.tMs, timeSamples);
     },
   };
-  const worker = await startWorker({ config, pool, handlers: [timer, ...postCommitHandlers] });
+  // BENCH_HANDLERS=none measures the pipeline alone, without the product's post-commit handlers.
+  const others = process.env['BENCH_HANDLERS'] === 'none' ? [] : postCommitHandlers;
+  const worker = await startWorker({ config, pool, handlers: [timer, ...others] });
   const ready = setInterval(() => {
     if (worker.stats().subscribed) {
       clearInterval(ready);

@@ -13,10 +13,12 @@
  * as separate processes, and stops them all at the end. Latency is publish → commit: the
  * publisher sets each sample's time to its publish time and a post-commit handler in the
  * worker process records commit time − sample time. Environment: BENCH_N (default 100 000),
- * BENCH_BATCH (500), BENCH_PACED_S (10), INGEST_FLUSH_MS (the worker's, default 20).
+ * BENCH_BATCH (500), BENCH_PACED_S (10), INGEST_FLUSH_MS (the worker's, default 20),
+ * BENCH_HANDLERS=none (the pipeline without the product's post-commit handlers).
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
+import os from 'node:os';
 import path from 'node:path';
 import { pipeline } from 'node:stream/promises';
 import { Readable } from 'node:stream';
@@ -47,6 +49,7 @@ interface Done {
   p50: number;
   p99: number;
   max: number;
+  cpuMs: number;
 }
 
 const children: ChildProcess[] = [];
@@ -121,6 +124,7 @@ async function publishAll(
 async function main() {
   fs.rmSync(dir, { recursive: true, force: true });
   fs.mkdirSync(dir, { recursive: true });
+  const loadAtStart = os.loadavg()[0]!;
   say(
     `N = ${N.toLocaleString('en-GB')} readings, batches of ${BATCH}, ${CHANNELS} channels, paced ${PACED_RATE}/s for ${PACED_S} s`,
   );
@@ -196,7 +200,7 @@ async function main() {
   let done = nextMessage<Done>(sub, (m) => m.done, 300_000, 'the subscriber to receive everything');
   let t0 = await publishAll(publisher, N, single);
   let r = await done;
-  const broker = { rate: N / ((r.lastMs - t0) / 1000), p50: r.p50, p99: r.p99 };
+  const broker = { rate: N / ((r.lastMs - t0) / 1000), p50: r.p50, p99: r.p99, cpuUs: (r.cpuMs * 1000) / N };
   await stopChild(sub);
 
   // 2. COPY limit.
@@ -210,7 +214,11 @@ async function main() {
       const lines: string[] = [];
       for (let i = 0; i < rows; i++)
         lines.push(`${copyChannel}\t${new Date(base + (done + i) * 1000).toISOString()}\t${(i % 1000) / 10}\t0\n`);
-      await pipeline(Readable.from(lines), client.query(copyFrom('COPY readings(channel_id, ts, value, quality) FROM STDIN')));
+      // One chunk per COPY: many small writes would measure the stream, not PostgreSQL.
+      await pipeline(
+        Readable.from([Buffer.from(lines.join(''))]),
+        client.query(copyFrom('COPY readings(channel_id, ts, value, quality) FROM STDIN')),
+      );
     }
   } finally {
     client.release();
@@ -225,7 +233,7 @@ async function main() {
   done = nextMessage<Done>(worker, (m) => m.done, 600_000, 'the worker to commit everything');
   t0 = await publishAll(publisher, N, single);
   r = await done;
-  const singles = { rate: N / ((r.lastMs - t0) / 1000), p50: r.p50, p99: r.p99 };
+  const singles = { rate: N / ((r.lastMs - t0) / 1000), p50: r.p50, p99: r.p99, cpuUs: (r.cpuMs * 1000) / N };
 
   // 4. Batches.
   say(`4/5 batches of ${BATCH} samples → worker → committed…`);
@@ -246,7 +254,7 @@ async function main() {
     { window: 50 },
   );
   r = await done;
-  const batched = { rate: (messages * BATCH) / ((r.lastMs - t0) / 1000) };
+  const batched = { rate: (messages * BATCH) / ((r.lastMs - t0) / 1000), cpuUs: (r.cpuMs * 1000) / (messages * BATCH) };
 
   // 5. Paced.
   say(`5/5 paced: ${PACED_RATE} single-sample readings/s for ${PACED_S} s…`);
@@ -288,7 +296,15 @@ async function main() {
   }
   console.log('');
   say(
-    `rows in readings at the end: ${f(total[0]!.n)} (expected ${f(N + N + messages * BATCH + paced)}); flush ${process.env['INGEST_FLUSH_MS'] ?? 20} ms`,
+    `CPU of the receiving process: subscriber ${broker.cpuUs.toFixed(1)} µs/message; worker ${singles.cpuUs.toFixed(1)} µs/reading (single samples), ` +
+      `${batched.cpuUs.toFixed(2)} µs/reading (batches)`,
+  );
+  say(
+    `load average (1 min) at start ${loadAtStart.toFixed(1)}, at end ${os.loadavg()[0]!.toFixed(1)}, on ${os.cpus().length} CPUs`,
+  );
+  say(
+    `rows in readings at the end: ${f(total[0]!.n)} (expected ${f(N + N + messages * BATCH + paced)}); flush ${process.env['INGEST_FLUSH_MS'] ?? 20} ms; ` +
+      `post-commit handlers: ${process.env['BENCH_HANDLERS'] === 'none' ? 'none' : "the product's"}`,
   );
   fs.rmSync(dir, { recursive: true, force: true });
 }
