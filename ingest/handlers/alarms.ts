@@ -105,6 +105,8 @@ interface ChannelInfo {
 
 interface EffectiveLimit extends LimitDetectorConfig {
   priority: AlarmPriority;
+  /** The window's target when the limits are offsets from it. */
+  target?: number;
   onlyWhileRunning: boolean;
   label: string | null;
   origin: string;
@@ -304,7 +306,8 @@ export function createAlarmsHandler(): PostCommitHandler {
       return {
         ...base,
         ...limitsOf(cfg.high === null ? null : r.target + cfg.high, cfg.low === null ? null : r.target + cfg.low),
-        origin: `target ${fmt(r.target)} ${ch.unit} ±`,
+        origin: 'target',
+        target: r.target,
       };
     }
     if (!WINDOW_FIELD[ch.kind]) return null;
@@ -338,8 +341,11 @@ export function createAlarmsHandler(): PostCommitHandler {
     }
     const what = KIND_WORDS[ch.kind] ?? ch.name;
     const limit = side === 'high' ? lim.high! : lim.low!;
-    const where = lim.origin === 'window' ? 'the process window' : lim.origin === 'alarm' ? 'the alarm' : lim.origin;
-    return `${what} ${fmt(v)} ${ch.unit} ${side === 'high' ? 'above' : 'below'} ${where} ${side} ${fmt(limit)} ${ch.unit}`;
+    const where = lim.origin === 'window' ? 'the process window' : 'the alarm';
+    const text = `${what} ${fmt(v)} ${ch.unit} ${side === 'high' ? 'above' : 'below'} ${where} ${side} ${fmt(limit)} ${ch.unit}`;
+    if (lim.target === undefined) return text;
+    const offset = limit - lim.target;
+    return `${text} (window target ${fmt(lim.target)} ${ch.unit} ${offset >= 0 ? '+' : '−'} ${fmt(Math.abs(offset))})`;
   }
 
   async function evaluateChannel(ctx: WorkerContext, ch: ChannelInfo, samples: StoredReading[]): Promise<void> {

@@ -50,6 +50,7 @@ function describeLimits(c: ChannelAlarmConfigView): string {
     return WINDOW_KINDS[c.channelKind] ? 'Process window in force' : '—';
   }
   const u = c.unit;
+  if (c.channelKind === 'door') return cfg.high != null ? 'door open' : 'door closed';
   if (cfg.limitsMode === 'target-offset') {
     return `target ${cfg.low != null ? `${cfg.low >= 0 ? '+' : ''}${cfg.low}` : '…'} / ${cfg.high != null ? `+${cfg.high}` : '…'} ${u}`;
   }
@@ -211,7 +212,7 @@ function ChannelRow({
           {g?.label && <div className="font-sans text-xs text-ink-soft">“{g.label}”</div>}
           {g?.onlyWhileRunning && <div className="font-sans text-xs text-ink-soft">only while running</div>}
         </td>
-        <td className="num text-right">{g && (g.high != null || g.low != null) ? `${g.deadband} ${c.unit}` : '—'}</td>
+        <td className="num text-right">{g && (g.high != null || g.low != null) && c.channelKind !== 'door' ? `${g.deadband} ${c.unit}` : '—'}</td>
         <td className="num text-right">{g && (g.high != null || g.low != null) ? `${g.onDelayMs / 1000} s / ${g.offDelayMs / 1000} s` : '—'}</td>
         <td>{g && (g.high != null || g.low != null) ? g.priority : '—'}</td>
         <td className="num">{g?.staleSeconds ? `${g.staleSeconds} s (${g.stalePriority})` : '—'}</td>

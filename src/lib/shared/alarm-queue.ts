@@ -31,13 +31,17 @@ export type QueueSort = 'priority' | 'newest';
 
 /**
  * Queue order. `priority` (default): waiting for acknowledgement first, then high → low, then
- * newest activation first. `newest`: newest activation first.
+ * still active before already cleared, then newest activation first. `newest`: newest
+ * activation first.
  */
 export function sortQueue(list: readonly AlarmView[], sort: QueueSort = 'priority'): AlarmView[] {
   const waiting = (a: AlarmView) => (a.state === 'unacked' || a.state === 'rtn-unacked' ? 0 : 1);
   return [...list].sort((a, b) => {
     if (sort === 'priority') {
-      const d = waiting(a) - waiting(b) || PRIORITY_RANK[a.priority] - PRIORITY_RANK[b.priority];
+      const d =
+        waiting(a) - waiting(b) ||
+        PRIORITY_RANK[a.priority] - PRIORITY_RANK[b.priority] ||
+        Number(b.active) - Number(a.active);
       if (d !== 0) return d;
     }
     return b.lastActivatedAtMs - a.lastActivatedAtMs || b.id - a.id;

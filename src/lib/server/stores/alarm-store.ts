@@ -526,7 +526,7 @@ export async function listAlarms(pool: Queryable, f: ListAlarmsFilter): Promise<
       ${where.length ? `where ${where.join(' and ')}` : ''}
       order by (a.state in ('unacked','rtn-unacked')) desc,
                case a.priority when 'high' then 0 when 'medium' then 1 else 2 end,
-               a.last_activated_at desc, a.id desc
+               a.active desc, a.last_activated_at desc, a.id desc
       limit $${params.length}`,
     params,
   );
