@@ -58,8 +58,11 @@ const ovens = new Map<number, OvenState>();
 const roles = new Map<number, Role>();
 let refreshedAt = 0;
 let syncedAt = 0;
+/** Highest channel id known at the last refresh: a reading from a newer channel triggers a refresh. */
+let maxChannelId = 0;
 
-async function refresh(ctx: WorkerContext): Promise<void> {
+/** Re-read the ovens and their channels; `initial` also takes each oven's last stored setpoint (worker start). */
+async function refresh(ctx: WorkerContext, initial = false): Promise<void> {
   const { rows } = await ctx.pool.query<{ oven_id: number; oven_name: string; channel_id: number | null; kind: string | null; on_oven: boolean | null }>(
     `select o.id as oven_id, o.name as oven_name, c.id as channel_id, c.kind, c.asset_id = o.id as on_oven
        from assets o
@@ -68,6 +71,7 @@ async function refresh(ctx: WorkerContext): Promise<void> {
       where o.kind = 'oven'`,
   );
   roles.clear();
+  maxChannelId = (await ctx.pool.query<{ m: number | null }>('select max(id) as m from channels')).rows[0]?.m ?? 0;
   for (const r of rows) {
     let o = ovens.get(r.oven_id);
     if (!o) {
@@ -87,7 +91,8 @@ async function refresh(ctx: WorkerContext): Promise<void> {
         busy: false,
       };
       ovens.set(r.oven_id, o);
-      const sp = await ctx.pool.query<{ v: number; t: number }>(
+      // An oven set up while the worker runs starts from its first live setpoint instead.
+      const sp = !initial ? { rows: [] as { v: number; t: number }[] } : await ctx.pool.query<{ v: number; t: number }>(
         `select value as v, (extract(epoch from ts) * 1000)::float8 as t from readings r join channels c on c.id = r.channel_id
           where c.asset_id = $1 and c.kind = 'setpoint' order by ts desc limit 1`,
         [o.id],
@@ -215,7 +220,7 @@ async function step(ctx: WorkerContext, o: OvenState, r: StoredReading, kind: Ro
   o.zones.set(r.channelId, { t: r.tMs, v: r.value });
   if (o.loadId === null) return;
   const z = coldestFresh(o, r.tMs);
-  if (o.fellAtMs !== null && z && z.hot <= Math.max(UNLOAD_C, (o.lastSp ?? 0) + 10)) {
+  if (o.fellAtMs !== null && r.tMs > o.fellAtMs && z && z.hot <= Math.max(UNLOAD_C, (o.lastSp ?? 0) + 10)) {
     await close(ctx, o, r.tMs, `cycle end: setpoint back to ${o.lastSp} °C and the oven cooled to ${z.hot.toFixed(1)} °C`);
     return;
   }
@@ -229,11 +234,12 @@ async function step(ctx: WorkerContext, o: OvenState, r: StoredReading, kind: Ro
 export const ovenLoadsHandler: PostCommitHandler = {
   name: 'oven-loads',
   async init(ctx) {
-    await refresh(ctx);
+    await refresh(ctx, true);
     await sync(ctx);
   },
   async onReadings(ctx, rows) {
-    if (Date.now() - refreshedAt > REFRESH_MS) await refresh(ctx);
+    const since = Date.now() - refreshedAt;
+    if (since > REFRESH_MS || (since > 2000 && rows.some((r) => r.channelId > maxChannelId))) await refresh(ctx);
     const mine = rows.filter((r) => roles.has(r.channelId) && r.quality < 2).sort((a, b) => a.tMs - b.tMs);
     for (const r of mine) {
       const role = roles.get(r.channelId) as Role;

@@ -8,12 +8,14 @@
  * Window of the constructed profiles (TEST_CURE_LIMITS, hand-chosen): minimum 100 °C, 150
  * equivalent minutes at 110 °C, Ea 75 kJ/mol, parts ≤ 125 °C, ramps ≤ 10 °C/min, gap > 120 s.
  */
+import mqtt from 'mqtt';
 import type pg from 'pg';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
+import { channelTopic } from '../../ingest/topics.ts';
 import type { StoredCureRecord } from '../../src/lib/shared/jobs.ts';
 import { closeTestPool, testPool } from '../support/accounts.ts';
 import { api, signIn, type Session } from '../support/http.ts';
-import { createTestOven, insertReadings, minuteDaysAgo, type TestOven } from '../support/trace-fixtures.ts';
+import { createTestOven, insertReadings, minuteDaysAgo, tag, TEST_CURE_LIMITS, type TestOven } from '../support/trace-fixtures.ts';
 
 const MIN = 60_000;
 let pool: pg.Pool;
@@ -218,4 +220,47 @@ describe('cure record from stored readings', () => {
     // Still one open alarm for the source (the raise updates it, it does not duplicate it).
     expect(await cureAlarm(id)).toHaveLength(1);
   });
+});
+
+describe('the ingest worker opens and closes loads by itself', () => {
+  it('a setpoint rise of ≥ 50 °C opens a load; the setpoint falling back and the oven cooling closes it', async () => {
+    const password = `pw-${tag()}`;
+    const o = await createTestOven(pool, TEST_CURE_LIMITS, password);
+    const client = mqtt.connect(`mqtt://127.0.0.1:${inject('stack').mqttPort}`, { username: o.device.username, password, protocolVersion: 4, reconnectPeriod: 0, connectTimeout: 5000 });
+    await new Promise<void>((resolve, reject) => {
+      client.once('connect', () => resolve());
+      client.once('error', reject);
+    });
+    const asset = { setpoint: o.code, zone1: `${o.code}-z1`, zone2: `${o.code}-z2` };
+    const send = (a: string, key: string, t: number, v: number) => client.publishAsync(channelTopic(o.device.prefix, a, key), JSON.stringify({ t, v }), { qos: 1 });
+    const start = minuteDaysAgo(0.5);
+    // Constructed cycle (minutes from the setpoint step): standby 25 °C; at 0 the setpoint steps to
+    // 110 °C; the coldest zone heats 30 → 110 °C at 4 °C/min, soaks to minute 180, the setpoint
+    // steps back to 25 °C at 180 and the zones cool at 5 °C/min (zone 1 = coldest + 2 °C).
+    const cold = (m: number) => (m < 0 ? 30 : m <= 20 ? 30 + 4 * m : m <= 180 ? 110 : 110 - 5 * (m - 180));
+    try {
+      for (let m = -5; m <= 195; m++) {
+        const t = start + m * MIN;
+        if (m === -5 || m === 0 || m === 180) await send(asset.setpoint, 'setpoint', t, m >= 0 && m < 180 ? 110 : 25);
+        await send(asset.zone2, 'air-temp', t, cold(m));
+        await send(asset.zone1, 'air-temp', t, cold(m) + 2);
+      }
+    } finally {
+      await client.endAsync();
+    }
+    let load: { id: number; opened_at: Date; closed_at: Date | null; opened_by: string; closed_by: string | null; verdict: string | null } | undefined;
+    for (let i = 0; i < 100 && !load?.verdict; i++) {
+      load = (await pool.query(`select id, opened_at, closed_at, opened_by, closed_by, verdict from oven_loads where oven_asset_id = $1`, [o.id])).rows[0];
+      if (!load?.verdict) await new Promise((r) => setTimeout(r, 200));
+    }
+    expect(load).toBeDefined();
+    // Opened at the setpoint step (minute 0); closed at the first reading after the fall with every
+    // zone at or below 60 °C: zone 1 = 112 − 5k ≤ 60 → k = 11, minute 191 (hand-computed).
+    expect(load!.opened_by).toBe('auto');
+    expect(load!.opened_at.getTime()).toBe(start);
+    expect(load!.closed_by).toBe('auto');
+    expect(load!.closed_at!.getTime()).toBe(start + 191 * MIN);
+    // 160 min at 110 °C plus the ramps: complete against 150 equivalent minutes.
+    expect(load!.verdict).toBe('complete');
+  }, 60_000);
 });

@@ -6,6 +6,8 @@
  */
 import { randomBytes } from 'node:crypto';
 import type pg from 'pg';
+import { deviceTopicPrefix } from '../../ingest/topics.ts';
+import { hashPassword } from '../../src/lib/server/passwords.ts';
 import type { ProcessWindowLimits } from '../../src/lib/shared/windows.ts';
 
 export const tag = () => randomBytes(4).toString('hex');
@@ -27,13 +29,16 @@ async function siteId(pool: pg.Pool): Promise<number> {
   return (await pool.query<{ id: number }>('select id from sites order by id limit 1')).rows[0]!.id;
 }
 
-async function device(pool: pg.Pool, t: string): Promise<number> {
-  const site = await siteId(pool);
+/** A device (gateway) of the site; with a password it can publish over MQTT under its own prefix. */
+async function device(pool: pg.Pool, t: string, password?: string): Promise<{ id: number; username: string; prefix: string }> {
+  const site = await pool.query<{ id: number; code: string }>('select id, code from sites order by id limit 1');
+  const username = `t9-gw-${t}`;
+  const prefix = deviceTopicPrefix(site.rows[0]!.code, username);
   const { rows } = await pool.query<{ id: number }>(
-    `insert into devices (site_id, name, username, password_hash, topic_prefix) values ($1, $2, $3, 'x', $4) returning id`,
-    [site, `Test gateway ${t}`, `t9-gw-${t}`, `coatrail/v1/test/t9-gw-${t}`],
+    `insert into devices (site_id, name, username, password_hash, topic_prefix) values ($1, $2, $3, $4, $5) returning id`,
+    [site.rows[0]!.id, `Test gateway ${t}`, username, password ? await hashPassword(password) : 'x', prefix],
   );
-  return rows[0]!.id;
+  return { id: rows[0]!.id, username, prefix };
 }
 
 async function asset(pool: pg.Pool, parentId: number | null, kind: string, code: string, name: string, details: Record<string, unknown> = {}): Promise<number> {
@@ -76,16 +81,19 @@ export interface TestOven {
   id: number;
   code: string;
   name: string;
+  /** The oven's gateway (MQTT username and topic prefix). */
+  device: { username: string; prefix: string };
   setpointId: number;
   doorId: number;
   zoneIds: [number, number];
   windowId: number;
 }
 
-/** A throwaway oven with two zones and its own window (TEST_CURE_LIMITS unless given). */
-export async function createTestOven(pool: pg.Pool, limits: ProcessWindowLimits = TEST_CURE_LIMITS): Promise<TestOven> {
+/** A throwaway oven with two zones and its own window (TEST_CURE_LIMITS unless given); a device password lets a test publish for it. */
+export async function createTestOven(pool: pg.Pool, limits: ProcessWindowLimits = TEST_CURE_LIMITS, devicePassword?: string): Promise<TestOven> {
   const t = tag();
-  const dev = await device(pool, t);
+  const d = await device(pool, t, devicePassword);
+  const dev = d.id;
   const code = `t9-oven-${t}`;
   const name = `Test oven ${t}`;
   const id = await asset(pool, null, 'oven', code, name);
@@ -96,7 +104,7 @@ export async function createTestOven(pool: pg.Pool, limits: ProcessWindowLimits 
   const a1 = await channel(pool, z1, dev, 'air-temp', 'air-temperature', '°C', -20, 300);
   const a2 = await channel(pool, z2, dev, 'air-temp', 'air-temperature', '°C', -20, 300);
   const windowId = await testWindow(pool, t, [id], limits);
-  return { id, code, name, setpointId, doorId, zoneIds: [a1, a2], windowId };
+  return { id, code, name, device: { username: d.username, prefix: d.prefix }, setpointId, doorId, zoneIds: [a1, a2], windowId };
 }
 
 export interface TestLine {
@@ -112,7 +120,7 @@ export interface TestLine {
 /** A throwaway dip line with a hard-coat tank, a bath charge (charged `chargedDaysAgo`) and its own window. */
 export async function createTestLine(pool: pg.Pool, chargedDaysAgo = 10): Promise<TestLine> {
   const t = tag();
-  const dev = await device(pool, t);
+  const dev = (await device(pool, t)).id;
   const code = `t9-line-${t}`;
   const id = await asset(pool, null, 'line', code, `Test line ${t}`);
   const tankId = await asset(pool, id, 'tank', `${code}-hc`, `Test line ${t} hard-coat bath`, { role: 'hard-coat' });
