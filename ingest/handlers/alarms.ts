@@ -12,13 +12,18 @@
  *    force for its asset (viscosity, withdrawal speed, bath temperature, room humidity), with a
  *    deadband of 2 % of the window's width, a 10 s on-delay, no off-delay and medium priority.
  *    `target-offset` limits are added to the window's target (e.g. withdrawal speed ± 0.15 mm/s).
- *    With `onlyWhileRunning` the channel is judged only while its asset runs; otherwise an
- *    active alarm clears and the detector restarts.
+ *    With `onlyWhileRunning` the channel raises only while its asset runs (see suppression below).
  * 2. **Stale data** (`stale`, `stale:channel:{id}`): no reading for `staleSeconds` while the
  *    asset runs. "Running": an oven (and its zones) runs while its last setpoint is ≥ 50 °C;
  *    any other asset (dip lines, coater, room) counts as running when the channel had data in
  *    the last hour — a channel silent for longer is taken to be switched off for the shift and
- *    raises nothing. The alarm clears when data returns or the oven stops.
+ *    raises nothing. The alarm clears when data returns.
+ *
+ * Suppression by design (ANSI/ISA-18.2 "suppressed by design"): while an oven idles (setpoint
+ * below 50 °C), the open alarms of its only-while-running channels (door open during cure) and
+ * its no-data alarms are suppressed — not annunciated, their condition still tracked — and
+ * come back when it runs again: as needing acknowledgement if the condition is still abnormal,
+ * else to normal. A condition that starts while the oven idles raises nothing.
  * 3. **Device offline** (`device`, `device:{id}`): an enabled device that has been seen at
  *    least once and has been offline (`devices.online = false`) for more than 60 s. A device
  *    never seen is not commissioned yet and raises nothing.
@@ -67,6 +72,7 @@ import {
   expireShelves,
   getAlarm,
   raiseAlarmReturning,
+  systemEventForSource,
   recordEscalation,
   releaseEscalation,
   type AlarmHint,
@@ -116,6 +122,8 @@ interface ChannelRuntime {
   det: LimitDetectorState;
   sig: string;
   lastValue: number | null;
+  /** Whether the asset ran at the last judged sample (only-while-running channels); undefined before the first. */
+  running?: boolean;
 }
 
 /** Which window field a channel kind is judged against. */
@@ -170,6 +178,7 @@ export function createAlarmsHandler(): PostCommitHandler {
   const lastSeen = new Map<number, number>();
   const setpoints = new Map<number, number>();
   const staleActive = new Set<number>();
+  const staleSuppressed = new Set<number>();
   const deviceActive = new Set<number>();
   const systemActive = new Set<string>();
   const journalHistory = new Map<string, number[]>();
@@ -220,6 +229,38 @@ export function createAlarmsHandler(): PostCommitHandler {
     } else {
       known.delete(sourceKey);
     }
+  }
+
+  /** Suppression by design: returns the alarm when it changed. */
+  async function systemEvent(ctx: WorkerContext, sourceKey: string, type: 'suppress' | 'unsuppress', atMs: number): Promise<AlarmView | null> {
+    const hint = known.get(sourceKey);
+    if (hint === 'none') return null;
+    const view = await systemEventForSource(ctx.pool, sourceKey, { type }, atMs, hint);
+    if (view) {
+      remember(sourceKey, view);
+      ctx.publishLive('alarms', view);
+    } else {
+      known.delete(sourceKey);
+    }
+    return view;
+  }
+
+  /**
+   * An only-while-running channel's asset started or stopped: while it is idle its open alarms
+   * are suppressed by design (not annunciated, condition still tracked); when it runs again they
+   * come back — as needing acknowledgement if the condition is still abnormal, else normal —
+   * and the detector judges afresh.
+   */
+  async function syncRunning(ctx: WorkerContext, ch: ChannelInfo, rt: ChannelRuntime, isRunning: boolean, atMs: number): Promise<void> {
+    const was = rt.running ?? true;
+    rt.running = isRunning;
+    if (was === isRunning) return;
+    let held: LimitSide | null = null;
+    for (const side of ['high', 'low'] as const) {
+      const view = await systemEvent(ctx, `channel:${ch.id}:${side}`, isRunning ? 'unsuppress' : 'suppress', atMs);
+      if (isRunning && view?.active) held = side;
+    }
+    if (isRunning) rt.det = { ...initialDetectorState(), alarm: held };
   }
 
   async function loadChannels(ctx: WorkerContext, nowMs: number): Promise<void> {
@@ -368,11 +409,8 @@ export function createAlarmsHandler(): PostCommitHandler {
     if (!lim) return;
     for (const s of samples) {
       rt.lastValue = s.value;
-      if (lim.onlyWhileRunning && !running(ch, s.tMs)) {
-        if (rt.det.alarm !== null) await clear(ctx, `channel:${ch.id}:${rt.det.alarm}`, s.tMs);
-        rt.det = initialDetectorState();
-        continue;
-      }
+      const isRunning = !lim.onlyWhileRunning || running(ch, s.tMs);
+      if (lim.onlyWhileRunning) await syncRunning(ctx, ch, rt, isRunning, s.tMs);
       const before = rt.det.alarm;
       const r = step(rt.det, { tMs: s.tMs, v: s.value }, lim);
       rt.det = r.state;
@@ -380,9 +418,16 @@ export function createAlarmsHandler(): PostCommitHandler {
         await clear(ctx, `channel:${ch.id}:${before}`, s.tMs);
       } else if (r.event === 'activate-high' || r.event === 'activate-low') {
         const side: LimitSide = r.event === 'activate-high' ? 'high' : 'low';
+        const key = `channel:${ch.id}:${side}`;
+        // While idle the condition is expected (a door open between loads): track it on a
+        // suppressed alarm if there is one, raise nothing new.
+        if (!isRunning) {
+          const hint = known.get(key) ?? null;
+          if (hint === null || hint === 'none' || hint.state !== 'suppressed') continue;
+        }
         await raise(ctx, {
           sourceKind: 'limit',
-          sourceKey: `channel:${ch.id}:${side}`,
+          sourceKey: key,
           sourceLabel: sourceLabelOf(ch),
           assetId: ch.assetId,
           channelId: ch.id,
@@ -463,13 +508,18 @@ export function createAlarmsHandler(): PostCommitHandler {
       const seen = lastSeen.get(id);
       const silentMs = seen === undefined ? Number.POSITIVE_INFINITY : nowMs - seen;
       const isOven = ch.ovenAssetId !== null;
+      const key = `stale:channel:${id}`;
+      // An idle oven needs no data: its no-data alarm is suppressed by design until it runs again.
+      if (isOven && staleSuppressed.has(id) && running(ch, nowMs)) {
+        staleSuppressed.delete(id);
+        await systemEvent(ctx, key, 'unsuppress', nowMs);
+      }
       if (staleActive.has(id)) {
-        // An oven that stopped needs no data; other assets clear only when data returns.
-        if (isOven && !running(ch, nowMs)) {
-          staleActive.delete(id);
-          await clear(ctx, `stale:channel:${id}`, nowMs);
+        if (isOven && !running(ch, nowMs) && !staleSuppressed.has(id)) {
+          staleSuppressed.add(id);
+          await systemEvent(ctx, key, 'suppress', nowMs);
         }
-        continue;
+        continue; // other assets clear only when data returns
       }
       if (silentMs <= cfg.staleSeconds * 1000) continue;
       if (isOven ? !running(ch, nowMs) : seen === undefined || silentMs > RECENT_DATA_MS) continue;
@@ -477,7 +527,7 @@ export function createAlarmsHandler(): PostCommitHandler {
       const since = seen === undefined ? '' : ` for ${Math.round(silentMs / 1000)} s`;
       await raise(ctx, {
         sourceKind: 'stale',
-        sourceKey: `stale:channel:${id}`,
+        sourceKey: key,
         sourceLabel: sourceLabelOf(ch),
         assetId: ch.assetId,
         channelId: ch.id,
@@ -654,21 +704,29 @@ export function createAlarmsHandler(): PostCommitHandler {
 
   async function restore(ctx: WorkerContext): Promise<void> {
     // Held conditions from before a restart: no duplicate raises, and clears still happen.
-    const open = await ctx.pool.query<{ source_key: string }>(
-      `select source_key from alarms where state <> 'normal' and active and source_kind in ('limit','stale','device','system')`,
+    const open = await ctx.pool.query<{ source_key: string; state: string; active: boolean }>(
+      `select source_key, state, active from alarms where state <> 'normal' and source_kind in ('limit','stale','device','system')`,
     );
-    for (const { source_key: key } of open.rows) {
+    for (const { source_key: key, state, active } of open.rows) {
+      const suppressed = state === 'suppressed';
       let m = /^channel:(\d+):(high|low)$/.exec(key);
       if (m) {
+        const prev = runtime.get(Number(m[1]));
         runtime.set(Number(m[1]), {
-          det: { ...initialDetectorState(), alarm: m[2] as LimitSide },
+          det: { ...initialDetectorState(), alarm: active ? (m[2] as LimitSide) : (prev?.det.alarm ?? null) },
           sig: '\u0000restored',
           lastValue: null,
+          ...(suppressed || prev?.running === false ? { running: false } : {}),
         });
         continue;
       }
-      if ((m = /^stale:channel:(\d+)$/.exec(key))) staleActive.add(Number(m[1]));
-      else if ((m = /^device:(\d+)$/.exec(key))) deviceActive.add(Number(m[1]));
+      if ((m = /^stale:channel:(\d+)$/.exec(key))) {
+        if (active) staleActive.add(Number(m[1]));
+        if (suppressed) staleSuppressed.add(Number(m[1]));
+        continue;
+      }
+      if (!active) continue;
+      if ((m = /^device:(\d+)$/.exec(key))) deviceActive.add(Number(m[1]));
       else if (key.startsWith('system:')) systemActive.add(key);
     }
     // Latest reading per channel in the last hour (stale checks) and each oven's last setpoint.

@@ -27,18 +27,24 @@ import {
 let dip2: DeviceLink;
 let ovenB: DeviceLink;
 let ovenC: DeviceLink;
+let ovenA: DeviceLink;
 let viewer: Session;
 let stream: LiveStream;
 
 beforeAll(async () => {
   viewer = await signIn('viewer');
   stream = await openStream(viewer, ['alarms']);
-  [dip2, ovenB, ovenC] = await Promise.all([connectDevice('gw-dip-2'), connectDevice('gw-oven-b'), connectDevice('gw-oven-c')]);
+  [dip2, ovenB, ovenC, ovenA] = await Promise.all([
+    connectDevice('gw-dip-2'),
+    connectDevice('gw-oven-b'),
+    connectDevice('gw-oven-c'),
+    connectDevice('gw-oven-a'),
+  ]);
 });
 
 afterAll(async () => {
   stream?.close();
-  await Promise.all([dip2?.close(), ovenB?.close(), ovenC?.close()]);
+  await Promise.all([dip2?.close(), ovenB?.close(), ovenC?.close(), ovenA?.close()]);
   await testDb().query(`delete from ingest_status where worker_id = 'alarm-test-lagging'`);
   await closeAlarmHelpers();
 });
@@ -136,19 +142,55 @@ describe('process-window fallback and the seeded example settings', () => {
   });
 });
 
+describe('suppression by design: an idle oven', () => {
+  it('a door alarm is suppressed while the oven idles (condition still tracked) and comes back when it runs again', async () => {
+    const door = await channelIdOf('oven-a', 'door');
+    const key = `channel:${door}:high`;
+    const t = Date.now() - 60_000;
+    await ovenA.publish('oven-a', 'setpoint', 110, t);
+    stream.mark();
+    await ovenA.publish('oven-a', 'door', 1, t + 1_000);
+    await ovenA.publish('oven-a', 'door', 1, t + 12_000); // seeded on-delay 10 s
+    const raised = await stream.next((x) => x.data.sourceKey === key && x.data.state === 'unacked', 5_000);
+    const id = raised.data.id as number;
+
+    stream.mark();
+    await ovenA.publish('oven-a', 'setpoint', 25, t + 15_000); // cycle over: the oven idles
+    await ovenA.publish('oven-a', 'door', 1, t + 16_000);
+    const suppressed = await stream.next((x) => x.data.id === id && x.data.state === 'suppressed', 5_000);
+    expect(suppressed.data.active).toBe(true);
+    const open = await api('/api/v1/alarms?state=open', { session: viewer });
+    expect(open.body.some((a: { id: number }) => a.id === id)).toBe(false); // not annunciated
+
+    await ovenA.publish('oven-a', 'door', 0, t + 20_000); // closed while idle: tracked on the suppressed alarm
+    await eventually(async () => (await alarm(id)).active === false, 5_000, 'the suppressed alarm to record the door closing');
+    expect((await alarm(id)).state).toBe('suppressed');
+
+    stream.mark();
+    await ovenA.publish('oven-a', 'setpoint', 110, t + 25_000); // next cycle
+    await ovenA.publish('oven-a', 'door', 0, t + 26_000);
+    await stream.next((x) => x.data.id === id && x.data.state === 'normal', 5_000); // condition gone: back to normal
+    const events = (await alarm(id)).events.map((e: { event: string }) => e.event);
+    expect(events).toEqual(['activate', 'suppress', 'clear', 'unsuppress']);
+  });
+});
+
 describe('stale data, device offline, ingest lag', () => {
-  it('a zone thermocouple silent for more than 60 s while the oven runs raises a high "no data" alarm; data clears it', async () => {
+  it('a zone thermocouple silent longer than its stale seconds while the oven runs raises a high "no data" alarm; data clears it', async () => {
     const ch = await channelIdOf('oven-b-z1', 'air-temp');
     const key = `stale:channel:${ch}`;
-    await ovenB.publish('oven-b', 'setpoint', 110, Date.now() - 1_000);
+    // Test-owned setting (the seeded example is 60 s): no reading for 5 s while the oven runs.
+    await configureChannel(ch, { staleSeconds: 5, stalePriority: 'high', note: 'ingest test' });
+    await ovenB.publish('oven-b', 'setpoint', 110);
     stream.mark();
-    await ovenB.publish('oven-b-z1', 'air-temp', 109.5, Date.now() - 70_000);
-    const e = await stream.next((x) => x.data.sourceKey === key && x.data.state === 'unacked', 12_000);
+    await ovenB.publish('oven-b-z1', 'air-temp', 109.5);
+    const e = await stream.next((x) => x.data.sourceKey === key && x.data.state === 'unacked', 15_000);
     expect(e.data.priority).toBe('high');
-    expect(e.data.message).toMatch(/^No reading from Oven B zone 1 air for \d+ s while the oven runs \(expected within 60 s\)$/);
+    expect(e.data.message).toMatch(/^No reading from Oven B zone 1 air for \d+ s while the oven runs \(expected within 5 s\)$/);
     stream.mark();
     await ovenB.publish('oven-b-z1', 'air-temp', 110.2);
     await stream.next((x) => x.data.id === e.data.id && x.data.state === 'rtn-unacked', 5_000);
+    await configureChannel(ch, { staleSeconds: 60, stalePriority: 'high', note: "Example default — replace with the lacquer maker's data." });
   });
 
   it('a device offline for more than 60 s raises an alarm; reconnecting clears it', async () => {

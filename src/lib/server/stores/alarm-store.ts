@@ -649,3 +649,22 @@ export async function alarmLog(pool: Queryable, fromMs: number, toMs: number, lo
     ackedAtMs: ms(r.acked),
   }));
 }
+
+/**
+ * Apply a system event (`suppress`, `unsuppress`, …) to a source's open alarm, if it has one:
+ * suppression by design, e.g. an oven's door and thermocouple alarms while the oven is idle.
+ * Returns the alarm when the event changed it, else null.
+ */
+export async function systemEventForSource(
+  pool: pg.Pool,
+  sourceKey: string,
+  event: Extract<AlarmEvent, { type: 'suppress' | 'unsuppress' }>,
+  atMs: number,
+  hint?: AlarmHint,
+): Promise<AlarmView | null> {
+  const hinted = fromHint(hint);
+  const open = hinted !== undefined ? hinted : await readOpen(pool, sourceKey);
+  if (!open) return null;
+  const r = await transitionAlarm(pool, open.id, event, { role: 'system', userId: null, nowMs: atMs });
+  return r.ok && r.changed ? r.alarm : null;
+}
