@@ -152,7 +152,7 @@ export default function HoldList({ initial, timeZone, canRelease }: { initial: H
                       {h.status === 'active' && <input type="checkbox" className="w-auto" aria-label={`Select hold of ${h.jobNumber}`} checked={selected.has(h.id)} onChange={() => toggleOne(h.id)} />}
                     </td>
                   )}
-                  <td className="num">
+                  <td className="num whitespace-nowrap">
                     <a href={`/quality/trace/${encodeURIComponent(h.jobNumber)}`}>{h.jobNumber}</a>
                   </td>
                   <td>

@@ -110,7 +110,7 @@ export default function NcForm({ jobNumber, tests, loads, charges, holds, defaul
               </div>
               <div className="max-h-64 overflow-auto">
                 {holds.map((h) => (
-                  <label key={h.id} className="flex items-center gap-2 font-normal num"><input type="checkbox" className="w-auto" checked={holdIds.has(h.id)} onChange={() => setHoldIds(flip(holdIds, h.id))} /> {h.label}</label>
+                  <label key={h.id} className="mr-4 inline-flex items-center gap-1 font-normal num"><input type="checkbox" className="w-auto" checked={holdIds.has(h.id)} onChange={() => setHoldIds(flip(holdIds, h.id))} /> {h.label}</label>
                 ))}
               </div>
             </>

@@ -19,7 +19,7 @@ export function VerdictBadge({ verdict, status, large = false }: { verdict: Cure
   }
   const v = VERDICT[verdict];
   return (
-    <span className={`tag ${v.cls}${size}`}>
+    <span className={`tag whitespace-nowrap ${v.cls}${size}`}>
       <span aria-hidden="true">{v.shape}</span> {VERDICT_LABELS[verdict]}
     </span>
   );
@@ -27,11 +27,11 @@ export function VerdictBadge({ verdict, status, large = false }: { verdict: Cure
 
 export function ResultBadge({ result }: { result: 'pass' | 'fail' }) {
   return result === 'fail' ? (
-    <span className="tag border-alert-high bg-alert-bg text-alert-high">
+    <span className="tag whitespace-nowrap border-alert-high bg-alert-bg text-alert-high">
       <span aria-hidden="true">✕</span> Fail
     </span>
   ) : (
-    <span className="tag border-slate-line text-ink-soft">
+    <span className="tag whitespace-nowrap border-slate-line text-ink-soft">
       <span aria-hidden="true">✓</span> Pass
     </span>
   );
@@ -48,7 +48,7 @@ const JOB: Record<JobStatus, { shape: string; cls: string }> = {
 export function JobStatusTag({ status }: { status: string }) {
   const s = JOB[status as JobStatus] ?? JOB.active;
   return (
-    <span className={`tag ${s.cls}`}>
+    <span className={`tag whitespace-nowrap ${s.cls}`}>
       <span aria-hidden="true">{s.shape}</span> {JOB_STATUS_LABELS[status as JobStatus] ?? status}
     </span>
   );
