@@ -9,6 +9,7 @@ import { Aedes, type Client } from 'aedes';
 import { WebSocketServer, createWebSocketStream } from 'ws';
 import type pg from 'pg';
 import { verifyPassword } from '../src/lib/server/passwords.ts';
+import { memoryPersistence } from './broker-persistence.ts';
 import { LIVE_ROOT, TOPIC_ROOT, isUnder } from './topics.ts';
 
 export interface BrokerOptions {
@@ -37,7 +38,8 @@ const verified = new Map<string, number>();
 
 export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
   const log = opts.log ?? (() => {});
-  const aedes = await Aedes.createBroker({ heartbeatInterval: 30_000 });
+  // In-memory sessions with O(1) look-ups for the worker's many unacknowledged deliveries (broker-persistence.ts).
+  const aedes = await Aedes.createBroker({ heartbeatInterval: 30_000, persistence: memoryPersistence() });
   const ids = new WeakMap<Client, Identity>();
 
   const deviceEvent = async (deviceId: number, kind: 'online' | 'offline', reason: string) => {

@@ -66,7 +66,10 @@ interface Entry {
   topic: string;
   payload: string;
   rxMs: number;
-  ack: (() => void) | null;
+  /** The MQTT packet id to acknowledge after commit (-1: none, QoS 0 or replayed from the journal) … */
+  mid: number;
+  /** … on this connection (an acknowledgement for an older connection is dropped). */
+  gen: number;
   route: ParsedTopic;
   parsed: ParsedPayload | null;
   samples: number;
@@ -138,28 +141,33 @@ export async function startWorker({
     }
     sendPacket(packet, cb, ...rest);
   };
-  const acks: { gen: number; id: number }[] = [];
-  let ackScheduled = false;
-  const sendAcks = () => {
-    ackScheduled = false;
-    if (!acks.length) return;
-    const list = acks.splice(0, acks.length);
-    const stream = client.stream as unknown as { cork?: () => void; uncork?: () => void } | undefined;
-    stream?.cork?.();
-    for (const a of list) {
-      if (a.gen === generation && client.connected) internals._writePacket({ cmd: 'puback', messageId: a.id });
+  /**
+   * Write the PUBACKs of committed messages in one socket write. A PUBACK is four bytes (MQTT
+   * 3.1.1 §3.4: fixed header 0x40, remaining length 2, the packet id, big-endian); whole
+   * packets written in one call cannot interleave with the client's own writes.
+   */
+  const sendAcks = (entries: readonly Entry[]) => {
+    if (!client.connected || !client.stream) return;
+    let n = 0;
+    for (const e of entries) if (e.mid >= 0 && e.gen === generation) n++;
+    if (n === 0) return;
+    const buf = Buffer.allocUnsafe(4 * n);
+    let o = 0;
+    for (const e of entries) {
+      if (e.mid < 0 || e.gen !== generation) continue;
+      buf[o] = 0x40;
+      buf[o + 1] = 2;
+      buf.writeUInt16BE(e.mid, o + 2);
+      o += 4;
     }
-    stream?.uncork?.();
+    client.stream.write(buf);
   };
-  const ackFor = (id: number | undefined, qos: number): (() => void) | null => {
+  /** An acknowledgement written once the journal has the message on disk. */
+  const ackLater = (id: number | undefined, qos: number): (() => void) | null => {
     if (qos === 0 || id === undefined) return null;
     const gen = generation;
     return () => {
-      acks.push({ gen, id });
-      if (!ackScheduled) {
-        ackScheduled = true;
-        queueMicrotask(sendAcks);
-      }
+      if (gen === generation && client.connected) internals._writePacket({ cmd: 'puback', messageId: id });
     };
   };
 
@@ -197,14 +205,14 @@ export async function startWorker({
   client.on('message', (topic, buf, packet) => {
     if (closing) return; // not acknowledged: the broker redelivers it to the next run
     const rxMs = Date.now();
-    const ack = ackFor(packet.messageId, packet.qos);
     counters.received++;
     const payload = buf.length > MAX_PAYLOAD_BYTES ? '' : buf.toString('utf8');
     if (mode === 'journal' && buf.length <= MAX_PAYLOAD_BYTES) {
-      journal.append({ topic, payload, rx: rxMs }, ack);
+      journal.append({ topic, payload, rx: rxMs }, ackLater(packet.messageId, packet.qos));
       return;
     }
-    const entry = makeEntry(topic, payload, rxMs, ack, buf.length);
+    const mid = packet.qos > 0 && packet.messageId !== undefined ? packet.messageId : -1;
+    const entry = makeEntry(topic, payload, rxMs, mid, buf.length);
     memory.push(entry);
     memRows += entry.samples;
     if (!dbHealthy && memRows >= config.INGEST_BUFFER_ROWS && mode === 'memory') toJournal();
@@ -217,18 +225,29 @@ export async function startWorker({
     log(`database unavailable and ${memRows} rows buffered: spilling to the journal in ${journal.dir}`);
   }
 
-  function makeEntry(topic: string, payload: string, rxMs: number, ack: (() => void) | null, size = payload.length): Entry {
-    const route = parseTopic(topic);
+  /** Topics repeat (one per channel): parse each once. */
+  const routes = new Map<string, ParsedTopic>();
+  function route(topic: string): ParsedTopic {
+    let r = routes.get(topic);
+    if (!r) {
+      if (routes.size >= 100_000) routes.clear();
+      routes.set(topic, (r = parseTopic(topic)));
+    }
+    return r;
+  }
+
+  function makeEntry(topic: string, payload: string, rxMs: number, mid: number, size = payload.length): Entry {
+    const route_ = route(topic);
     let parsed: ParsedPayload | null = null;
     let samples = 1;
-    if (route.kind === 'sample') {
+    if (route_.kind === 'sample') {
       parsed =
         size > MAX_PAYLOAD_BYTES
           ? { ok: false, reason: 'schema', detail: `payload of ${size} bytes is larger than 2 MiB` }
           : parseTelemetry(payload);
       if (parsed.ok) samples = parsed.payload.samples.length;
     }
-    return { topic, payload, rxMs, ack, route, parsed, samples };
+    return { topic, payload, rxMs, mid, gen: generation, route: route_, parsed, samples };
   }
 
   // ---- post-commit: live readings and handlers ----
@@ -334,7 +353,7 @@ export async function startWorker({
     }
     const result = await commitBatch(pool, batch);
     const now = Date.now();
-    for (const e of entries) e.ack?.();
+    sendAcks(entries);
     counters.committed += result.inserted.length;
     counters.committedSinceBeat += result.inserted.length;
     counters.rejected += result.rejections;
@@ -385,7 +404,7 @@ export async function startWorker({
     const { records, start, end, eof } = await journal.read(file, REPLAY_RECORDS);
     if (records.length)
       await storeEntries(
-        records.map((r) => makeEntry(r.topic, r.payload, r.rx, null)),
+        records.map((r) => makeEntry(r.topic, r.payload, r.rx, -1)),
         false,
       );
     await journal.advance(file, start, end, eof);
@@ -536,7 +555,6 @@ export async function startWorker({
       await loop;
       clearInterval(journalTimer);
       await journal.close().catch((e: Error) => log(`journal close: ${e.message}`));
-      sendAcks();
       clearInterval(liveTimer);
       clearInterval(beatTimer);
       if (handlersRunning) await Promise.race([handlersRunning, new Promise((r) => setTimeout(r, 3000))]);

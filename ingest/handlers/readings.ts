@@ -72,7 +72,9 @@ export class Batch {
   /** Index of the message each row came from (to attribute duplicates). */
   owner: number[] = [];
   /** Per message: topic, payload, device, receive time. */
-  messages: { topic: string; payload: string; deviceUsername: string | null; channelId: number | null; rxMs: number }[] = [];
+  messages: { topic: string; payload: string; rxMs: number }[] = [];
+  /** The device of each message (parallel to `messages`). */
+  messageDevices: string[] = [];
   rejections: Rejection[] = [];
   unknown: UnknownSighting[] = [];
   status: StatusChange[] = [];
@@ -133,23 +135,12 @@ export function processReadings(
   parsed: ParsedPayload,
   opts: ProcessOptions,
 ): void {
+  // The hot path (one good message) allocates little: no closures, the refusal lists only when needed.
   const prefix = `coatrail/v1/${topic.site}/${topic.device}`;
   const device = map.device(prefix);
-  const reject = (reason: RejectionReason, detail: string | null, channelId: number | null = null): void => {
-    batch.rejections.push({
-      rxMs: msg.rxMs,
-      topic: msg.topic,
-      deviceUsername: device?.username ?? topic.device,
-      channelId,
-      reason,
-      detail,
-      payload: storedPayload(msg.payload),
-    });
-  };
-  if (!device) return reject('unknown-device', `no device publishes under ${prefix}`);
+  if (!device) return reject(batch, msg, topic.device, null, 'unknown-device', `no device publishes under ${prefix}`);
   const channel = map.channel(msg.topic);
   if (!channel) {
-    const assetKnown = map.hasAsset(device.siteCode, topic.asset);
     batch.unknown.push({
       deviceId: device.id,
       topic: msg.topic,
@@ -158,56 +149,106 @@ export function processReadings(
       payload: storedPayload(msg.payload),
       rxMs: msg.rxMs,
     });
-    return assetKnown
+    return map.hasAsset(device.siteCode, topic.asset)
       ? reject(
+          batch,
+          msg,
+          device.username,
+          null,
           'unknown-channel',
           `device ${device.username} has no channel “${topic.channel}” on asset ${topic.asset}; listed for an engineer to approve`,
         )
-      : reject('unknown-asset', `no asset “${topic.asset}” at site ${topic.site}; listed for an engineer to approve`);
+      : reject(
+          batch,
+          msg,
+          device.username,
+          null,
+          'unknown-asset',
+          `no asset “${topic.asset}” at site ${topic.site}; listed for an engineer to approve`,
+        );
   }
-  if (!parsed.ok) return reject(parsed.reason, parsed.detail, channel.id);
+  if (!parsed.ok) return reject(batch, msg, device.username, channel.id, parsed.reason, parsed.detail);
   const { payload } = parsed;
   if (payload.u !== undefined && !sameUnit(payload.u, channel.unit)) {
-    return reject('wrong-unit', `sent in “${payload.u}”, the channel records “${channel.unit}”`, channel.id);
+    return reject(
+      batch,
+      msg,
+      device.username,
+      channel.id,
+      'wrong-unit',
+      `sent in “${payload.u}”, the channel records “${channel.unit}”`,
+    );
   }
 
   const index = batch.messages.length;
-  batch.messages.push({
-    topic: msg.topic,
-    payload: msg.payload,
-    deviceUsername: device.username,
-    channelId: channel.id,
-    rxMs: msg.rxMs,
-  });
-  const n = payload.samples.length;
+  batch.messages.push(msg);
+  batch.messageDevices.push(device.username);
   const latest = msg.rxMs + opts.futureToleranceMs;
   const oldest = msg.rxMs - channel.rawRetentionDays * DAY_MS;
-  const bad = { range: [] as string[], unit: [] as string[], future: [] as string[], old: [] as string[], dup: [] as string[] };
+  let bad: Refused | null = null;
   for (const s of payload.samples) {
-    if (s.u !== undefined && !sameUnit(s.u, channel.unit)) bad.unit.push(`“${s.u}” at ${iso(s.t)}`);
-    else if (s.v < channel.min || s.v > channel.max) bad.range.push(`${s.v} at ${iso(s.t)}`);
-    else if (s.t > latest) bad.future.push(iso(s.t));
-    else if (s.t < oldest) bad.old.push(iso(s.t));
-    else if (!batch.add(channel.id, s.t, s.v, s.q ?? 0, index)) bad.dup.push(iso(s.t));
+    if (s.u !== undefined && !sameUnit(s.u, channel.unit)) (bad ??= refused()).unit.push(`“${s.u}” at ${iso(s.t)}`);
+    else if (s.v < channel.min || s.v > channel.max) (bad ??= refused()).range.push(`${s.v} at ${iso(s.t)}`);
+    else if (s.t > latest) (bad ??= refused()).future.push(iso(s.t));
+    else if (s.t < oldest) (bad ??= refused()).old.push(iso(s.t));
+    else if (!batch.add(channel.id, s.t, s.v, s.q ?? 0, index)) (bad ??= refused()).dup.push(iso(s.t));
   }
-  const range = `${channel.min}–${channel.max} ${channel.unit}`;
-  if (bad.unit.length) reject('wrong-unit', some(bad.unit.length, n, `not in “${channel.unit}”`, bad.unit), channel.id);
-  if (bad.range.length) reject('out-of-range', some(bad.range.length, n, `outside ${range}`, bad.range), channel.id);
+  if (bad) rejectSamples(batch, msg, device.username, channel, payload.samples.length, bad, opts);
+}
+
+interface Refused {
+  range: string[];
+  unit: string[];
+  future: string[];
+  old: string[];
+  dup: string[];
+}
+
+function refused(): Refused {
+  return { range: [], unit: [], future: [], old: [], dup: [] };
+}
+
+function reject(
+  batch: Batch,
+  msg: { topic: string; payload: string; rxMs: number },
+  deviceUsername: string | null,
+  channelId: number | null,
+  reason: RejectionReason,
+  detail: string | null,
+): void {
+  batch.rejections.push({
+    rxMs: msg.rxMs,
+    topic: msg.topic,
+    deviceUsername,
+    channelId,
+    reason,
+    detail,
+    payload: storedPayload(msg.payload),
+  });
+}
+
+function rejectSamples(
+  batch: Batch,
+  msg: { topic: string; payload: string; rxMs: number },
+  deviceUsername: string,
+  channel: { id: number; min: number; max: number; unit: string; rawRetentionDays: number },
+  n: number,
+  bad: Refused,
+  opts: ProcessOptions,
+): void {
+  const r = (reason: RejectionReason, detail: string) => reject(batch, msg, deviceUsername, channel.id, reason, detail);
+  if (bad.unit.length) r('wrong-unit', some(bad.unit.length, n, `not in “${channel.unit}”`, bad.unit));
+  if (bad.range.length)
+    r('out-of-range', some(bad.range.length, n, `outside ${channel.min}–${channel.max} ${channel.unit}`, bad.range));
   if (bad.future.length) {
-    reject(
+    r(
       'future-timestamp',
       some(bad.future.length, n, `more than ${opts.futureToleranceMs / 1000} s ahead of arrival (${iso(msg.rxMs)})`, bad.future),
-      channel.id,
     );
   }
   if (bad.old.length)
-    reject(
-      'too-old',
-      some(bad.old.length, n, `older than the raw retention of ${channel.rawRetentionDays} days`, bad.old),
-      channel.id,
-    );
-  if (bad.dup.length)
-    reject('duplicate', some(bad.dup.length, n, 'repeated in the same batch (same channel and time)', bad.dup), channel.id);
+    r('too-old', some(bad.old.length, n, `older than the raw retention of ${channel.rawRetentionDays} days`, bad.old));
+  if (bad.dup.length) r('duplicate', some(bad.dup.length, n, 'repeated in the same batch (same channel and time)', bad.dup));
 }
 
 /** After commit: the rows the database refused as already stored, as one rejection per message. */
@@ -222,14 +263,16 @@ export function duplicateRejections(batch: Batch, refusedRowIndexes: number[]): 
   const totals = new Map<number, number>();
   for (const o of batch.owner) if (byMsg.has(o)) totals.set(o, (totals.get(o) ?? 0) + 1);
   const out: Rejection[] = [];
+  const channelOf = new Map<number, number>();
+  for (const i of refusedRowIndexes) channelOf.set(batch.owner[i]!, batch.ch[i]!);
   for (const [m, ts] of byMsg) {
     const msg = batch.messages[m]!;
     const total = totals.get(m) ?? ts.length;
     out.push({
       rxMs: msg.rxMs,
       topic: msg.topic,
-      deviceUsername: msg.deviceUsername,
-      channelId: msg.channelId,
+      deviceUsername: batch.messageDevices[m] ?? null,
+      channelId: channelOf.get(m) ?? null,
       reason: 'duplicate',
       detail: some(ts.length, total, 'already stored (same channel and time)', ts.map(iso)),
       payload: storedPayload(msg.payload),

@@ -7,6 +7,8 @@
  *   child  → {ready} once connected; {done, count, lastMs, p50, p99, max, cpuMs} when n have
  *            arrived (cpuMs: this process's CPU time since {expect}).
  */
+import fs from 'node:fs';
+import { Session } from 'node:inspector/promises';
 import mqtt from 'mqtt';
 import { createPool } from '../../db/connection.ts';
 import { loadConfig } from '../../ingest/config.ts';
@@ -30,14 +32,40 @@ function record(nowMs: number, tMs: number, timeIt: boolean) {
     const lat = latencies.subarray(0, timed).sort();
     const q = (p: number) => (lat.length ? lat[Math.min(lat.length - 1, Math.floor(p * lat.length))]! : NaN);
     const cpu = process.cpuUsage(cpuAtStart);
-    send({ done: true, count, lastMs: nowMs, p50: q(0.5), p99: q(0.99), max: lat.length ? lat[lat.length - 1] : NaN, cpuMs: (cpu.user + cpu.system) / 1000 });
+    void profileStop();
+    send({
+      done: true,
+      count,
+      lastMs: nowMs,
+      p50: q(0.5),
+      p99: q(0.99),
+      max: lat.length ? lat[lat.length - 1] : NaN,
+      cpuMs: (cpu.user + cpu.system) / 1000,
+    });
     expected = 0;
   }
 }
 
 let timeSamples = true;
+// BENCH_PROFILE=dir: write a CPU profile of this process (.cpuprofile, for Chrome DevTools) per phase.
+const profileDir = process.env['BENCH_PROFILE'];
+const inspector = profileDir ? new Session() : null;
+if (inspector) inspector.connect();
+let phase = 0;
+async function profileStart() {
+  if (!inspector) return;
+  await inspector.post('Profiler.enable');
+  await inspector.post('Profiler.start');
+}
+async function profileStop() {
+  if (!inspector) return;
+  const { profile } = await inspector.post('Profiler.stop');
+  fs.writeFileSync(`${profileDir}/${mode}-${++phase}.cpuprofile`, JSON.stringify(profile));
+}
+
 process.on('message', (m: { expect?: number; time?: boolean }) => {
   if (m.expect) {
+    void profileStart();
     expected = m.expect;
     count = 0;
     timed = 0;
