@@ -215,6 +215,7 @@ export function createAlarmsHandler(): PostCommitHandler {
 
   async function raise(ctx: WorkerContext, input: RaiseAlarmInput): Promise<void> {
     const r = await raiseAlarmReturning(ctx.pool, input, known.get(input.sourceKey));
+    if (!r) return;
     remember(input.sourceKey, r.alarm);
     load.raises++;
     ctx.publishLive('alarms', r.alarm);

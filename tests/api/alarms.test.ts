@@ -10,6 +10,7 @@
  * shelf expires while the condition is still active). Limits and readings are hand-chosen.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { clearAlarm, raiseAlarm } from '../../src/lib/server/stores/alarm-store.ts';
 import { api, signIn, type Session } from '../support/http.ts';
 import {
   channelIdOf,
@@ -276,6 +277,40 @@ describe('alarm settings and health', () => {
     expect(none.status).toBe(404);
     const audit = await testDb().query(`select count(*)::int as n from audit_log where action = 'alarm.configure' and entity_id = $1`, [String(spin)]);
     expect(audit.rows[0].n).toBeGreaterThanOrEqual(1);
+  });
+
+  it('a characteristic’s control-chart alarms can be switched off or given another priority; the store follows it', async () => {
+    const list = await api('/api/v1/alarm-configs/characteristics', { session: engineer });
+    expect(list.status).toBe(200);
+    expect(list.body.length, 'the demo seed defines control-chart characteristics').toBeGreaterThan(0);
+    const charId = list.body[0].characteristicId as number;
+    const input = {
+      sourceKind: 'spc' as const,
+      sourceKey: `char-test:${run}`,
+      sourceLabel: `API test characteristic ${run}`,
+      characteristicId: charId,
+      priority: 'medium' as const,
+      message: 'test violation',
+      atMs: Date.now(),
+    };
+    expect((await api(`/api/v1/alarm-configs/characteristics/${charId}`, { method: 'PUT', session: operator, json: { enabled: false, priority: 'low' } })).status).toBe(403);
+    const bad = await api(`/api/v1/alarm-configs/characteristics/${charId}`, { method: 'PUT', session: engineer, json: { enabled: false, priority: 'urgent' } });
+    expect(bad.status).toBe(400);
+    expect(bad.body.errors[0].path).toBe('priority');
+    expect((await api(`/api/v1/alarm-configs/characteristics/99999999`, { method: 'PUT', session: engineer, json: { enabled: true, priority: 'low' } })).status).toBe(404);
+
+    const off = await api(`/api/v1/alarm-configs/characteristics/${charId}`, { method: 'PUT', session: engineer, json: { enabled: false, priority: 'low' } });
+    expect(off.status).toBe(200);
+    expect(await raiseAlarm(testDb(), input)).toEqual({ id: 0, created: false });
+
+    await api(`/api/v1/alarm-configs/characteristics/${charId}`, { method: 'PUT', session: engineer, json: { enabled: true, priority: 'high' } });
+    const raised = await raiseAlarm(testDb(), { ...input, atMs: Date.now() });
+    expect(raised.created).toBe(true);
+    expect((await api(`/api/v1/alarms/${raised.id}`, { session: viewer })).body.priority).toBe('high');
+
+    await clearAlarm(testDb(), input.sourceKey, Date.now());
+    await api(`/api/v1/alarms/${raised.id}/ack`, { method: 'POST', session: operator, json: { comment: 'test alarm' } });
+    await api(`/api/v1/alarm-configs/characteristics/${charId}`, { method: 'PUT', session: engineer, json: { enabled: true, priority: 'medium' } });
   });
 
   it('health figures for the last hour count the alarms raised here; CSV export; viewer yes, operator no', async () => {

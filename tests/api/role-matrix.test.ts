@@ -95,6 +95,8 @@ const ROUTES: Record<string, Action | 'public'> = {
   'DELETE /api/v1/alarm-configs/[channelId]': 'alarm.configure',
   'GET /api/v1/alarm-configs/escalation': 'alarm.configure',
   'PUT /api/v1/alarm-configs/escalation': 'alarm.configure',
+  'GET /api/v1/alarm-configs/characteristics': 'alarm.configure',
+  'PUT /api/v1/alarm-configs/characteristics/[characteristicId]': 'alarm.configure',
   // accounts, admin, audit (issue 3)
   'POST /api/auth/forgot-password': 'public',
   'POST /api/auth/reset-password': 'public',

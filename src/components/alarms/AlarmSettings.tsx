@@ -13,12 +13,14 @@ import {
   EscalationSettingsSchema,
   type AlarmConfigInput,
   type ChannelAlarmConfigView,
+  type CharacteristicAlarmConfigView,
   type EscalationSettings,
 } from '../../lib/shared/alarm-views.ts';
 import { formatSiteTime } from '../../lib/shared/time.ts';
 
 interface Props {
   channels: ChannelAlarmConfigView[];
+  characteristics: CharacteristicAlarmConfigView[];
   escalation: EscalationSettings;
   timeZone: string;
   /** The window fallback's settings, for the explanation (from the worker's constants). */
@@ -70,7 +72,7 @@ function csvCell(s: string | number | null | undefined): string {
   return /[",\n]/.test(t) ? `"${t.replace(/"/g, '""')}"` : t;
 }
 
-export default function AlarmSettings({ channels: initial, escalation: initialEsc, timeZone, fallback }: Props) {
+export default function AlarmSettings({ channels: initial, characteristics, escalation: initialEsc, timeZone, fallback }: Props) {
   const [channels, setChannels] = useState(initial);
   const [filter, setFilter] = useState('');
   const [sort, setSort] = useState<{ key: SortKey; dir: 1 | -1 }>({ key: 'asset', dir: 1 });
@@ -180,8 +182,111 @@ export default function AlarmSettings({ channels: initial, escalation: initialEs
           </table>
         </div>
       </section>
+      <CharacteristicSection initial={characteristics} timeZone={timeZone} />
       <EscalationForm initial={initialEsc} />
     </div>
+  );
+}
+
+function CharacteristicSection({ initial, timeZone }: { initial: CharacteristicAlarmConfigView[]; timeZone: string }) {
+  const [rows, setRows] = useState(initial);
+  const [draft, setDraft] = useState<Record<number, { enabled: boolean; priority: AlarmPriority }>>(() =>
+    Object.fromEntries(initial.map((c) => [c.characteristicId, { enabled: c.config?.enabled ?? true, priority: c.config?.priority ?? 'medium' }])),
+  );
+  const [busy, setBusy] = useState<number | null>(null);
+  const [status, setStatus] = useState<string | null>(null);
+
+  async function save(c: CharacteristicAlarmConfigView) {
+    const d = draft[c.characteristicId]!;
+    setBusy(c.characteristicId);
+    setStatus(null);
+    try {
+      const saved = await apiFetch<{ enabled: boolean; priority: AlarmPriority; note?: string | null }>(
+        `/api/v1/alarm-configs/characteristics/${c.characteristicId}`,
+        { method: 'PUT', body: { enabled: d.enabled, priority: d.priority } },
+      );
+      setRows((list) =>
+        list.map((x) => (x.characteristicId === c.characteristicId ? { ...x, config: { ...saved, updatedAtMs: Date.now(), updatedBy: 'you' } } : x)),
+      );
+      setStatus(`Saved: control-chart alarms of ${c.name} ${d.enabled ? `on, ${d.priority} priority` : 'off'}.`);
+    } catch (err) {
+      setStatus(err instanceof Error ? err.message : String(err));
+    } finally {
+      setBusy(null);
+    }
+  }
+
+  return (
+    <section className="panel space-y-3" aria-labelledby="spc-h">
+      <h2 id="spc-h">Control-chart alarms per characteristic</h2>
+      <p className="text-sm text-ink-soft">
+        A point that breaks a run rule of its characteristic’s control chart raises an alarm. Characteristics without settings here raise at
+        medium priority.
+      </p>
+      {status && (
+        <p className="text-sm" role="status">
+          {status}
+        </p>
+      )}
+      {rows.length === 0 ? (
+        <p className="empty">No characteristics are defined yet. Engineers add them on the control-chart screens.</p>
+      ) : (
+        <table>
+          <thead>
+            <tr>
+              <th>Characteristic</th>
+              <th>Asset</th>
+              <th>Alarms</th>
+              <th>Priority</th>
+              <th>Changed</th>
+              <th>
+                <span className="sr-only">Save</span>
+              </th>
+            </tr>
+          </thead>
+          <tbody>
+            {rows.map((c) => {
+              const d = draft[c.characteristicId]!;
+              const set = (patch: Partial<typeof d>) => setDraft((x) => ({ ...x, [c.characteristicId]: { ...d, ...patch } }));
+              return (
+                <tr key={c.characteristicId}>
+                  <td>
+                    {c.name}
+                    {!c.active && <span className="ml-1 text-xs text-ink-soft">(chart inactive)</span>}
+                  </td>
+                  <td>{c.assetName}</td>
+                  <td>
+                    <label className="mb-0 flex items-center gap-2 font-normal text-ink">
+                      <input type="checkbox" className="w-auto" checked={d.enabled} onChange={(e) => set({ enabled: e.target.checked })} /> {d.enabled ? 'On' : 'Off'}
+                    </label>
+                  </td>
+                  <td>
+                    <label className="sr-only" htmlFor={`spc-pri-${c.characteristicId}`}>
+                      Priority for {c.name}
+                    </label>
+                    <select id={`spc-pri-${c.characteristicId}`} className="w-auto py-1" value={d.priority} disabled={!d.enabled} onChange={(e) => set({ priority: e.target.value as AlarmPriority })}>
+                      {ALARM_PRIORITIES.map((p) => (
+                        <option key={p} value={p}>
+                          {p}
+                        </option>
+                      ))}
+                    </select>
+                  </td>
+                  <td className="text-xs text-ink-soft">
+                    {c.config ? `${formatSiteTime(c.config.updatedAtMs, timeZone)}${c.config.updatedBy ? ` by ${c.config.updatedBy}` : ''}` : 'defaults'}
+                  </td>
+                  <td>
+                    <button type="button" className="btn-quiet" disabled={busy === c.characteristicId} onClick={() => void save(c)}>
+                      {busy === c.characteristicId ? 'Saving…' : 'Save'}
+                    </button>
+                  </td>
+                </tr>
+              );
+            })}
+          </tbody>
+        </table>
+      )}
+    </section>
   );
 }
 

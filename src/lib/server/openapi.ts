@@ -9,7 +9,13 @@
 import { z } from 'zod';
 import { LoginSchema } from '../shared/auth.ts';
 import { AckAlarmSchema, BulkAckSchema, OutOfServiceSchema, ShelveAlarmSchema } from '../shared/alarms.ts';
-import { AlarmConfigInputSchema, AlarmKpiQuerySchema, AlarmListQuerySchema, EscalationSettingsSchema } from '../shared/alarm-views.ts';
+import {
+  AlarmConfigInputSchema,
+  AlarmKpiQuerySchema,
+  AlarmListQuerySchema,
+  CharacteristicAlarmConfigSchema,
+  EscalationSettingsSchema,
+} from '../shared/alarm-views.ts';
 import {
   ActivationEnergyInputSchema,
   AbrasionInputSchema,
@@ -163,6 +169,8 @@ export const OPERATIONS: Operation[] = [
   { method: 'DELETE', path: '/api/v1/alarm-configs/{channelId}', summary: 'Remove a channel’s limit alarm', access: 'alarm.configure', tag: 'alarms' },
   { method: 'GET', path: '/api/v1/alarm-configs/escalation', summary: 'Escalation rules', access: 'alarm.configure', tag: 'alarms' },
   { method: 'PUT', path: '/api/v1/alarm-configs/escalation', summary: 'Set the escalation rules', access: 'alarm.configure', tag: 'alarms', body: EscalationSettingsSchema },
+  { method: 'GET', path: '/api/v1/alarm-configs/characteristics', summary: 'Control-chart alarm settings per characteristic', access: 'alarm.configure', tag: 'alarms' },
+  { method: 'PUT', path: '/api/v1/alarm-configs/characteristics/{characteristicId}', summary: 'Switch a characteristic’s control-chart alarms on or off and set their priority', access: 'alarm.configure', tag: 'alarms', body: CharacteristicAlarmConfigSchema },
   // SPC
   { method: 'POST', path: '/api/v1/spc/evaluate', summary: 'Stateless SPC on posted data (product.md §6)', access: 'spc.evaluate', tag: 'spc', body: SpcEvaluateInputSchema },
   { method: 'GET', path: '/api/v1/characteristics', summary: 'Characteristics', access: 'view', tag: 'spc' },

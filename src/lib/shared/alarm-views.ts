@@ -232,3 +232,27 @@ export const WINDOW_FALLBACK: Readonly<{ deadbandFraction: number; onDelayMs: nu
   offDelayMs: 0,
   priority: 'medium',
 };
+
+// ---------------------------------------------------------------------------------------------
+// Control-chart (SPC) alarms per characteristic
+// ---------------------------------------------------------------------------------------------
+
+/**
+ * Body of `PUT /api/v1/alarm-configs/characteristics/{id}`: whether a characteristic's
+ * control-chart violations raise alarms, and at which priority (default when unset: on, medium).
+ */
+export const CharacteristicAlarmConfigSchema = z.object({
+  enabled: z.boolean(),
+  priority: AlarmPrioritySchema,
+  note: z.string().trim().max(500).nullable().optional(),
+});
+export type CharacteristicAlarmConfig = z.infer<typeof CharacteristicAlarmConfigSchema>;
+
+/** One characteristic with its alarm settings (null = the defaults: on, priority as raised). */
+export interface CharacteristicAlarmConfigView {
+  characteristicId: number;
+  name: string;
+  assetName: string;
+  active: boolean;
+  config: (CharacteristicAlarmConfig & { updatedAtMs: number; updatedBy: string | null }) | null;
+}

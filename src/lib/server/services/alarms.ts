@@ -4,7 +4,7 @@
  */
 import type { AlarmEvent } from '../../domain/alarms/state.ts';
 import { alarmKpis, type AlarmKpiReport } from '../../domain/alarms/kpi.ts';
-import type { AlarmConfigInput, AlarmView, EscalationSettings } from '../../shared/alarm-views.ts';
+import type { AlarmConfigInput, AlarmView, CharacteristicAlarmConfig, EscalationSettings } from '../../shared/alarm-views.ts';
 import type { SessionUser } from '../auth.ts';
 import { audit } from '../audit.ts';
 import { publishLive } from '../broker-link.ts';
@@ -22,14 +22,17 @@ import {
 } from '../stores/alarm-store.ts';
 import {
   channelExists,
+  characteristicExists,
   deleteChannelAlarmConfig,
+  listCharacteristicAlarmConfigs,
+  upsertCharacteristicAlarmConfig,
   escalationSettings,
   listChannelAlarmConfigs,
   saveEscalationSettings,
   upsertChannelAlarmConfig,
 } from '../stores/alarm-config-store.ts';
 
-export { listChannelAlarmConfigs };
+export { listChannelAlarmConfigs, listCharacteristicAlarmConfigs };
 
 export async function alarmsList(f: ListAlarmsFilter): Promise<AlarmView[]> {
   return listAlarms(pgPool(), f);
@@ -122,6 +125,20 @@ export async function removeChannelConfig(user: SessionUser, address: string | n
   const before = await deleteChannelAlarmConfig(pgPool(), channelId);
   if (!before) throw new HttpProblem(404, 'Not found', `Channel ${channelId} has no alarm settings of its own.`);
   await audit(actorOf(user, address), { action: 'alarm.configure', entity: 'alarm_config', entityId: channelId, before, after: null });
+}
+
+export async function saveCharacteristicConfig(
+  user: SessionUser,
+  address: string | null,
+  characteristicId: number,
+  input: CharacteristicAlarmConfig,
+) {
+  if (!(await characteristicExists(pgPool(), characteristicId))) {
+    throw new HttpProblem(404, 'Not found', `No characteristic ${characteristicId}.`);
+  }
+  const { before, after } = await upsertCharacteristicAlarmConfig(pgPool(), characteristicId, input, user.id);
+  await audit(actorOf(user, address), { action: 'alarm.configure', entity: 'alarm_config_characteristic', entityId: characteristicId, before, after });
+  return after;
 }
 
 export async function escalation(): Promise<EscalationSettings> {

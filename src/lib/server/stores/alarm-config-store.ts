@@ -12,6 +12,8 @@ import {
   DEFAULT_ESCALATION,
   DEFAULT_ON_SHIFT_ENGINEER_EMAIL,
   type AlarmConfigInput,
+  type CharacteristicAlarmConfig,
+  type CharacteristicAlarmConfigView,
   type ChannelAlarmConfigView,
   type EscalationSettings,
   type LimitsMode,
@@ -242,4 +244,73 @@ export function rulesByPriority(rules: readonly EscalationRule[]): EscalationRul
   const out: EscalationRules = {};
   for (const r of rules) out[r.priority] = r.steps;
   return out;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Control-chart (SPC) alarms per characteristic
+// ---------------------------------------------------------------------------------------------
+
+/** Every characteristic with its alarm settings (null = none: alarms on at the priority raised). */
+export async function listCharacteristicAlarmConfigs(pool: Queryable): Promise<CharacteristicAlarmConfigView[]> {
+  const res = await pool.query<{
+    id: number;
+    name: string;
+    asset_name: string;
+    active: boolean;
+    enabled: boolean | null;
+    priority: AlarmPriority | null;
+    note: string | null;
+    updated_at: Date | null;
+    updated_by: string | null;
+  }>(
+    `select ch.id, ch.name, a.name as asset_name, ch.active, c.enabled, c.priority, c.note, c.updated_at,
+            u.display_name as updated_by
+       from characteristics ch join assets a on a.id = ch.asset_id
+       left join alarm_configs c on c.characteristic_id = ch.id
+       left join users u on u.id = c.updated_by
+      order by ch.name`,
+  );
+  return res.rows.map((r) => ({
+    characteristicId: r.id,
+    name: r.name,
+    assetName: r.asset_name,
+    active: r.active,
+    config:
+      r.enabled === null || r.priority === null || r.updated_at === null
+        ? null
+        : { enabled: r.enabled, priority: r.priority, note: r.note, updatedAtMs: r.updated_at.getTime(), updatedBy: r.updated_by },
+  }));
+}
+
+/** A characteristic's alarm settings, or null when it has none (or the characteristics table is absent). */
+export async function characteristicAlarmConfig(pool: Queryable, characteristicId: number): Promise<CharacteristicAlarmConfig | null> {
+  const res = await pool.query<{ enabled: boolean; priority: AlarmPriority; note: string | null }>(
+    `select enabled, priority, note from alarm_configs where characteristic_id = $1`,
+    [characteristicId],
+  );
+  return res.rows[0] ?? null;
+}
+
+export async function characteristicExists(pool: Queryable, characteristicId: number): Promise<boolean> {
+  const res = await pool.query('select 1 from characteristics where id = $1', [characteristicId]);
+  return (res.rowCount ?? 0) > 0;
+}
+
+/** Insert or replace a characteristic's alarm settings; returns before (null if new) and after. */
+export async function upsertCharacteristicAlarmConfig(
+  pool: Queryable,
+  characteristicId: number,
+  input: CharacteristicAlarmConfig,
+  userId: number | null,
+): Promise<{ before: CharacteristicAlarmConfig | null; after: CharacteristicAlarmConfig }> {
+  const before = await characteristicAlarmConfig(pool, characteristicId);
+  await pool.query(
+    `insert into alarm_configs (characteristic_id, enabled, priority, note, updated_at, updated_by)
+     values ($1, $2, $3, $4, now(), $5)
+     on conflict (characteristic_id) where characteristic_id is not null do update set
+       enabled = excluded.enabled, priority = excluded.priority, note = excluded.note, updated_at = now(),
+       updated_by = excluded.updated_by`,
+    [characteristicId, input.enabled, input.priority, input.note ?? null, userId],
+  );
+  return { before, after: (await characteristicAlarmConfig(pool, characteristicId))! };
 }

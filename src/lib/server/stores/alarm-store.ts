@@ -22,6 +22,7 @@ import {
 } from '../../domain/alarms/state.ts';
 import type { AlarmPriority } from '../../shared/alarms.ts';
 import type { AlarmSourceKind, AlarmView, AlarmEventView } from '../../shared/alarm-views.ts';
+import { characteristicAlarmConfig } from './alarm-config-store.ts';
 
 export interface RaiseAlarmInput {
   sourceKind: AlarmSourceKind;
@@ -209,15 +210,20 @@ function isUniqueViolation(e: unknown): boolean {
  * active, an already active one just takes the newer message, value and limit. A new
  * activation (inactive → active) increments `activation_count` and writes an event; an update
  * of an already active alarm writes none (no rows per sample).
+ *
+ * A raise that names a characteristic follows the engineer's settings for it
+ * (`alarm_configs.characteristic_id`): their priority replaces the caller's, and when its
+ * alarms are switched off nothing is raised and the answer is `{id: 0, created: false}`.
  */
 export async function raiseAlarm(pool: pg.Pool, input: RaiseAlarmInput): Promise<{ id: number; created: boolean }> {
   const r = await raiseAlarmReturning(pool, input);
-  return { id: r.alarm.id, created: r.created };
+  return r ? { id: r.alarm.id, created: r.created } : { id: 0, created: false };
 }
 
 /**
  * {@link raiseAlarm}, returning the alarm as it now is (for the caller's live event) and
- * whether the raise changed its state or activation (false for a plain update of an active alarm).
+ * whether the raise changed its state or activation (false for a plain update of an active
+ * alarm); null when the characteristic's alarms are switched off.
  *
  * Each write is one statement (the alarm row and its event together, atomically), guarded by
  * the state the domain's `transition` was computed from; if another process changed the alarm
@@ -225,9 +231,15 @@ export async function raiseAlarm(pool: pg.Pool, input: RaiseAlarmInput): Promise
  */
 export async function raiseAlarmReturning(
   pool: pg.Pool,
-  input: RaiseAlarmInput,
+  raw: RaiseAlarmInput,
   hint?: AlarmHint,
-): Promise<{ alarm: AlarmView; created: boolean; activated: boolean }> {
+): Promise<{ alarm: AlarmView; created: boolean; activated: boolean } | null> {
+  let input = raw;
+  if (raw.characteristicId != null) {
+    const cfg = await characteristicAlarmConfig(pool, raw.characteristicId);
+    if (cfg && !cfg.enabled) return null;
+    if (cfg) input = { ...raw, priority: cfg.priority };
+  }
   const hinted = fromHint(hint);
   for (let attempt = 0; attempt < 20; attempt++) {
     const open = attempt === 0 && hinted !== undefined ? hinted : await readOpen(pool, input.sourceKey);
