@@ -2,7 +2,8 @@
  * Child process of `npm run bench:ingest` (tests/bench/ingest.ts): either the real ingest
  * worker (ingest/subscriber.ts, with a post-commit handler that times each stored reading:
  * now − its sample time, where the publisher set the sample time to the publish time) or a
- * plain MQTT subscriber (the broker-only limit). Talks to the parent over IPC:
+ * plain MQTT subscriber (the broker-only limit; `subscriber persistent` with a persistent session
+ * like the worker's, acknowledging at once). Talks to the parent over IPC:
  *   parent → {expect: n}          start counting n readings (or messages)
  *   child  → {ready} once connected; {done, count, lastMs, p50, p99, max, cpuMs} when n have
  *            arrived (cpuMs: this process's CPU time since {expect}).
@@ -16,6 +17,8 @@ import { postCommitHandlers, type PostCommitHandler } from '../../ingest/handler
 import { startWorker } from '../../ingest/subscriber.ts';
 
 const mode = process.argv[2] === 'subscriber' ? 'subscriber' : 'worker';
+/** `subscriber persistent`: a persistent session (clean: false, fixed client id), as the worker has. */
+const persistent = process.argv[3] === 'persistent';
 const send = (m: unknown) => process.send?.(m);
 
 let expected = 0;
@@ -81,8 +84,8 @@ if (mode === 'subscriber') {
     username: 'svc-web',
     password: process.env['MQTT_SERVICE_PASSWORD']!,
     protocolVersion: 4,
-    clean: true,
-    clientId: `bench-sub-${process.pid}`,
+    clean: !persistent,
+    clientId: persistent ? 'bench-sub-persistent' : `bench-sub-${process.pid}`,
   });
   client.on('message', (_topic, buf) => {
     const now = Date.now();
@@ -92,6 +95,8 @@ if (mode === 'subscriber') {
   client.on('connect', () => {
     client.subscribe('coatrail/v1/+/+/+/+', { qos: 1 }, () => send({ ready: true }));
   });
+  // Leave no persistent subscription behind to collect the later phases' messages.
+  process.once('SIGTERM', () => client.unsubscribe('coatrail/v1/+/+/+/+', () => client.end(false, {}, () => process.exit(0))));
 } else {
   const config = loadConfig();
   const pool = createPool({ url: config.DATABASE_URL, max: 6, connectionTimeoutMillis: 5000 });
@@ -103,7 +108,10 @@ if (mode === 'subscriber') {
     },
   };
   // BENCH_HANDLERS=none measures the pipeline alone, without the product's post-commit handlers.
-  const others = process.env['BENCH_HANDLERS'] === 'none' ? [] : postCommitHandlers;
+  // BENCH_HANDLERS=name,name runs only those.
+  const wanted = process.env['BENCH_HANDLERS'];
+  const others =
+    wanted === 'none' ? [] : wanted ? postCommitHandlers.filter((h) => wanted.split(',').includes(h.name)) : postCommitHandlers;
   const worker = await startWorker({ config, pool, handlers: [timer, ...others] });
   const ready = setInterval(() => {
     if (worker.stats().subscribed) {
