@@ -91,7 +91,17 @@ export async function startTestStack(): Promise<TestStack> {
   start('worker', ['--import', 'tsx', 'ingest/main.ts']);
   start('web', [path.join(distCopy, 'server', 'entry.mjs')]);
   const baseUrl = `http://127.0.0.1:${webPort}`;
-  await waitFor(async () => (await fetch(`${baseUrl}/api/health`)).status === 200, 40_000, 'the web server to report healthy');
+  try {
+    // Generous: on a 2-core machine shared by parallel test runs, start-up can take a minute.
+    await waitFor(async () => (await fetch(`${baseUrl}/api/health`)).status === 200, 90_000, 'the web server to report healthy');
+  } catch (e) {
+    // Leave nothing running behind a failed start (the logs stay in pgBaseDir).
+    for (const proc of children.values()) if (proc.exitCode === null) proc.kill('SIGKILL');
+    await smtp.close().catch(() => {});
+    await pool.end().catch(() => {});
+    await stopLocalPostgres(pgBaseDir).catch(() => {});
+    throw e;
+  }
   return {
     databaseUrl: pgh.url,
     baseUrl,
