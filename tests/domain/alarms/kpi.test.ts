@@ -1,7 +1,7 @@
 // Alarm KPIs against the ANSI/ISA-18.2-2016 / IEC 62682:2014 performance metrics
 // (benchmarks: ≈1 alarm per 10 min per operator very likely acceptable, ≈2 maximum manageable,
 // flood > 10 in 10 min, stale > 24 h, chattering ≥ 3 in 60 s — common practice, values from
-// memory as listed in /work/shared/references.md "Alarms"). The log is constructed; every
+// memory as listed in shared/references.md (the brief) "Alarms"). The log is constructed; every
 // expected value is computed by hand in the comments.
 import { describe, it, expect } from 'vitest';
 import {
