@@ -450,7 +450,7 @@ export function createAlarmsHandler(): PostCommitHandler {
     } finally {
       load.rows += rows.length;
       load.busyMs += performance.now() - started;
-      if (Date.now() - load.since >= 10_000) {
+      if (Date.now() - load.since >= 60_000) {
         ctx.log(
           `alarms: ${load.rows} readings judged in ${((Date.now() - load.since) / 1000).toFixed(0)} s ` +
             `(${load.raises} raises, ${load.clears} clears, ${(load.busyMs / 1000).toFixed(1)} s busy)`,
