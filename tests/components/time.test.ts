@@ -17,6 +17,7 @@ import {
   zoneAbbreviation,
   zoneOffsetMinutes,
   zonesOver,
+  siteDayBounds,
 } from '../../src/lib/shared/time.ts';
 
 const LDN = 'Europe/London';
@@ -135,5 +136,24 @@ describe('timeTicks: round ticks on the site wall clock', () => {
       '2026-11-01 00:00 GMT',
       '2027-01-01 00:00 GMT',
     ]);
+  });
+});
+
+describe('siteDayBounds (site-local day filters)', () => {
+  it('covers a 25-hour day at the autumn clock change exactly (Europe/London, 25 Oct 2026; hand-computed)', () => {
+    // 00:00 BST (UTC+1) on the 25th is 23:00 UTC on the 24th; the next midnight is 00:00 GMT on the 26th.
+    expect(siteDayBounds('2026-10-25', '2026-10-25', 'Europe/London')).toEqual({
+      from: '2026-10-24T23:00:00.000Z',
+      to: '2026-10-26T00:00:00.000Z',
+    });
+  });
+  it('covers a 23-hour day at the spring clock change (29 Mar 2026; hand-computed)', () => {
+    expect(siteDayBounds('2026-03-29', '2026-03-29', 'Europe/London')).toEqual({
+      from: '2026-03-29T00:00:00.000Z',
+      to: '2026-03-29T23:00:00.000Z',
+    });
+  });
+  it('passes absent and non-date values through for the schema to judge', () => {
+    expect(siteDayBounds(undefined, 'yesterday', 'Europe/London')).toEqual({ from: undefined, to: 'yesterday' });
   });
 });

@@ -238,3 +238,20 @@ export function timeTicks(fromMs: number, toMs: number, timeZone: string, maxTic
   }
   return out;
 }
+
+/**
+ * A date filter given as site-local days (`YYYY-MM-DD`) → ISO instants: `from` is 00:00 of the
+ * first day and `to` is 00:00 of the day after the last, both in the site's zone, so a day of
+ * 23 or 25 hours (a clock change) is covered exactly. Anything else passes through unchanged
+ * for the caller's schema to judge.
+ */
+export function siteDayBounds(from: string | undefined, to: string | undefined, timeZone: string): { from: string | undefined; to: string | undefined } {
+  const midnight = (d: string | undefined, addDays: number): string | undefined => {
+    const m = d ? /^(\d{4})-(\d{2})-(\d{2})$/.exec(d) : null;
+    if (!m) return d;
+    const next = new Date(Date.UTC(Number(m[1]), Number(m[2]) - 1, Number(m[3]) + addDays));
+    const ms = fromLocalInput(`${next.toISOString().slice(0, 10)}T00:00`, timeZone);
+    return Number.isFinite(ms) ? new Date(ms).toISOString() : d;
+  };
+  return { from: midnight(from, 0), to: midnight(to, 1) };
+}
