@@ -266,10 +266,7 @@ export function evaluateSpc(input: SpcEvaluateInput): SpcEvaluateOutput {
     };
   }
 
-  const k = input.k ?? DEFAULT_CUSUM.k;
-  const h = input.h ?? DEFAULT_CUSUM.h;
-  const headStart = input.headStart ?? DEFAULT_CUSUM.headStart;
-  const design = { center: basis.center, K: k * sigmaX, H: h * sigmaX, headStart: headStart * sigmaX };
+  const design = cusumDesign(input, basis.center, sigmaX);
   return {
     chart,
     limits: { center: 0, ucl: design.H, lcl: -design.H },
@@ -284,11 +281,11 @@ export function evaluateSpc(input: SpcEvaluateInput): SpcEvaluateOutput {
       centerSource: basis.centerSource,
       sigmaSource: basis.sigmaSource,
       subgroupSize: basis.n,
-      k,
-      h,
+      k: design.k,
+      h: design.h,
       K: design.K,
       H: design.H,
-      headStart,
+      headStart: design.headStartSigma,
     },
     rules,
     notes: ruleNotes(chart, rules),
@@ -434,10 +431,7 @@ export function evaluateAgainstLimitSet(
       notes: ruleNotes(chart, rules),
     };
   }
-  const k = limitSet.k ?? DEFAULT_CUSUM.k;
-  const h = limitSet.h ?? DEFAULT_CUSUM.h;
-  const headStart = limitSet.headStart ?? DEFAULT_CUSUM.headStart;
-  const design = { center: limitSet.center, K: k * sigmaX, H: h * sigmaX, headStart: headStart * sigmaX };
+  const design = cusumDesign(limitSet, limitSet.center, sigmaX);
   return {
     chart,
     limits: { center: 0, ucl: design.H, lcl: -design.H },
@@ -446,8 +440,20 @@ export function evaluateAgainstLimitSet(
     points: cusumPoints(xs, design, n, never),
     capability: capabilityOf(xs),
     phase1: null,
-    parameters: { ...parametersBase, k, h, K: design.K, H: design.H, headStart },
+    parameters: { ...parametersBase, k: design.k, h: design.h, K: design.K, H: design.H, headStart: design.headStartSigma },
     rules,
     notes: ruleNotes(chart, rules),
   };
+}
+
+/**
+ * Tabular CUSUM design in data units from k, h and the head start given in sigma units
+ * (Page 1954; NIST/SEMATECH e-Handbook 6.3.2.3): K = k·σ, H = h·σ, FIR head start = hs·σ; also
+ * returns k, h and hs as given, for the report.
+ */
+function cusumDesign(p: { k?: number | undefined; h?: number | undefined; headStart?: number | undefined }, center: number, sigmaX: number) {
+  const k = p.k ?? DEFAULT_CUSUM.k;
+  const h = p.h ?? DEFAULT_CUSUM.h;
+  const headStart = p.headStart ?? DEFAULT_CUSUM.headStart;
+  return { center, K: k * sigmaX, H: h * sigmaX, headStart: headStart * sigmaX, k, h, headStartSigma: headStart };
 }
