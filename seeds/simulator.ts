@@ -236,7 +236,7 @@ function ovenTick(t: number): void {
     const current = sim.track.cycles.find((c) => t >= c.loadStartMs && t < c.loadEndMs);
     const mid = current?.doorOpenings.find((o) => o.reason === 'mid-soak' && t >= o.startMs && t < o.endMs);
     const drop = current?.dropouts.find((d) => t >= d.startMs && t < d.endMs);
-    const state = mid ? 'door open mid-soak' : drop ? `${drop.zone} thermocouple not reporting` : phaseOf(current, t);
+    const state = mid ? 'door open during the cure' : drop ? `${drop.zone} thermocouple not reporting` : phaseOf(current, t);
     if (lastEvent.get(code) !== state) {
       lastEvent.set(code, state);
       if (mid || drop) note(`${code}: ${state}`);
