@@ -101,7 +101,9 @@ async function asServerUser(bin: string, cmd: string, args: string[]): Promise<s
     return stdout;
   } catch (e) {
     const err = e as { stderr?: string; stdout?: string; message: string };
-    throw new PgControlError(`${cmd} failed: ${(err.stderr || err.stdout || err.message).trim().split('\n').slice(-3).join(' ')}`);
+    throw new PgControlError(
+      `${cmd} failed: ${(err.stderr || err.stdout || err.message).trim().split('\n').slice(-3).join(' ')}`,
+    );
   }
 }
 
@@ -186,8 +188,16 @@ export async function startLocalPostgres(opts: LocalPgOptions): Promise<LocalPg>
     log('Creating the local PostgreSQL cluster…');
     try {
       await asServerUser(bin, 'initdb', [
-        '-D', p.data, '-U', 'app', '--auth-local=trust', '--auth-host=scram-sha-256',
-        `--pwfile=${pwFile}`, '-E', 'UTF8', '--locale=C.UTF-8',
+        '-D',
+        p.data,
+        '-U',
+        'app',
+        '--auth-local=trust',
+        '--auth-host=scram-sha-256',
+        `--pwfile=${pwFile}`,
+        '-E',
+        'UTF8',
+        '--locale=C.UTF-8',
       ]);
     } finally {
       fs.rmSync(pwFile, { force: true });
@@ -221,7 +231,14 @@ export async function startLocalPostgres(opts: LocalPgOptions): Promise<LocalPg>
     }
     fs.rmSync(path.join(p.data, 'postmaster.pid'), { force: true });
     await asServerUser(bin, 'pg_ctl', [
-      '-D', p.data, '-w', '-t', '60', '-l', p.log, '-o',
+      '-D',
+      p.data,
+      '-w',
+      '-t',
+      '60',
+      '-l',
+      p.log,
+      '-o',
       `-c listen_addresses=127.0.0.1 -p ${port} -k ${p.run} -c max_connections=60`,
       'start',
     ]).catch((e: Error) => {

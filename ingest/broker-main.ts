@@ -14,7 +14,11 @@ const broker = await startBroker({
   servicePassword: config.MQTT_SERVICE_PASSWORD,
   log,
 }).catch((e: NodeJS.ErrnoException) => {
-  console.error(e.code === 'EADDRINUSE' ? `[broker] port ${config.MQTT_PORT} is taken; set MQTT_PORT to a free port.` : `[broker] ${e.message}`);
+  console.error(
+    e.code === 'EADDRINUSE'
+      ? `[broker] port ${config.MQTT_PORT} is taken; set MQTT_PORT to a free port.`
+      : `[broker] ${e.message}`,
+  );
   process.exit(1);
 });
 

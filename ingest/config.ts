@@ -17,7 +17,11 @@ const EnvSchema = z.object({
   /** Flush at once when this many rows are waiting (else every INGEST_FLUSH_MS). */
   INGEST_BATCH_ROWS: z.coerce.number().int().min(1).default(10_000),
   /** Stop taking messages from the broker when the journal holds this many bytes. */
-  INGEST_JOURNAL_MAX_BYTES: z.coerce.number().int().min(1 << 20).default(2 ** 30),
+  INGEST_JOURNAL_MAX_BYTES: z.coerce
+    .number()
+    .int()
+    .min(1 << 20)
+    .default(2 ** 30),
   FUTURE_TOLERANCE_MS: z.coerce.number().int().min(0).default(120_000),
 });
 export type IngestConfig = z.infer<typeof EnvSchema> & { mqttUrl: string };

@@ -24,7 +24,12 @@ export async function startFakeSmtp(pool: pg.Pool, port = 0, log: (s: string) =>
         .then(async (mail) => {
           const to = session.envelope.rcptTo.map((r) => r.address).join(', ');
           const from = session.envelope.mailFrom ? session.envelope.mailFrom.address : null;
-          await pool.query('insert into outbox_mail(mail_from, mail_to, subject, body) values ($1, $2, $3, $4)', [from, to, mail.subject ?? null, mail.text ?? '']);
+          await pool.query('insert into outbox_mail(mail_from, mail_to, subject, body) values ($1, $2, $3, $4)', [
+            from,
+            to,
+            mail.subject ?? null,
+            mail.text ?? '',
+          ]);
           callback();
         })
         .catch((e: Error) => {

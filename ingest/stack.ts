@@ -79,7 +79,8 @@ async function shutdown(code: number): Promise<never> {
   for (const { proc } of [...children].reverse()) if (proc.exitCode === null) proc.kill('SIGTERM');
   const deadline = Date.now() + 8000;
   for (const { proc } of children) {
-    while (proc.exitCode === null && proc.signalCode === null && Date.now() < deadline) await new Promise((r) => setTimeout(r, 100));
+    while (proc.exitCode === null && proc.signalCode === null && Date.now() < deadline)
+      await new Promise((r) => setTimeout(r, 100));
     if (proc.exitCode === null && proc.signalCode === null) proc.kill('SIGKILL');
   }
   await smtp?.close().catch(() => {});
@@ -91,9 +92,13 @@ async function shutdown(code: number): Promise<never> {
 async function main(): Promise<void> {
   process.once('SIGINT', () => void shutdown(0));
   process.once('SIGTERM', () => void shutdown(0));
-  for (const [what, port, variable] of [['web server', PORT, 'PORT'], ['MQTT broker', MQTT_PORT, 'MQTT_PORT']] as const) {
+  for (const [what, port, variable] of [
+    ['web server', PORT, 'PORT'],
+    ['MQTT broker', MQTT_PORT, 'MQTT_PORT'],
+  ] as const) {
     if (!env['MQTT_URL'] || what !== 'MQTT broker') {
-      if (await portInUse(port)) throw new StartError(`Port ${port} for the ${what} is already taken; set ${variable} to a free port.`);
+      if (await portInUse(port))
+        throw new StartError(`Port ${port} for the ${what} is already taken; set ${variable} to a free port.`);
     }
   }
   try {
@@ -108,7 +113,11 @@ async function main(): Promise<void> {
     port: env['PG_PORT'] ? Number(env['PG_PORT']) : undefined,
     log: say,
   });
-  say(env['DATABASE_URL'] ? 'Using the PostgreSQL server in DATABASE_URL.' : `PostgreSQL on 127.0.0.1:${pgHandle.port} (data in var/pg).`);
+  say(
+    env['DATABASE_URL']
+      ? 'Using the PostgreSQL server in DATABASE_URL.'
+      : `PostgreSQL on 127.0.0.1:${pgHandle.port} (data in var/pg).`,
+  );
   const sequelize = createSequelize({ url: pgHandle.url, max: 2 });
   try {
     const applied = await migrateUp(sequelize);
@@ -149,8 +158,12 @@ async function main(): Promise<void> {
   if (simulate) startChild('simulator', [...tsx, 'seeds/simulator.ts'], childEnv);
   console.log('');
   say(`Coatrail is running at ${origin}`);
-  say(`Demo users: ${DEMO_USERS.map((u) => u.username).join(', ')} — password: ${env['DEMO_PASSWORD'] ? '(from DEMO_PASSWORD)' : DEFAULT_DEMO_PASSWORD}`);
-  say(`MQTT broker on ${env['MQTT_URL'] ?? `mqtt://127.0.0.1:${MQTT_PORT}`}; caught e-mail: ${origin}/admin/mail${simulate ? '; the demo-plant simulator is publishing' : ''}.`);
+  say(
+    `Demo users: ${DEMO_USERS.map((u) => u.username).join(', ')} — password: ${env['DEMO_PASSWORD'] ? '(from DEMO_PASSWORD)' : DEFAULT_DEMO_PASSWORD}`,
+  );
+  say(
+    `MQTT broker on ${env['MQTT_URL'] ?? `mqtt://127.0.0.1:${MQTT_PORT}`}; caught e-mail: ${origin}/admin/mail${simulate ? '; the demo-plant simulator is publishing' : ''}.`,
+  );
   say('Press Ctrl-C to stop everything.');
 }
 

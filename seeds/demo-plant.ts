@@ -20,15 +20,35 @@ export const DEMO_USERS = [
   { username: 'viewer', displayName: 'Vera Viewer', role: 'viewer' },
 ] as const;
 
-interface ChannelSpec { key: string; name: string; kind: string; unit: string; min: number; max: number }
-interface AssetSpec { code: string; name: string; kind: 'line' | 'tank' | 'oven' | 'zone' | 'coater' | 'room'; details?: Record<string, unknown>; channels?: ChannelSpec[]; children?: AssetSpec[] }
-interface DeviceSpec { username: string; name: string; asset: AssetSpec }
+interface ChannelSpec {
+  key: string;
+  name: string;
+  kind: string;
+  unit: string;
+  min: number;
+  max: number;
+}
+interface AssetSpec {
+  code: string;
+  name: string;
+  kind: 'line' | 'tank' | 'oven' | 'zone' | 'coater' | 'room';
+  details?: Record<string, unknown>;
+  channels?: ChannelSpec[];
+  children?: AssetSpec[];
+}
+interface DeviceSpec {
+  username: string;
+  name: string;
+  asset: AssetSpec;
+}
 
 const dipLine = (n: number): DeviceSpec => ({
   username: `gw-dip-${n}`,
   name: `Dip line ${n} PLC gateway`,
   asset: {
-    code: `dip-${n}`, name: `Dip line ${n}`, kind: 'line',
+    code: `dip-${n}`,
+    name: `Dip line ${n}`,
+    kind: 'line',
     channels: [
       { key: 'room-rh', name: `Line ${n} room humidity`, kind: 'room-humidity', unit: '%', min: 0, max: 100 },
       { key: 'room-temp', name: `Line ${n} room temperature`, kind: 'room-temperature', unit: '°C', min: -10, max: 50 },
@@ -37,9 +57,19 @@ const dipLine = (n: number): DeviceSpec => ({
       { code: `dip-${n}-wash`, name: `Line ${n} ultrasonic wash`, kind: 'tank', details: { role: 'wash' } },
       { code: `dip-${n}-primer`, name: `Line ${n} primer tank`, kind: 'tank', details: { role: 'primer' } },
       {
-        code: `dip-${n}-hc`, name: `Line ${n} hard-coat bath`, kind: 'tank', details: { role: 'hard-coat', volumeL: 40 },
+        code: `dip-${n}-hc`,
+        name: `Line ${n} hard-coat bath`,
+        kind: 'tank',
+        details: { role: 'hard-coat', volumeL: 40 },
         channels: [
-          { key: 'withdrawal-speed', name: `Line ${n} withdrawal speed`, kind: 'withdrawal-speed', unit: 'mm/s', min: 0, max: 10 },
+          {
+            key: 'withdrawal-speed',
+            name: `Line ${n} withdrawal speed`,
+            kind: 'withdrawal-speed',
+            unit: 'mm/s',
+            min: 0,
+            max: 10,
+          },
           { key: 'viscosity', name: `Line ${n} bath viscosity`, kind: 'viscosity', unit: 'mm²/s', min: 0, max: 60 },
           { key: 'bath-temp', name: `Line ${n} bath temperature`, kind: 'bath-temperature', unit: '°C', min: -5, max: 40 },
         ],
@@ -52,14 +82,28 @@ const oven = (letter: string): DeviceSpec => ({
   username: `gw-oven-${letter}`,
   name: `Oven ${letter.toUpperCase()} controller gateway`,
   asset: {
-    code: `oven-${letter}`, name: `Cure oven ${letter.toUpperCase()}`, kind: 'oven', details: { zones: 2 },
+    code: `oven-${letter}`,
+    name: `Cure oven ${letter.toUpperCase()}`,
+    kind: 'oven',
+    details: { zones: 2 },
     channels: [
       { key: 'setpoint', name: `Oven ${letter.toUpperCase()} setpoint`, kind: 'setpoint', unit: '°C', min: 0, max: 250 },
       { key: 'door', name: `Oven ${letter.toUpperCase()} door`, kind: 'door', unit: 'open=1', min: 0, max: 1 },
     ],
     children: [1, 2].map((z) => ({
-      code: `oven-${letter}-z${z}`, name: `Oven ${letter.toUpperCase()} zone ${z}`, kind: 'zone' as const,
-      channels: [{ key: 'air-temp', name: `Oven ${letter.toUpperCase()} zone ${z} air`, kind: 'air-temperature', unit: '°C', min: -20, max: 300 }],
+      code: `oven-${letter}-z${z}`,
+      name: `Oven ${letter.toUpperCase()} zone ${z}`,
+      kind: 'zone' as const,
+      channels: [
+        {
+          key: 'air-temp',
+          name: `Oven ${letter.toUpperCase()} zone ${z} air`,
+          kind: 'air-temperature',
+          unit: '°C',
+          min: -20,
+          max: 300,
+        },
+      ],
     })),
   },
 });
@@ -74,7 +118,9 @@ export const DEMO_DEVICES: DeviceSpec[] = [
     username: 'gw-uv-1',
     name: 'UV spin coater controller',
     asset: {
-      code: 'uv-1', name: 'UV spin coater 1', kind: 'coater',
+      code: 'uv-1',
+      name: 'UV spin coater 1',
+      kind: 'coater',
       channels: [
         { key: 'irradiance', name: 'UV lamp irradiance', kind: 'irradiance', unit: 'mW/cm²', min: 0, max: 500 },
         { key: 'spin-speed', name: 'Spin speed', kind: 'spin-speed', unit: 'rpm', min: 0, max: 6000 },
@@ -103,15 +149,28 @@ export async function seedDemoPlant(sequelize: Sequelize, opts: SeedOptions): Pr
   const userHash = await hashPassword(opts.demoPassword);
   await sequelize.transaction(async (transaction) => {
     const site = await Site.create(DEMO_SITE, { transaction });
-    await Asset.create({ siteId: site.id, parentId: null, kind: 'room', code: 'coat-room', name: 'Coating room', details: {} }, { transaction });
+    await Asset.create(
+      { siteId: site.id, parentId: null, kind: 'room', code: 'coat-room', name: 'Coating room', details: {} },
+      { transaction },
+    );
     for (const d of DEMO_DEVICES) {
       const prefix = deviceTopicPrefix(site.code, d.username);
       const device = await Device.create(
-        { siteId: site.id, name: d.name, username: d.username, passwordHash: await hashPassword(demoDevicePassword(opts.deviceSecret, d.username)), topicPrefix: prefix, lastSeenAt: null },
+        {
+          siteId: site.id,
+          name: d.name,
+          username: d.username,
+          passwordHash: await hashPassword(demoDevicePassword(opts.deviceSecret, d.username)),
+          topicPrefix: prefix,
+          lastSeenAt: null,
+        },
         { transaction },
       );
       const walk = async (a: AssetSpec, parentId: number | null) => {
-        const asset = await Asset.create({ siteId: site.id, parentId, kind: a.kind, code: a.code, name: a.name, details: a.details ?? {} }, { transaction });
+        const asset = await Asset.create(
+          { siteId: site.id, parentId, kind: a.kind, code: a.code, name: a.name, details: a.details ?? {} },
+          { transaction },
+        );
         for (const c of a.channels ?? []) {
           await Channel.create({ assetId: asset.id, deviceId: device.id, ...c }, { transaction });
         }

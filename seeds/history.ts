@@ -148,7 +148,9 @@ export async function seedHistory(pool: pg.Pool, opts: SeedHistoryOptions = {}):
   };
   const client = await pool.connect();
   try {
-    const old = await client.query<{ hit: boolean }>(`select exists (select 1 from readings where ts < $1) as hit`, [new Date(nowMs - 7 * DAY_MS)]);
+    const old = await client.query<{ hit: boolean }>(`select exists (select 1 from readings where ts < $1) as hit`, [
+      new Date(nowMs - 7 * DAY_MS),
+    ]);
     if (old.rows[0]?.hit) return skip('the readings table already holds a history');
     const channels = await demoChannels(client);
     if (channels.size === 0) return skip('the demo plant is not seeded');
@@ -218,8 +220,16 @@ export async function unseedHistory(pool: pg.Pool, range: { fromMs: number; toMs
   const from = new Date(Math.floor(range.fromMs / HOUR_MS) * HOUR_MS);
   const to = new Date(Math.ceil(range.toMs / HOUR_MS) * HOUR_MS);
   const ids = `select c.id from channels c join assets a on a.id = c.asset_id join sites s on s.id = a.site_id where s.code = $3`;
-  for (const [table, col] of [['readings', 'ts'], ['readings_1m', 'bucket'], ['readings_1h', 'bucket']] as const) {
-    await pool.query(`delete from ${table} where ${col} >= $1 and ${col} <= $2 and channel_id in (${ids})`, [from, to, DEMO_SITE.code]);
+  for (const [table, col] of [
+    ['readings', 'ts'],
+    ['readings_1m', 'bucket'],
+    ['readings_1h', 'bucket'],
+  ] as const) {
+    await pool.query(`delete from ${table} where ${col} >= $1 and ${col} <= $2 and channel_id in (${ids})`, [
+      from,
+      to,
+      DEMO_SITE.code,
+    ]);
   }
   await pool.query(`delete from site_settings where key = 'demoHistory'`);
 }

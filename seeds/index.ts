@@ -20,7 +20,14 @@ export interface SeedAllOptions extends SeedOptions {
 /** A small pg pool on the database sequelize is connected to. */
 function poolFrom(sequelize: Sequelize): pg.Pool {
   const c = sequelize.config;
-  const pool = new pg.Pool({ host: c.host, port: Number(c.port), user: c.username, password: c.password ?? undefined, database: c.database, max: 2 });
+  const pool = new pg.Pool({
+    host: c.host,
+    port: Number(c.port),
+    user: c.username,
+    password: c.password ?? undefined,
+    database: c.database,
+    max: 2,
+  });
   pool.on('error', () => {});
   return pool;
 }

@@ -741,7 +741,11 @@ export function planCycle(track: OvenTrack, code: string, p: CyclePlan): OvenCyc
   }
   if (p.dropout) {
     const s = secondOf(soakStartMs + p.dropout.afterSoakMin * MINUTE_MS);
-    dropouts.push({ zone: `${track.oven}-z${p.dropout.zone}`, startMs: s, endMs: secondOf(s + p.dropout.durationMin * MINUTE_MS) });
+    dropouts.push({
+      zone: `${track.oven}-z${p.dropout.zone}`,
+      startMs: s,
+      endMs: secondOf(s + p.dropout.durationMin * MINUTE_MS),
+    });
   }
   let loadEndMs: number;
   if (p.cutShort) {
@@ -750,7 +754,13 @@ export function planCycle(track: OvenTrack, code: string, p: CyclePlan): OvenCyc
     doorOpenings.push({ startMs: s, endMs: loadEndMs, reason: 'unload' });
   } else {
     // Unload once zone 1 has cooled below 50 °C, plus the operator's delay.
-    const endC = heatCurve(rampFromC[0], CURE_SETPOINT_C - d.zoneOffsetC[0], (soakEndMs - rampStartMs) / MINUTE_MS, p.rampCPerMin, d.kneeTauMin);
+    const endC = heatCurve(
+      rampFromC[0],
+      CURE_SETPOINT_C - d.zoneOffsetC[0],
+      (soakEndMs - rampStartMs) / MINUTE_MS,
+      p.rampCPerMin,
+      d.kneeTauMin,
+    );
     const coolMin = endC > 50 ? d.coolTauMin[0] * Math.log((endC - d.idleC) / (50 - d.idleC)) : 0;
     const s = secondOf(soakEndMs + (coolMin + p.unloadDelayMin) * MINUTE_MS);
     loadEndMs = secondOf(s + p.unloadS * 1000);
@@ -816,7 +826,13 @@ function buildOvenTrack(oven: OvenCode, startMs: number, anchorMs: number): Oven
         unloadDelayMin: rng.range(0, 12),
         unloadS: rng.range(120, 240),
       };
-      const extra = [rng.range(40, 140), rng.range(100, 180), rng() < 0.5 ? 1 : 2, rng.range(20, 120), rng.range(20, 40)] as const;
+      const extra = [
+        rng.range(40, 140),
+        rng.range(100, 180),
+        rng() < 0.5 ? 1 : 2,
+        rng.range(20, 120),
+        rng.range(20, 40),
+      ] as const;
       if (kind === 'door-opened') plan.midSoakDoor = { afterSoakMin: extra[0], durationS: extra[1] };
       if (kind === 'tc-dropout') plan.dropout = { zone: extra[2] as 1 | 2, afterSoakMin: extra[3], durationMin: extra[4] };
       if (kind === 'under-cured') plan.cutShort = { doorOpenS: 11 * 60 + 20 };
@@ -910,7 +926,10 @@ export function buildPlantModel(nowMs: number): PlantModel {
     'dip-1': buildBathHistory('dip-1', modelStartMs, endMs, anchorMs),
     'dip-2': buildBathHistory('dip-2', modelStartMs, endMs, anchorMs),
   };
-  const ovens = Object.fromEntries(OVENS.map((o) => [o, buildOvenTrack(o, modelStartMs, anchorMs)])) as Record<OvenCode, OvenTrack>;
+  const ovens = Object.fromEntries(OVENS.map((o) => [o, buildOvenTrack(o, modelStartMs, anchorMs)])) as Record<
+    OvenCode,
+    OvenTrack
+  >;
   const strokes: DipStroke[] = [];
   for (let day = localDayKey(modelStartMs); day <= localDayKey(anchorMs); day++) {
     for (const line of DIP_LINES) for (const s of dayStrokes(line, day, baths[line])) if (s.tMs <= anchorMs) strokes.push(s);
@@ -1025,7 +1044,12 @@ export function* historySeries(model: PlantModel, fromMs: number, toMs: number):
   for (const line of DIP_LINES) {
     const bath = model.baths[line];
     const strokes = model.strokes.filter((s) => s.line === line && s.tMs >= fromMs && s.tMs < toMs);
-    yield { asset: `${line}-hc`, channel: 'withdrawal-speed', tMs: strokes.map((s) => s.tMs), values: strokes.map((s) => s.speedMmS) };
+    yield {
+      asset: `${line}-hc`,
+      channel: 'withdrawal-speed',
+      tMs: strokes.map((s) => s.tMs),
+      values: strokes.map((s) => s.speedMmS),
+    };
     yield {
       asset: `${line}-hc`,
       channel: 'viscosity',

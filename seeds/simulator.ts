@@ -148,7 +148,8 @@ class Gateway {
   }
 
   async stop(): Promise<void> {
-    if (this.client.connected) await this.client.publishAsync(this.statusTopic, 'offline', { qos: 1, retain: true }).catch(() => {});
+    if (this.client.connected)
+      await this.client.publishAsync(this.statusTopic, 'offline', { qos: 1, retain: true }).catch(() => {});
     await this.client.endAsync().catch(() => {});
   }
 }
@@ -183,9 +184,22 @@ function addCycle(sim: OvenSim, loadStartMs: number, kind: OvenCycleKind): OvenC
     rampCPerMin: realTimeOvens ? rng.range(2.8, 3.2) : rng.range(18, 20),
     unloadDelayMin: realTimeOvens ? rng.range(0, 10) : 0.3,
     unloadS: realTimeOvens ? rng.range(120, 240) : 40,
-    ...(kind === 'door-opened' ? { midSoakDoor: { afterSoakMin: realTimeOvens ? rng.range(30, 120) : rng.range(0.8, 6), durationS: realTimeOvens ? 150 : 45 } } : {}),
+    ...(kind === 'door-opened'
+      ? {
+          midSoakDoor: {
+            afterSoakMin: realTimeOvens ? rng.range(30, 120) : rng.range(0.8, 6),
+            durationS: realTimeOvens ? 150 : 45,
+          },
+        }
+      : {}),
     ...(kind === 'tc-dropout'
-      ? { dropout: { zone: rng() < 0.5 ? 1 : 2, afterSoakMin: realTimeOvens ? rng.range(20, 120) : rng.range(1, 8), durationMin: realTimeOvens ? rng.range(20, 40) : 2 } }
+      ? {
+          dropout: {
+            zone: rng() < 0.5 ? 1 : 2,
+            afterSoakMin: realTimeOvens ? rng.range(20, 120) : rng.range(1, 8),
+            durationMin: realTimeOvens ? rng.range(20, 40) : 2,
+          },
+        }
       : {}),
   });
   sim.track.cycles.push(c);
@@ -277,7 +291,10 @@ const lines = new Map<DipLineCode, LineSim>(
         threshold: rng.range(12.6, 12.9),
         topUpAtMs: story ? startMs + 8 * MINUTE_MS : null,
         nextStrokeMs: startMs + rng.range(5, 20) * 1000,
-        drift: line === 'dip-2' ? { startMs: startMs + 20 * MINUTE_MS, rampMs: 10 * MINUTE_MS, holdMs: 5 * MINUTE_MS, amplitude: 0.08 } : null,
+        drift:
+          line === 'dip-2'
+            ? { startMs: startMs + 20 * MINUTE_MS, rampMs: 10 * MINUTE_MS, holdMs: 5 * MINUTE_MS, amplitude: 0.08 }
+            : null,
       },
     ];
   }),
@@ -299,7 +316,9 @@ function bathMinute(l: LineSim, t: number): void {
     l.bath = r.after;
     l.topUpAtMs = null;
     l.threshold = rng.range(12.6, 12.9);
-    note(`${l.line}: solvent addition ${r.massKg.toFixed(1)} kg, viscosity ${before.toFixed(2)} → ${trueViscosity(l, t).toFixed(2)} mm²/s`);
+    note(
+      `${l.line}: solvent addition ${r.massKg.toFixed(1)} kg, viscosity ${before.toFixed(2)} → ${trueViscosity(l, t).toFixed(2)} mm²/s`,
+    );
   } else if (l.topUpAtMs === null && t >= l.driftUntilMs && viscosityOfSolids(l.bath.solids) > l.threshold) {
     l.topUpAtMs = t + rng.range(2, 4) * MINUTE_MS; // the operator notices and fetches the solvent
   } else if (l.bath.massKg < BATH_RATES.freshLacquerBelowKg) {
@@ -324,9 +343,22 @@ function lineTick(t: number, k: number): void {
     }
     if (t >= l.nextStrokeMs) {
       if (l.drift && t > l.drift.startMs + l.drift.rampMs + l.drift.holdMs) {
-        l.drift = rng() < 0.5 ? { startMs: t + rng.range(30, 90) * MINUTE_MS, rampMs: 10 * MINUTE_MS, holdMs: 5 * MINUTE_MS, amplitude: (rng() < 0.5 ? -1 : 1) * rng.range(0.06, 0.1) } : null;
+        l.drift =
+          rng() < 0.5
+            ? {
+                startMs: t + rng.range(30, 90) * MINUTE_MS,
+                rampMs: 10 * MINUTE_MS,
+                holdMs: 5 * MINUTE_MS,
+                amplitude: (rng() < 0.5 ? -1 : 1) * rng.range(0.06, 0.1),
+              }
+            : null;
       } else if (!l.drift && rng() < 0.01) {
-        l.drift = { startMs: t, rampMs: 10 * MINUTE_MS, holdMs: 5 * MINUTE_MS, amplitude: (rng() < 0.5 ? -1 : 1) * rng.range(0.06, 0.1) };
+        l.drift = {
+          startMs: t,
+          rampMs: 10 * MINUTE_MS,
+          holdMs: 5 * MINUTE_MS,
+          amplitude: (rng() < 0.5 ? -1 : 1) * rng.range(0.06, 0.1),
+        };
       }
       g.publish(hc, 'withdrawal-speed', t, strokeSpeed(l.line, driftOffset(l.drift, t), rng.gauss()));
       l.nextStrokeMs = t + rng.range(35, 45) * 1000;
@@ -359,7 +391,10 @@ function minuteLine(t: number): void {
     const z = ovenSampleAt(sim.track, t).zonesC[0];
     return `${code} ${phaseOf(c, t)} ${z === null ? '—' : z.toFixed(1)} °C`;
   });
-  const li = [...lines.values()].map((l) => `${l.line} ${trueViscosity(l, t).toFixed(2)} mm²/s${trueViscosity(l, t) > VISCOSITY_WINDOW_HIGH_MM2_S ? ' (above 12.5)' : ''}`);
+  const li = [...lines.values()].map(
+    (l) =>
+      `${l.line} ${trueViscosity(l, t).toFixed(2)} mm²/s${trueViscosity(l, t) > VISCOSITY_WINDOW_HIGH_MM2_S ? ' (above 12.5)' : ''}`,
+  );
   say(
     `${Math.round((t - startMs) / MINUTE_MS)} min: ${sent} messages, ${online}/${gateways.size} gateways connected${dropped ? `, ${dropped} samples dropped while offline` : ''}; ` +
       `${ov.join(', ')}; ${li.join(', ')}${events.size ? `; ${[...events].map(([e, n]) => (n > 1 ? `${e} (×${n})` : e)).join('; ')}` : ''}`,
@@ -383,7 +418,9 @@ function tick(): void {
   timer = setTimeout(tick, Math.max(0, startMs + k * 1000 - Date.now()));
 }
 
-say(`publishing the demo plant to ${url} as ${gateways.size} gateways${realTimeOvens ? ' (real-length oven cycles)' : ' (oven cycles compressed to ~25 min)'}.`);
+say(
+  `publishing the demo plant to ${url} as ${gateways.size} gateways${realTimeOvens ? ' (real-length oven cycles)' : ' (oven cycles compressed to ~25 min)'}.`,
+);
 timer = setTimeout(tick, Math.max(0, startMs - Date.now()));
 
 async function stop(): Promise<void> {

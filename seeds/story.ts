@@ -70,13 +70,24 @@ interface Rack {
   jobs: string[];
 }
 
-const empty = (reason: string): SeedStoryResult => ({ seeded: false, reason, jobs: 0, dipRuns: 0, loads: 0, tests: 0, storyLoadId: null, failedJobs: [] });
+const empty = (reason: string): SeedStoryResult => ({
+  seeded: false,
+  reason,
+  jobs: 0,
+  dipRuns: 0,
+  loads: 0,
+  tests: 0,
+  storyLoadId: null,
+  failedJobs: [],
+});
 
 export async function seedStory(pool: pg.Pool, opts: SeedStoryOptions = {}): Promise<SeedStoryResult> {
   const log = opts.log ?? (() => {});
   const done = await pool.query(`select 1 from site_settings where key = 'demoStory'`);
   if (done.rowCount) return empty('the story is already seeded');
-  const hist = await pool.query<{ value: { nowMs?: number; days?: number } }>(`select value from site_settings where key = 'demoHistory'`);
+  const hist = await pool.query<{ value: { nowMs?: number; days?: number } }>(
+    `select value from site_settings where key = 'demoHistory'`,
+  );
   const nowMs = opts.nowMs ?? hist.rows[0]?.value.nowMs ?? Date.now();
   const days = opts.days ?? hist.rows[0]?.value.days;
   const listOpts = days ? { days } : {};
@@ -95,7 +106,9 @@ export async function seedStory(pool: pg.Pool, opts: SeedStoryOptions = {}): Pro
     [new Date(story.soakStartMs), new Date(story.soakEndMs)],
   );
   if (!probe.rowCount) return empty('the seeded history has no oven readings for the story load (seed the history first)');
-  const quality = (await pool.query<{ id: number; display_name: string }>(`select id, display_name from users where username = 'quality'`)).rows[0];
+  const quality = (
+    await pool.query<{ id: number; display_name: string }>(`select id, display_name from users where username = 'quality'`)
+  ).rows[0];
   const operator = (await pool.query<{ id: number }>(`select id from users where username = 'operator'`)).rows[0];
 
   // ---- racks and jobs: one rack per stroke, 2–4 jobs on it
@@ -117,7 +130,11 @@ export async function seedStory(pool: pg.Pool, opts: SeedStoryOptions = {}): Pro
     await c.query(
       `insert into jobs (job_number, lens_material, customer_ref)
          select * from unnest($1::text[], $2::text[], $3::text[]) on conflict (job_number) do nothing`,
-      [allJobs.map((x) => x.j), allJobs.map((x) => MATERIAL_OF_LINE[x.line] ?? null), allJobs.map((_x, i) => `C-${(70_000 + ((i * 7919) % 29_000)).toString()}`)],
+      [
+        allJobs.map((x) => x.j),
+        allJobs.map((x) => MATERIAL_OF_LINE[x.line] ?? null),
+        allJobs.map((_x, i) => `C-${(70_000 + ((i * 7919) % 29_000)).toString()}`),
+      ],
     );
     const rackCodes = [...new Set(racks.map((r) => r.code))];
     await c.query(`insert into racks (code) select unnest($1::text[]) on conflict (code) do nothing`, [rackCodes]);
@@ -145,7 +162,13 @@ export async function seedStory(pool: pg.Pool, opts: SeedStoryOptions = {}): Pro
          left join lateral (select x.value from readings x join channels ch on ch.id = x.channel_id
                              where ch.asset_id = r.tank_id and ch.kind = 'withdrawal-speed' and x.ts = r.dipped_at limit 1) sp on true
        returning id, dipped_at, (select code from assets where id = line_asset_id) as line_code`,
-      [racks.map((r) => r.stroke.line), racks.map((r) => r.stroke.tMs), racks.map((r) => r.code), racks.map((r) => windows.get(r.stroke.line) ?? null), operator?.id ?? null],
+      [
+        racks.map((r) => r.stroke.line),
+        racks.map((r) => r.stroke.tMs),
+        racks.map((r) => r.code),
+        racks.map((r) => windows.get(r.stroke.line) ?? null),
+        operator?.id ?? null,
+      ],
     );
     const runId = new Map(ins.rows.map((r) => [`${r.line_code}|${r.dipped_at.getTime()}`, r.id]));
     const dj: [number, string][] = [];
@@ -178,13 +201,27 @@ export async function seedStory(pool: pg.Pool, opts: SeedStoryOptions = {}): Pro
   }
   // Racks go into the next load of their line's ovens that starts after the flash-off.
   const lineLoads = new Map<string, OvenCycle[]>();
-  for (const [line, ovens] of Object.entries(OVENS_OF_LINE)) lineLoads.set(line, cycles.filter((cy) => ovens.includes(cy.oven)));
+  for (const [line, ovens] of Object.entries(OVENS_OF_LINE))
+    lineLoads.set(
+      line,
+      cycles.filter((cy) => ovens.includes(cy.oven)),
+    );
   const filled = new Map<OvenCycle, Rack[]>();
   for (const r of racks) {
     const list = lineLoads.get(r.stroke.line) ?? [];
     // The next two loads after the flash-off: the emptier one takes the rack (racks spread over the line's ovens).
-    const next2 = list.filter((cy) => cy.rampStartMs >= r.stroke.tMs + FLASH_OFF_MIN * MINUTE_MS && cy.rampStartMs - r.stroke.tMs < 18 * HOUR_MS && (filled.get(cy)?.length ?? 0) < MAX_RACKS_PER_LOAD).slice(0, 2);
-    const target = next2.reduce<OvenCycle | undefined>((a, b) => (!a || (filled.get(b)?.length ?? 0) < (filled.get(a)?.length ?? 0) ? b : a), undefined);
+    const next2 = list
+      .filter(
+        (cy) =>
+          cy.rampStartMs >= r.stroke.tMs + FLASH_OFF_MIN * MINUTE_MS &&
+          cy.rampStartMs - r.stroke.tMs < 18 * HOUR_MS &&
+          (filled.get(cy)?.length ?? 0) < MAX_RACKS_PER_LOAD,
+      )
+      .slice(0, 2);
+    const target = next2.reduce<OvenCycle | undefined>(
+      (a, b) => (!a || (filled.get(b)?.length ?? 0) < (filled.get(a)?.length ?? 0) ? b : a),
+      undefined,
+    );
     if (!target) continue;
     filled.set(target, [...(filled.get(target) ?? []), r]);
   }
@@ -204,7 +241,14 @@ export async function seedStory(pool: pg.Pool, opts: SeedStoryOptions = {}): Pro
 
   // ---- quality tests
   const acceptance = await acceptanceSettings(pool);
-  const tests: { job: string; kind: string; at: number; inputs: Record<string, unknown>; m: TestMeasurement; boil: number | null }[] = [];
+  const tests: {
+    job: string;
+    kind: string;
+    at: number;
+    inputs: Record<string, unknown>;
+    m: TestMeasurement;
+    boil: number | null;
+  }[] = [];
   const failedJobs: string[] = [];
   const onDay = (afterMs: number, dayOffset: number, rng: () => number): number => {
     let k = localDayKey(afterMs) + dayOffset;
@@ -222,29 +266,78 @@ export async function seedStory(pool: pg.Pool, opts: SeedStoryOptions = {}): Pro
       STORY_FAILS_PCT.forEach((pct, i) => {
         const job = shuffled[i] as string;
         failedJobs.push(job);
-        tests.push({ job, kind: 'crosscut', at: onDay(cy.loadEndMs, 2, rng), inputs: { percentRemoved: pct }, m: { kind: 'crosscut', percentRemoved: pct }, boil: 0 });
+        tests.push({
+          job,
+          kind: 'crosscut',
+          at: onDay(cy.loadEndMs, 2, rng),
+          inputs: { percentRemoved: pct },
+          m: { kind: 'crosscut', percentRemoved: pct },
+          boil: 0,
+        });
       });
       for (const job of shuffled.slice(STORY_FAILS_PCT.length, STORY_FAILS_PCT.length + 6)) {
-        tests.push({ job, kind: 'cosmetic', at: onDay(cy.loadEndMs, 2, rng), inputs: { defects: [] }, m: { kind: 'cosmetic', defects: [] }, boil: null });
+        tests.push({
+          job,
+          kind: 'cosmetic',
+          at: onDay(cy.loadEndMs, 2, rng),
+          inputs: { defects: [] },
+          m: { kind: 'cosmetic', defects: [] },
+          boil: null,
+        });
       }
       continue;
     }
     // One adhesion test per load: a dry cross-cut, or (about one load in three) a cross-cut after two boil cycles.
     const pct = rng() < 0.004 ? Math.round((1 + rng() * 3) * 10) / 10 : 0; // an occasional class 1
     if (rng() < 0.3) {
-      tests.push({ job: pick(), kind: 'boil', at: onDay(cy.loadEndMs, 1, rng), inputs: { percentRemoved: pct, boilCycles: 2 }, m: { kind: 'boil', percentRemoved: pct, boilCycles: 2 }, boil: 2 });
+      tests.push({
+        job: pick(),
+        kind: 'boil',
+        at: onDay(cy.loadEndMs, 1, rng),
+        inputs: { percentRemoved: pct, boilCycles: 2 },
+        m: { kind: 'boil', percentRemoved: pct, boilCycles: 2 },
+        boil: 2,
+      });
     } else {
-      tests.push({ job: pick(), kind: 'crosscut', at: onDay(cy.loadEndMs, 1, rng), inputs: { percentRemoved: pct }, m: { kind: 'crosscut', percentRemoved: pct }, boil: 0 });
+      tests.push({
+        job: pick(),
+        kind: 'crosscut',
+        at: onDay(cy.loadEndMs, 1, rng),
+        inputs: { percentRemoved: pct },
+        m: { kind: 'crosscut', percentRemoved: pct },
+        boil: 0,
+      });
     }
     const um = Math.round((1.9 + rng() * 0.6) * 100) / 100;
-    tests.push({ job: pick(), kind: 'thickness', at: onDay(cy.loadEndMs, 1, rng), inputs: { method: 'measured', thicknessUm: um }, m: { kind: 'thickness', thicknessUm: um }, boil: null });
+    tests.push({
+      job: pick(),
+      kind: 'thickness',
+      at: onDay(cy.loadEndMs, 1, rng),
+      inputs: { method: 'measured', thicknessUm: um },
+      m: { kind: 'thickness', thicknessUm: um },
+      boil: null,
+    });
     const dust = rng() < 0.02 ? 1 : 0;
     const defects: { type: DefectType; count: number }[] = dust ? [{ type: 'dust-inclusions', count: 1 }] : [];
-    tests.push({ job: pick(), kind: 'cosmetic', at: onDay(cy.loadEndMs, 1, rng), inputs: { defects }, m: { kind: 'cosmetic', defects }, boil: null });
+    tests.push({
+      job: pick(),
+      kind: 'cosmetic',
+      at: onDay(cy.loadEndMs, 1, rng),
+      inputs: { defects },
+      m: { kind: 'cosmetic', defects },
+      boil: null,
+    });
     if (rng() < 0.4) {
       const ref = Math.round((28 + rng() * 8) * 10) / 10;
       const test = Math.round((ref / (2.5 + rng() * 2)) * 10) / 10;
-      tests.push({ job: pick(), kind: 'abrasion', at: onDay(cy.loadEndMs, 2, rng), inputs: { referenceHazeGainPct: ref, testHazeGainPct: test }, m: { kind: 'abrasion', referenceHazeGainPct: ref, testHazeGainPct: test }, boil: null });
+      tests.push({
+        job: pick(),
+        kind: 'abrasion',
+        at: onDay(cy.loadEndMs, 2, rng),
+        inputs: { referenceHazeGainPct: ref, testHazeGainPct: test },
+        m: { kind: 'abrasion', referenceHazeGainPct: ref, testHazeGainPct: test },
+        boil: null,
+      });
     }
   }
   const done2 = tests.filter((t) => t.at <= nowMs);
@@ -280,9 +373,19 @@ export async function seedStory(pool: pg.Pool, opts: SeedStoryOptions = {}): Pro
   };
   await pool.query(
     `insert into site_settings (key, value, updated_at) values ('demoStory', $1::jsonb, now()) on conflict (key) do update set value = excluded.value, updated_at = now()`,
-    [JSON.stringify({ nowMs, storyLoadId, failedJobs: result.failedJobs, storyLoadCode: story.code, seededAt: new Date().toISOString() })],
+    [
+      JSON.stringify({
+        nowMs,
+        storyLoadId,
+        failedJobs: result.failedJobs,
+        storyLoadCode: story.code,
+        seededAt: new Date().toISOString(),
+      }),
+    ],
   );
-  log(`Story: ${judged.length} quality tests; under-cured load ${storyLoadId} (${story.oven}), failed cross-cuts on ${result.failedJobs.join(', ')}.`);
+  log(
+    `Story: ${judged.length} quality tests; under-cured load ${storyLoadId} (${story.oven}), failed cross-cuts on ${result.failedJobs.join(', ')}.`,
+  );
   return result;
 }
 
@@ -318,20 +421,51 @@ async function seedSurveys(pool: pg.Pool, nowMs: number, asset: Map<string, numb
     const table = parseSurveyCsv(csv);
     const idx = autoStabilisedIndex(table, 110);
     if (idx === null) continue;
-    const r = uniformitySurvey({ setpointC: 110, sensors: table.sensors, stabilisedFromIndex: idx, classTable: AMS2750G_CLASSES });
+    const r = uniformitySurvey({
+      setpointC: 110,
+      sensors: table.sensors,
+      stabilisedFromIndex: idx,
+      classTable: AMS2750G_CLASSES,
+    });
     const v = table.sensors.map((x) => {
       const w = x.readingsC.slice(idx);
-      return { name: x.name, correctionC: 0, minC: Math.min(...w), maxC: Math.max(...w), meanC: w.reduce((a, b) => a + b, 0) / w.length };
+      return {
+        name: x.name,
+        correctionC: 0,
+        minC: Math.min(...w),
+        maxC: Math.max(...w),
+        meanC: w.reduce((a, b) => a + b, 0) / w.length,
+      };
     });
     const ins = await pool.query<{ id: number }>(
       `insert into oven_surveys (oven_asset_id, surveyed_at, setpoint_c, sensors, stabilised_from, stabilised_auto, hottest_deviation_c, coldest_deviation_c,
           uniformity_class, class_table_name, class_table, result, note, recorded_by)
        values ($1, to_timestamp($2 / 1000.0), 110, $3::jsonb, to_timestamp($4 / 1000.0), true, $5, $6, $7, 'SAE AMS2750G furnace classes', $8::jsonb, $9::jsonb, 'demo seed (invented survey)', $10)
        returning id`,
-      [oven, start, JSON.stringify(v), start + (table.minutes[idx] as number) * 60_000, r.hottestDeviationC, r.coldestDeviationC, r.uniformityClass, JSON.stringify(AMS2750G_CLASSES),
-        JSON.stringify({ ...r, rows: table.minutes.length, durationMinutes: table.minutes.at(-1), stabilisedFromMinutes: table.minutes[idx] }), engineer?.id ?? null],
+      [
+        oven,
+        start,
+        JSON.stringify(v),
+        start + (table.minutes[idx] as number) * 60_000,
+        r.hottestDeviationC,
+        r.coldestDeviationC,
+        r.uniformityClass,
+        JSON.stringify(AMS2750G_CLASSES),
+        JSON.stringify({
+          ...r,
+          rows: table.minutes.length,
+          durationMinutes: table.minutes.at(-1),
+          stabilisedFromMinutes: table.minutes[idx],
+        }),
+        engineer?.id ?? null,
+      ],
     );
-    await attachFile(pool, { surveyId: ins.rows[0]!.id, name: `survey-${code}.csv`, bytes: new TextEncoder().encode(csv), userId: engineer?.id ?? null });
+    await attachFile(pool, {
+      surveyId: ins.rows[0]!.id,
+      name: `survey-${code}.csv`,
+      bytes: new TextEncoder().encode(csv),
+      userId: engineer?.id ?? null,
+    });
   }
 }
 
@@ -340,13 +474,26 @@ export async function unseedStory(pool: pg.Pool): Promise<void> {
   const c = await pool.connect();
   try {
     await c.query('begin');
-    await c.query(`delete from quality_tests where job_id in (select dj.job_id from dip_run_jobs dj join dip_runs d on d.id = dj.dip_run_id where d.source = 'seed')`);
-    await c.query(`delete from load_jobs where job_id in (select dj.job_id from dip_run_jobs dj join dip_runs d on d.id = dj.dip_run_id where d.source = 'seed')`);
-    await c.query(`delete from alarms where source_kind = 'cure' and load_id in (select id from oven_loads where opened_by = 'auto' and opened_by_user is null)`);
-    await c.query(`delete from oven_loads l where opened_by = 'auto' and not exists (select 1 from load_jobs lj where lj.load_id = l.id)`);
-    const jobs = await c.query<{ id: number }>(`select distinct dj.job_id as id from dip_run_jobs dj join dip_runs d on d.id = dj.dip_run_id where d.source = 'seed'`);
+    await c.query(
+      `delete from quality_tests where job_id in (select dj.job_id from dip_run_jobs dj join dip_runs d on d.id = dj.dip_run_id where d.source = 'seed')`,
+    );
+    await c.query(
+      `delete from load_jobs where job_id in (select dj.job_id from dip_run_jobs dj join dip_runs d on d.id = dj.dip_run_id where d.source = 'seed')`,
+    );
+    await c.query(
+      `delete from alarms where source_kind = 'cure' and load_id in (select id from oven_loads where opened_by = 'auto' and opened_by_user is null)`,
+    );
+    await c.query(
+      `delete from oven_loads l where opened_by = 'auto' and not exists (select 1 from load_jobs lj where lj.load_id = l.id)`,
+    );
+    const jobs = await c.query<{ id: number }>(
+      `select distinct dj.job_id as id from dip_run_jobs dj join dip_runs d on d.id = dj.dip_run_id where d.source = 'seed'`,
+    );
     await c.query(`delete from dip_runs where source = 'seed'`);
-    await c.query(`delete from jobs where id = any($1::int[]) and not exists (select 1 from dip_run_jobs x where x.job_id = jobs.id) and not exists (select 1 from holds h where h.job_id = jobs.id)`, [jobs.rows.map((r) => r.id)]);
+    await c.query(
+      `delete from jobs where id = any($1::int[]) and not exists (select 1 from dip_run_jobs x where x.job_id = jobs.id) and not exists (select 1 from holds h where h.job_id = jobs.id)`,
+      [jobs.rows.map((r) => r.id)],
+    );
     await c.query(`delete from racks k where not exists (select 1 from dip_runs d where d.rack_id = k.id)`);
     await c.query(`delete from oven_surveys where note = 'demo seed (invented survey)'`);
     await c.query(`delete from site_settings where key = 'demoStory'`);
@@ -358,4 +505,3 @@ export async function unseedStory(pool: pg.Pool): Promise<void> {
     c.release();
   }
 }
-

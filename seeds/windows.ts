@@ -54,19 +54,31 @@ export function exampleLimits(maxPartTempC: number): ProcessWindowLimits {
   };
 }
 
-export async function seedWindows(sequelize: Sequelize, opts: { nowMs?: number; log?: (line: string) => void } = {}): Promise<boolean> {
+export async function seedWindows(
+  sequelize: Sequelize,
+  opts: { nowMs?: number; log?: (line: string) => void } = {},
+): Promise<boolean> {
   const run = <T extends object>(sql: string, bind: unknown[], transaction: Transaction) =>
     sequelize.query<T>(sql, { bind, type: QueryTypes.SELECT, transaction });
-  const [exists] = await sequelize.query<{ n: number }>(`select count(*)::int as n from lacquers where name = $1`, { bind: [EXAMPLE_LACQUER], type: QueryTypes.SELECT });
+  const [exists] = await sequelize.query<{ n: number }>(`select count(*)::int as n from lacquers where name = $1`, {
+    bind: [EXAMPLE_LACQUER],
+    type: QueryTypes.SELECT,
+  });
   if ((exists?.n ?? 0) > 0) return false;
-  const [site] = await sequelize.query<{ id: number }>(`select id from sites where code = 'fernhollow'`, { type: QueryTypes.SELECT });
+  const [site] = await sequelize.query<{ id: number }>(`select id from sites where code = 'fernhollow'`, {
+    type: QueryTypes.SELECT,
+  });
   if (!site) return false;
   const log = opts.log ?? (() => {});
   log('Seeding example process windows and the bath log…');
   const now = opts.nowMs ?? Date.now();
   const t0 = new Date(now - 30 * DAY);
   await sequelize.transaction(async (t) => {
-    const users = await run<{ id: number; username: string; display_name: string }>(`select id, username, display_name from users where username in ('engineer','operator')`, [], t);
+    const users = await run<{ id: number; username: string; display_name: string }>(
+      `select id, username, display_name from users where username in ('engineer','operator')`,
+      [],
+      t,
+    );
     const engineer = users.find((u) => u.username === 'engineer');
     const operator = users.find((u) => u.username === 'operator') ?? engineer;
     const assets = await run<{ id: number; code: string }>(`select id, code from assets where site_id = $1`, [site.id], t);
@@ -77,36 +89,71 @@ export async function seedWindows(sequelize: Sequelize, opts: { nowMs?: number; 
       [EXAMPLE_LACQUER, EXAMPLE_NOTE],
       t,
     );
-    const materials = await run<{ id: number; code: string; name: string }>(`select id, code, name from materials where code in ('cr39-1.50','pc-1.59')`, [], t);
+    const materials = await run<{ id: number; code: string; name: string }>(
+      `select id, code, name from materials where code in ('cr39-1.50','pc-1.59')`,
+      [],
+      t,
+    );
     const windowIds = new Map<string, number>();
-    for (const [code, maxPart] of [['cr39-1.50', 125], ['pc-1.59', 130]] as const) {
+    for (const [code, maxPart] of [
+      ['cr39-1.50', 125],
+      ['pc-1.59', 130],
+    ] as const) {
       const m = materials.find((x) => x.code === code);
       if (!m) continue;
       const signature = engineer
-        ? { userId: engineer.id, username: engineer.username, displayName: engineer.display_name, meaning: 'approved', signedAt: t0.toISOString() }
+        ? {
+            userId: engineer.id,
+            username: engineer.username,
+            displayName: engineer.display_name,
+            meaning: 'approved',
+            signedAt: t0.toISOString(),
+          }
         : { userId: 0, username: 'seed', displayName: 'Demo seed', meaning: 'approved', signedAt: t0.toISOString() };
       const [w] = await run<{ id: number }>(
         `insert into process_windows (lacquer_id, material_id, version, name, status, limits, note, created_by, created_at, updated_at, approved_by, approved_signature, effective_from)
          values ($1, $2, 1, $3, 'effective', $4::jsonb, $5, $6, $7, $7, $6, $8::jsonb, $7) returning id`,
-        [lacquer!.id, m.id, `FH-Siloxane 30 on ${m.name} (example)`, JSON.stringify(exampleLimits(maxPart)), EXAMPLE_NOTE, engineer?.id ?? null, t0, JSON.stringify(signature)],
+        [
+          lacquer!.id,
+          m.id,
+          `FH-Siloxane 30 on ${m.name} (example)`,
+          JSON.stringify(exampleLimits(maxPart)),
+          EXAMPLE_NOTE,
+          engineer?.id ?? null,
+          t0,
+          JSON.stringify(signature),
+        ],
         t,
       );
       windowIds.set(code, w!.id);
       await run(
         `insert into audit_log (at, actor_id, actor_label, action, entity, entity_id, after, signature) values ($1, $2, 'demo seed', 'window.approve', 'process_window', $3, $4::jsonb, $5::jsonb) returning id`,
-        [t0, engineer?.id ?? null, String(w!.id), JSON.stringify({ status: 'effective', note: EXAMPLE_NOTE }), JSON.stringify(signature)],
+        [
+          t0,
+          engineer?.id ?? null,
+          String(w!.id),
+          JSON.stringify({ status: 'effective', note: EXAMPLE_NOTE }),
+          JSON.stringify(signature),
+        ],
         t,
       );
     }
     const plan: [string, string][] = [
-      ['dip-1', 'cr39-1.50'], ['oven-a', 'cr39-1.50'], ['oven-b', 'cr39-1.50'],
-      ['dip-2', 'pc-1.59'], ['oven-c', 'pc-1.59'],
+      ['dip-1', 'cr39-1.50'],
+      ['oven-a', 'cr39-1.50'],
+      ['oven-b', 'cr39-1.50'],
+      ['dip-2', 'pc-1.59'],
+      ['oven-c', 'pc-1.59'],
     ];
     for (const [code, mat] of plan) {
       const a = asset(code);
       const w = windowIds.get(mat);
       if (!a || !w) continue;
-      await run(`insert into window_assignments (asset_id, window_id, valid_from, assigned_by, note) values ($1, $2, $3, $4, 'demo seed') returning id`, [a, w, t0, engineer?.id ?? null], t);
+      await run(
+        `insert into window_assignments (asset_id, window_id, valid_from, assigned_by, note) values ($1, $2, $3, $4, 'demo seed') returning id`,
+        [a, w, t0, engineer?.id ?? null],
+        t,
+      );
     }
 
     // Lots (the maker's lot numbers are invented) and one charge per hard-coat bath, at the times
@@ -129,7 +176,14 @@ export async function seedWindows(sequelize: Sequelize, opts: { nowMs?: number; 
       const chargedAt = atLocal(localDayKey(anchor) - spec.daysBack, 6.25);
       const [lot] = await run<{ id: number }>(
         `insert into lacquer_lots (lacquer_id, lot_code, received_on, expires_on, solids_pct, note, created_by) values ($1, $2, $3, $4, $5, 'demo seed', $6) returning id`,
-        [lacquer!.id, `FHS30-L${line === 'dip-1' ? '0411' : '0587'}`, dayStr(chargedAt - 12 * DAY), dayStr(chargedAt + 168 * DAY), Math.round(spec.solids * 1000) / 10, engineer?.id ?? null],
+        [
+          lacquer!.id,
+          `FHS30-L${line === 'dip-1' ? '0411' : '0587'}`,
+          dayStr(chargedAt - 12 * DAY),
+          dayStr(chargedAt + 168 * DAY),
+          Math.round(spec.solids * 1000) / 10,
+          engineer?.id ?? null,
+        ],
         t,
       );
       const [charge] = await run<{ id: number }>(
@@ -154,7 +208,21 @@ export async function seedWindows(sequelize: Sequelize, opts: { nowMs?: number; 
         const [check] = await run<{ id: number }>(
           `insert into bath_checks (tank_asset_id, charge_id, at, by_user, by_label, cup, efflux_seconds, kinematic_mm2s, method, density_g_cm3, dynamic_mpas, bath_temp_c, solids_pct, window_id, note)
            values ($1, $2, $3, $4, $5, $6, $7, $8, $9, 0.95, $10, $11, $12, $13, 'demo seed') returning id`,
-          [tank, charge!.id, new Date(at), by.id, by.username, cup.cup, seconds, result.kinematicMm2S, result.source, result.dynamicMPaS ?? null, Math.round(bathTempC(line, at) * 10) / 10, solidsPct, windowId],
+          [
+            tank,
+            charge!.id,
+            new Date(at),
+            by.id,
+            by.username,
+            cup.cup,
+            seconds,
+            result.kinematicMm2S,
+            result.source,
+            result.dynamicMPaS ?? null,
+            Math.round(bathTempC(line, at) * 10) / 10,
+            solidsPct,
+            windowId,
+          ],
           t,
         );
         checks.push({ at, id: check!.id, solidsPct, massKg: state.massKg });
@@ -171,11 +239,29 @@ export async function seedWindows(sequelize: Sequelize, opts: { nowMs?: number; 
         }
         if (e.massKg === null || e.massKg <= 0) continue;
         const check = [...checks].reverse().find((c) => c.at <= e.tMs) ?? null;
-        const recommendation = check ? bathAddition({ bathMassKg: check.massKg, solidsNowPct: check.solidsPct, solidsTargetPct: 30, lacquerSolidsPct: spec.solids * 100 }) : null;
+        const recommendation = check
+          ? bathAddition({
+              bathMassKg: check.massKg,
+              solidsNowPct: check.solidsPct,
+              solidsTargetPct: 30,
+              lacquerSolidsPct: spec.solids * 100,
+            })
+          : null;
         await run(
           `insert into bath_additions (tank_asset_id, charge_id, at, by_user, by_label, kind, mass_kg, lot_id, check_id, recommendation, note)
            values ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10::jsonb, 'demo seed') returning id`,
-          [tank, charge!.id, new Date(e.tMs), by.id, by.username, e.kind === 'solvent-addition' ? 'solvent' : 'fresh-lacquer', e.massKg, e.kind === 'solvent-addition' ? null : lot!.id, check?.id ?? null, recommendation ? JSON.stringify(recommendation) : null],
+          [
+            tank,
+            charge!.id,
+            new Date(e.tMs),
+            by.id,
+            by.username,
+            e.kind === 'solvent-addition' ? 'solvent' : 'fresh-lacquer',
+            e.massKg,
+            e.kind === 'solvent-addition' ? null : lot!.id,
+            check?.id ?? null,
+            recommendation ? JSON.stringify(recommendation) : null,
+          ],
           t,
         );
       }
@@ -187,7 +273,16 @@ export async function seedWindows(sequelize: Sequelize, opts: { nowMs?: number; 
 /** Reverse {@link seedWindows} on a database that holds nothing else of these tables. */
 export async function unseedWindows(sequelize: Sequelize): Promise<void> {
   await sequelize.transaction(async (transaction) => {
-    for (const table of ['filter_changes', 'bath_additions', 'bath_checks', 'bath_charges', 'lacquer_lots', 'window_assignments', 'process_windows', 'lacquers']) {
+    for (const table of [
+      'filter_changes',
+      'bath_additions',
+      'bath_checks',
+      'bath_charges',
+      'lacquer_lots',
+      'window_assignments',
+      'process_windows',
+      'lacquers',
+    ]) {
       await sequelize.query(`delete from ${table}`, { transaction });
     }
   });

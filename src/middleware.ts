@@ -32,7 +32,10 @@ const errors = defineMiddleware(async (ctx, next) => {
   } catch (e) {
     if (e instanceof HttpProblem) {
       if (ctx.url.pathname.startsWith('/api/')) return problemResponse(e.status, e.title, e.detail, e.extra);
-      return new Response(`${e.title}. ${e.detail ?? ''}`, { status: e.status, headers: { 'content-type': 'text/plain; charset=utf-8' } });
+      return new Response(`${e.title}. ${e.detail ?? ''}`, {
+        status: e.status,
+        headers: { 'content-type': 'text/plain; charset=utf-8' },
+      });
     }
     console.error(`[web] ${ctx.request.method} ${ctx.url.pathname} failed:`, e);
     return problemResponse(500, 'Internal error', 'Something went wrong on the server; it has been logged.');

@@ -19,13 +19,26 @@ export default defineConfig(
   {
     files: ['src/lib/domain/**/*.ts', 'src/lib/shared/**/*.ts'],
     rules: {
-      'no-restricted-imports': ['error', { patterns: [{ group: [...serverOnly, '**/lib/client/**', 'astro', 'react'], message: 'lib/domain and lib/shared are pure: no Astro, Node, db or server imports.' }] }],
+      'no-restricted-imports': [
+        'error',
+        {
+          patterns: [
+            {
+              group: [...serverOnly, '**/lib/client/**', 'astro', 'react'],
+              message: 'lib/domain and lib/shared are pure: no Astro, Node, db or server imports.',
+            },
+          ],
+        },
+      ],
     },
   },
   {
     files: ['src/components/**/*.tsx', 'src/lib/client/**/*.ts'],
     rules: {
-      'no-restricted-imports': ['error', { patterns: [{ group: serverOnly, message: 'Islands and lib/client import only lib/shared and lib/domain.' }] }],
+      'no-restricted-imports': [
+        'error',
+        { patterns: [{ group: serverOnly, message: 'Islands and lib/client import only lib/shared and lib/domain.' }] },
+      ],
     },
   },
 );

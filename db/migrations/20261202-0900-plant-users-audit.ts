@@ -8,7 +8,9 @@ import { sql, type Migration } from './types.ts';
 export const migration: Migration = {
   name: '20261202-0900-plant-users-audit',
   async up(ctx) {
-    await sql(ctx, `
+    await sql(
+      ctx,
+      `
       create table sites (
         id serial primary key,
         code text not null unique check (code ~ '^[a-z0-9][a-z0-9-]{0,31}$'),
@@ -108,10 +110,13 @@ export const migration: Migration = {
         value jsonb not null,
         updated_at timestamptz not null default now()
       );
-    `);
+    `,
+    );
   },
   async down(ctx) {
-    await sql(ctx, `
+    await sql(
+      ctx,
+      `
       drop table site_settings;
       drop trigger audit_log_no_truncate on audit_log;
       drop trigger audit_log_no_update on audit_log;
@@ -124,6 +129,7 @@ export const migration: Migration = {
       drop table users;
       drop table assets;
       drop table sites;
-    `);
+    `,
+    );
   },
 };

@@ -9,7 +9,9 @@ import { sql, type Migration } from './types.ts';
 export const migration: Migration = {
   name: '20261202-0910-readings',
   async up(ctx) {
-    await sql(ctx, `
+    await sql(
+      ctx,
+      `
       create table readings (
         channel_id int not null,
         ts timestamptz not null,
@@ -93,10 +95,13 @@ export const migration: Migration = {
         committed bigint not null default 0,
         rejected bigint not null default 0
       );
-    `);
+    `,
+    );
   },
   async down(ctx) {
-    await sql(ctx, `
+    await sql(
+      ctx,
+      `
       drop table ingest_status;
       drop table unknown_channels;
       drop table ingest_rejections;
@@ -104,6 +109,7 @@ export const migration: Migration = {
       drop table readings_1m;
       drop table readings;
       drop function ensure_reading_partitions(timestamptz, timestamptz);
-    `);
+    `,
+    );
   },
 };

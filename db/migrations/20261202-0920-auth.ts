@@ -4,7 +4,9 @@ import { sql, type Migration } from './types.ts';
 export const migration: Migration = {
   name: '20261202-0920-auth',
   async up(ctx) {
-    await sql(ctx, `
+    await sql(
+      ctx,
+      `
       create table login_throttles (
         key text primary key,
         failures int not null default 0,
@@ -38,14 +40,18 @@ export const migration: Migration = {
         subject text,
         body text not null
       );
-    `);
+    `,
+    );
   },
   async down(ctx) {
-    await sql(ctx, `
+    await sql(
+      ctx,
+      `
       drop table outbox_mail;
       drop table password_resets;
       drop table api_tokens;
       drop table login_throttles;
-    `);
+    `,
+    );
   },
 };

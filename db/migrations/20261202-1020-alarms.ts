@@ -16,7 +16,9 @@ import { sql, type Migration } from './types.ts';
 export const migration: Migration = {
   name: '20261202-1020-alarms',
   async up(ctx) {
-    await sql(ctx, `
+    await sql(
+      ctx,
+      `
       create table alarms (
         id serial primary key,
         source_kind text not null check (source_kind in ('limit','spc','cure','stale','device','system')),
@@ -88,14 +90,18 @@ export const migration: Migration = {
       );
       create unique index alarm_configs_channel on alarm_configs(channel_id) where channel_id is not null;
       create unique index alarm_configs_characteristic on alarm_configs(characteristic_id) where characteristic_id is not null;
-    `);
+    `,
+    );
   },
   async down(ctx) {
-    await sql(ctx, `
+    await sql(
+      ctx,
+      `
       drop table alarm_configs;
       drop table alarm_events;
       drop table alarms;
       delete from site_settings where key in ('alarmEscalation', 'onShiftEngineerEmail');
-    `);
+    `,
+    );
   },
 };

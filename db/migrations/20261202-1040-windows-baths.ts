@@ -8,7 +8,9 @@ import { sql, type Migration } from './types.ts';
 export const migration: Migration = {
   name: '20261202-1040-windows-baths',
   async up(ctx) {
-    await sql(ctx, `
+    await sql(
+      ctx,
+      `
       create table materials (
         id serial primary key,
         code text not null unique check (code ~ '^[a-z0-9][a-z0-9.-]{0,31}$'),
@@ -152,10 +154,13 @@ export const migration: Migration = {
         created_at timestamptz not null default now()
       );
       create index filter_changes_tank_at on filter_changes(tank_asset_id, at desc);
-    `);
+    `,
+    );
   },
   async down(ctx) {
-    await sql(ctx, `
+    await sql(
+      ctx,
+      `
       drop table filter_changes;
       drop table bath_additions;
       drop table bath_checks;
@@ -165,6 +170,7 @@ export const migration: Migration = {
       drop table process_windows;
       drop table lacquers;
       drop table materials;
-    `);
+    `,
+    );
   },
 };

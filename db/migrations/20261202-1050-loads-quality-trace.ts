@@ -14,7 +14,9 @@ import { sql, type Migration } from './types.ts';
 export const migration: Migration = {
   name: '20261202-1050-loads-quality-trace',
   async up(ctx) {
-    await sql(ctx, `
+    await sql(
+      ctx,
+      `
       create table jobs (
         id serial primary key,
         job_number text not null unique check (job_number ~ '^[A-Za-z0-9][A-Za-z0-9._/-]{0,39}$'),
@@ -204,10 +206,13 @@ export const migration: Migration = {
       );
       create index test_files_test on test_files(test_id);
       create index test_files_survey on test_files(survey_id);
-    `);
+    `,
+    );
   },
   async down(ctx) {
-    await sql(ctx, `
+    await sql(
+      ctx,
+      `
       drop table test_files;
       drop table oven_surveys;
       drop table nc_dispositions;
@@ -222,6 +227,7 @@ export const migration: Migration = {
       drop table racks;
       drop table jobs;
       delete from site_settings where key in ('acceptance', 'trace', 'ovenSurveys');
-    `);
+    `,
+    );
   },
 };

@@ -1,4 +1,11 @@
-import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
+import {
+  DataTypes,
+  Model,
+  type CreationOptional,
+  type InferAttributes,
+  type InferCreationAttributes,
+  type Sequelize,
+} from 'sequelize';
 
 /** An MQTT publisher identity (PLC gateway, sensor box) with its own credentials. */
 export class Device extends Model<InferAttributes<Device>, InferCreationAttributes<Device>> {

@@ -22,7 +22,19 @@ let initialised: Sequelize | null = null;
 export function initModels(sequelize: Sequelize): void {
   if (initialised === sequelize) return;
   initialised = sequelize;
-  for (const m of [ApiToken, Asset, AuditEntry, Channel, Device, LoginThrottle, OutboxMail, PasswordReset, Site, User, UserSession]) {
+  for (const m of [
+    ApiToken,
+    Asset,
+    AuditEntry,
+    Channel,
+    Device,
+    LoginThrottle,
+    OutboxMail,
+    PasswordReset,
+    Site,
+    User,
+    UserSession,
+  ]) {
     m.initModel(sequelize);
   }
   Asset.belongsTo(Site, { foreignKey: 'siteId' });

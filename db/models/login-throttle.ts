@@ -1,4 +1,11 @@
-import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
+import {
+  DataTypes,
+  Model,
+  type CreationOptional,
+  type InferAttributes,
+  type InferCreationAttributes,
+  type Sequelize,
+} from 'sequelize';
 
 /** Failed sign-ins per key (`user:<name>` or `ip:<address>`), kept across restarts. */
 export class LoginThrottle extends Model<InferAttributes<LoginThrottle>, InferCreationAttributes<LoginThrottle>> {

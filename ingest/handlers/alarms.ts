@@ -154,7 +154,13 @@ const KIND_WORDS: Readonly<Record<string, string>> = {
  * "Line 2 bath viscosity" under "Line 2 hard-coat bath" stays as it is).
  */
 export function sourceLabelOf(ch: { name: string; assetName: string }): string {
-  const words = (t: string) => new Set(t.toLowerCase().split(/[^a-z0-9]+/).filter(Boolean));
+  const words = (t: string) =>
+    new Set(
+      t
+        .toLowerCase()
+        .split(/[^a-z0-9]+/)
+        .filter(Boolean),
+    );
   const asset = words(ch.assetName);
   const shared = [...words(ch.name)].filter((w) => asset.has(w)).length;
   return shared >= 2 ? ch.name : `${ch.assetName}: ${ch.name}`;
@@ -233,7 +239,12 @@ export function createAlarmsHandler(): PostCommitHandler {
   }
 
   /** Suppression by design: returns the alarm when it changed. */
-  async function systemEvent(ctx: WorkerContext, sourceKey: string, type: 'suppress' | 'unsuppress', atMs: number): Promise<AlarmView | null> {
+  async function systemEvent(
+    ctx: WorkerContext,
+    sourceKey: string,
+    type: 'suppress' | 'unsuppress',
+    atMs: number,
+  ): Promise<AlarmView | null> {
     const hint = known.get(sourceKey);
     if (hint === 'none') return null;
     const view = await systemEventForSource(ctx.pool, sourceKey, { type }, atMs, hint);
@@ -252,7 +263,13 @@ export function createAlarmsHandler(): PostCommitHandler {
    * come back — as needing acknowledgement if the condition is still abnormal, else normal —
    * and the detector judges afresh.
    */
-  async function syncRunning(ctx: WorkerContext, ch: ChannelInfo, rt: ChannelRuntime, isRunning: boolean, atMs: number): Promise<void> {
+  async function syncRunning(
+    ctx: WorkerContext,
+    ch: ChannelInfo,
+    rt: ChannelRuntime,
+    isRunning: boolean,
+    atMs: number,
+  ): Promise<void> {
     const was = rt.running ?? true;
     rt.running = isRunning;
     if (was === isRunning) return;
@@ -558,7 +575,8 @@ export function createAlarmsHandler(): PostCommitHandler {
     for (const d of res.rows) {
       const key = `device:${d.id}`;
       const since = d.offline_at ?? d.last_seen_at;
-      const offline = d.enabled && !d.online && d.last_seen_at !== null && since !== null && nowMs - since.getTime() > DEVICE_OFFLINE_MS;
+      const offline =
+        d.enabled && !d.online && d.last_seen_at !== null && since !== null && nowMs - since.getTime() > DEVICE_OFFLINE_MS;
       if (offline && !deviceActive.has(d.id)) {
         deviceActive.add(d.id);
         await raise(ctx, {
@@ -671,7 +689,13 @@ export function createAlarmsHandler(): PostCommitHandler {
           continue;
         }
         if (!mail) return;
-        const claimed = await recordEscalation(ctx.pool, a.id, d.stepIndex, nowMs, `step ${d.stepIndex + 1} e-mailed to ${to.join(', ')}`);
+        const claimed = await recordEscalation(
+          ctx.pool,
+          a.id,
+          d.stepIndex,
+          nowMs,
+          `step ${d.stepIndex + 1} e-mailed to ${to.join(', ')}`,
+        );
         if (!claimed) continue;
         const raised = new Date(a.lastActivatedAtMs).toLocaleString('en-GB', { timeZone: siteZone, timeZoneName: 'short' });
         const text = [

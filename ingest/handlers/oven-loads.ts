@@ -63,7 +63,13 @@ let maxChannelId = 0;
 
 /** Re-read the ovens and their channels; `initial` also takes each oven's last stored setpoint (worker start). */
 async function refresh(ctx: WorkerContext, initial = false): Promise<void> {
-  const { rows } = await ctx.pool.query<{ oven_id: number; oven_name: string; channel_id: number | null; kind: string | null; on_oven: boolean | null }>(
+  const { rows } = await ctx.pool.query<{
+    oven_id: number;
+    oven_name: string;
+    channel_id: number | null;
+    kind: string | null;
+    on_oven: boolean | null;
+  }>(
     `select o.id as oven_id, o.name as oven_name, c.id as channel_id, c.kind, c.asset_id = o.id as on_oven
        from assets o
        left join assets z on z.parent_id = o.id and z.kind = 'zone'
@@ -92,11 +98,13 @@ async function refresh(ctx: WorkerContext, initial = false): Promise<void> {
       };
       ovens.set(r.oven_id, o);
       // An oven set up while the worker runs starts from its first live setpoint instead.
-      const sp = !initial ? { rows: [] as { v: number; t: number }[] } : await ctx.pool.query<{ v: number; t: number }>(
-        `select value as v, (extract(epoch from ts) * 1000)::float8 as t from readings r join channels c on c.id = r.channel_id
+      const sp = !initial
+        ? { rows: [] as { v: number; t: number }[] }
+        : await ctx.pool.query<{ v: number; t: number }>(
+            `select value as v, (extract(epoch from ts) * 1000)::float8 as t from readings r join channels c on c.id = r.channel_id
           where c.asset_id = $1 and c.kind = 'setpoint' order by ts desc limit 1`,
-        [o.id],
-      );
+            [o.id],
+          );
       if (sp.rows[0]) {
         o.lastSp = sp.rows[0].v;
         o.lastSpMs = sp.rows[0].t;
@@ -164,7 +172,8 @@ async function open(ctx: WorkerContext, o: OvenState, atMs: number): Promise<voi
     ctx.log(`oven-loads: ${o.name} cycle started, load ${r.id} opened`);
   } catch (e) {
     const openId = (e as { extra?: { openLoadId?: number } }).extra?.openLoadId;
-    if (openId) o.loadId = openId; // opened by hand before the cycle started: adopt it
+    if (openId)
+      o.loadId = openId; // opened by hand before the cycle started: adopt it
     else throw e;
   } finally {
     o.busy = false;
@@ -256,7 +265,12 @@ export const ovenLoadsHandler: PostCommitHandler = {
       if (nowMs - o.fellAtMs > MAX_COOL_HOURS * 3_600_000) {
         await close(ctx, o, nowMs, `cycle end: setpoint fell ${MAX_COOL_HOURS} h ago and the oven has not reported cooling`);
       } else if (nowMs - Math.max(lastZone, o.fellAtMs) > NO_DATA_CLOSE_MIN * 60_000) {
-        await close(ctx, o, Math.max(lastZone, o.fellAtMs + 1000), `cycle end: setpoint fell and no zone data for ${NO_DATA_CLOSE_MIN} min`);
+        await close(
+          ctx,
+          o,
+          Math.max(lastZone, o.fellAtMs + 1000),
+          `cycle end: setpoint fell and no zone data for ${NO_DATA_CLOSE_MIN} min`,
+        );
       }
     }
   },

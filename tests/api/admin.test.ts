@@ -6,7 +6,15 @@
  */
 import { createHash } from 'node:crypto';
 import { afterAll, describe, expect, it } from 'vitest';
-import { closeTestPool, createThrowawayUser, freshSignIn, lastMailId, resetTokenIn, testPool, waitForMail } from '../support/accounts.ts';
+import {
+  closeTestPool,
+  createThrowawayUser,
+  freshSignIn,
+  lastMailId,
+  resetTokenIn,
+  testPool,
+  waitForMail,
+} from '../support/accounts.ts';
 import { api, signIn } from '../support/http.ts';
 
 afterAll(async () => {
@@ -26,10 +34,20 @@ describe('users', () => {
     const u = await createThrowawayUser('engineer', 'adm');
     const list = await api('/api/v1/admin/users', { session: await signIn('admin') });
     expect(list.status).toBe(200);
-    expect(list.body.find((x: { id: number }) => x.id === u.id)).toMatchObject({ username: u.username, email: u.email, role: 'engineer', active: true });
+    expect(list.body.find((x: { id: number }) => x.id === u.id)).toMatchObject({
+      username: u.username,
+      email: u.email,
+      role: 'engineer',
+      active: true,
+    });
     expect(JSON.stringify(list.body)).not.toMatch(/argon2|passwordHash/);
     const trail = await auditOf('user', u.id);
-    expect(trail[0]).toMatchObject({ action: 'user.created', actor_label: 'admin', before: null, after: { username: u.username, role: 'engineer', active: true } });
+    expect(trail[0]).toMatchObject({
+      action: 'user.created',
+      actor_label: 'admin',
+      before: null,
+      after: { username: u.username, role: 'engineer', active: true },
+    });
     expect(trail[0]!.address).toBeTruthy();
     expect(JSON.stringify(trail[0])).not.toMatch(/argon2/);
     expect((await freshSignIn(u.username, u.password)).role).toBe('engineer');
@@ -40,25 +58,50 @@ describe('users', () => {
     const username = `inv-${Date.now().toString(36)}`;
     const email = `${username}@example.test`;
     const since = await lastMailId();
-    const r = await api('/api/v1/admin/users', { method: 'POST', session: admin, json: { username, displayName: 'Invited Person', email, role: 'viewer' } });
+    const r = await api('/api/v1/admin/users', {
+      method: 'POST',
+      session: admin,
+      json: { username, displayName: 'Invited Person', email, role: 'viewer' },
+    });
     expect(r.status).toBe(201);
     expect(r.body.invited).toBe(true);
     const mail = await waitForMail(email, since);
     expect(mail.subject).toBe('Your Coatrail account');
     const token = resetTokenIn(mail.body);
-    expect((await api('/api/auth/reset-password', { method: 'POST', json: { token, password: 'invited-password-1' } })).status).toBe(200);
+    expect(
+      (await api('/api/auth/reset-password', { method: 'POST', json: { token, password: 'invited-password-1' } })).status,
+    ).toBe(200);
     expect((await freshSignIn(username, 'invited-password-1')).role).toBe('viewer');
   });
 
   it('refuses bad input with field paths and a taken username with 409', async () => {
     const admin = await signIn('admin');
-    const bad = await api('/api/v1/admin/users', { method: 'POST', session: admin, json: { username: 'A B', displayName: '', email: 'not-mail', role: 'boss', password: 'short' } });
+    const bad = await api('/api/v1/admin/users', {
+      method: 'POST',
+      session: admin,
+      json: { username: 'A B', displayName: '', email: 'not-mail', role: 'boss', password: 'short' },
+    });
     expect(bad.status).toBe(400);
-    expect(bad.body.errors.map((e: { path: string }) => e.path).sort()).toEqual(['displayName', 'email', 'password', 'role', 'username']);
-    const taken = await api('/api/v1/admin/users', { method: 'POST', session: admin, json: { username: 'operator', displayName: 'Other', email: 'o@example.test', role: 'viewer', password: 'long-enough-pw' } });
+    expect(bad.body.errors.map((e: { path: string }) => e.path).sort()).toEqual([
+      'displayName',
+      'email',
+      'password',
+      'role',
+      'username',
+    ]);
+    const taken = await api('/api/v1/admin/users', {
+      method: 'POST',
+      session: admin,
+      json: { username: 'operator', displayName: 'Other', email: 'o@example.test', role: 'viewer', password: 'long-enough-pw' },
+    });
     expect(taken.status).toBe(409);
     expect(taken.body.errors[0].path).toBe('username');
-    const malformed = await api('/api/v1/admin/users', { method: 'POST', session: admin, headers: { 'content-type': 'application/json' }, body: '{"username":' });
+    const malformed = await api('/api/v1/admin/users', {
+      method: 'POST',
+      session: admin,
+      headers: { 'content-type': 'application/json' },
+      body: '{"username":',
+    });
     expect(malformed.status).toBe(400);
   });
 
@@ -66,7 +109,11 @@ describe('users', () => {
     const u = await createThrowawayUser('viewer', 'role');
     const s = await freshSignIn(u.username, u.password);
     expect((await api('/api/v1/channels', { method: 'POST', session: s, json: {} })).status).toBe(403);
-    const r = await api(`/api/v1/admin/users/${u.id}`, { method: 'PATCH', session: await signIn('admin'), json: { role: 'engineer' } });
+    const r = await api(`/api/v1/admin/users/${u.id}`, {
+      method: 'PATCH',
+      session: await signIn('admin'),
+      json: { role: 'engineer' },
+    });
     expect(r.status).toBe(200);
     expect(r.body.role).toBe('engineer');
     // Same session, new role: now validation (400), not the role (403), answers.
@@ -87,7 +134,9 @@ describe('users', () => {
     expect(rows).toHaveLength(0);
     expect((await api('/api/v1/channels', { session: s1 })).status).toBe(401);
     expect((await api('/api/v1/channels', { session: s2 })).status).toBe(401);
-    expect((await api('/api/auth/login', { method: 'POST', json: { username: u.username, password: u.password } })).status).toBe(401);
+    expect((await api('/api/auth/login', { method: 'POST', json: { username: u.username, password: u.password } })).status).toBe(
+      401,
+    );
     const on = await api(`/api/v1/admin/users/${u.id}`, { method: 'PATCH', session: admin, json: { active: true } });
     expect(on.body.active).toBe(true);
     expect((await freshSignIn(u.username, u.password)).role).toBe('operator');
@@ -102,13 +151,17 @@ describe('users', () => {
 
   it('keeps an admin from demoting or deactivating themself, and keeps one active admin', async () => {
     const admin = await signIn('admin');
-    const me = (await api('/api/v1/admin/users', { session: admin })).body.find((u: { username: string }) => u.username === 'admin');
+    const me = (await api('/api/v1/admin/users', { session: admin })).body.find(
+      (u: { username: string }) => u.username === 'admin',
+    );
     const demote = await api(`/api/v1/admin/users/${me.id}`, { method: 'PATCH', session: admin, json: { role: 'viewer' } });
     expect(demote.status).toBe(409);
     const off = await api(`/api/v1/admin/users/${me.id}`, { method: 'PATCH', session: admin, json: { active: false } });
     expect(off.status).toBe(409);
     expect((await api(`/api/v1/admin/users/${me.id}`, { method: 'PATCH', session: admin, json: {} })).status).toBe(400);
-    expect((await api('/api/v1/admin/users/2147483000', { method: 'PATCH', session: admin, json: { role: 'viewer' } })).status).toBe(404);
+    expect(
+      (await api('/api/v1/admin/users/2147483000', { method: 'PATCH', session: admin, json: { role: 'viewer' } })).status,
+    ).toBe(404);
   });
 });
 
@@ -121,12 +174,22 @@ describe('API tokens', () => {
     const { secret, id, prefix } = created.body;
     expect(secret).toMatch(/^ct_[A-Za-z0-9_-]{32}$/);
     expect(prefix).toBe(secret.slice(0, 8));
-    const { rows } = await testPool().query<{ token_hash: string; last_used_at: Date | null }>('select token_hash, last_used_at from api_tokens where id = $1', [id]);
+    const { rows } = await testPool().query<{ token_hash: string; last_used_at: Date | null }>(
+      'select token_hash, last_used_at from api_tokens where id = $1',
+      [id],
+    );
     expect(rows[0]!.token_hash).toBe(createHash('sha256').update(secret).digest('hex'));
     expect(rows[0]!.last_used_at).toBeNull();
     // The list never shows secrets.
     const list = await api('/api/v1/admin/tokens', { session: admin });
-    expect(list.body.find((t: { id: number }) => t.id === id)).toMatchObject({ name, role: 'quality', prefix, revokedAt: null, lastUsedAt: null, createdBy: 'admin' });
+    expect(list.body.find((t: { id: number }) => t.id === id)).toMatchObject({
+      name,
+      role: 'quality',
+      prefix,
+      revokedAt: null,
+      lastUsedAt: null,
+      createdBy: 'admin',
+    });
     expect(JSON.stringify(list.body)).not.toContain(secret);
     // Use: quality may read the audit trail but not create channels.
     const bearer = { authorization: `Bearer ${secret}` };
@@ -150,8 +213,18 @@ describe('API tokens', () => {
 
   it('audits what a token changes under the token’s name', async () => {
     const admin = await signIn('admin');
-    const t = (await api('/api/v1/admin/tokens', { method: 'POST', session: admin, json: { name: `provisioner-${Date.now()}`, role: 'admin' } })).body;
-    const r = await api('/api/v1/devices', { method: 'POST', headers: { authorization: `Bearer ${t.secret}` }, json: { name: `Token-made device ${Date.now()}` } });
+    const t = (
+      await api('/api/v1/admin/tokens', {
+        method: 'POST',
+        session: admin,
+        json: { name: `provisioner-${Date.now()}`, role: 'admin' },
+      })
+    ).body;
+    const r = await api('/api/v1/devices', {
+      method: 'POST',
+      headers: { authorization: `Bearer ${t.secret}` },
+      json: { name: `Token-made device ${Date.now()}` },
+    });
     expect(r.status).toBe(201);
     const trail = await auditOf('device', r.body.id);
     expect(trail[0]!.actor_label).toBe(`token:${t.name}`);

@@ -55,7 +55,10 @@ afterAll(async () => {
   await api('/api/v1/alarm-configs/escalation', {
     method: 'PUT',
     session: engineer,
-    json: { rules: [{ priority: 'high', steps: [{ afterMinutes: 10, notify: 'on-shift-engineer' }] }], onShiftEngineerEmail: 'engineer@fernhollow.example' },
+    json: {
+      rules: [{ priority: 'high', steps: [{ afterMinutes: 10, notify: 'on-shift-engineer' }] }],
+      onShiftEngineerEmail: 'engineer@fernhollow.example',
+    },
   });
   await closeAlarmHelpers();
 });
@@ -65,14 +68,27 @@ describe('raise over MQTT, see it on the API and live', () => {
     stream.mark();
     await dev.publish('uv-1', 'spin-speed', 1500, tNext());
     await dev.publish('uv-1', 'spin-speed', 2600, tNext());
-    const live = await stream.next((e) => e.event === 'alarms' && e.data.sourceKey === `channel:${spin}:high` && e.data.state === 'unacked', 5_000);
+    const live = await stream.next(
+      (e) => e.event === 'alarms' && e.data.sourceKey === `channel:${spin}:high` && e.data.state === 'unacked',
+      5_000,
+    );
     alarmId = live.data.id;
-    expect(live.data).toMatchObject({ sourceKind: 'limit', priority: 'low', channelId: spin, active: true, value: 2600, limit: 2000 });
+    expect(live.data).toMatchObject({
+      sourceKind: 'limit',
+      priority: 'low',
+      channelId: spin,
+      active: true,
+      value: 2600,
+      limit: 2000,
+    });
     expect(live.data.message).toBe('Spin speed 2600 rpm above the alarm high 2000 rpm');
 
     const list = await api('/api/v1/alarms?state=open&priority=low', { session: viewer });
     expect(list.status).toBe(200);
-    expect(list.body.find((a: { id: number }) => a.id === alarmId)).toMatchObject({ state: 'unacked', sourceLabel: 'UV spin coater 1: Spin speed' });
+    expect(list.body.find((a: { id: number }) => a.id === alarmId)).toMatchObject({
+      state: 'unacked',
+      sourceLabel: 'UV spin coater 1: Spin speed',
+    });
 
     const one = await api(`/api/v1/alarms/${alarmId}`, { session: viewer });
     expect(one.status).toBe(200);
@@ -109,11 +125,17 @@ describe('acknowledge', () => {
 
   it('the operator acknowledges with a comment; it is audited and published; a second ack is 409', async () => {
     stream.mark();
-    const r = await api(`/api/v1/alarms/${alarmId}/ack`, { method: 'POST', session: operator, json: { comment: 'Spin motor checked' } });
+    const r = await api(`/api/v1/alarms/${alarmId}/ack`, {
+      method: 'POST',
+      session: operator,
+      json: { comment: 'Spin motor checked' },
+    });
     expect(r.status).toBe(200);
     expect(r.body).toMatchObject({ id: alarmId, state: 'acked', active: true, ackedBy: 'Olu Operator' });
     await stream.next((e) => e.data.id === alarmId && e.data.state === 'acked', 5_000);
-    const audit = await testDb().query(`select actor_label, after from audit_log where action = 'alarm.ack' and entity_id = $1`, [String(alarmId)]);
+    const audit = await testDb().query(`select actor_label, after from audit_log where action = 'alarm.ack' and entity_id = $1`, [
+      String(alarmId),
+    ]);
     expect(audit.rows).toHaveLength(1);
     expect(audit.rows[0].after).toMatchObject({ state: 'acked', comment: 'Spin motor checked' });
 
@@ -127,21 +149,37 @@ describe('acknowledge', () => {
 
 describe('shelve, shelf expiry, out of service', () => {
   it('only an engineer may shelve; minutes are validated with their path', async () => {
-    const op = await api(`/api/v1/alarms/${alarmId}/shelve`, { method: 'POST', session: operator, json: { minutes: 30, reason: 'lamp change' } });
+    const op = await api(`/api/v1/alarms/${alarmId}/shelve`, {
+      method: 'POST',
+      session: operator,
+      json: { minutes: 30, reason: 'lamp change' },
+    });
     expect(op.status).toBe(403);
-    const zero = await api(`/api/v1/alarms/${alarmId}/shelve`, { method: 'POST', session: engineer, json: { minutes: 0, reason: 'lamp change' } });
+    const zero = await api(`/api/v1/alarms/${alarmId}/shelve`, {
+      method: 'POST',
+      session: engineer,
+      json: { minutes: 0, reason: 'lamp change' },
+    });
     expect(zero.status).toBe(400);
     expect(zero.body.errors[0].path).toBe('minutes');
   });
 
   it('shelved for 30 min, then the worker ends an expired shelf (shelf-expired) and the active alarm needs acknowledgement again', async () => {
     const before = Date.now();
-    const r = await api(`/api/v1/alarms/${alarmId}/shelve`, { method: 'POST', session: engineer, json: { minutes: 30, reason: 'lamp change' } });
+    const r = await api(`/api/v1/alarms/${alarmId}/shelve`, {
+      method: 'POST',
+      session: engineer,
+      json: { minutes: 30, reason: 'lamp change' },
+    });
     expect(r.status).toBe(200);
     expect(r.body.state).toBe('shelved');
     expect(r.body.shelvedUntilMs).toBeGreaterThanOrEqual(before + 30 * 60_000);
     expect(r.body.shelvedUntilMs).toBeLessThanOrEqual(Date.now() + 30 * 60_000);
-    const twice = await api(`/api/v1/alarms/${alarmId}/shelve`, { method: 'POST', session: engineer, json: { minutes: 5, reason: 'again' } });
+    const twice = await api(`/api/v1/alarms/${alarmId}/shelve`, {
+      method: 'POST',
+      session: engineer,
+      json: { minutes: 5, reason: 'again' },
+    });
     expect(twice.status).toBe(409);
     expect(twice.body.detail).toBe('already shelved; unshelve it first');
     const open = await api('/api/v1/alarms?state=open', { session: viewer });
@@ -164,16 +202,28 @@ describe('shelve, shelf expiry, out of service', () => {
   });
 
   it('out of service and back (engineer, with reasons); an out-of-service alarm cannot be acknowledged', async () => {
-    const oos = await api(`/api/v1/alarms/${alarmId}/out-of-service`, { method: 'POST', session: engineer, json: { reason: 'encoder swap' } });
+    const oos = await api(`/api/v1/alarms/${alarmId}/out-of-service`, {
+      method: 'POST',
+      session: engineer,
+      json: { reason: 'encoder swap' },
+    });
     expect(oos.status).toBe(200);
     expect(oos.body.state).toBe('out-of-service');
     const ack = await api(`/api/v1/alarms/${alarmId}/ack`, { method: 'POST', session: operator, json: { comment: 'x' } });
     expect(ack.status).toBe(409);
     expect(ack.body.detail).toBe('cannot acknowledge: the alarm is out of service');
-    const noReason = await api(`/api/v1/alarms/${alarmId}/return-to-service`, { method: 'POST', session: engineer, json: { reason: 'x' } });
+    const noReason = await api(`/api/v1/alarms/${alarmId}/return-to-service`, {
+      method: 'POST',
+      session: engineer,
+      json: { reason: 'x' },
+    });
     expect(noReason.status).toBe(400);
     expect(noReason.body.errors[0].path).toBe('reason');
-    const back = await api(`/api/v1/alarms/${alarmId}/return-to-service`, { method: 'POST', session: engineer, json: { reason: 'encoder fitted' } });
+    const back = await api(`/api/v1/alarms/${alarmId}/return-to-service`, {
+      method: 'POST',
+      session: engineer,
+      json: { reason: 'encoder fitted' },
+    });
     expect(back.body.state).toBe('unacked');
   });
 
@@ -194,25 +244,43 @@ describe('bulk acknowledgement', () => {
     stream.mark();
     await dev.publish('uv-1', 'spin-speed', 2500, tNext());
     await dev.publish('uv-1', 'irradiance', 350, tNext());
-    const a = await stream.next((e) => e.data.sourceKey === `channel:${spin}:high` && e.data.state === 'unacked' && e.data.id !== alarmId, 5_000);
+    const a = await stream.next(
+      (e) => e.data.sourceKey === `channel:${spin}:high` && e.data.state === 'unacked' && e.data.id !== alarmId,
+      5_000,
+    );
     const b = await stream.next((e) => e.data.sourceKey === `channel:${uv}:high` && e.data.state === 'unacked', 5_000);
     expect(a.data.id).not.toBe(alarmId); // the earlier alarm went to normal: a new occurrence is a new alarm
 
-    const viewerTry = await api('/api/v1/alarms/ack', { method: 'POST', session: viewer, json: { ids: [a.data.id], comment: 'x' } });
+    const viewerTry = await api('/api/v1/alarms/ack', {
+      method: 'POST',
+      session: viewer,
+      json: { ids: [a.data.id], comment: 'x' },
+    });
     expect(viewerTry.status).toBe(403);
     const noComment = await api('/api/v1/alarms/ack', { method: 'POST', session: operator, json: { ids: [a.data.id] } });
     expect(noComment.status).toBe(400);
     expect(noComment.body.errors[0].path).toBe('comment');
-    const dupes = await api('/api/v1/alarms/ack', { method: 'POST', session: operator, json: { ids: [a.data.id, a.data.id], comment: 'x' } });
+    const dupes = await api('/api/v1/alarms/ack', {
+      method: 'POST',
+      session: operator,
+      json: { ids: [a.data.id, a.data.id], comment: 'x' },
+    });
     expect(dupes.status).toBe(400);
     expect(dupes.body.errors[0].path).toBe('ids');
 
-    const r = await api('/api/v1/alarms/ack', { method: 'POST', session: operator, json: { ids: [a.data.id, b.data.id, 99999999], comment: 'Coater stopped for inspection' } });
+    const r = await api('/api/v1/alarms/ack', {
+      method: 'POST',
+      session: operator,
+      json: { ids: [a.data.id, b.data.id, 99999999], comment: 'Coater stopped for inspection' },
+    });
     expect(r.status).toBe(200);
     expect(r.body.acknowledged.map((x: { id: number }) => x.id).sort()).toEqual([a.data.id, b.data.id].sort());
     expect(r.body.acknowledged.every((x: { state: string }) => x.state === 'acked')).toBe(true);
     expect(r.body.refused).toEqual([{ id: 99999999, status: 404, reason: 'alarm 99999999 does not exist' }]);
-    const audits = await testDb().query(`select count(*)::int as n from audit_log where action = 'alarm.ack' and entity_id = any($1)`, [[String(a.data.id), String(b.data.id)]]);
+    const audits = await testDb().query(
+      `select count(*)::int as n from audit_log where action = 'alarm.ack' and entity_id = any($1)`,
+      [[String(a.data.id), String(b.data.id)]],
+    );
     expect(audits.rows[0].n).toBe(2);
     alarmId = a.data.id;
   });
@@ -223,7 +291,10 @@ describe('escalation e-mail', () => {
     const r = await api('/api/v1/alarm-configs/escalation', {
       method: 'PUT',
       session: engineer,
-      json: { rules: [{ priority: 'low', steps: [{ afterMinutes: 0, notify: 'on-shift-engineer' }] }], onShiftEngineerEmail: 'x@fernhollow.example' },
+      json: {
+        rules: [{ priority: 'low', steps: [{ afterMinutes: 0, notify: 'on-shift-engineer' }] }],
+        onShiftEngineerEmail: 'x@fernhollow.example',
+      },
     });
     expect(r.status).toBe(400);
     expect(r.body.errors[0].path).toBe('rules.0.steps.0.afterMinutes');
@@ -235,7 +306,10 @@ describe('escalation e-mail', () => {
     const put = await api('/api/v1/alarm-configs/escalation', {
       method: 'PUT',
       session: engineer,
-      json: { rules: [{ priority: 'low', steps: [{ afterMinutes: 1, notify: 'on-shift-engineer' }] }], onShiftEngineerEmail: address },
+      json: {
+        rules: [{ priority: 'low', steps: [{ afterMinutes: 1, notify: 'on-shift-engineer' }] }],
+        onShiftEngineerEmail: address,
+      },
     });
     expect(put.status).toBe(200);
     expect(put.body.onShiftEngineerEmail).toBe(address);
@@ -243,14 +317,27 @@ describe('escalation e-mail', () => {
     stream.mark();
     await dev.publish('uv-1', 'spin-speed', 1800, tNext()); // clears the acknowledged alarm → normal
     await dev.publish('uv-1', 'spin-speed', 2700, tNext());
-    const live = await stream.next((e) => e.data.sourceKey === `channel:${spin}:high` && e.data.state === 'unacked' && e.data.value === 2700, 5_000);
+    const live = await stream.next(
+      (e) => e.data.sourceKey === `channel:${spin}:high` && e.data.state === 'unacked' && e.data.value === 2700,
+      5_000,
+    );
     const id = live.data.id as number;
     // One minute is the shortest step: make the alarm two minutes old instead of waiting.
-    await testDb().query(`update alarms set raised_at = raised_at - interval '2 minutes', last_activated_at = last_activated_at - interval '2 minutes' where id = $1`, [id]);
-    const mail = await eventually(async () => {
-      const r = await testDb().query<{ mail_to: string; subject: string; body: string }>(`select mail_to, subject, body from outbox_mail where mail_to = $1 and body like $2`, [address, `%/alarms?focus=${id}%`]);
-      return r.rows[0];
-    }, 15_000, 'the escalation e-mail');
+    await testDb().query(
+      `update alarms set raised_at = raised_at - interval '2 minutes', last_activated_at = last_activated_at - interval '2 minutes' where id = $1`,
+      [id],
+    );
+    const mail = await eventually(
+      async () => {
+        const r = await testDb().query<{ mail_to: string; subject: string; body: string }>(
+          `select mail_to, subject, body from outbox_mail where mail_to = $1 and body like $2`,
+          [address, `%/alarms?focus=${id}%`],
+        );
+        return r.rows[0];
+      },
+      15_000,
+      'the escalation e-mail',
+    );
     expect(mail.subject).toContain('low-priority alarm unacknowledged 1 min');
     expect(mail.body).toContain('Spin speed 2700 rpm above the alarm high 2000 rpm');
     expect(mail.body).toContain('They are not a safety-instrumented function');
@@ -258,7 +345,10 @@ describe('escalation e-mail', () => {
     expect(detail.body.escalationStepsSent).toEqual([0]);
     expect(detail.body.events.filter((e: { event: string }) => e.event === 'escalate')).toHaveLength(1);
     await new Promise((r) => setTimeout(r, 6_000)); // more ticks: still one message for this step
-    const count = await testDb().query(`select count(*)::int as n from outbox_mail where mail_to = $1 and body like $2`, [address, `%/alarms?focus=${id}%`]);
+    const count = await testDb().query(`select count(*)::int as n from outbox_mail where mail_to = $1 and body like $2`, [
+      address,
+      `%/alarms?focus=${id}%`,
+    ]);
     expect(count.rows[0].n).toBe(1);
     await api(`/api/v1/alarms/${id}/ack`, { method: 'POST', session: operator, json: { comment: 'seen after escalation' } });
   });
@@ -270,12 +360,23 @@ describe('alarm settings and health', () => {
     expect(list.status).toBe(200);
     expect(list.body.find((c: { channelId: number }) => c.channelId === spin).config).toMatchObject({ high: 2000, deadband: 20 });
     expect((await api('/api/v1/alarm-configs', { session: operator })).status).toBe(403);
-    const bad = await api(`/api/v1/alarm-configs/${uv}`, { method: 'PUT', session: engineer, json: { enabled: true, high: 10, low: 20 } });
+    const bad = await api(`/api/v1/alarm-configs/${uv}`, {
+      method: 'PUT',
+      session: engineer,
+      json: { enabled: true, high: 10, low: 20 },
+    });
     expect(bad.status).toBe(400);
     expect(bad.body.errors[0].path).toBe('low');
-    const none = await api('/api/v1/alarm-configs/99999999', { method: 'PUT', session: engineer, json: { enabled: true, high: 10 } });
+    const none = await api('/api/v1/alarm-configs/99999999', {
+      method: 'PUT',
+      session: engineer,
+      json: { enabled: true, high: 10 },
+    });
     expect(none.status).toBe(404);
-    const audit = await testDb().query(`select count(*)::int as n from audit_log where action = 'alarm.configure' and entity_id = $1`, [String(spin)]);
+    const audit = await testDb().query(
+      `select count(*)::int as n from audit_log where action = 'alarm.configure' and entity_id = $1`,
+      [String(spin)],
+    );
     expect(audit.rows[0].n).toBeGreaterThanOrEqual(1);
   });
 
@@ -293,24 +394,56 @@ describe('alarm settings and health', () => {
       message: 'test violation',
       atMs: Date.now(),
     };
-    expect((await api(`/api/v1/alarm-configs/characteristics/${charId}`, { method: 'PUT', session: operator, json: { enabled: false, priority: 'low' } })).status).toBe(403);
-    const bad = await api(`/api/v1/alarm-configs/characteristics/${charId}`, { method: 'PUT', session: engineer, json: { enabled: false, priority: 'urgent' } });
+    expect(
+      (
+        await api(`/api/v1/alarm-configs/characteristics/${charId}`, {
+          method: 'PUT',
+          session: operator,
+          json: { enabled: false, priority: 'low' },
+        })
+      ).status,
+    ).toBe(403);
+    const bad = await api(`/api/v1/alarm-configs/characteristics/${charId}`, {
+      method: 'PUT',
+      session: engineer,
+      json: { enabled: false, priority: 'urgent' },
+    });
     expect(bad.status).toBe(400);
     expect(bad.body.errors[0].path).toBe('priority');
-    expect((await api(`/api/v1/alarm-configs/characteristics/99999999`, { method: 'PUT', session: engineer, json: { enabled: true, priority: 'low' } })).status).toBe(404);
+    expect(
+      (
+        await api(`/api/v1/alarm-configs/characteristics/99999999`, {
+          method: 'PUT',
+          session: engineer,
+          json: { enabled: true, priority: 'low' },
+        })
+      ).status,
+    ).toBe(404);
 
-    const off = await api(`/api/v1/alarm-configs/characteristics/${charId}`, { method: 'PUT', session: engineer, json: { enabled: false, priority: 'low' } });
+    const off = await api(`/api/v1/alarm-configs/characteristics/${charId}`, {
+      method: 'PUT',
+      session: engineer,
+      json: { enabled: false, priority: 'low' },
+    });
     expect(off.status).toBe(200);
     expect(await raiseAlarm(testDb(), input)).toEqual({ id: 0, created: false });
 
-    await api(`/api/v1/alarm-configs/characteristics/${charId}`, { method: 'PUT', session: engineer, json: { enabled: true, priority: 'high' } });
+    await api(`/api/v1/alarm-configs/characteristics/${charId}`, {
+      method: 'PUT',
+      session: engineer,
+      json: { enabled: true, priority: 'high' },
+    });
     const raised = await raiseAlarm(testDb(), { ...input, atMs: Date.now() });
     expect(raised.created).toBe(true);
     expect((await api(`/api/v1/alarms/${raised.id}`, { session: viewer })).body.priority).toBe('high');
 
     await clearAlarm(testDb(), input.sourceKey, Date.now());
     await api(`/api/v1/alarms/${raised.id}/ack`, { method: 'POST', session: operator, json: { comment: 'test alarm' } });
-    await api(`/api/v1/alarm-configs/characteristics/${charId}`, { method: 'PUT', session: engineer, json: { enabled: true, priority: 'medium' } });
+    await api(`/api/v1/alarm-configs/characteristics/${charId}`, {
+      method: 'PUT',
+      session: engineer,
+      json: { enabled: true, priority: 'medium' },
+    });
   });
 
   it('health figures for the last hour count the alarms raised here; CSV export; viewer yes, operator no', async () => {

@@ -13,7 +13,11 @@ let person: Throwaway;
 beforeAll(async () => {
   person = await createThrowawayUser('viewer', 'aud');
   // A second audited change to the same user, so filters have two rows to find.
-  const r = await api(`/api/v1/admin/users/${person.id}`, { method: 'PATCH', session: await signIn('admin'), json: { role: 'quality' } });
+  const r = await api(`/api/v1/admin/users/${person.id}`, {
+    method: 'PATCH',
+    session: await signIn('admin'),
+    json: { role: 'quality' },
+  });
   expect(r.status).toBe(200);
 });
 
@@ -23,12 +27,16 @@ afterAll(async () => {
 
 /** Today's date in the site's time zone (Europe/London), as the filter expects. */
 const londonToday = () => new Intl.DateTimeFormat('en-CA', { timeZone: 'Europe/London' }).format(new Date());
-const londonYesterday = () => new Intl.DateTimeFormat('en-CA', { timeZone: 'Europe/London' }).format(new Date(Date.now() - 86_400_000));
+const londonYesterday = () =>
+  new Intl.DateTimeFormat('en-CA', { timeZone: 'Europe/London' }).format(new Date(Date.now() - 86_400_000));
 
 describe('append-only', () => {
   it('refuses UPDATE, DELETE and TRUNCATE of audit rows from the application’s own database connection', async () => {
     const pool = testPool(); // the same DATABASE_URL (role and database) the web server and worker use
-    const { rows } = await pool.query<{ id: string; action: string }>(`select id, action from audit_log where entity = 'user' and entity_id = $1 order by id limit 1`, [String(person.id)]);
+    const { rows } = await pool.query<{ id: string; action: string }>(
+      `select id, action from audit_log where entity = 'user' and entity_id = $1 order by id limit 1`,
+      [String(person.id)],
+    );
     const id = rows[0]!.id;
     await expect(pool.query(`update audit_log set action = 'tampered' where id = $1`, [id])).rejects.toThrow(/append-only/);
     await expect(pool.query(`delete from audit_log where id = $1`, [id])).rejects.toThrow(/append-only/);
@@ -45,16 +53,27 @@ describe('GET /api/v1/audit', () => {
     expect(mine.status).toBe(200);
     expect(mine.body.total).toBe(2);
     expect(mine.body.rows.map((r: { action: string }) => r.action)).toEqual(['user.role-changed', 'user.created']);
-    expect(mine.body.rows[0]).toMatchObject({ actor: 'admin', entity: 'user', entityId: String(person.id), before: { role: 'viewer' }, after: { role: 'quality' } });
+    expect(mine.body.rows[0]).toMatchObject({
+      actor: 'admin',
+      entity: 'user',
+      entityId: String(person.id),
+      before: { role: 'viewer' },
+      after: { role: 'quality' },
+    });
     const byAction = await api(`/api/v1/audit?entity=user&entityId=${person.id}&action=role`, { session: viewer });
     expect(byAction.body.total).toBe(1);
     const byActor = await api(`/api/v1/audit?entity=user&entityId=${person.id}&actor=nobody-at-all`, { session: viewer });
     expect(byActor.body.total).toBe(0);
-    const today = await api(`/api/v1/audit?entity=user&entityId=${person.id}&from=${londonToday()}&to=${londonToday()}`, { session: viewer });
+    const today = await api(`/api/v1/audit?entity=user&entityId=${person.id}&from=${londonToday()}&to=${londonToday()}`, {
+      session: viewer,
+    });
     expect(today.body.total).toBe(2);
     const yesterday = await api(`/api/v1/audit?entity=user&entityId=${person.id}&to=${londonYesterday()}`, { session: viewer });
     expect(yesterday.body.total).toBe(0);
-    const future = await api(`/api/v1/audit?entity=user&entityId=${person.id}&from=${new Date(Date.now() + 60_000).toISOString()}`, { session: viewer });
+    const future = await api(
+      `/api/v1/audit?entity=user&entityId=${person.id}&from=${new Date(Date.now() + 60_000).toISOString()}`,
+      { session: viewer },
+    );
     expect(future.body.total).toBe(0);
   });
 
@@ -80,7 +99,9 @@ describe('GET /api/v1/audit', () => {
 
   it('exports every matching row as CSV, with formula-looking text neutralised', async () => {
     const viewer = await signIn('viewer');
-    const r = await fetch(`${base()}/api/v1/audit?entity=user&entityId=${person.id}&format=csv`, { headers: { cookie: viewer.cookie } });
+    const r = await fetch(`${base()}/api/v1/audit?entity=user&entityId=${person.id}&format=csv`, {
+      headers: { cookie: viewer.cookie },
+    });
     expect(r.status).toBe(200);
     expect(r.headers.get('content-type')).toContain('text/csv');
     expect(r.headers.get('content-disposition')).toMatch(/attachment; filename="coatrail-audit-[0-9-]+\.csv"/);
@@ -93,8 +114,16 @@ describe('GET /api/v1/audit', () => {
     const evil = `=hyperlink("x${Date.now()}")`;
     await api('/api/auth/forgot-password', { method: 'POST', json: { login: evil } });
     // (the forgot-password answer does not wait for its bookkeeping, so that timing tells nothing)
-    await waitFor(async () => (await testPool().query(`select 1 from audit_log where action = 'auth.reset-requested' and actor_label = $1`, [evil])).rows[0], 5000, 'the request to be audited');
-    const csv = await fetch(`${base()}/api/v1/audit?action=reset-requested&actor=${encodeURIComponent(evil)}&format=csv`, { headers: { cookie: viewer.cookie } });
+    await waitFor(
+      async () =>
+        (await testPool().query(`select 1 from audit_log where action = 'auth.reset-requested' and actor_label = $1`, [evil]))
+          .rows[0],
+      5000,
+      'the request to be audited',
+    );
+    const csv = await fetch(`${base()}/api/v1/audit?action=reset-requested&actor=${encodeURIComponent(evil)}&format=csv`, {
+      headers: { cookie: viewer.cookie },
+    });
     const rows = parseCsv(await csv.text());
     expect(rows).toHaveLength(2);
     expect(rows[1]!.cells[2]).toBe(`'${evil}`);

@@ -37,7 +37,10 @@ describe('POST /api/auth/login', () => {
     expect(wrong.status).toBe(401);
     expect(unknown.status).toBe(401);
     expect(wrong.headers.get('content-type')).toContain('application/problem+json');
-    expect({ title: unknown.body.title, detail: unknown.body.detail }).toEqual({ title: wrong.body.title, detail: wrong.body.detail });
+    expect({ title: unknown.body.title, detail: unknown.body.detail }).toEqual({
+      title: wrong.body.title,
+      detail: wrong.body.detail,
+    });
     expect(wrong.headers.get('set-cookie')).toBeNull();
     // and a right password clears the user's failure count
     expect((await login(person.username, person.password)).status).toBe(200);
@@ -48,7 +51,9 @@ describe('POST /api/auth/login', () => {
   it('answers a deactivated user with the same words as a wrong password', async () => {
     const gone = await createThrowawayUser('viewer', 'gone');
     const admin = await signIn('admin');
-    expect((await api(`/api/v1/admin/users/${gone.id}`, { method: 'PATCH', session: admin, json: { active: false } })).status).toBe(200);
+    expect(
+      (await api(`/api/v1/admin/users/${gone.id}`, { method: 'PATCH', session: admin, json: { active: false } })).status,
+    ).toBe(200);
     const r = await login(gone.username, gone.password);
     const wrong = await login(`nobody-${Date.now()}`, 'x');
     expect(r.status).toBe(401);
@@ -56,13 +61,21 @@ describe('POST /api/auth/login', () => {
   });
 
   it('refuses malformed JSON with 400 problem+json and a missing field with its path', async () => {
-    const bad = await api('/api/auth/login', { method: 'POST', headers: { 'content-type': 'application/json' }, body: '{"username": "admin", ' });
+    const bad = await api('/api/auth/login', {
+      method: 'POST',
+      headers: { 'content-type': 'application/json' },
+      body: '{"username": "admin", ',
+    });
     expect(bad.status).toBe(400);
     expect(bad.headers.get('content-type')).toContain('application/problem+json');
     const missing = await api('/api/auth/login', { method: 'POST', json: { username: 'admin' } });
     expect(missing.status).toBe(400);
     expect(missing.body.errors.map((e: { path: string }) => e.path)).toContain('password');
-    const notJson = await api('/api/auth/login', { method: 'POST', headers: { 'content-type': 'application/xml' }, body: '<username>admin</username>' });
+    const notJson = await api('/api/auth/login', {
+      method: 'POST',
+      headers: { 'content-type': 'application/xml' },
+      body: '<username>admin</username>',
+    });
     expect(notJson.status).toBe(415);
   });
 
@@ -97,11 +110,16 @@ describe('throttling', () => {
     expect(locked.status).toBe(429);
     expect(locked.body.detail).toMatch(/locked/i);
     // Kept in PostgreSQL (survives a web-server restart): the row says so.
-    const { rows } = await testPool().query<{ failures: number; locked_until: Date }>('select failures, locked_until from login_throttles where key = $1', [`user:${victim.username}`]);
+    const { rows } = await testPool().query<{ failures: number; locked_until: Date }>(
+      'select failures, locked_until from login_throttles where key = $1',
+      [`user:${victim.username}`],
+    );
     expect(rows[0]!.failures).toBe(LOCK_AFTER);
     expect(new Date(rows[0]!.locked_until).getTime()).toBeGreaterThan(Date.now() + 10 * 60_000);
     // The lock is audited.
-    const audited = await testPool().query(`select 1 from audit_log where action = 'auth.locked' and entity_id = $1`, [`user:${victim.username}`]);
+    const audited = await testPool().query(`select 1 from audit_log where action = 'auth.locked' and entity_id = $1`, [
+      `user:${victim.username}`,
+    ]);
     expect(audited.rows).toHaveLength(1);
     // Visible to admins (API and page), not to others.
     const admin = await signIn('admin');
@@ -114,7 +132,11 @@ describe('throttling', () => {
     expect(await page.text()).toContain(victim.username);
     expect((await api('/api/v1/admin/security/locks', { session: await signIn('engineer') })).status).toBe(403);
     // Unlock: audited, and the right password works again.
-    const un = await api('/api/v1/admin/security/unlock', { method: 'POST', session: admin, json: { key: `user:${victim.username}` } });
+    const un = await api('/api/v1/admin/security/unlock', {
+      method: 'POST',
+      session: admin,
+      json: { key: `user:${victim.username}` },
+    });
     expect(un.status).toBe(200);
     const trail = await testPool().query<{ actor_label: string; before: { failures: number } }>(
       `select actor_label, before from audit_log where action = 'auth.unlocked' and entity_id = $1`,
@@ -126,7 +148,10 @@ describe('throttling', () => {
 
   it('counts unknown usernames the same way, so a lock does not reveal whether an account exists', async () => {
     const ghost = `ghost-${Date.now()}`;
-    await testPool().query(`insert into login_throttles (key, failures, last_failure_at) values ($1, $2, now())`, [`user:${ghost}`, LOCK_AFTER - 1]);
+    await testPool().query(`insert into login_throttles (key, failures, last_failure_at) values ($1, $2, now())`, [
+      `user:${ghost}`,
+      LOCK_AFTER - 1,
+    ]);
     expect((await login(ghost, 'x')).status).toBe(401);
     expect((await login(ghost, 'x')).status).toBe(429);
   }, 30_000);
@@ -136,14 +161,29 @@ describe('cross-site requests', () => {
   it('refuses a state-changing request with a session cookie from another origin, and accepts our own', async () => {
     const admin = await signIn('admin');
     const body = { name: `xsite-${Date.now()}`, role: 'viewer' };
-    const evil = await api('/api/v1/admin/tokens', { method: 'POST', session: admin, json: body, headers: { origin: 'https://evil.example' } });
+    const evil = await api('/api/v1/admin/tokens', {
+      method: 'POST',
+      session: admin,
+      json: body,
+      headers: { origin: 'https://evil.example' },
+    });
     expect(evil.status).toBe(403);
     expect(evil.headers.get('content-type')).toContain('application/problem+json');
     const { rows } = await testPool().query('select 1 from api_tokens where name = $1', [body.name]);
     expect(rows).toHaveLength(0);
-    const site = await api('/api/v1/admin/tokens', { method: 'POST', session: admin, json: body, headers: { 'sec-fetch-site': 'cross-site' } });
+    const site = await api('/api/v1/admin/tokens', {
+      method: 'POST',
+      session: admin,
+      json: body,
+      headers: { 'sec-fetch-site': 'cross-site' },
+    });
     expect(site.status).toBe(403);
-    const own = await api('/api/v1/admin/tokens', { method: 'POST', session: admin, json: body, headers: { origin: inject('stack').baseUrl } });
+    const own = await api('/api/v1/admin/tokens', {
+      method: 'POST',
+      session: admin,
+      json: body,
+      headers: { origin: inject('stack').baseUrl },
+    });
     expect(own.status).toBe(201);
   });
 });
@@ -152,7 +192,10 @@ describe('sliding expiry', () => {
   it('moves expires_at forward when a session is used in its second half, not in its first', async () => {
     const s = await freshSignIn(person.username, person.password);
     const id = s.cookie.split('=')[1]!;
-    const exp = async () => new Date((await testPool().query<{ e: Date }>('select expires_at as e from user_sessions where id = $1', [id])).rows[0]!.e).getTime();
+    const exp = async () =>
+      new Date(
+        (await testPool().query<{ e: Date }>('select expires_at as e from user_sessions where id = $1', [id])).rows[0]!.e,
+      ).getTime();
     const fresh = await exp();
     // First half: no change.
     const r1 = await api('/api/v1/channels', { session: s });

@@ -25,7 +25,10 @@ beforeAll(async () => {
   [engineer, operator, viewer] = await Promise.all([signIn('engineer'), signIn('operator'), signIn('viewer')]);
   // A line and hard-coat tank of this test's own, running the seeded example CR-39 window.
   const { rows: site } = await pool.query(`select id from sites where code = 'fernhollow'`);
-  const { rows: line } = await pool.query(`insert into assets (site_id, kind, code, name) values ($1, 'line', $2, $3) returning id`, [site[0].id, `bt-${tag}`, `Bath test line ${tag}`]);
+  const { rows: line } = await pool.query(
+    `insert into assets (site_id, kind, code, name) values ($1, 'line', $2, $3) returning id`,
+    [site[0].id, `bt-${tag}`, `Bath test line ${tag}`],
+  );
   const { rows: tank } = await pool.query(
     `insert into assets (site_id, parent_id, kind, code, name, details) values ($1, $2, 'tank', $3, $4, '{"role":"hard-coat","volumeL":40}') returning id`,
     [site[0].id, line[0].id, `bt-${tag}-hc`, `Bath test tank ${tag}`],
@@ -33,7 +36,11 @@ beforeAll(async () => {
   tankId = tank[0].id;
   const windows = await api('/api/v1/windows?status=effective', { session: engineer });
   const example = windows.body.find((w: any) => w.lacquer === 'FH-Siloxane 30 (example)' && w.substrate === 'CR-39-type 1.50');
-  const assign = await api('/api/v1/windows/assignments', { method: 'POST', session: engineer, json: { assetId: line[0].id, windowId: example.id } });
+  const assign = await api('/api/v1/windows/assignments', {
+    method: 'POST',
+    session: engineer,
+    json: { assetId: line[0].id, windowId: example.id },
+  });
   expect(assign.status).toBe(201);
 });
 
@@ -46,9 +53,19 @@ describe('lots and charges (engineer)', () => {
     const lacquers = await api('/api/v1/lacquers', { session: operator });
     const lacquer = lacquers.body.find((l: any) => l.name === 'FH-Siloxane 30 (example)');
     expect(lacquer.solidsPct).toBe(30);
-    const lotBody = { lacquerId: lacquer.id, lotCode: `T-${tag}`, receivedOn: day(Date.now() - 30 * DAY), expiresOn: day(Date.now() + 150 * DAY), solidsPct: 30.4 };
+    const lotBody = {
+      lacquerId: lacquer.id,
+      lotCode: `T-${tag}`,
+      receivedOn: day(Date.now() - 30 * DAY),
+      expiresOn: day(Date.now() + 150 * DAY),
+      solidsPct: 30.4,
+    };
     expect((await api('/api/v1/lots', { method: 'POST', session: operator, json: lotBody })).status).toBe(403);
-    const badDates = await api('/api/v1/lots', { method: 'POST', session: engineer, json: { ...lotBody, expiresOn: day(Date.now() - 40 * DAY) } });
+    const badDates = await api('/api/v1/lots', {
+      method: 'POST',
+      session: engineer,
+      json: { ...lotBody, expiresOn: day(Date.now() - 40 * DAY) },
+    });
     expect(badDates.status).toBe(400);
     expect(badDates.body.errors[0].path).toBe('expiresOn');
     const lot = await api('/api/v1/lots', { method: 'POST', session: engineer, json: lotBody });
@@ -61,7 +78,11 @@ describe('lots and charges (engineer)', () => {
       session: engineer,
       json: { ...lotBody, lotCode: `X-${tag}`, receivedOn: day(Date.now() - 300 * DAY), expiresOn: day(Date.now() - 10 * DAY) },
     });
-    const refused = await api('/api/v1/baths/charges', { method: 'POST', session: engineer, json: { tankAssetId: tankId, lotId: expired.body.id, massKg: 38, potLifeDays: 30 } });
+    const refused = await api('/api/v1/baths/charges', {
+      method: 'POST',
+      session: engineer,
+      json: { tankAssetId: tankId, lotId: expired.body.id, massKg: 38, potLifeDays: 30 },
+    });
     expect(refused.status).toBe(400);
     expect(refused.body.errors[0].path).toBe('lotId');
 
@@ -76,7 +97,8 @@ describe('lots and charges (engineer)', () => {
 });
 
 describe('bath checks', () => {
-  const count = async () => Number((await pool.query(`select count(*) from bath_checks where tank_asset_id = $1`, [tankId])).rows[0].count);
+  const count = async () =>
+    Number((await pool.query(`select count(*) from bath_checks where tank_asset_id = $1`, [tankId])).rows[0].count);
 
   it('cup seconds → the server computes ν (ASTM D4212 Zahn 1: ν = 1.1(t − 29)) and stores it with the check', async () => {
     const r = await api('/api/v1/baths/checks', {
@@ -94,14 +116,21 @@ describe('bath checks', () => {
     expect(r.body.computation.addition).toMatchObject({ ok: true, kind: 'solvent' });
     expect(r.body.computation.addition.massKg).toBeCloseTo(1.26667, 4);
     checkId = r.body.check.id;
-    const { rows } = await pool.query(`select cup, efflux_seconds, kinematic_mm2s, by_label, window_id from bath_checks where id = $1`, [checkId]);
+    const { rows } = await pool.query(
+      `select cup, efflux_seconds, kinematic_mm2s, by_label, window_id from bath_checks where id = $1`,
+      [checkId],
+    );
     expect(rows[0]).toMatchObject({ cup: 'zahn-1', efflux_seconds: 37.6, by_label: 'operator' });
     expect(rows[0].kinematic_mm2s).toBeCloseTo(9.46, 10);
     expect(rows[0].window_id).toBe(r.body.window.id);
   });
 
   it('Zahn 2 at 20 s (the window’s lower edge): ν = 3.5(t − 14) = 21.0 mm²/s, above the window', async () => {
-    const r = await api('/api/v1/baths/checks', { method: 'POST', session: engineer, json: { tankAssetId: tankId, cup: 'zahn-2', effluxSeconds: 20 } });
+    const r = await api('/api/v1/baths/checks', {
+      method: 'POST',
+      session: engineer,
+      json: { tankAssetId: tankId, cup: 'zahn-2', effluxSeconds: 20 },
+    });
     expect(r.status).toBe(201);
     // ASTM D4212 Zahn 2 equation, hand-computed
     expect(r.body.check.kinematicMm2S).toBeCloseTo(21.0, 10);
@@ -109,20 +138,32 @@ describe('bath checks', () => {
   });
 
   it('without a weighed mass the bath is taken at its charged mass; inside ±0.2 wt % nothing is suggested', async () => {
-    const r = await api('/api/v1/baths/checks', { method: 'POST', session: operator, json: { tankAssetId: tankId, measuredMm2S: 10.2, solidsPct: 31 } });
+    const r = await api('/api/v1/baths/checks', {
+      method: 'POST',
+      session: operator,
+      json: { tankAssetId: tankId, measuredMm2S: 10.2, solidsPct: 31 },
+    });
     expect(r.status).toBe(201);
     // hand-computed: M = 38 kg charged; solvent = 38·(31/30 − 1) = 1.26667 kg
     expect(r.body.computation.bathMassKg).toBe(38);
     expect(r.body.computation.addition.massKg).toBeCloseTo(1.26667, 4);
     expect(r.body.check.measuredMm2S).toBe(10.2);
-    const near = await api('/api/v1/baths/checks', { method: 'POST', session: operator, json: { tankAssetId: tankId, measuredMm2S: 9.1, solidsPct: 30.15 } });
+    const near = await api('/api/v1/baths/checks', {
+      method: 'POST',
+      session: operator,
+      json: { tankAssetId: tankId, measuredMm2S: 9.1, solidsPct: 30.15 },
+    });
     expect(near.body.computation.addition).toBeNull();
     expect(near.body.computation.additionNote).toMatch(/within ±0.2 wt %/);
   });
 
   it('an efflux time outside the cup’s window is refused, nothing stored', async () => {
     const before = await count();
-    const r = await api('/api/v1/baths/checks', { method: 'POST', session: operator, json: { tankAssetId: tankId, cup: 'zahn-2', effluxSeconds: 15 } });
+    const r = await api('/api/v1/baths/checks', {
+      method: 'POST',
+      session: operator,
+      json: { tankAssetId: tankId, cup: 'zahn-2', effluxSeconds: 15 },
+    });
     expect(r.status).toBe(400);
     expect(r.headers.get('content-type')).toContain('application/problem+json');
     expect(r.body.title).toBe('Out of range — use another cup');
@@ -133,22 +174,45 @@ describe('bath checks', () => {
   });
 
   it('the browser’s own viscosity number is not accepted; bad readings are 400s with paths', async () => {
-    const forged = await api('/api/v1/baths/checks', { method: 'POST', session: operator, json: { tankAssetId: tankId, cup: 'zahn-1', effluxSeconds: 40, kinematicMm2S: 99 } });
+    const forged = await api('/api/v1/baths/checks', {
+      method: 'POST',
+      session: operator,
+      json: { tankAssetId: tankId, cup: 'zahn-1', effluxSeconds: 40, kinematicMm2S: 99 },
+    });
     expect(forged.status).toBe(400);
-    const neg = await api('/api/v1/baths/checks', { method: 'POST', session: operator, json: { tankAssetId: tankId, measuredMm2S: -3 } });
+    const neg = await api('/api/v1/baths/checks', {
+      method: 'POST',
+      session: operator,
+      json: { tankAssetId: tankId, measuredMm2S: -3 },
+    });
     expect(neg.status).toBe(400);
     expect(neg.body.errors[0].path).toBe('measuredMm2S');
-    const both = await api('/api/v1/baths/checks', { method: 'POST', session: operator, json: { tankAssetId: tankId, cup: 'zahn-1', effluxSeconds: 40, measuredMm2S: 9 } });
+    const both = await api('/api/v1/baths/checks', {
+      method: 'POST',
+      session: operator,
+      json: { tankAssetId: tankId, cup: 'zahn-1', effluxSeconds: 40, measuredMm2S: 9 },
+    });
     expect(both.status).toBe(400);
-    const noSeconds = await api('/api/v1/baths/checks', { method: 'POST', session: operator, json: { tankAssetId: tankId, cup: 'zahn-1' } });
+    const noSeconds = await api('/api/v1/baths/checks', {
+      method: 'POST',
+      session: operator,
+      json: { tankAssetId: tankId, cup: 'zahn-1' },
+    });
     expect(noSeconds.body.errors[0].path).toBe('effluxSeconds');
-    const future = await api('/api/v1/baths/checks', { method: 'POST', session: operator, json: { tankAssetId: tankId, measuredMm2S: 9, at: new Date(Date.now() + 3_600_000).toISOString() } });
+    const future = await api('/api/v1/baths/checks', {
+      method: 'POST',
+      session: operator,
+      json: { tankAssetId: tankId, measuredMm2S: 9, at: new Date(Date.now() + 3_600_000).toISOString() },
+    });
     expect(future.status).toBe(400);
     expect(future.body.errors[0].path).toBe('at');
   });
 
   it('a viewer may read the log but not write it', async () => {
-    expect((await api('/api/v1/baths/checks', { method: 'POST', session: viewer, json: { tankAssetId: tankId, measuredMm2S: 9 } })).status).toBe(403);
+    expect(
+      (await api('/api/v1/baths/checks', { method: 'POST', session: viewer, json: { tankAssetId: tankId, measuredMm2S: 9 } }))
+        .status,
+    ).toBe(403);
     const list = await api(`/api/v1/baths/checks?tankId=${tankId}`, { session: viewer });
     expect(list.status).toBe(200);
     expect(list.body.length).toBeGreaterThanOrEqual(3);
@@ -157,13 +221,25 @@ describe('bath checks', () => {
 
 describe('additions, filter changes and the bath overview', () => {
   it('logs the recommended solvent addition linked to its check, and a filter change', async () => {
-    const r = await api('/api/v1/baths/additions', { method: 'POST', session: operator, json: { tankAssetId: tankId, kind: 'solvent', massKg: 1.25, checkId } });
+    const r = await api('/api/v1/baths/additions', {
+      method: 'POST',
+      session: operator,
+      json: { tankAssetId: tankId, kind: 'solvent', massKg: 1.25, checkId },
+    });
     expect(r.status).toBe(201);
     expect(r.body).toMatchObject({ kind: 'solvent', massKg: 1.25, checkId, by: 'operator' });
     expect(r.body.recommendation).toMatchObject({ ok: true, kind: 'solvent' });
-    const wrongTank = await api('/api/v1/baths/additions', { method: 'POST', session: operator, json: { tankAssetId: tankId, kind: 'solvent', massKg: 1, checkId: 2_000_000_000 } });
+    const wrongTank = await api('/api/v1/baths/additions', {
+      method: 'POST',
+      session: operator,
+      json: { tankAssetId: tankId, kind: 'solvent', massKg: 1, checkId: 2_000_000_000 },
+    });
     expect(wrongTank.status).toBe(400);
-    const f = await api('/api/v1/baths/filter-changes', { method: 'POST', session: operator, json: { tankAssetId: tankId, filterType: 'Pleated 1 µm', ratingUm: 1 } });
+    const f = await api('/api/v1/baths/filter-changes', {
+      method: 'POST',
+      session: operator,
+      json: { tankAssetId: tankId, filterType: 'Pleated 1 µm', ratingUm: 1 },
+    });
     expect(f.status).toBe(201);
   });
 

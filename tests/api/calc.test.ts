@@ -14,7 +14,8 @@ beforeAll(async () => {
   operator = await signIn('operator');
 });
 
-const post = (path: string, json: unknown, session: Session = viewer) => api(`/api/v1/calc/${path}`, { method: 'POST', session, json });
+const post = (path: string, json: unknown, session: Session = viewer) =>
+  api(`/api/v1/calc/${path}`, { method: 'POST', session, json });
 
 function expectProblem(r: { status: number; headers: Headers; body: any }, status: number, path?: string) {
   expect(r.status).toBe(status);
@@ -24,7 +25,13 @@ function expectProblem(r: { status: number; headers: Headers; body: any }, statu
 
 describe('POST /api/v1/calc/dip-thickness', () => {
   it('Landau–Levich (1942) h = 0.94·ℓc·Ca^(2/3)', async () => {
-    const r = await post('dip-thickness', { viscosityMPaS: 10, speedMmS: 2, surfaceTensionMNm: 25, densityKgM3: 950, solidsVolumeFraction: 0.3 });
+    const r = await post('dip-thickness', {
+      viscosityMPaS: 10,
+      speedMmS: 2,
+      surfaceTensionMNm: 25,
+      densityKgM3: 950,
+      solidsVolumeFraction: 0.3,
+    });
     expect(r.status).toBe(200);
     // hand-computed: Ca = ηU/γ = 0.010·0.002/0.025 = 8.0e-4
     expect(r.body.capillaryNumber).toBeCloseTo(8.0e-4, 10);
@@ -72,21 +79,40 @@ describe('POST /api/v1/calc/viscosity-cup', () => {
 
 describe('POST /api/v1/calc/cure-equivalent', () => {
   it('60 min at 120 °C is 109.20 equivalent minutes at 110 °C with Ea 75 kJ/mol (ASTM C1074 equivalent age)', async () => {
-    const r = await post('cure-equivalent', { profile: [{ minutes: 0, tempC: 120 }, { minutes: 60, tempC: 120 }], activationEnergyKJMol: 75, referenceC: 110 });
+    const r = await post('cure-equivalent', {
+      profile: [
+        { minutes: 0, tempC: 120 },
+        { minutes: 60, tempC: 120 },
+      ],
+      activationEnergyKJMol: 75,
+      referenceC: 110,
+    });
     expect(r.status).toBe(200);
     // hand-computed: 60·exp(−(75000/8.314462618)·(1/393.15 − 1/383.15)) = 109.1988 min
     expect(r.body.equivalentMinutes).toBeCloseTo(109.1988, 3);
   });
 
   it('time at or above a threshold interpolates the ramp crossings', async () => {
-    const profile = [{ minutes: 0, tempC: 20 }, { minutes: 20, tempC: 120 }, { minutes: 80, tempC: 120 }, { minutes: 100, tempC: 20 }];
+    const profile = [
+      { minutes: 0, tempC: 20 },
+      { minutes: 20, tempC: 120 },
+      { minutes: 80, tempC: 120 },
+      { minutes: 100, tempC: 20 },
+    ];
     const r = await post('cure-equivalent', { profile, activationEnergyKJMol: 75, referenceC: 110, thresholdC: 100 });
     // hand-computed: ramp 20·(120−100)/100 = 4 min + soak 60 min + cool 4 min = 68 min
     expect(r.body.minutesAtOrAbove).toBeCloseTo(68, 10);
   });
 
   it('decreasing minutes → 400 at the offending point', async () => {
-    const r = await post('cure-equivalent', { profile: [{ minutes: 10, tempC: 100 }, { minutes: 5, tempC: 100 }], activationEnergyKJMol: 75, referenceC: 110 });
+    const r = await post('cure-equivalent', {
+      profile: [
+        { minutes: 10, tempC: 100 },
+        { minutes: 5, tempC: 100 },
+      ],
+      activationEnergyKJMol: 75,
+      referenceC: 110,
+    });
     expectProblem(r, 400, 'profile.1.minutes');
   });
 });
@@ -146,7 +172,10 @@ describe('POST /api/v1/calc/fringe-thickness/spectrum', () => {
   });
 
   it('a spectrum with no fringes (index-matched coat) → 400 that says so', async () => {
-    const flat = ['nm,R', ...Array.from({ length: 200 }, (_, i) => `${500 + i},${(0.04 + 0.0001 * Math.sin(i)).toFixed(6)}`)].join('\n');
+    const flat = [
+      'nm,R',
+      ...Array.from({ length: 200 }, (_, i) => `${500 + i},${(0.04 + 0.0001 * Math.sin(i)).toFixed(6)}`),
+    ].join('\n');
     const r = await upload(form(flat));
     expectProblem(r, 400, 'file');
     expect(r.body.title).toBe('No measurable fringes');
@@ -194,7 +223,13 @@ describe('POST /api/v1/calc/crosscut', () => {
 
 describe('POST /api/v1/calc/uniformity', () => {
   it('hottest +3.0 °C and coldest −2.5 °C at setpoint 110 °C → class 1 (±3 °C, AMS2750G)', async () => {
-    const r = await post('uniformity', { setpointC: 110, sensors: [{ name: 'TC1', readingsC: [112, 113] }, { name: 'TC2', readingsC: [108, 107.5] }] });
+    const r = await post('uniformity', {
+      setpointC: 110,
+      sensors: [
+        { name: 'TC1', readingsC: [112, 113] },
+        { name: 'TC2', readingsC: [108, 107.5] },
+      ],
+    });
     expect(r.status).toBe(200);
     // hand-computed: 113 − 110 = +3.0; 107.5 − 110 = −2.5
     expect(r.body).toMatchObject({ hottestDeviationC: 3, coldestDeviationC: -2.5, uniformityClass: 1 });
@@ -212,7 +247,16 @@ describe('POST /api/v1/calc/speed-advisor', () => {
   });
 
   it('both targets → 400', async () => {
-    expectProblem(await post('speed-advisor', { viscosityMPaS: 10, targetDryThicknessUm: 2, targetWetThicknessUm: 6, thicknessConstant: 0.3 }), 400, 'targetDryThicknessUm');
+    expectProblem(
+      await post('speed-advisor', {
+        viscosityMPaS: 10,
+        targetDryThicknessUm: 2,
+        targetWetThicknessUm: 6,
+        thicknessConstant: 0.3,
+      }),
+      400,
+      'targetDryThicknessUm',
+    );
   });
 });
 
@@ -257,14 +301,20 @@ describe('POST /api/v1/calc/bath-addition', () => {
 
 describe('POST /api/v1/calc/activation-energy', () => {
   it('60 min at 120 °C ≡ 120 min at 110 °C → Ea = R·ln(tA/tB)/(1/TA − 1/TB) = 86.813 kJ/mol (Arrhenius)', async () => {
-    const r = await post('activation-energy', { scheduleA: { minutes: 60, tempC: 120 }, scheduleB: { minutes: 120, tempC: 110 } });
+    const r = await post('activation-energy', {
+      scheduleA: { minutes: 60, tempC: 120 },
+      scheduleB: { minutes: 120, tempC: 110 },
+    });
     expect(r.status).toBe(200);
     // hand-computed: 8.314462618·ln(0.5)/(1/393.15 − 1/383.15) = 86 813.4 J/mol
     expect(r.body.activationEnergyKJMol).toBeCloseTo(86.8134, 3);
   });
 
   it('the hotter schedule longer → 400 with the reason', async () => {
-    const r = await post('activation-energy', { scheduleA: { minutes: 120, tempC: 120 }, scheduleB: { minutes: 60, tempC: 110 } });
+    const r = await post('activation-energy', {
+      scheduleA: { minutes: 120, tempC: 120 },
+      scheduleB: { minutes: 60, tempC: 110 },
+    });
     expectProblem(r, 400, 'scheduleB.minutes');
     expect(r.body.detail).toMatch(/hotter schedule must be the shorter/);
   });

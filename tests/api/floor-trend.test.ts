@@ -33,8 +33,15 @@ async function one<T>(sql: string, params: unknown[]): Promise<T> {
 beforeAll(async () => {
   pool = createPool({ url: inject('stack').databaseUrl, max: 2 });
   viewer = await signIn('viewer');
-  for (const code of ['dip-2', 'dip-2-hc', 'oven-c']) ids[code] = (await one<{ id: number }>('select id from assets where code = $1', [code])).id;
-  const ch = async (asset: string, key: string) => (await one<{ id: number }>('select c.id from channels c join assets a on a.id = c.asset_id where a.code = $1 and c.key = $2', [asset, key])).id;
+  for (const code of ['dip-2', 'dip-2-hc', 'oven-c'])
+    ids[code] = (await one<{ id: number }>('select id from assets where code = $1', [code])).id;
+  const ch = async (asset: string, key: string) =>
+    (
+      await one<{ id: number }>(
+        'select c.id from channels c join assets a on a.id = c.asset_id where a.code = $1 and c.key = $2',
+        [asset, key],
+      )
+    ).id;
   ids['visc'] = await ch('dip-2-hc', 'viscosity');
   ids['door'] = await ch('oven-c', 'door');
   ids['air'] = await ch('oven-c-z1', 'air-temp');
@@ -62,10 +69,34 @@ beforeAll(async () => {
   );
   ids['window'] = w.id;
   made.push({ table: 'process_windows', id: w.id });
-  made.push({ table: 'window_assignments', id: (await one<{ id: number }>(`insert into window_assignments (asset_id, window_id, valid_from, valid_to, note) values ($1, $2, $3, $4, 'floor test') returning id`, [ids['dip-2'], w.id, at(60), at(90)])).id });
+  made.push({
+    table: 'window_assignments',
+    id: (
+      await one<{ id: number }>(
+        `insert into window_assignments (asset_id, window_id, valid_from, valid_to, note) values ($1, $2, $3, $4, 'floor test') returning id`,
+        [ids['dip-2'], w.id, at(60), at(90)],
+      )
+    ).id,
+  });
 
-  made.push({ table: 'bath_additions', id: (await one<{ id: number }>(`insert into bath_additions (tank_asset_id, at, by_label, kind, mass_kg) values ($1, $2, 'Test Person', 'solvent', 1.25) returning id`, [ids['dip-2-hc'], at(15)])).id });
-  made.push({ table: 'filter_changes', id: (await one<{ id: number }>(`insert into filter_changes (tank_asset_id, at, by_label, filter_type, rating_um) values ($1, $2, 'Test Person', 'Bag filter', 5) returning id`, [ids['dip-2-hc'], at(45)])).id });
+  made.push({
+    table: 'bath_additions',
+    id: (
+      await one<{ id: number }>(
+        `insert into bath_additions (tank_asset_id, at, by_label, kind, mass_kg) values ($1, $2, 'Test Person', 'solvent', 1.25) returning id`,
+        [ids['dip-2-hc'], at(15)],
+      )
+    ).id,
+  });
+  made.push({
+    table: 'filter_changes',
+    id: (
+      await one<{ id: number }>(
+        `insert into filter_changes (tank_asset_id, at, by_label, filter_type, rating_um) values ($1, $2, 'Test Person', 'Bag filter', 5) returning id`,
+        [ids['dip-2-hc'], at(45)],
+      )
+    ).id,
+  });
   const load = await one<{ id: number }>(
     `insert into oven_loads (oven_asset_id, opened_at, closed_at, opened_by, closed_by, status, verdict) values ($1, $2, $3, 'auto', 'auto', 'closed', 'complete') returning id`,
     [ids['oven-c'], at(30), at(90)],
@@ -114,7 +145,11 @@ describe('GET /api/v1/floor', () => {
     expect(visc.shortName).toBe('Bath viscosity');
     // The band is the viscosity field of the window in force for the bath now (window store).
     const w = await windowInForce(pool, visc.assetId, Date.now());
-    expect(visc.window).toMatchObject({ min: w!.limits.viscosityMm2S!.min, max: w!.limits.viscosityMm2S!.max, lowApplies: 'always' });
+    expect(visc.window).toMatchObject({
+      min: w!.limits.viscosityMm2S!.min,
+      max: w!.limits.viscosityMm2S!.max,
+      lowApplies: 'always',
+    });
     expect(visc.windowName).toBe(`${w!.name} v${w!.version}`);
     // Door channels have no window; the oven's air has the cure band with the low limit in soak only.
     const ovenC = snap.tiles.find((t) => t.code === 'oven-c')!;
@@ -160,8 +195,18 @@ describe('GET /api/v1/channels/{id}/annotations', () => {
   it('lists the bath events of the line for a bath channel (and no oven events)', async () => {
     const a = (await api(`/api/v1/channels/${ids['visc']}/annotations?${q}`, { session: viewer })).body as AnnotationsResponse;
     expect(a.events).toEqual([
-      { tMs: T0 + 15 * MIN, kind: 'solvent-addition', label: 'Solvent 1.25 kg added to Line 2 hard-coat bath', detail: 'by Test Person' },
-      { tMs: T0 + 45 * MIN, kind: 'filter-change', label: 'Filter changed on Line 2 hard-coat bath: Bag filter 5 µm', detail: 'by Test Person' },
+      {
+        tMs: T0 + 15 * MIN,
+        kind: 'solvent-addition',
+        label: 'Solvent 1.25 kg added to Line 2 hard-coat bath',
+        detail: 'by Test Person',
+      },
+      {
+        tMs: T0 + 45 * MIN,
+        kind: 'filter-change',
+        label: 'Filter changed on Line 2 hard-coat bath: Bag filter 5 µm',
+        detail: 'by Test Person',
+      },
     ]);
     expect(a.truncated).toBe(false);
   });
@@ -186,13 +231,19 @@ describe('GET /api/v1/channels/{id}/annotations', () => {
     );
     try {
       const from = T0 - 2 * 86_400_000;
-      const a = (await api(`/api/v1/channels/${ids['air']}/annotations?from=${from}&to=${T0 + 2 * 86_400_000}`, { session: viewer })).body as AnnotationsResponse;
+      const a = (
+        await api(`/api/v1/channels/${ids['air']}/annotations?from=${from}&to=${T0 + 2 * 86_400_000}`, { session: viewer })
+      ).body as AnnotationsResponse;
       expect(a.events.filter((e) => e.kind === 'door-open').map((e) => [e.tMs, e.label])).toEqual([
         [T0 + 20 * MIN, 'Door open in 2 consecutive minutes (minute resolution)'],
         [T0 + 60 * MIN, 'Door open within one minute (minute resolution)'],
       ]);
     } finally {
-      await pool.query('delete from readings_1m where channel_id = $1 and bucket >= $2 and bucket < $3', [ids['door'], at(0), at(120)]);
+      await pool.query('delete from readings_1m where channel_id = $1 and bucket >= $2 and bucket < $3', [
+        ids['door'],
+        at(0),
+        at(120),
+      ]);
     }
   });
 

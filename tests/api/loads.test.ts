@@ -15,7 +15,14 @@ import { channelTopic } from '../../ingest/topics.ts';
 import type { StoredCureRecord } from '../../src/lib/shared/jobs.ts';
 import { closeTestPool, testPool } from '../support/accounts.ts';
 import { api, signIn, type Session } from '../support/http.ts';
-import { createTestOven, insertReadings, minuteDaysAgo, tag, TEST_CURE_LIMITS, type TestOven } from '../support/trace-fixtures.ts';
+import {
+  createTestOven,
+  insertReadings,
+  minuteDaysAgo,
+  tag,
+  TEST_CURE_LIMITS,
+  type TestOven,
+} from '../support/trace-fixtures.ts';
 
 const MIN = 60_000;
 let pool: pg.Pool;
@@ -28,7 +35,11 @@ let quality: Session;
  * t_e = Σ exp(−Q·(1/T_a − 1/T_s))·Δt, Q = E/R (K), T_a the average temperature of the interval
  * and T_s the specified (reference) temperature, both in kelvin. R = 8.314462618 J/(mol·K) (CODATA).
  */
-function c1074EquivalentAge(profile: { minutes: number; tempC: number }[], activationEnergyJMol: number, referenceC: number): number {
+function c1074EquivalentAge(
+  profile: { minutes: number; tempC: number }[],
+  activationEnergyJMol: number,
+  referenceC: number,
+): number {
   const Q = activationEnergyJMol / 8.314462618;
   const Ts = referenceC + 273.15;
   let te = 0;
@@ -58,7 +69,11 @@ interface Built {
  * Readings every minute for both zones (zone 1 = coldest + 2 °C), the setpoint at 110 °C during
  * the load and 25 °C after it, the door closed at the start.
  */
-async function build(startMs: number, plateau: number, opts: { skip?: [number, number]; spikeAt?: [number, number]; door?: [number, number] } = {}): Promise<Built> {
+async function build(
+  startMs: number,
+  plateau: number,
+  opts: { skip?: [number, number]; spikeAt?: [number, number]; door?: [number, number] } = {},
+): Promise<Built> {
   const total = 20 + plateau;
   const rows: { ch: number; t: number; v: number }[] = [];
   const profile: Built['profile'] = [];
@@ -70,26 +85,46 @@ async function build(startMs: number, plateau: number, opts: { skip?: [number, n
     rows.push({ ch: oven.zoneIds[1], t, v: cold }, { ch: oven.zoneIds[0], t, v: hot });
     profile.push({ minutes: m, tempC: cold });
   }
-  rows.push({ ch: oven.setpointId, t: startMs - MIN, v: 25 }, { ch: oven.setpointId, t: startMs, v: 110 }, { ch: oven.setpointId, t: startMs + (total - 10) * MIN, v: 25 });
+  rows.push(
+    { ch: oven.setpointId, t: startMs - MIN, v: 25 },
+    { ch: oven.setpointId, t: startMs, v: 110 },
+    { ch: oven.setpointId, t: startMs + (total - 10) * MIN, v: 25 },
+  );
   rows.push({ ch: oven.doorId, t: startMs - MIN, v: 0 });
-  if (opts.door) rows.push({ ch: oven.doorId, t: startMs + opts.door[0] * MIN, v: 1 }, { ch: oven.doorId, t: startMs + opts.door[1] * MIN, v: 0 });
+  if (opts.door)
+    rows.push(
+      { ch: oven.doorId, t: startMs + opts.door[0] * MIN, v: 1 },
+      { ch: oven.doorId, t: startMs + opts.door[1] * MIN, v: 0 },
+    );
   await insertReadings(pool, rows);
   return { openedAt: startMs, closedAt: startMs + total * MIN, profile };
 }
 
 async function runLoad(b: Built): Promise<{ id: number; record: StoredCureRecord; verdict: string }> {
-  const open = await api('/api/v1/loads', { method: 'POST', session: operator, json: { ovenAssetId: oven.id, openedAt: new Date(b.openedAt).toISOString() } });
+  const open = await api('/api/v1/loads', {
+    method: 'POST',
+    session: operator,
+    json: { ovenAssetId: oven.id, openedAt: new Date(b.openedAt).toISOString() },
+  });
   expect(open.status, JSON.stringify(open.body)).toBe(201);
-  const close = await api(`/api/v1/loads/${open.body.id}/close`, { method: 'POST', session: operator, json: { closedAt: new Date(b.closedAt).toISOString() } });
+  const close = await api(`/api/v1/loads/${open.body.id}/close`, {
+    method: 'POST',
+    session: operator,
+    json: { closedAt: new Date(b.closedAt).toISOString() },
+  });
   expect(close.status, JSON.stringify(close.body)).toBe(200);
   return { id: open.body.id, record: close.body.record, verdict: close.body.verdict };
 }
 
 async function cureAlarm(loadId: number) {
-  const { rows } = await pool.query<{ id: number; source_kind: string; priority: string; state: string; load_id: number; message: string }>(
-    `select id, source_kind, priority, state, load_id, message from alarms where source_key = $1`,
-    [`load:${loadId}`],
-  );
+  const { rows } = await pool.query<{
+    id: number;
+    source_kind: string;
+    priority: string;
+    state: string;
+    load_id: number;
+    message: string;
+  }>(`select id, source_kind, priority, state, load_id, message from alarms where source_key = $1`, [`load:${loadId}`]);
   return rows;
 }
 
@@ -128,7 +163,16 @@ describe('cure record from stored readings', () => {
     // Σ exp(−(75000/8.314462618)(1/T̄ − 1/383.15)) = 5.663268 → 161.32654 min.
     expect(record.equivalentMinutes).toBeCloseTo(161.32653626, 6);
     // One such factor by hand: the interval at 100 °C counts exp(−9020.4302·(1/373.15 − 1/383.15)) = 0.532102 of a minute.
-    expect(c1074EquivalentAge([{ minutes: 0, tempC: 100 }, { minutes: 1, tempC: 100 }], 75_000, 110)).toBeCloseTo(0.5321016, 6);
+    expect(
+      c1074EquivalentAge(
+        [
+          { minutes: 0, tempC: 100 },
+          { minutes: 1, tempC: 100 },
+        ],
+        75_000,
+        110,
+      ),
+    ).toBeCloseTo(0.5321016, 6);
     expect(record.window?.minEquivalentMinutes).toBe(150);
     expect(await cureAlarm(id)).toEqual([]);
     // The list shows it with its verdict and figures.
@@ -178,7 +222,10 @@ describe('cure record from stored readings', () => {
     const start = minuteDaysAgo(2);
     const b = await build(start, 150);
     // Remove zone 2 (the colder) for 20 minutes of the soak: zone 1 (coldest + 2 °C) stands in.
-    await pool.query(`delete from readings where channel_id = $1 and ts > to_timestamp($2 / 1000.0) and ts < to_timestamp($3 / 1000.0)`, [oven.zoneIds[1], start + 60 * MIN, start + 80 * MIN]);
+    await pool.query(
+      `delete from readings where channel_id = $1 and ts > to_timestamp($2 / 1000.0) and ts < to_timestamp($3 / 1000.0)`,
+      [oven.zoneIds[1], start + 60 * MIN, start + 80 * MIN],
+    );
     const { record, verdict } = await runLoad(b);
     expect(verdict).toBe('complete');
     expect(record.gaps).toEqual([]);
@@ -192,15 +239,27 @@ describe('cure record from stored readings', () => {
 
   it('a load cannot be closed before it opened, nor twice; a second open load on the same oven is refused', async () => {
     const t = minuteDaysAgo(1.5);
-    const open = await api('/api/v1/loads', { method: 'POST', session: operator, json: { ovenAssetId: oven.id, openedAt: new Date(t).toISOString() } });
+    const open = await api('/api/v1/loads', {
+      method: 'POST',
+      session: operator,
+      json: { ovenAssetId: oven.id, openedAt: new Date(t).toISOString() },
+    });
     expect(open.status).toBe(201);
     const again = await api('/api/v1/loads', { method: 'POST', session: operator, json: { ovenAssetId: oven.id } });
     expect(again.status).toBe(409);
     expect(again.headers.get('content-type')).toContain('application/problem+json');
-    const early = await api(`/api/v1/loads/${open.body.id}/close`, { method: 'POST', session: operator, json: { closedAt: new Date(t - MIN).toISOString() } });
+    const early = await api(`/api/v1/loads/${open.body.id}/close`, {
+      method: 'POST',
+      session: operator,
+      json: { closedAt: new Date(t - MIN).toISOString() },
+    });
     expect(early.status).toBe(400);
     expect(early.body.errors[0].path).toBe('closedAt');
-    const ok = await api(`/api/v1/loads/${open.body.id}/close`, { method: 'POST', session: operator, json: { closedAt: new Date(t + 30 * MIN).toISOString() } });
+    const ok = await api(`/api/v1/loads/${open.body.id}/close`, {
+      method: 'POST',
+      session: operator,
+      json: { closedAt: new Date(t + 30 * MIN).toISOString() },
+    });
     expect(ok.status).toBe(200);
     const twice = await api(`/api/v1/loads/${open.body.id}/close`, { method: 'POST', session: operator, json: {} });
     expect(twice.status).toBe(409);
@@ -215,7 +274,10 @@ describe('cure record from stored readings', () => {
     const r = await api(`/api/v1/loads/${id}/recompute`, { method: 'POST', session: quality, json: {} });
     expect(r.status).toBe(200);
     expect(r.body.verdict).toBe('under-cured');
-    const { rows } = await pool.query(`select action, before, after from audit_log where entity = 'oven_load' and entity_id = $1 and action = 'load.recompute'`, [String(id)]);
+    const { rows } = await pool.query(
+      `select action, before, after from audit_log where entity = 'oven_load' and entity_id = $1 and action = 'load.recompute'`,
+      [String(id)],
+    );
     expect(rows).toHaveLength(1);
     // Still one open alarm for the source (the raise updates it, it does not duplicate it).
     expect(await cureAlarm(id)).toHaveLength(1);
@@ -226,13 +288,20 @@ describe('the ingest worker opens and closes loads by itself', () => {
   it('a setpoint rise of ≥ 50 °C opens a load; the setpoint falling back and the oven cooling closes it', async () => {
     const password = `pw-${tag()}`;
     const o = await createTestOven(pool, TEST_CURE_LIMITS, password);
-    const client = mqtt.connect(`mqtt://127.0.0.1:${inject('stack').mqttPort}`, { username: o.device.username, password, protocolVersion: 4, reconnectPeriod: 0, connectTimeout: 5000 });
+    const client = mqtt.connect(`mqtt://127.0.0.1:${inject('stack').mqttPort}`, {
+      username: o.device.username,
+      password,
+      protocolVersion: 4,
+      reconnectPeriod: 0,
+      connectTimeout: 5000,
+    });
     await new Promise<void>((resolve, reject) => {
       client.once('connect', () => resolve());
       client.once('error', reject);
     });
     const asset = { setpoint: o.code, zone1: `${o.code}-z1`, zone2: `${o.code}-z2` };
-    const send = (a: string, key: string, t: number, v: number) => client.publishAsync(channelTopic(o.device.prefix, a, key), JSON.stringify({ t, v }), { qos: 1 });
+    const send = (a: string, key: string, t: number, v: number) =>
+      client.publishAsync(channelTopic(o.device.prefix, a, key), JSON.stringify({ t, v }), { qos: 1 });
     const start = minuteDaysAgo(0.5);
     // Constructed cycle (minutes from the setpoint step): standby 25 °C; at 0 the setpoint steps to
     // 110 °C; the coldest zone heats 30 → 110 °C at 4 °C/min, soaks to minute 180, the setpoint
@@ -248,9 +317,23 @@ describe('the ingest worker opens and closes loads by itself', () => {
     } finally {
       await client.endAsync();
     }
-    let load: { id: number; opened_at: Date; closed_at: Date | null; opened_by: string; closed_by: string | null; verdict: string | null } | undefined;
+    let load:
+      | {
+          id: number;
+          opened_at: Date;
+          closed_at: Date | null;
+          opened_by: string;
+          closed_by: string | null;
+          verdict: string | null;
+        }
+      | undefined;
     for (let i = 0; i < 100 && !load?.verdict; i++) {
-      load = (await pool.query(`select id, opened_at, closed_at, opened_by, closed_by, verdict from oven_loads where oven_asset_id = $1`, [o.id])).rows[0];
+      load = (
+        await pool.query(
+          `select id, opened_at, closed_at, opened_by, closed_by, verdict from oven_loads where oven_asset_id = $1`,
+          [o.id],
+        )
+      ).rows[0];
       if (!load?.verdict) await new Promise((r) => setTimeout(r, 200));
     }
     expect(load).toBeDefined();

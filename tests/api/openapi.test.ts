@@ -22,7 +22,9 @@ function routeKeys(): string[] {
     const rel = path.relative(pages, file).replace(/\\/g, '/');
     const p = ('/' + rel.replace(/\.(ts|js|mjs)$/, '').replace(/\/index$/, '')).replace(/\[(\.\.\.)?([^\]]+)\]/g, '{$2}');
     const src = fs.readFileSync(file, 'utf8');
-    return [...new Set([...src.matchAll(/export\s+const\s+(GET|POST|PUT|PATCH|DELETE)\b/g)].map((m) => m[1]!))].map((m) => `${m} ${p}`);
+    return [...new Set([...src.matchAll(/export\s+const\s+(GET|POST|PUT|PATCH|DELETE)\b/g)].map((m) => m[1]!))].map(
+      (m) => `${m} ${p}`,
+    );
   });
 }
 
@@ -37,7 +39,11 @@ describe('GET /api/openapi.json', () => {
 
   it('documents every route file under src/pages/api (add a line to OPERATIONS in src/lib/server/openapi.ts)', async () => {
     const { body } = await api('/api/openapi.json');
-    const documented = new Set(Object.entries(body.paths as Record<string, Record<string, unknown>>).flatMap(([p, ops]) => Object.keys(ops).map((m) => `${m.toUpperCase()} ${p}`)));
+    const documented = new Set(
+      Object.entries(body.paths as Record<string, Record<string, unknown>>).flatMap(([p, ops]) =>
+        Object.keys(ops).map((m) => `${m.toUpperCase()} ${p}`),
+      ),
+    );
     const missing = routeKeys().filter((k) => !documented.has(k));
     expect(missing, 'routes missing from the OpenAPI document').toEqual([]);
   });
@@ -45,7 +51,9 @@ describe('GET /api/openapi.json', () => {
   it('request bodies come from the zod schemas (units in the field names)', async () => {
     const { body } = await api('/api/openapi.json');
     const dip = body.paths['/api/v1/calc/dip-thickness'].post.requestBody.content['application/json'].schema;
-    expect(Object.keys(dip.properties)).toEqual(expect.arrayContaining(['viscosityMPaS', 'speedMmS', 'surfaceTensionMNm', 'densityKgM3', 'solidsVolumeFraction']));
+    expect(Object.keys(dip.properties)).toEqual(
+      expect.arrayContaining(['viscosityMPaS', 'speedMmS', 'surfaceTensionMNm', 'densityKgM3', 'solidsVolumeFraction']),
+    );
     expect(dip.required).toEqual(expect.arrayContaining(['viscosityMPaS', 'speedMmS']));
     expect(dip.properties.speedMmS.exclusiveMinimum).toBe(0);
     const approve = body.paths['/api/v1/windows/{id}/approve'].post;

@@ -5,7 +5,15 @@
  * clear 4xx; the public "forgot password" form answers the same way for every input.
  */
 import { afterAll, describe, expect, inject, it } from 'vitest';
-import { closeTestPool, createThrowawayUser, freshSignIn, lastMailId, resetTokenIn, testPool, waitForMail } from '../support/accounts.ts';
+import {
+  closeTestPool,
+  createThrowawayUser,
+  freshSignIn,
+  lastMailId,
+  resetTokenIn,
+  testPool,
+  waitForMail,
+} from '../support/accounts.ts';
 import { api, signIn } from '../support/http.ts';
 
 afterAll(async () => {
@@ -30,7 +38,9 @@ describe('password reset by e-mailed link', () => {
     expect(mail.body).toContain(`${inject('stack').baseUrl}/reset-password?token=`);
     const token = resetTokenIn(mail.body);
     // Only the hash is stored.
-    const stored = await testPool().query<{ token_hash: string }>('select token_hash from password_resets where user_id = $1', [u.id]);
+    const stored = await testPool().query<{ token_hash: string }>('select token_hash from password_resets where user_id = $1', [
+      u.id,
+    ]);
     expect(stored.rows.every((r) => r.token_hash !== token && /^[0-9a-f]{64}$/.test(r.token_hash))).toBe(true);
     // The admin sees it on the caught-mail API too.
     const caught = await api('/api/v1/admin/mail', { session: admin });
@@ -80,10 +90,16 @@ describe('password reset by e-mailed link', () => {
   it('refuses an expired link with 410 and an unknown one with 400, changing nothing', async () => {
     const u = await createThrowawayUser('viewer', 'expire');
     const since = await lastMailId();
-    expect((await api(`/api/v1/admin/users/${u.id}/password-reset`, { method: 'POST', session: await signIn('admin'), json: {} })).status).toBe(202);
+    expect(
+      (await api(`/api/v1/admin/users/${u.id}/password-reset`, { method: 'POST', session: await signIn('admin'), json: {} }))
+        .status,
+    ).toBe(202);
     const token = resetTokenIn((await waitForMail(u.email, since)).body);
     // 31 minutes later (the link lives 30): move its expiry into the past.
-    await testPool().query(`update password_resets set expires_at = now() - interval '1 minute' where user_id = $1 and used_at is null`, [u.id]);
+    await testPool().query(
+      `update password_resets set expires_at = now() - interval '1 minute' where user_id = $1 and used_at is null`,
+      [u.id],
+    );
     const expired = await reset(token, 'a-password-too-late');
     expect(expired.status).toBe(410);
     expect(expired.body.detail).toMatch(/expired/);
@@ -113,7 +129,10 @@ describe('forgot password (public)', () => {
   it('answers the same for a known user, an e-mail, an unknown name and a deactivated user; mails only the known, active one', async () => {
     const u = await createThrowawayUser('operator', 'forgot');
     const off = await createThrowawayUser('operator', 'forgot-off');
-    expect((await api(`/api/v1/admin/users/${off.id}`, { method: 'PATCH', session: await signIn('admin'), json: { active: false } })).status).toBe(200);
+    expect(
+      (await api(`/api/v1/admin/users/${off.id}`, { method: 'PATCH', session: await signIn('admin'), json: { active: false } }))
+        .status,
+    ).toBe(200);
     const since = await lastMailId();
     const answers = [];
     for (const login of [u.username, `nobody-${Date.now()}`, `nobody-${Date.now()}@example.test`, off.email]) {

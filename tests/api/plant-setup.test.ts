@@ -34,7 +34,9 @@ describe('devices', () => {
     expect(r.body.username).toMatch(/^dip-line-\d+-plc-gateway$/);
     expect(r.body.topicPrefix).toBe(`coatrail/v1/fernhollow/${r.body.username}`);
     expect(r.body.password.length).toBeGreaterThanOrEqual(20);
-    const { rows } = await testPool().query<{ password_hash: string }>('select password_hash from devices where id = $1', [r.body.id]);
+    const { rows } = await testPool().query<{ password_hash: string }>('select password_hash from devices where id = $1', [
+      r.body.id,
+    ]);
     expect(rows[0]!.password_hash).toMatch(/^\$argon2id\$/);
     expect(rows[0]!.password_hash).not.toContain(r.body.password);
     // The list never carries a password.
@@ -47,7 +49,14 @@ describe('devices', () => {
     expect(await canConnect(r.body.username, r.body.password + 'x')).toBe(false);
     // Online/offline from the broker's connection events is recorded.
     const c = await connectDevice(port(), r.body.username, r.body.password);
-    const online = await waitFor(async () => (await api('/api/v1/devices', { session: admin })).body.find((d: { id: number; online: boolean }) => d.id === r.body.id && d.online), 5000, 'device online');
+    const online = await waitFor(
+      async () =>
+        (await api('/api/v1/devices', { session: admin })).body.find(
+          (d: { id: number; online: boolean }) => d.id === r.body.id && d.online,
+        ),
+      5000,
+      'device online',
+    );
     expect(online.lastSeenAt).not.toBeNull();
     await c.endAsync();
     // The same name again gets a distinct username.
@@ -55,7 +64,10 @@ describe('devices', () => {
     expect(again.status).toBe(201);
     expect(again.body.username).toBe(`${r.body.username}-2`);
     // Audited without the secret.
-    const audit = await testPool().query<{ after: Record<string, unknown> }>(`select after from audit_log where action = 'device.created' and entity_id = $1`, [String(r.body.id)]);
+    const audit = await testPool().query<{ after: Record<string, unknown> }>(
+      `select after from audit_log where action = 'device.created' and entity_id = $1`,
+      [String(r.body.id)],
+    );
     expect(audit.rows[0]!.after).toMatchObject({ username: r.body.username, topicPrefix: r.body.topicPrefix });
     expect(JSON.stringify(audit.rows[0]!.after)).not.toContain(r.body.password);
   });
@@ -72,7 +84,10 @@ describe('devices', () => {
     expect(off.status).toBe(200);
     expect(off.body).toMatchObject({ enabled: false, online: false });
     expect(await canConnect(d.username, rot.body.password)).toBe(false);
-    const trail = await testPool().query<{ action: string; before: unknown; after: unknown }>(`select action, before, after from audit_log where entity = 'device' and entity_id = $1 order by id`, [String(d.id)]);
+    const trail = await testPool().query<{ action: string; before: unknown; after: unknown }>(
+      `select action, before, after from audit_log where entity = 'device' and entity_id = $1 order by id`,
+      [String(d.id)],
+    );
     expect(trail.rows.map((r) => r.action)).toEqual(['device.created', 'device.password-rotated', 'device.disabled']);
     expect(trail.rows[2]).toMatchObject({ before: { enabled: true }, after: { enabled: false } });
   });
@@ -81,7 +96,9 @@ describe('devices', () => {
     const bad = await api('/api/v1/devices', { method: 'POST', session: await signIn('admin'), json: { name: '' } });
     expect(bad.status).toBe(400);
     expect(bad.body.errors[0].path).toBe('name');
-    expect((await api('/api/v1/devices', { method: 'POST', session: await signIn('engineer'), json: { name: 'x-y' } })).status).toBe(403);
+    expect(
+      (await api('/api/v1/devices', { method: 'POST', session: await signIn('engineer'), json: { name: 'x-y' } })).status,
+    ).toBe(403);
   });
 });
 
@@ -110,27 +127,55 @@ describe('assets and channels', () => {
     const assets = (await api('/api/v1/assets', { session: eng })).body as { id: number; code: string }[];
     const coatRoom = assets.find((a) => a.code === 'coat-room')!;
     const admin = await signIn('admin');
-    const dev = (await api('/api/v1/devices', { method: 'POST', session: admin, json: { name: `Room sensor ${Date.now()}` } })).body;
-    const body = { assetId: coatRoom.id, deviceId: dev.id, name: 'Coating room humidity', kind: 'room-humidity', unit: '%', min: 0, max: 100 };
+    const dev = (await api('/api/v1/devices', { method: 'POST', session: admin, json: { name: `Room sensor ${Date.now()}` } }))
+      .body;
+    const body = {
+      assetId: coatRoom.id,
+      deviceId: dev.id,
+      name: 'Coating room humidity',
+      kind: 'room-humidity',
+      unit: '%',
+      min: 0,
+      max: 100,
+    };
     const ok = await api('/api/v1/channels', { method: 'POST', session: eng, json: body });
     expect(ok.status).toBe(201);
-    expect(ok.body).toMatchObject({ key: 'coating-room-humidity', topic: `${dev.topicPrefix}/coat-room/coating-room-humidity`, assetId: coatRoom.id, deviceId: dev.id });
+    expect(ok.body).toMatchObject({
+      key: 'coating-room-humidity',
+      topic: `${dev.topicPrefix}/coat-room/coating-room-humidity`,
+      assetId: coatRoom.id,
+      deviceId: dev.id,
+    });
     const dup = await api('/api/v1/channels', { method: 'POST', session: eng, json: body });
     expect(dup.status).toBe(409);
     expect(dup.body.errors[0].path).toBe('key');
-    const range = await api('/api/v1/channels', { method: 'POST', session: eng, json: { ...body, key: 'rh-2', min: 50, max: 50 } });
+    const range = await api('/api/v1/channels', {
+      method: 'POST',
+      session: eng,
+      json: { ...body, key: 'rh-2', min: 50, max: 50 },
+    });
     expect(range.status).toBe(400);
     expect(range.body.errors.map((e: { path: string }) => e.path)).toContain('max');
-    const noAsset = await api('/api/v1/channels', { method: 'POST', session: eng, json: { ...body, key: 'rh-3', assetId: 2147483000 } });
+    const noAsset = await api('/api/v1/channels', {
+      method: 'POST',
+      session: eng,
+      json: { ...body, key: 'rh-3', assetId: 2147483000 },
+    });
     expect(noAsset.status).toBe(400);
     expect(noAsset.body.errors[0].path).toBe('assetId');
-    const noDevice = await api('/api/v1/channels', { method: 'POST', session: eng, json: { ...body, key: 'rh-4', deviceId: 2147483000 } });
+    const noDevice = await api('/api/v1/channels', {
+      method: 'POST',
+      session: eng,
+      json: { ...body, key: 'rh-4', deviceId: 2147483000 },
+    });
     expect(noDevice.status).toBe(400);
     expect(noDevice.body.errors[0].path).toBe('deviceId');
     const badKind = await api('/api/v1/channels', { method: 'POST', session: eng, json: { ...body, key: 'rh-5', kind: 'mood' } });
     expect(badKind.status).toBe(400);
     expect(badKind.body.errors[0].path).toBe('kind');
-    const audit = await testPool().query(`select 1 from audit_log where action = 'channel.created' and entity_id = $1`, [String(ok.body.id)]);
+    const audit = await testPool().query(`select 1 from audit_log where action = 'channel.created' and entity_id = $1`, [
+      String(ok.body.id),
+    ]);
     expect(audit.rows).toHaveLength(1);
   });
 });
@@ -139,23 +184,56 @@ describe('approving an unknown channel', () => {
   it('turns a topic the worker did not know into a channel whose readings are then stored', async () => {
     const admin = await signIn('admin');
     const eng = await signIn('engineer');
-    const dev = (await api('/api/v1/devices', { method: 'POST', session: admin, json: { name: `Probe box ${Date.now()}` } })).body;
+    const dev = (await api('/api/v1/devices', { method: 'POST', session: admin, json: { name: `Probe box ${Date.now()}` } }))
+      .body;
     const topic = `${dev.topicPrefix}/dip-1-hc/solids-probe`;
     const client = await connectDevice(port(), dev.username, dev.password);
     try {
       await client.publishAsync(topic, JSON.stringify({ t: Date.now(), v: 24.5 }), { qos: 1 });
-      const unknown = await waitFor(async () => (await testPool().query<{ id: number }>('select id from unknown_channels where topic = $1 and resolved_at is null', [topic])).rows[0], 10_000, 'the unknown channel to be listed');
+      const unknown = await waitFor(
+        async () =>
+          (
+            await testPool().query<{ id: number }>('select id from unknown_channels where topic = $1 and resolved_at is null', [
+              topic,
+            ])
+          ).rows[0],
+        10_000,
+        'the unknown channel to be listed',
+      );
       // Validation first, then the role.
-      const bad = await api(`/api/v1/ingest/unknown-channels/${unknown.id}/approve`, { method: 'POST', session: eng, json: { name: 'Solids', kind: 'solids', unit: '%', min: 40, max: 10 } });
+      const bad = await api(`/api/v1/ingest/unknown-channels/${unknown.id}/approve`, {
+        method: 'POST',
+        session: eng,
+        json: { name: 'Solids', kind: 'solids', unit: '%', min: 40, max: 10 },
+      });
       expect(bad.status).toBe(400);
       expect(bad.body.errors[0].path).toBe('max');
-      expect((await api(`/api/v1/ingest/unknown-channels/${unknown.id}/approve`, { method: 'POST', session: await signIn('operator'), json: {} })).status).toBe(403);
-      const ok = await api(`/api/v1/ingest/unknown-channels/${unknown.id}/approve`, { method: 'POST', session: eng, json: { name: 'Line 1 bath solids probe', kind: 'solids', unit: '%', min: 0, max: 60 } });
+      expect(
+        (
+          await api(`/api/v1/ingest/unknown-channels/${unknown.id}/approve`, {
+            method: 'POST',
+            session: await signIn('operator'),
+            json: {},
+          })
+        ).status,
+      ).toBe(403);
+      const ok = await api(`/api/v1/ingest/unknown-channels/${unknown.id}/approve`, {
+        method: 'POST',
+        session: eng,
+        json: { name: 'Line 1 bath solids probe', kind: 'solids', unit: '%', min: 0, max: 60 },
+      });
       expect(ok.status).toBe(201);
       expect(ok.body).toMatchObject({ topic, key: 'solids-probe', deviceId: dev.id, unit: '%' });
-      const again = await api(`/api/v1/ingest/unknown-channels/${unknown.id}/approve`, { method: 'POST', session: eng, json: { name: 'Solids', kind: 'solids', unit: '%', min: 0, max: 60 } });
+      const again = await api(`/api/v1/ingest/unknown-channels/${unknown.id}/approve`, {
+        method: 'POST',
+        session: eng,
+        json: { name: 'Solids', kind: 'solids', unit: '%', min: 0, max: 60 },
+      });
       expect(again.status).toBe(409);
-      const { rows } = await testPool().query<{ resolved_at: Date | null }>('select resolved_at from unknown_channels where id = $1', [unknown.id]);
+      const { rows } = await testPool().query<{ resolved_at: Date | null }>(
+        'select resolved_at from unknown_channels where id = $1',
+        [unknown.id],
+      );
       expect(rows[0]!.resolved_at).not.toBeNull();
       // Samples on the topic are now stored as readings of the channel. (The worker re-reads its
       // channel map at most once a second on a miss, so a sample sent in that second may still be
@@ -163,7 +241,9 @@ describe('approving an unknown channel', () => {
       const stored = await waitFor(
         async () => {
           await client.publishAsync(topic, JSON.stringify({ t: Date.now(), v: 25.25 }), { qos: 1 });
-          const { rows: got } = await testPool().query<{ value: number }>('select value from readings where channel_id = $1', [ok.body.id]);
+          const { rows: got } = await testPool().query<{ value: number }>('select value from readings where channel_id = $1', [
+            ok.body.id,
+          ]);
           return got[0];
         },
         15_000,
@@ -171,7 +251,10 @@ describe('approving an unknown channel', () => {
         400,
       );
       expect(stored.value).toBe(25.25);
-      const audit = await testPool().query<{ before: { unknownChannelId: number } }>(`select before from audit_log where action = 'channel.approved' and entity_id = $1`, [String(ok.body.id)]);
+      const audit = await testPool().query<{ before: { unknownChannelId: number } }>(
+        `select before from audit_log where action = 'channel.approved' and entity_id = $1`,
+        [String(ok.body.id)],
+      );
       expect(audit.rows[0]!.before.unknownChannelId).toBe(unknown.id);
     } finally {
       await client.endAsync();
@@ -179,7 +262,11 @@ describe('approving an unknown channel', () => {
   }, 40_000);
 
   it('answers 404 for an unknown id', async () => {
-    const r = await api('/api/v1/ingest/unknown-channels/2147483000/approve', { method: 'POST', session: await signIn('engineer'), json: { name: 'Solids', kind: 'solids', unit: '%', min: 0, max: 60 } });
+    const r = await api('/api/v1/ingest/unknown-channels/2147483000/approve', {
+      method: 'POST',
+      session: await signIn('engineer'),
+      json: { name: 'Solids', kind: 'solids', unit: '%', min: 0, max: 60 },
+    });
     expect(r.status).toBe(404);
   });
 });

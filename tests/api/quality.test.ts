@@ -46,7 +46,11 @@ beforeAll(async () => {
   viewer = await signIn('viewer');
   const t = tag();
   for (let i = 0; i < 6; i++) jobs.push(`QT-${t}-${i}`);
-  const dip = await api('/api/v1/dip-runs', { method: 'POST', session: operator, json: { lineAssetId: line.id, rackCode: `RQ-${t}`, jobNumbers: jobs } });
+  const dip = await api('/api/v1/dip-runs', {
+    method: 'POST',
+    session: operator,
+    json: { lineAssetId: line.id, rackCode: `RQ-${t}`, jobNumbers: jobs },
+  });
   expect(dip.status, JSON.stringify(dip.body)).toBe(201);
 });
 
@@ -101,7 +105,11 @@ describe('cross-cut classification through the API (ISO 2409 / ASTM D3359)', () 
     expect(unknownJob.body.errors[0].path).toBe('jobNumber');
     const kind = await record({ kind: 'pencil', jobNumber: jobs[0] });
     expect(kind.status).toBe(400);
-    const viewerTry = await api('/api/v1/quality/tests', { method: 'POST', session: viewer, json: { kind: 'crosscut', jobNumber: jobs[0], percentRemoved: 0 } });
+    const viewerTry = await api('/api/v1/quality/tests', {
+      method: 'POST',
+      session: viewer,
+      json: { kind: 'crosscut', jobNumber: jobs[0], percentRemoved: 0 },
+    });
     expect(viewerTry.status).toBe(403);
   });
 
@@ -116,7 +124,11 @@ describe('cross-cut classification through the API (ISO 2409 / ASTM D3359)', () 
   });
 
   it('the acceptance settings decide pass/fail; tests already recorded keep their judgement', async () => {
-    const put = await api('/api/v1/quality/acceptance', { method: 'PUT', session: quality, json: { ...DEFAULT_ACCEPTANCE, crosscutMaxIso: 1 } });
+    const put = await api('/api/v1/quality/acceptance', {
+      method: 'PUT',
+      session: quality,
+      json: { ...DEFAULT_ACCEPTANCE, crosscutMaxIso: 1 },
+    });
     expect(put.status).toBe(200);
     const r = await record({ kind: 'crosscut', jobNumber: jobs[2], percentRemoved: 3 });
     expect(r.body).toMatchObject({ result: 'pass', computed: { iso2409: 1, astmD3359: '4B' } });
@@ -124,7 +136,11 @@ describe('cross-cut classification through the API (ISO 2409 / ASTM D3359)', () 
     expect(earlier.body.length).toBe(10);
     const notAllowed = await api('/api/v1/quality/acceptance', { method: 'PUT', session: operator, json: DEFAULT_ACCEPTANCE });
     expect(notAllowed.status).toBe(403);
-    const invalid = await api('/api/v1/quality/acceptance', { method: 'PUT', session: quality, json: { ...DEFAULT_ACCEPTANCE, thicknessUm: { min: 4, max: 2 } } });
+    const invalid = await api('/api/v1/quality/acceptance', {
+      method: 'PUT',
+      session: quality,
+      json: { ...DEFAULT_ACCEPTANCE, thicknessUm: { min: 4, max: 2 } },
+    });
     expect(invalid.status).toBe(400);
     expect(invalid.body.errors[0].path).toBe('thicknessUm.max');
     await api('/api/v1/quality/acceptance', { method: 'PUT', session: quality, json: DEFAULT_ACCEPTANCE });
@@ -142,8 +158,12 @@ describe('other test kinds', () => {
   });
 
   it('thickness: measured inside / outside 1.5–4 µm', async () => {
-    expect((await record({ kind: 'thickness', jobNumber: jobs[3], method: 'measured', thicknessUm: 2.1 })).body.result).toBe('pass');
-    expect((await record({ kind: 'thickness', jobNumber: jobs[3], method: 'measured', thicknessUm: 4.2 })).body.result).toBe('fail');
+    expect((await record({ kind: 'thickness', jobNumber: jobs[3], method: 'measured', thicknessUm: 2.1 })).body.result).toBe(
+      'pass',
+    );
+    expect((await record({ kind: 'thickness', jobNumber: jobs[3], method: 'measured', thicknessUm: 4.2 })).body.result).toBe(
+      'fail',
+    );
     const missing = await record({ kind: 'thickness', jobNumber: jobs[3], method: 'measured' });
     expect(missing.status).toBe(400);
     expect(missing.body.errors[0].path).toBe('thicknessUm');
@@ -153,18 +173,37 @@ describe('other test kinds', () => {
     // Constructed: R(λ) = 0.04 + 0.02·cos(4πnd/λ) with n = 1.5, d = 2000 nm has maxima where
     // 2nd/λ is whole; adjacent maxima λ1 > λ2 give d = λ1·λ2/(2n(λ1 − λ2)) (Macleod) = 2000 nm.
     const lines = ['wavelength_nm,reflectance'];
-    for (let w = 420; w <= 720; w += 0.5) lines.push(`${w},${(0.04 + 0.02 * Math.cos((4 * Math.PI * 1.5 * 2000) / w)).toFixed(6)}`);
-    const r = await record({ kind: 'thickness', jobNumber: jobs[4], method: 'spectrum', refractiveIndex: 1.5, spectrumCsv: lines.join('\n') });
+    for (let w = 420; w <= 720; w += 0.5)
+      lines.push(`${w},${(0.04 + 0.02 * Math.cos((4 * Math.PI * 1.5 * 2000) / w)).toFixed(6)}`);
+    const r = await record({
+      kind: 'thickness',
+      jobNumber: jobs[4],
+      method: 'spectrum',
+      refractiveIndex: 1.5,
+      spectrumCsv: lines.join('\n'),
+    });
     expect(r.status, JSON.stringify(r.body)).toBe(201);
     expect(r.body.computed.thicknessUm).toBeCloseTo(2.0, 2);
     expect(r.body.result).toBe('pass');
     expect(r.body.fileIds).toHaveLength(1);
     // An index-matched coat: no fringes → 422 with the reason, nothing stored.
     const flat = ['wavelength_nm,reflectance', ...Array.from({ length: 50 }, (_, i) => `${450 + i * 5},0.0400`)].join('\n');
-    const none = await record({ kind: 'thickness', jobNumber: jobs[4], method: 'spectrum', refractiveIndex: 1.5, spectrumCsv: flat });
+    const none = await record({
+      kind: 'thickness',
+      jobNumber: jobs[4],
+      method: 'spectrum',
+      refractiveIndex: 1.5,
+      spectrumCsv: flat,
+    });
     expect(none.status).toBe(422);
     expect(none.body.detail).toContain('index-matched');
-    const broken = await record({ kind: 'thickness', jobNumber: jobs[4], method: 'spectrum', refractiveIndex: 1.5, spectrumCsv: 'wavelength_nm,reflectance\n500,0.04\n"510,0.05' });
+    const broken = await record({
+      kind: 'thickness',
+      jobNumber: jobs[4],
+      method: 'spectrum',
+      refractiveIndex: 1.5,
+      spectrumCsv: 'wavelength_nm,reflectance\n500,0.04\n"510,0.05',
+    });
     expect(broken.status).toBe(400);
     expect(broken.body.errors[0].path).toBe('spectrumCsv');
   });
@@ -239,7 +278,10 @@ describe('attachments', () => {
     const quote = await upload(testId, 'quote.csv', 'a,b\n"unclosed,1\n');
     expect(quote.status).toBe(400);
     expect(quote.body.detail).toContain('line 2');
-    const { rows } = await pool.query<{ n: number }>(`select count(*)::int as n from test_files where test_id = $1 and filename in ('bad.csv', 'quote.csv', 'huge.png', 'photo.png', 'report.pdf')`, [testId]);
+    const { rows } = await pool.query<{ n: number }>(
+      `select count(*)::int as n from test_files where test_id = $1 and filename in ('bad.csv', 'quote.csv', 'huge.png', 'photo.png', 'report.pdf')`,
+      [testId],
+    );
     expect(rows[0]!.n).toBe(0);
   });
 
@@ -272,12 +314,23 @@ describe('job CSV import (preview, then commit of the good rows only)', () => {
     expect(pre.body.bad[3].errors[0]).toContain('has 2 fields');
     // Nothing stored by the preview.
     expect((await pool.query(`select 1 from jobs where job_number like $1`, [`IMP-${t}-%`])).rowCount).toBe(0);
-    const wrong = await api('/api/v1/jobs/import/commit', { method: 'POST', session: operator, json: { csv: csv + '\n', sha256: pre.body.sha256 } });
+    const wrong = await api('/api/v1/jobs/import/commit', {
+      method: 'POST',
+      session: operator,
+      json: { csv: csv + '\n', sha256: pre.body.sha256 },
+    });
     expect(wrong.status).toBe(409);
-    const ok = await api('/api/v1/jobs/import/commit', { method: 'POST', session: operator, json: { csv, sha256: pre.body.sha256 } });
+    const ok = await api('/api/v1/jobs/import/commit', {
+      method: 'POST',
+      session: operator,
+      json: { csv, sha256: pre.body.sha256 },
+    });
     expect(ok.status).toBe(201);
     expect(ok.body).toMatchObject({ imported: 2, created: 2, skippedLines: [3, 5, 6, 7] });
-    const stored = await pool.query<{ job_number: string; customer_ref: string }>(`select job_number, customer_ref from jobs where job_number like $1 order by 1`, [`IMP-${t}-%`]);
+    const stored = await pool.query<{ job_number: string; customer_ref: string }>(
+      `select job_number, customer_ref from jobs where job_number like $1 order by 1`,
+      [`IMP-${t}-%`],
+    );
     expect(stored.rows).toEqual([
       { job_number: `IMP-${t}-1`, customer_ref: 'C-1' },
       { job_number: `IMP-${t}-2`, customer_ref: 'C-3' },
@@ -285,11 +338,19 @@ describe('job CSV import (preview, then commit of the good rows only)', () => {
   });
 
   it('a file without a job-number column, or with a broken quote, is refused as a whole', async () => {
-    const noCol = await api('/api/v1/jobs/import/preview', { method: 'POST', session: operator, json: { csv: 'customer,material\nA,B\n' } });
+    const noCol = await api('/api/v1/jobs/import/preview', {
+      method: 'POST',
+      session: operator,
+      json: { csv: 'customer,material\nA,B\n' },
+    });
     expect(noCol.status).toBe(400);
     expect(noCol.body.errors[0]).toMatchObject({ path: 'csv' });
     expect(noCol.body.detail).toContain('job_number');
-    const quote = await api('/api/v1/jobs/import/preview', { method: 'POST', session: operator, json: { csv: 'job_number\nA-1\n"B-2\n' } });
+    const quote = await api('/api/v1/jobs/import/preview', {
+      method: 'POST',
+      session: operator,
+      json: { csv: 'job_number\nA-1\n"B-2\n' },
+    });
     expect(quote.status).toBe(400);
     expect(quote.body.detail).toContain('line 3');
   });

@@ -204,14 +204,23 @@ function findRoutes(): FoundRoute[] {
 const found = findRoutes();
 
 /** One request; the body is abandoned once the status is known (so event streams do not hang). */
-async function call(route: FoundRoute, auth: { cookie?: string; bearer?: string } = {}): Promise<{ status: number; type: string }> {
+async function call(
+  route: FoundRoute,
+  auth: { cookie?: string; bearer?: string } = {},
+): Promise<{ status: number; type: string }> {
   const headers = new Headers();
   if (auth.cookie) headers.set('cookie', auth.cookie);
   if (auth.bearer) headers.set('authorization', `Bearer ${auth.bearer}`);
   const write = route.method !== 'GET';
   if (write) headers.set('content-type', 'application/json');
   const ac = new AbortController();
-  const r = await fetch(`${base()}${route.url}`, { method: route.method, headers, body: write ? '{}' : null, redirect: 'manual', signal: ac.signal });
+  const r = await fetch(`${base()}${route.url}`, {
+    method: route.method,
+    headers,
+    body: write ? '{}' : null,
+    redirect: 'manual',
+    signal: ac.signal,
+  });
   const type = r.headers.get('content-type') ?? '';
   ac.abort();
   return { status: r.status, type };
@@ -262,7 +271,10 @@ describe('role matrix over every API route', () => {
     const action = ROUTES[key];
 
     it('is in the ROUTES table', () => {
-      expect(action, `${key} is not in ROUTES of tests/api/role-matrix.test.ts — add it with its action or 'public'`).toBeDefined();
+      expect(
+        action,
+        `${key} is not in ROUTES of tests/api/role-matrix.test.ts — add it with its action or 'public'`,
+      ).toBeDefined();
     });
 
     if (action === undefined) return;

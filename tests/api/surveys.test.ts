@@ -29,7 +29,9 @@ function surveyCsv(): string {
   for (let m = 0; m <= 40; m++) {
     const v = (p: number) => Math.min(p, 24 + 8 * m);
     const a = m === 12 ? 118 : v(plateau.A);
-    lines.push(`${new Date(T0 + m * 60_000).toISOString()},${a.toFixed(1)},${v(plateau.B).toFixed(1)},${v(plateau.C).toFixed(1)}`);
+    lines.push(
+      `${new Date(T0 + m * 60_000).toISOString()},${a.toFixed(1)},${v(plateau.B).toFixed(1)},${v(plateau.C).toFixed(1)}`,
+    );
   }
   return lines.join('\n');
 }
@@ -46,14 +48,22 @@ afterAll(async () => {
   await api('/api/v1/surveys/settings', {
     method: 'PUT',
     session: engineer,
-    json: { intervalDays: 90, classTableName: 'SAE AMS2750G furnace classes', classTable: [1, 2, 3, 4, 5, 6].map((c, i) => ({ class: c, toleranceC: [3, 6, 8, 10, 14, 28][i] })) },
+    json: {
+      intervalDays: 90,
+      classTableName: 'SAE AMS2750G furnace classes',
+      classTable: [1, 2, 3, 4, 5, 6].map((c, i) => ({ class: c, toleranceC: [3, 6, 8, 10, 14, 28][i] })),
+    },
   });
   await closeTestPool();
 });
 
 describe('uniformity survey', () => {
   it('automatic stabilisation leaves the overshoot out: ±1.5 °C → class 1 (AMS2750G ±3 °C)', async () => {
-    const r = await api('/api/v1/surveys/preview', { method: 'POST', session: quality, json: { ovenAssetId: oven.id, setpointC: 110, csv: surveyCsv() } });
+    const r = await api('/api/v1/surveys/preview', {
+      method: 'POST',
+      session: quality,
+      json: { ovenAssetId: oven.id, setpointC: 110, csv: surveyCsv() },
+    });
     expect(r.status, JSON.stringify(r.body)).toBe(200);
     // Hand-computed: every sensor ≥ 108 °C first at minute 11 (B reaches 108.5 there), + 10 min → from minute 21.
     expect(r.body.stabilisedFromMinutes).toBe(21);
@@ -63,42 +73,87 @@ describe('uniformity survey', () => {
   });
 
   it('a chosen start that takes in the overshoot: +8 °C → class 3, on its ±8 °C edge', async () => {
-    const r = await api('/api/v1/surveys/preview', { method: 'POST', session: quality, json: { ovenAssetId: oven.id, setpointC: 110, csv: surveyCsv(), stabilisedFromMinutes: 12 } });
+    const r = await api('/api/v1/surveys/preview', {
+      method: 'POST',
+      session: quality,
+      json: { ovenAssetId: oven.id, setpointC: 110, csv: surveyCsv(), stabilisedFromMinutes: 12 },
+    });
     expect(r.body.result.hottestDeviationC).toBeCloseTo(8, 12);
     expect(r.body.result.uniformityClass).toBe(3);
   });
 
   it('calibration corrections are added to every reading of their sensor', async () => {
-    const r = await api('/api/v1/surveys/preview', { method: 'POST', session: quality, json: { ovenAssetId: oven.id, setpointC: 110, csv: surveyCsv(), corrections: { B: 0.5 } } });
+    const r = await api('/api/v1/surveys/preview', {
+      method: 'POST',
+      session: quality,
+      json: { ovenAssetId: oven.id, setpointC: 110, csv: surveyCsv(), corrections: { B: 0.5 } },
+    });
     expect(r.body.result.coldestDeviationC).toBeCloseTo(-1.0, 12);
-    const unknown = await api('/api/v1/surveys/preview', { method: 'POST', session: quality, json: { ovenAssetId: oven.id, setpointC: 110, csv: surveyCsv(), corrections: { Z: 1 } } });
+    const unknown = await api('/api/v1/surveys/preview', {
+      method: 'POST',
+      session: quality,
+      json: { ovenAssetId: oven.id, setpointC: 110, csv: surveyCsv(), corrections: { Z: 1 } },
+    });
     expect(unknown.status).toBe(400);
     expect(unknown.body.errors[0].path).toBe('corrections');
   });
 
   it('bad files are refused with their line numbers; a soak that never settles is a 422', async () => {
     const bad = surveyCsv().replace(/\n(2026-06-01T08:05:00.000Z),[^,]+,/, '\n$1,hot,');
-    const r = await api('/api/v1/surveys/preview', { method: 'POST', session: quality, json: { ovenAssetId: oven.id, setpointC: 110, csv: bad } });
+    const r = await api('/api/v1/surveys/preview', {
+      method: 'POST',
+      session: quality,
+      json: { ovenAssetId: oven.id, setpointC: 110, csv: bad },
+    });
     expect(r.status).toBe(400);
     expect(r.body.errors[0]).toMatchObject({ path: 'csv' });
     expect(r.body.errors[0].message).toContain('line 7');
-    const noTime = await api('/api/v1/surveys/preview', { method: 'POST', session: quality, json: { ovenAssetId: oven.id, setpointC: 110, csv: 'when,A\n1,2\n3,4\n' } });
+    const noTime = await api('/api/v1/surveys/preview', {
+      method: 'POST',
+      session: quality,
+      json: { ovenAssetId: oven.id, setpointC: 110, csv: 'when,A\n1,2\n3,4\n' },
+    });
     expect(noTime.status).toBe(400);
     expect(noTime.body.errors[0].message).toContain('line 1');
-    const never = await api('/api/v1/surveys/preview', { method: 'POST', session: quality, json: { ovenAssetId: oven.id, setpointC: 150, csv: surveyCsv() } });
+    const never = await api('/api/v1/surveys/preview', {
+      method: 'POST',
+      session: quality,
+      json: { ovenAssetId: oven.id, setpointC: 150, csv: surveyCsv() },
+    });
     expect(never.status).toBe(422);
     const zone = (await pool.query<{ id: number }>('select id from assets where code = $1', [`${oven.code}-z1`])).rows[0]!.id;
-    const notOven = await api('/api/v1/surveys/preview', { method: 'POST', session: quality, json: { ovenAssetId: zone, setpointC: 110, csv: surveyCsv() } });
+    const notOven = await api('/api/v1/surveys/preview', {
+      method: 'POST',
+      session: quality,
+      json: { ovenAssetId: zone, setpointC: 110, csv: surveyCsv() },
+    });
     expect(notOven.status).toBe(400);
     const operator = await signIn('operator');
-    expect((await api('/api/v1/surveys/preview', { method: 'POST', session: operator, json: { ovenAssetId: oven.id, setpointC: 110, csv: surveyCsv() } })).status).toBe(403);
+    expect(
+      (
+        await api('/api/v1/surveys/preview', {
+          method: 'POST',
+          session: operator,
+          json: { ovenAssetId: oven.id, setpointC: 110, csv: surveyCsv() },
+        })
+      ).status,
+    ).toBe(403);
   });
 
   it('a stored survey keeps its file; an oven whose last survey is older than the interval is overdue', async () => {
-    const saved = await api('/api/v1/surveys', { method: 'POST', session: engineer, json: { ovenAssetId: oven.id, setpointC: 110, csv: surveyCsv(), fileName: 'oven-survey.csv' } });
+    const saved = await api('/api/v1/surveys', {
+      method: 'POST',
+      session: engineer,
+      json: { ovenAssetId: oven.id, setpointC: 110, csv: surveyCsv(), fileName: 'oven-survey.csv' },
+    });
     expect(saved.status, JSON.stringify(saved.body)).toBe(201);
     const one = await api(`/api/v1/surveys/${saved.body.id}`, { session: viewer });
-    expect(one.body).toMatchObject({ ovenAssetId: oven.id, uniformityClass: 1, classTableName: 'SAE AMS2750G furnace classes', stabilisedAuto: true });
+    expect(one.body).toMatchObject({
+      ovenAssetId: oven.id,
+      uniformityClass: 1,
+      classTableName: 'SAE AMS2750G furnace classes',
+      stabilisedAuto: true,
+    });
     expect(one.body.surveyedAt).toBe('2026-06-01T08:00:00.000Z');
     expect(one.body.fileId).toEqual(expect.any(Number));
     const list = await api('/api/v1/surveys', { session: viewer });
@@ -109,14 +164,49 @@ describe('uniformity survey', () => {
   });
 
   it('the class table and interval are the engineer’s settings', async () => {
-    const dup = await api('/api/v1/surveys/settings', { method: 'PUT', session: engineer, json: { intervalDays: 30, classTableName: 'x', classTable: [{ class: 1, toleranceC: 3 }, { class: 1, toleranceC: 5 }] } });
+    const dup = await api('/api/v1/surveys/settings', {
+      method: 'PUT',
+      session: engineer,
+      json: {
+        intervalDays: 30,
+        classTableName: 'x',
+        classTable: [
+          { class: 1, toleranceC: 3 },
+          { class: 1, toleranceC: 5 },
+        ],
+      },
+    });
     expect(dup.status).toBe(400);
     expect(dup.body.errors[0].path).toBe('classTable.1.class');
-    expect((await api('/api/v1/surveys/settings', { method: 'PUT', session: quality, json: { intervalDays: 30, classTableName: 'x', classTable: [{ class: 1, toleranceC: 3 }] } })).status).toBe(403);
+    expect(
+      (
+        await api('/api/v1/surveys/settings', {
+          method: 'PUT',
+          session: quality,
+          json: { intervalDays: 30, classTableName: 'x', classTable: [{ class: 1, toleranceC: 3 }] },
+        })
+      ).status,
+    ).toBe(403);
     // AMS2750F (the earlier revision) has class 2 at ±5 °C: a ±4 °C survey is then class 2.
-    const f = await api('/api/v1/surveys/settings', { method: 'PUT', session: engineer, json: { intervalDays: 400, classTableName: 'SAE AMS2750F furnace classes', classTable: [{ class: 1, toleranceC: 3 }, { class: 2, toleranceC: 5 }, { class: 3, toleranceC: 7 }] } });
+    const f = await api('/api/v1/surveys/settings', {
+      method: 'PUT',
+      session: engineer,
+      json: {
+        intervalDays: 400,
+        classTableName: 'SAE AMS2750F furnace classes',
+        classTable: [
+          { class: 1, toleranceC: 3 },
+          { class: 2, toleranceC: 5 },
+          { class: 3, toleranceC: 7 },
+        ],
+      },
+    });
     expect(f.status).toBe(200);
-    const r = await api('/api/v1/surveys/preview', { method: 'POST', session: quality, json: { ovenAssetId: oven.id, setpointC: 110, csv: surveyCsv(), corrections: { A: 2.5 } } });
+    const r = await api('/api/v1/surveys/preview', {
+      method: 'POST',
+      session: quality,
+      json: { ovenAssetId: oven.id, setpointC: 110, csv: surveyCsv(), corrections: { A: 2.5 } },
+    });
     // Hand-computed: A plateau 111.5 + 2.5 = 114 → +4 °C → class 2 (±5 °C) in the F table.
     expect(r.body.result).toMatchObject({ uniformityClass: 2, classToleranceC: 5 });
     expect(r.body.classTableName).toBe('SAE AMS2750F furnace classes');

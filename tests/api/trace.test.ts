@@ -35,7 +35,11 @@ let failedTestId: number;
 const iso = (ms: number) => new Date(ms).toISOString();
 
 async function dip(key: string, l: TestLine, atMs: number, jobs: string[], rack?: string) {
-  const r = await api('/api/v1/dip-runs', { method: 'POST', session: operator, json: { lineAssetId: l.id, dippedAt: iso(atMs), jobNumbers: jobs, ...(rack ? { rackCode: rack } : {}) } });
+  const r = await api('/api/v1/dip-runs', {
+    method: 'POST',
+    session: operator,
+    json: { lineAssetId: l.id, dippedAt: iso(atMs), jobNumbers: jobs, ...(rack ? { rackCode: rack } : {}) },
+  });
   expect(r.status, JSON.stringify(r.body)).toBe(201);
   dips[key] = r.body.id;
   return r.body;
@@ -81,11 +85,10 @@ beforeAll(async () => {
   // A new charge in the same tank 5 h after T: dips after it belong to another charge.
   const lot = await pool.query<{ lot_id: number }>('select lot_id from bath_charges where id = $1', [line.chargeId]);
   charge2 = (
-    await pool.query<{ id: number }>(`insert into bath_charges (tank_asset_id, lot_id, charged_at, mass_kg, pot_life_days) values ($1, $2, to_timestamp($3 / 1000.0), 38, 30) returning id`, [
-      line.tankId,
-      lot.rows[0]!.lot_id,
-      T + 5 * H,
-    ])
+    await pool.query<{ id: number }>(
+      `insert into bath_charges (tank_asset_id, lot_id, charged_at, mass_kg, pot_life_days) values ($1, $2, to_timestamp($3 / 1000.0), 38, 30) returning id`,
+      [line.tankId, lot.rows[0]!.lot_id, T + 5 * H],
+    )
   ).rows[0]!.id;
 
   await dip('D0', line, T, [J[0]!, J[1]!, J[2]!], racks['A']); // the traced job J0 and its rack mates
@@ -97,23 +100,45 @@ beforeAll(async () => {
   await dip('D6', line2, T + 1 * H, [J[10]!]); // another line's bath → not a sibling
 
   // Oven load 1: the rack of D0 scanned as a rack, plus J6 and J12 scanned as jobs. Load 2: J3.
-  const open1 = await api('/api/v1/loads', { method: 'POST', session: operator, json: { ovenAssetId: oven.id, openedAt: iso(T + 1 * H) } });
+  const open1 = await api('/api/v1/loads', {
+    method: 'POST',
+    session: operator,
+    json: { ovenAssetId: oven.id, openedAt: iso(T + 1 * H) },
+  });
   expect(open1.status).toBe(201);
   load1 = open1.body.id;
-  const scan = await api(`/api/v1/loads/${load1}/jobs`, { method: 'POST', session: operator, json: { rackCodes: [racks['A']], jobNumbers: [J[6], J[12]] } });
+  const scan = await api(`/api/v1/loads/${load1}/jobs`, {
+    method: 'POST',
+    session: operator,
+    json: { rackCodes: [racks['A']], jobNumbers: [J[6], J[12]] },
+  });
   expect(scan.status, JSON.stringify(scan.body)).toBe(200);
   expect(scan.body.fromRacks[racks['A']!]).toEqual([J[0], J[1], J[2]]);
-  expect((await api(`/api/v1/loads/${load1}/close`, { method: 'POST', session: operator, json: { closedAt: iso(T + 4 * H) } })).status).toBe(200);
-  const open2 = await api('/api/v1/loads', { method: 'POST', session: operator, json: { ovenAssetId: oven.id, openedAt: iso(T + 5 * H) } });
+  expect(
+    (await api(`/api/v1/loads/${load1}/close`, { method: 'POST', session: operator, json: { closedAt: iso(T + 4 * H) } })).status,
+  ).toBe(200);
+  const open2 = await api('/api/v1/loads', {
+    method: 'POST',
+    session: operator,
+    json: { ovenAssetId: oven.id, openedAt: iso(T + 5 * H) },
+  });
   load2 = open2.body.id;
   await api(`/api/v1/loads/${load2}/jobs`, { method: 'POST', session: operator, json: { jobNumbers: [J[3]] } });
   await api(`/api/v1/loads/${load2}/close`, { method: 'POST', session: operator, json: { closedAt: iso(T + 8 * H) } });
 
   // Tests: J0 fails a cross-cut (15 % → ISO 2409 class 2 / 3B), J3 passes one.
-  const fail = await api('/api/v1/quality/tests', { method: 'POST', session: quality, json: { kind: 'crosscut', jobNumber: J[0], percentRemoved: 15 } });
+  const fail = await api('/api/v1/quality/tests', {
+    method: 'POST',
+    session: quality,
+    json: { kind: 'crosscut', jobNumber: J[0], percentRemoved: 15 },
+  });
   expect(fail.status).toBe(201);
   failedTestId = fail.body.id;
-  await api('/api/v1/quality/tests', { method: 'POST', session: quality, json: { kind: 'crosscut', jobNumber: J[3], percentRemoved: 0 } });
+  await api('/api/v1/quality/tests', {
+    method: 'POST',
+    session: quality,
+    json: { kind: 'crosscut', jobNumber: J[3], percentRemoved: 0 },
+  });
 }, 60_000);
 
 afterAll(async () => {
@@ -192,11 +217,19 @@ describe('holds with signed release and disposition', () => {
 
   it('quality holds the failed job and its load siblings with a reason', async () => {
     const jobs = [J[0]!, J[1]!, J[2]!, J[6]!, J[12]!];
-    const r = await api('/api/v1/holds', { method: 'POST', session: quality, json: { jobNumbers: jobs, reason: 'Cross-cut class 2 on the traced job; load unverifiable.' } });
+    const r = await api('/api/v1/holds', {
+      method: 'POST',
+      session: quality,
+      json: { jobNumbers: jobs, reason: 'Cross-cut class 2 on the traced job; load unverifiable.' },
+    });
     expect(r.status, JSON.stringify(r.body)).toBe(201);
     expect(r.body.placed.map((p: { jobNumber: string }) => p.jobNumber).sort()).toEqual([...jobs].sort());
     holdIds = Object.fromEntries(r.body.placed.map((p: { jobNumber: string; holdId: number }) => [p.jobNumber, p.holdId]));
-    const again = await api('/api/v1/holds', { method: 'POST', session: quality, json: { jobNumbers: [J[0], J[3]], reason: 'Second look.' } });
+    const again = await api('/api/v1/holds', {
+      method: 'POST',
+      session: quality,
+      json: { jobNumbers: [J[0], J[3]], reason: 'Second look.' },
+    });
     expect(again.body.alreadyHeld).toEqual([J[0]]);
     expect(again.body.placed.map((p: { jobNumber: string }) => p.jobNumber)).toEqual([J[3]]);
     holdIds[J[3]!] = again.body.placed[0].holdId;
@@ -204,25 +237,42 @@ describe('holds with signed release and disposition', () => {
     expect(tr.job.status).toBe('held');
     expect(tr.job.activeHold.reason).toContain('Cross-cut class 2');
     expect(tr.siblings.find((s: { jobNumber: string }) => s.jobNumber === J[6]).activeHoldId).toBe(holdIds[J[6]!]);
-    const { rows } = await pool.query(`select count(*)::int as n from audit_log where action = 'hold.place' and entity = 'hold' and entity_id = any($1::text[])`, [Object.values(holdIds).map(String)]);
+    const { rows } = await pool.query(
+      `select count(*)::int as n from audit_log where action = 'hold.place' and entity = 'hold' and entity_id = any($1::text[])`,
+      [Object.values(holdIds).map(String)],
+    );
     expect(rows[0].n).toBe(6);
   });
 
   it('refuses unknown jobs, a missing reason, and other roles', async () => {
-    const unknown = await api('/api/v1/holds', { method: 'POST', session: quality, json: { jobNumbers: [J[9], `NOPE-${tag()}`], reason: 'x-ray' } });
+    const unknown = await api('/api/v1/holds', {
+      method: 'POST',
+      session: quality,
+      json: { jobNumbers: [J[9], `NOPE-${tag()}`], reason: 'x-ray' },
+    });
     expect(unknown.status).toBe(400);
     expect(unknown.body.detail).toContain('Unknown job number');
-    expect((await pool.query(`select 1 from holds h join jobs j on j.id = h.job_id where j.job_number = $1`, [J[9]])).rowCount).toBe(0);
+    expect(
+      (await pool.query(`select 1 from holds h join jobs j on j.id = h.job_id where j.job_number = $1`, [J[9]])).rowCount,
+    ).toBe(0);
     const noReason = await api('/api/v1/holds', { method: 'POST', session: quality, json: { jobNumbers: [J[4]], reason: '' } });
     expect(noReason.status).toBe(400);
     expect(noReason.body.errors[0].path).toBe('reason');
-    const op = await api('/api/v1/holds', { method: 'POST', session: operator, json: { jobNumbers: [J[4]], reason: 'not mine' } });
+    const op = await api('/api/v1/holds', {
+      method: 'POST',
+      session: operator,
+      json: { jobNumbers: [J[4]], reason: 'not mine' },
+    });
     expect(op.status).toBe(403);
   });
 
   it('a wrong password is a 403 and changes nothing', async () => {
     const ids = [holdIds[J[1]!], holdIds[J[2]!]];
-    const r = await api('/api/v1/holds/close', { method: 'POST', session: quality, json: { holdIds: ids, disposition: 'release', comment: '', password: 'not-the-password', meaning: 'approved' } });
+    const r = await api('/api/v1/holds/close', {
+      method: 'POST',
+      session: quality,
+      json: { holdIds: ids, disposition: 'release', comment: '', password: 'not-the-password', meaning: 'approved' },
+    });
     expect(r.status).toBe(403);
     expect(r.body.errors[0].path).toBe('password');
     const { rows } = await pool.query<{ status: string; disposition: string | null; signature: unknown; job_status: string }>(
@@ -231,22 +281,58 @@ describe('holds with signed release and disposition', () => {
     );
     expect(rows).toHaveLength(2);
     for (const h of rows) expect(h).toEqual({ status: 'active', disposition: null, signature: null, job_status: 'held' });
-    const failed = await pool.query(`select 1 from audit_log where action = 'signature.failed' and actor_label = 'quality' and at > now() - interval '1 minute'`);
+    const failed = await pool.query(
+      `select 1 from audit_log where action = 'signature.failed' and actor_label = 'quality' and at > now() - interval '1 minute'`,
+    );
     expect(failed.rowCount).toBeGreaterThan(0);
   });
 
   it('the right password releases with a stored signature; a disposition needs a comment and sets the job', async () => {
-    const rel = await api('/api/v1/holds/close', { method: 'POST', session: quality, json: { holdIds: [holdIds[J[12]!]], disposition: 'release', password: TEST_PASSWORD, meaning: 'reviewed' } });
+    const rel = await api('/api/v1/holds/close', {
+      method: 'POST',
+      session: quality,
+      json: { holdIds: [holdIds[J[12]!]], disposition: 'release', password: TEST_PASSWORD, meaning: 'reviewed' },
+    });
     expect(rel.status, JSON.stringify(rel.body)).toBe(200);
-    expect(rel.body[0]).toMatchObject({ status: 'closed', disposition: 'release', jobStatus: 'released', signature: { username: 'quality', meaning: 'reviewed' } });
-    const noComment = await api('/api/v1/holds/close', { method: 'POST', session: quality, json: { holdIds: [holdIds[J[6]!]], disposition: 'scrap', password: TEST_PASSWORD, meaning: 'approved' } });
+    expect(rel.body[0]).toMatchObject({
+      status: 'closed',
+      disposition: 'release',
+      jobStatus: 'released',
+      signature: { username: 'quality', meaning: 'reviewed' },
+    });
+    const noComment = await api('/api/v1/holds/close', {
+      method: 'POST',
+      session: quality,
+      json: { holdIds: [holdIds[J[6]!]], disposition: 'scrap', password: TEST_PASSWORD, meaning: 'approved' },
+    });
     expect(noComment.status).toBe(400);
     expect(noComment.body.errors[0].path).toBe('comment');
-    const scrap = await api('/api/v1/holds/close', { method: 'POST', session: quality, json: { holdIds: [holdIds[J[6]!]], disposition: 'scrap', comment: 'Crazed after boil.', password: TEST_PASSWORD, meaning: 'approved' } });
-    expect(scrap.body[0]).toMatchObject({ disposition: 'scrap', jobStatus: 'scrapped', dispositionComment: 'Crazed after boil.' });
-    const twice = await api('/api/v1/holds/close', { method: 'POST', session: quality, json: { holdIds: [holdIds[J[6]!]], disposition: 'release', password: TEST_PASSWORD, meaning: 'approved' } });
+    const scrap = await api('/api/v1/holds/close', {
+      method: 'POST',
+      session: quality,
+      json: {
+        holdIds: [holdIds[J[6]!]],
+        disposition: 'scrap',
+        comment: 'Crazed after boil.',
+        password: TEST_PASSWORD,
+        meaning: 'approved',
+      },
+    });
+    expect(scrap.body[0]).toMatchObject({
+      disposition: 'scrap',
+      jobStatus: 'scrapped',
+      dispositionComment: 'Crazed after boil.',
+    });
+    const twice = await api('/api/v1/holds/close', {
+      method: 'POST',
+      session: quality,
+      json: { holdIds: [holdIds[J[6]!]], disposition: 'release', password: TEST_PASSWORD, meaning: 'approved' },
+    });
     expect(twice.status).toBe(409);
-    const audit = await pool.query<{ signature: { username: string; meaning: string } }>(`select signature from audit_log where action = 'hold.release' and entity_id = $1`, [String(holdIds[J[12]!])]);
+    const audit = await pool.query<{ signature: { username: string; meaning: string } }>(
+      `select signature from audit_log where action = 'hold.release' and entity_id = $1`,
+      [String(holdIds[J[12]!])],
+    );
     expect(audit.rows[0]!.signature).toMatchObject({ username: 'quality', meaning: 'reviewed' });
   });
 
@@ -254,38 +340,84 @@ describe('holds with signed release and disposition', () => {
     const nc = await api('/api/v1/nonconformances', {
       method: 'POST',
       session: quality,
-      json: { title: `Adhesion failure ${J[0]}`, description: 'Cross-cut class 2.', suspectedCause: 'load', suspectedLoadId: load1, testIds: [failedTestId], holdIds: [holdIds[J[0]!], holdIds[J[1]!], holdIds[J[2]!]] },
+      json: {
+        title: `Adhesion failure ${J[0]}`,
+        description: 'Cross-cut class 2.',
+        suspectedCause: 'load',
+        suspectedLoadId: load1,
+        testIds: [failedTestId],
+        holdIds: [holdIds[J[0]!], holdIds[J[1]!], holdIds[J[2]!]],
+      },
     });
     expect(nc.status, JSON.stringify(nc.body)).toBe(201);
-    expect(nc.body).toMatchObject({ status: 'open', suspectedCause: 'load', load: { id: load1, verdict: 'unverifiable' }, activeHolds: 3 });
+    expect(nc.body).toMatchObject({
+      status: 'open',
+      suspectedCause: 'load',
+      load: { id: load1, verdict: 'unverifiable' },
+      activeHolds: 3,
+    });
     const passed = await api('/api/v1/quality/tests?result=pass&job=' + J[3], { session: quality });
-    const withPass = await api('/api/v1/nonconformances', { method: 'POST', session: quality, json: { title: 'Wrong', testIds: [passed.body[0].id] } });
+    const withPass = await api('/api/v1/nonconformances', {
+      method: 'POST',
+      session: quality,
+      json: { title: 'Wrong', testIds: [passed.body[0].id] },
+    });
     expect(withPass.status).toBe(400);
-    const early = await api(`/api/v1/nonconformances/${nc.body.id}/close`, { method: 'POST', session: quality, json: { password: TEST_PASSWORD, meaning: 'approved' } });
+    const early = await api(`/api/v1/nonconformances/${nc.body.id}/close`, {
+      method: 'POST',
+      session: quality,
+      json: { password: TEST_PASSWORD, meaning: 'approved' },
+    });
     expect(early.status).toBe(409);
     const wrong = await api(`/api/v1/nonconformances/${nc.body.id}/dispositions`, {
       method: 'POST',
       session: quality,
-      json: { holdIds: [holdIds[J[0]!], holdIds[J[1]!], holdIds[J[2]!]], disposition: 'recoat', comment: 'Strip and re-coat the load.', password: 'wrong-one', meaning: 'approved' },
+      json: {
+        holdIds: [holdIds[J[0]!], holdIds[J[1]!], holdIds[J[2]!]],
+        disposition: 'recoat',
+        comment: 'Strip and re-coat the load.',
+        password: 'wrong-one',
+        meaning: 'approved',
+      },
     });
     expect(wrong.status).toBe(403);
     expect((await api(`/api/v1/nonconformances/${nc.body.id}`, { session: viewer })).body.activeHolds).toBe(3);
     const notMine = await api(`/api/v1/nonconformances/${nc.body.id}/dispositions`, {
       method: 'POST',
       session: quality,
-      json: { holdIds: [holdIds[J[3]!]], disposition: 'recoat', comment: 'Not on this NC.', password: TEST_PASSWORD, meaning: 'approved' },
+      json: {
+        holdIds: [holdIds[J[3]!]],
+        disposition: 'recoat',
+        comment: 'Not on this NC.',
+        password: TEST_PASSWORD,
+        meaning: 'approved',
+      },
     });
     expect(notMine.status).toBe(400);
     const ok = await api(`/api/v1/nonconformances/${nc.body.id}/dispositions`, {
       method: 'POST',
       session: quality,
-      json: { holdIds: [holdIds[J[0]!], holdIds[J[1]!], holdIds[J[2]!]], disposition: 'recoat', comment: 'Strip and re-coat the load.', password: TEST_PASSWORD, meaning: 'approved' },
+      json: {
+        holdIds: [holdIds[J[0]!], holdIds[J[1]!], holdIds[J[2]!]],
+        disposition: 'recoat',
+        comment: 'Strip and re-coat the load.',
+        password: TEST_PASSWORD,
+        meaning: 'approved',
+      },
     });
     expect(ok.status, JSON.stringify(ok.body)).toBe(201);
     expect(ok.body.activeHolds).toBe(0);
-    expect(ok.body.dispositions[0]).toMatchObject({ disposition: 'recoat', jobNumbers: [J[0], J[1], J[2]], signature: { username: 'quality', meaning: 'approved' } });
+    expect(ok.body.dispositions[0]).toMatchObject({
+      disposition: 'recoat',
+      jobNumbers: [J[0], J[1], J[2]],
+      signature: { username: 'quality', meaning: 'approved' },
+    });
     expect((await trace(J[0]!)).job.status).toBe('recoat');
-    const closed = await api(`/api/v1/nonconformances/${nc.body.id}/close`, { method: 'POST', session: quality, json: { password: TEST_PASSWORD, meaning: 'approved' } });
+    const closed = await api(`/api/v1/nonconformances/${nc.body.id}/close`, {
+      method: 'POST',
+      session: quality,
+      json: { password: TEST_PASSWORD, meaning: 'approved' },
+    });
     expect(closed.status).toBe(200);
     expect(closed.body).toMatchObject({ status: 'closed', closeSignature: { username: 'quality' } });
   });

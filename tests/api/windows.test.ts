@@ -54,9 +54,15 @@ beforeAll(async () => {
   pc = mats.body.find((m: any) => m.code === 'pc-1.59').id;
   // A line of this test's own (with a tank under it), so the demo plant's assignments are untouched.
   const { rows: site } = await pool.query(`select id from sites where code = 'fernhollow'`);
-  const { rows: line } = await pool.query(`insert into assets (site_id, kind, code, name) values ($1, 'line', $2, $3) returning id`, [site[0].id, `wt-${tag}`, `Window test line ${tag}`]);
+  const { rows: line } = await pool.query(
+    `insert into assets (site_id, kind, code, name) values ($1, 'line', $2, $3) returning id`,
+    [site[0].id, `wt-${tag}`, `Window test line ${tag}`],
+  );
   lineId = line[0].id;
-  const { rows: tank } = await pool.query(`insert into assets (site_id, parent_id, kind, code, name, details) values ($1, $2, 'tank', $3, 'Window test tank', '{"role":"hard-coat"}') returning id`, [site[0].id, lineId, `wt-${tag}-hc`]);
+  const { rows: tank } = await pool.query(
+    `insert into assets (site_id, parent_id, kind, code, name, details) values ($1, $2, 'tank', $3, 'Window test tank', '{"role":"hard-coat"}') returning id`,
+    [site[0].id, lineId, `wt-${tag}-hc`],
+  );
   tankId = tank[0].id;
 });
 
@@ -79,40 +85,70 @@ describe('process windows', () => {
     expect(bad.headers.get('content-type')).toContain('application/problem+json');
     expect(bad.body.errors.map((e: any) => e.path)).toContain('limits.viscosityMm2S.max');
 
-    const r = await api('/api/v1/windows', { method: 'POST', session: engineer, json: { lacquerId, materialId: cr39, name: `W ${tag}`, limits: limits() } });
+    const r = await api('/api/v1/windows', {
+      method: 'POST',
+      session: engineer,
+      json: { lacquerId, materialId: cr39, name: `W ${tag}`, limits: limits() },
+    });
     expect(r.status).toBe(201);
     expect(r.body).toMatchObject({ version: 1, status: 'draft', substrate: 'CR-39-type 1.50' });
     v1 = r.body;
     // one draft at a time per lacquer × substrate
-    const again = await api('/api/v1/windows', { method: 'POST', session: engineer, json: { lacquerId, materialId: cr39, name: 'x', limits: limits() } });
+    const again = await api('/api/v1/windows', {
+      method: 'POST',
+      session: engineer,
+      json: { lacquerId, materialId: cr39, name: 'x', limits: limits() },
+    });
     expect(again.status).toBe(409);
   });
 
   it('an operator may read but not create, edit or approve (403)', async () => {
     expect((await api('/api/v1/windows', { session: operator })).status).toBe(200);
-    const create = await api('/api/v1/windows', { method: 'POST', session: operator, json: { lacquerId, materialId: pc, name: 'op', limits: limits() } });
+    const create = await api('/api/v1/windows', {
+      method: 'POST',
+      session: operator,
+      json: { lacquerId, materialId: pc, name: 'op', limits: limits() },
+    });
     expect(create.status).toBe(403);
     const edit = await api(`/api/v1/windows/${v1.id}`, { method: 'PATCH', session: operator, json: { name: 'op edit' } });
     expect(edit.status).toBe(403);
-    const approve = await api(`/api/v1/windows/${v1.id}/approve`, { method: 'POST', session: operator, json: { password: TEST_PASSWORD, meaning: 'approved' } });
+    const approve = await api(`/api/v1/windows/${v1.id}/approve`, {
+      method: 'POST',
+      session: operator,
+      json: { password: TEST_PASSWORD, meaning: 'approved' },
+    });
     expect(approve.status).toBe(403);
   });
 
   it('a draft can be edited (audited with before and after)', async () => {
-    const r = await api(`/api/v1/windows/${v1.id}`, { method: 'PATCH', session: engineer, json: { limits: limits(12.0), note: 'tightened' } });
+    const r = await api(`/api/v1/windows/${v1.id}`, {
+      method: 'PATCH',
+      session: engineer,
+      json: { limits: limits(12.0), note: 'tightened' },
+    });
     expect(r.status).toBe(200);
     expect(r.body.limits.viscosityMm2S.max).toBe(12.0);
-    const { rows } = await pool.query(`select before, after from audit_log where action = 'window.edit' and entity_id = $1`, [String(v1.id)]);
+    const { rows } = await pool.query(`select before, after from audit_log where action = 'window.edit' and entity_id = $1`, [
+      String(v1.id),
+    ]);
     expect(rows).toHaveLength(1);
     expect(rows[0].before.limits.viscosityMm2S.max).toBe(12.5);
     expect(rows[0].after.limits.viscosityMm2S.max).toBe(12.0);
   });
 
   it('approval with a wrong password is refused and leaves the draft a draft', async () => {
-    const r = await api(`/api/v1/windows/${v1.id}/approve`, { method: 'POST', session: engineer, json: { password: 'not-the-password', meaning: 'approved' } });
+    const r = await api(`/api/v1/windows/${v1.id}/approve`, {
+      method: 'POST',
+      session: engineer,
+      json: { password: 'not-the-password', meaning: 'approved' },
+    });
     expect(r.status).toBe(403);
     expect(r.body.errors[0].path).toBe('password');
-    const meaning = await api(`/api/v1/windows/${v1.id}/approve`, { method: 'POST', session: engineer, json: { password: TEST_PASSWORD, meaning: 'reviewed' } });
+    const meaning = await api(`/api/v1/windows/${v1.id}/approve`, {
+      method: 'POST',
+      session: engineer,
+      json: { password: TEST_PASSWORD, meaning: 'reviewed' },
+    });
     expect(meaning.status).toBe(400);
     expect(meaning.body.errors[0].path).toBe('meaning');
     const w = await api(`/api/v1/windows/${v1.id}`, { session: engineer });
@@ -121,13 +157,19 @@ describe('process windows', () => {
 
   it('approval with the password makes it effective now, with the signature stored and audited', async () => {
     const before = Date.now();
-    const r = await api(`/api/v1/windows/${v1.id}/approve`, { method: 'POST', session: engineer, json: { password: TEST_PASSWORD, meaning: 'approved' } });
+    const r = await api(`/api/v1/windows/${v1.id}/approve`, {
+      method: 'POST',
+      session: engineer,
+      json: { password: TEST_PASSWORD, meaning: 'approved' },
+    });
     expect(r.status).toBe(200);
     expect(r.body.status).toBe('effective');
     expect(r.body.approvedSignature).toMatchObject({ username: 'engineer', displayName: 'Emil Engineer', meaning: 'approved' });
     expect(Date.parse(r.body.effectiveFrom)).toBeGreaterThanOrEqual(before - 5000);
     v1 = r.body;
-    const { rows } = await pool.query(`select signature from audit_log where action = 'window.approve' and entity_id = $1`, [String(v1.id)]);
+    const { rows } = await pool.query(`select signature from audit_log where action = 'window.approve' and entity_id = $1`, [
+      String(v1.id),
+    ]);
     expect(rows).toHaveLength(1);
     expect(rows[0].signature.meaning).toBe('approved');
     // an effective version is immutable
@@ -136,27 +178,49 @@ describe('process windows', () => {
   });
 
   it('assigns the window to a line; a tank on the line runs it too; drafts and tanks cannot be assigned', async () => {
-    const tankAssign = await api('/api/v1/windows/assignments', { method: 'POST', session: engineer, json: { assetId: tankId, windowId: v1.id } });
+    const tankAssign = await api('/api/v1/windows/assignments', {
+      method: 'POST',
+      session: engineer,
+      json: { assetId: tankId, windowId: v1.id },
+    });
     expect(tankAssign.status).toBe(400);
     expect(tankAssign.body.errors[0].path).toBe('assetId');
-    const op = await api('/api/v1/windows/assignments', { method: 'POST', session: operator, json: { assetId: lineId, windowId: v1.id } });
+    const op = await api('/api/v1/windows/assignments', {
+      method: 'POST',
+      session: operator,
+      json: { assetId: lineId, windowId: v1.id },
+    });
     expect(op.status).toBe(403);
-    const r = await api('/api/v1/windows/assignments', { method: 'POST', session: engineer, json: { assetId: lineId, windowId: v1.id, note: 'start' } });
+    const r = await api('/api/v1/windows/assignments', {
+      method: 'POST',
+      session: engineer,
+      json: { assetId: lineId, windowId: v1.id, note: 'start' },
+    });
     expect(r.status).toBe(201);
     assignedAt = r.body.validFrom;
     const inForce = await api(`/api/v1/windows/in-force?assetId=${tankId}`, { session: operator });
     expect(inForce.status).toBe(200);
     expect(inForce.body).toMatchObject({ id: v1.id, version: 1, substrate: 'CR-39-type 1.50' });
-    const { rows } = await pool.query(`select after from audit_log where action = 'window.assign' and entity_id = $1`, [String(r.body.id)]);
+    const { rows } = await pool.query(`select after from audit_log where action = 'window.assign' and entity_id = $1`, [
+      String(r.body.id),
+    ]);
     expect(rows[0].after).toMatchObject({ assetId: lineId, windowId: v1.id });
   });
 
   it('a new version supersedes the previous one at approval; the diff lists what changed', async () => {
-    const d = await api('/api/v1/windows', { method: 'POST', session: engineer, json: { lacquerId, materialId: cr39, name: `W ${tag}`, limits: { ...limits(12.0), maxPartTempC: 122 } } });
+    const d = await api('/api/v1/windows', {
+      method: 'POST',
+      session: engineer,
+      json: { lacquerId, materialId: cr39, name: `W ${tag}`, limits: { ...limits(12.0), maxPartTempC: 122 } },
+    });
     expect(d.status).toBe(201);
     expect(d.body.version).toBe(2);
     await new Promise((r) => setTimeout(r, 20));
-    const a = await api(`/api/v1/windows/${d.body.id}/approve`, { method: 'POST', session: engineer, json: { password: TEST_PASSWORD, meaning: 'approved' } });
+    const a = await api(`/api/v1/windows/${d.body.id}/approve`, {
+      method: 'POST',
+      session: engineer,
+      json: { password: TEST_PASSWORD, meaning: 'approved' },
+    });
     expect(a.status).toBe(200);
     v2 = a.body;
     const all = await api(`/api/v1/windows/${v1.id}`, { session: engineer });
@@ -167,31 +231,60 @@ describe('process windows', () => {
     expect(latest.changes).toEqual([{ path: 'maxPartTempC', before: 125, after: 122 }]);
     expect(first.changes).toEqual([]);
     const eff = await api('/api/v1/windows?status=effective', { session: operator });
-    expect(eff.body.filter((w: any) => w.lacquerId === lacquerId && w.materialId === cr39).map((w: any) => w.version)).toEqual([2]);
+    expect(eff.body.filter((w: any) => w.lacquerId === lacquerId && w.materialId === cr39).map((w: any) => w.version)).toEqual([
+      2,
+    ]);
   });
 
   it('windowInForce follows the versions over time (and is null before the assignment)', async () => {
     const mid = (Date.parse(assignedAt) + Date.parse(v2.effectiveFrom)) / 2;
-    expect((await windowInForce(pool, lineId, Date.parse(assignedAt) - 1000))).toBeNull();
+    expect(await windowInForce(pool, lineId, Date.parse(assignedAt) - 1000)).toBeNull();
     expect((await windowInForce(pool, tankId, mid))?.version).toBe(1);
     expect((await windowInForce(pool, tankId, Date.now()))?.version).toBe(2);
     const at = new Date(mid).toISOString();
     const viaApi = await api(`/api/v1/windows/in-force?assetId=${lineId}&at=${encodeURIComponent(at)}`, { session: operator });
     expect(viaApi.body.id).toBe(v1.id);
-    const none = await api(`/api/v1/windows/in-force?assetId=${lineId}&at=${encodeURIComponent(new Date(Date.parse(assignedAt) - 1000).toISOString())}`, { session: operator });
+    const none = await api(
+      `/api/v1/windows/in-force?assetId=${lineId}&at=${encodeURIComponent(new Date(Date.parse(assignedAt) - 1000).toISOString())}`,
+      { session: operator },
+    );
     expect(none.status).toBe(404);
   });
 
   it('a second assignment closes the first; the history shows both; overlapping starts are refused', async () => {
-    const d = await api('/api/v1/windows', { method: 'POST', session: engineer, json: { lacquerId, materialId: pc, name: `PC ${tag}`, limits: { ...limits(), maxPartTempC: 130 } } });
-    const a = await api(`/api/v1/windows/${d.body.id}/approve`, { method: 'POST', session: engineer, json: { password: TEST_PASSWORD, meaning: 'approved' } });
+    const d = await api('/api/v1/windows', {
+      method: 'POST',
+      session: engineer,
+      json: { lacquerId, materialId: pc, name: `PC ${tag}`, limits: { ...limits(), maxPartTempC: 130 } },
+    });
+    const a = await api(`/api/v1/windows/${d.body.id}/approve`, {
+      method: 'POST',
+      session: engineer,
+      json: { password: TEST_PASSWORD, meaning: 'approved' },
+    });
     expect(a.status).toBe(200);
-    const draftOnly = await api('/api/v1/windows', { method: 'POST', session: engineer, json: { lacquerId, materialId: pc, name: 'draft', limits: limits() } });
-    const refused = await api('/api/v1/windows/assignments', { method: 'POST', session: engineer, json: { assetId: lineId, windowId: draftOnly.body.id } });
+    const draftOnly = await api('/api/v1/windows', {
+      method: 'POST',
+      session: engineer,
+      json: { lacquerId, materialId: pc, name: 'draft', limits: limits() },
+    });
+    const refused = await api('/api/v1/windows/assignments', {
+      method: 'POST',
+      session: engineer,
+      json: { assetId: lineId, windowId: draftOnly.body.id },
+    });
     expect(refused.status).toBe(400);
-    const overlap = await api('/api/v1/windows/assignments', { method: 'POST', session: engineer, json: { assetId: lineId, windowId: a.body.id, from: new Date(Date.parse(assignedAt) - 60_000).toISOString() } });
+    const overlap = await api('/api/v1/windows/assignments', {
+      method: 'POST',
+      session: engineer,
+      json: { assetId: lineId, windowId: a.body.id, from: new Date(Date.parse(assignedAt) - 60_000).toISOString() },
+    });
     expect(overlap.status).toBe(409);
-    const r = await api('/api/v1/windows/assignments', { method: 'POST', session: engineer, json: { assetId: lineId, windowId: a.body.id } });
+    const r = await api('/api/v1/windows/assignments', {
+      method: 'POST',
+      session: engineer,
+      json: { assetId: lineId, windowId: a.body.id },
+    });
     expect(r.status).toBe(201);
     const hist = await api(`/api/v1/windows/assignments?assetId=${lineId}`, { session: operator });
     expect(hist.body).toHaveLength(2);

@@ -71,7 +71,15 @@ async function main() {
       const r = await fetch(`${stack.baseUrl}/api/v1/alarm-configs/${c.id}`, {
         method: 'PUT',
         headers: { 'content-type': 'application/json', cookie: engineer },
-        body: JSON.stringify({ enabled: true, high: (c.min + c.max) / 2, deadband: 0, onDelayMs: 0, offDelayMs: 0, priority: 'low', staleSeconds: null }),
+        body: JSON.stringify({
+          enabled: true,
+          high: (c.min + c.max) / 2,
+          deadband: 0,
+          onDelayMs: 0,
+          offDelayMs: 0,
+          priority: 'low',
+          staleSeconds: null,
+        }),
       });
       if (r.status !== 200) throw new Error(`configure channel ${c.id}: ${r.status} ${await r.text()}`);
     }
@@ -155,7 +163,16 @@ async function main() {
           const { chromium } = await import('playwright-core');
           const browser = await chromium.launch({
             executablePath: '/usr/bin/chromium',
-            args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+            args: [
+              '--headless',
+              '--no-sandbox',
+              '--disable-gpu',
+              '--disable-quic',
+              '--no-first-run',
+              '--disable-background-networking',
+              '--disable-component-update',
+              '--disable-sync',
+            ],
           });
           try {
             const ctx = await browser.newContext({ viewport: { width: 1440, height: 900 } });
@@ -180,7 +197,9 @@ async function main() {
     const total = RAISES * 2;
     const phase = new Map<number, boolean>(); // true = next reading raises
     const lastT = new Map<number, number>();
-    console.log(`Publishing ${RAISES} alarm-raising readings (and ${RAISES} returns) over ${DURATION_MS / 1000} s across ${channels.length} channels…`);
+    console.log(
+      `Publishing ${RAISES} alarm-raising readings (and ${RAISES} returns) over ${DURATION_MS / 1000} s across ${channels.length} channels…`,
+    );
     const start = performance.now();
     let published = 0;
     let raisesSent = 0;
@@ -228,10 +247,16 @@ async function main() {
     console.log(`  published:                 ${published} readings in ${(floodMs / 1000).toFixed(2)} s (${raisesSent} raising)`);
     console.log(`  alarm rows / activations:  ${counts[0]!.n} alarms, ${counts[0]!.ev} activate events stored`);
     console.log(`  live 'alarms' events read: ${events}`);
-    console.log(`  publish → PUBACK (stored):  ${acks.length} acks; p50 ${ms(pct(acks, 50))}, p99 ${ms(pct(acks, 99))}, max ${ms(acks[acks.length - 1] ?? NaN)}`);
-    console.log(`  raise → visible on SSE:    received ${lat.length} of ${raisesSent}; p50 ${ms(pct(lat, 50))}, p99 ${ms(pct(lat, 99))}, max ${ms(lat[lat.length - 1] ?? NaN)}`);
+    console.log(
+      `  publish → PUBACK (stored):  ${acks.length} acks; p50 ${ms(pct(acks, 50))}, p99 ${ms(pct(acks, 99))}, max ${ms(acks[acks.length - 1] ?? NaN)}`,
+    );
+    console.log(
+      `  raise → visible on SSE:    received ${lat.length} of ${raisesSent}; p50 ${ms(pct(lat, 50))}, p99 ${ms(pct(lat, 99))}, max ${ms(lat[lat.length - 1] ?? NaN)}`,
+    );
     console.log(`  not received within 30 s:  ${sent.size}`);
-    console.log(`  GET /api/v1/alarms?state=open during the flood: ${list.length} calls; p50 ${ms(pct(list, 50))}, p99 ${ms(pct(list, 99))}, max ${ms(list[list.length - 1] ?? NaN)}`);
+    console.log(
+      `  GET /api/v1/alarms?state=open during the flood: ${list.length} calls; p50 ${ms(pct(list, 50))}, p99 ${ms(pct(list, 99))}, max ${ms(list[list.length - 1] ?? NaN)}`,
+    );
     console.log(`  /alarms in Chromium mid-flood: ${renderMs === null ? '—' : ms(renderMs)} to render the queue (${renderNote})`);
   } finally {
     for (const c of clients) c.end(true);

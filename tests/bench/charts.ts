@@ -92,7 +92,12 @@ async function main() {
         [site],
       )
     ).rows[0]!.id;
-    const asset = (await pool.query<{ id: number }>(`insert into assets (site_id, kind, code, name) values ($1, 'line', 'bench-line', 'Bench line') returning id`, [site])).rows[0]!.id;
+    const asset = (
+      await pool.query<{ id: number }>(
+        `insert into assets (site_id, kind, code, name) values ($1, 'line', 'bench-line', 'Bench line') returning id`,
+        [site],
+      )
+    ).rows[0]!.id;
     const ids: number[] = [];
     for (let i = 1; i <= CHANNELS; i++) {
       const key = `ch-${String(i).padStart(2, '0')}`;
@@ -145,10 +150,13 @@ async function main() {
               const allowedPerDay = (budgetLeft * PARALLEL * rowsPerMs) / remainingDays;
               const othersPerDay = Math.max(1, allowedPerDay - 86_400);
               everyK = Math.max(2, Math.ceil(((CHANNELS - 1) * 86_400) / othersPerDay));
-              log(`first day took ${secs(ms)}: ${DAYS} days would take about ${secs(projected)}; the other ${CHANNELS - 1} channels get one reading every ${everyK} s from now on`);
+              log(
+                `first day took ${secs(ms)}: ${DAYS} days would take about ${secs(projected)}; the other ${CHANNELS - 1} channels get one reading every ${everyK} s from now on`,
+              );
             }
           }
-          if (done % 5 === 0) log(`  ${done}/${DAYS} days, ${(totalRows / 1e6).toFixed(1)} M rows, ${secs(performance.now() - genT0)}`);
+          if (done % 5 === 0)
+            log(`  ${done}/${DAYS} days, ${(totalRows / 1e6).toFixed(1)} M rows, ${secs(performance.now() - genT0)}`);
         }
       }),
     );
@@ -165,7 +173,11 @@ async function main() {
       select channel_id, date_bin('1 hour', bucket, 'epoch'::timestamptz), min(vmin), max(vmax), sum(vsum), sum(n) from readings_1m group by 1, 2`);
     const rollup1hMs = performance.now() - t;
     await pool.query('vacuum (analyze) readings_1m, readings_1h');
-    const size = (await pool.query<{ s: string }>(`select pg_size_pretty(sum(pg_total_relation_size(c.oid))) as s from pg_class c join pg_inherits i on i.inhrelid = c.oid join pg_class p on p.oid = i.inhparent where p.relname = 'readings'`)).rows[0]!.s;
+    const size = (
+      await pool.query<{ s: string }>(
+        `select pg_size_pretty(sum(pg_total_relation_size(c.oid))) as s from pg_class c join pg_inherits i on i.inhrelid = c.oid join pg_class p on p.oid = i.inhparent where p.relname = 'readings'`,
+      )
+    ).rows[0]!.s;
     const density =
       thinned.length === 0
         ? `all ${CHANNELS} channels at 1 Hz`
@@ -173,7 +185,11 @@ async function main() {
     rows.push(['Generated readings', `${(totalRows / 1e6).toFixed(1)} M rows (${size} with index)`, density]);
     rows.push(['  generate_series INSERTs', secs(genMs), `first day ${secs(firstDayMs)}; ${PARALLEL} days at a time`]);
     rows.push(['  VACUUM ANALYZE readings', secs(vacuumMs), 'visibility map for index-only scans']);
-    rows.push(['  rollups (1 SQL each)', `${secs(rollup1mMs)} + ${secs(rollup1hMs)}`, 'readings_1m from raw, readings_1h from readings_1m']);
+    rows.push([
+      '  rollups (1 SQL each)',
+      `${secs(rollup1mMs)} + ${secs(rollup1hMs)}`,
+      'readings_1m from raw, readings_1h from readings_1m',
+    ]);
     log(`generation done: ${(totalRows / 1e6).toFixed(1)} M rows in ${secs(genMs + vacuumMs + rollup1mMs + rollup1hMs)}`);
 
     // ---- the store function (the endpoint's query path) for one channel over the whole range.
@@ -181,15 +197,26 @@ async function main() {
     let shape = '';
     const store = await timeRuns(RUNS, async () => {
       const r = await queryReadings(pool!, brief, { from: start, to: end, maxPoints: MAX_POINTS });
-      shape = r.mode === 'raw' ? `raw, ${r.points.length} points` : `${r.buckets.length} buckets of ${r.bucketMs / 60_000} min from the ${r.source} source`;
+      shape =
+        r.mode === 'raw'
+          ? `raw, ${r.points.length} points`
+          : `${r.buckets.length} buckets of ${r.bucketMs / 60_000} min from the ${r.source} source`;
     });
-    rows.push([`Store queryReadings, ${DAYS} d, maxPoints ${MAX_POINTS}`, `p50 ${f1(pct(store.times, 50))} · p95 ${f1(pct(store.times, 95))}`, `${RUNS} runs after one warm-up (${f1(store.first)}); ${shape}`]);
+    rows.push([
+      `Store queryReadings, ${DAYS} d, maxPoints ${MAX_POINTS}`,
+      `p50 ${f1(pct(store.times, 50))} · p95 ${f1(pct(store.times, 95))}`,
+      `${RUNS} runs after one warm-up (${f1(store.first)}); ${shape}`,
+    ]);
     let shape2 = '';
     const store2 = await timeRuns(RUNS, async () => {
       const r = await queryReadings(pool!, brief, { from: start, to: end, maxPoints: 2000 });
       shape2 = r.mode === 'raw' ? 'raw' : `${r.buckets.length} buckets of ${r.bucketMs / 60_000} min from the ${r.source} source`;
     });
-    rows.push([`Store queryReadings, ${DAYS} d, maxPoints 2000`, `p50 ${f1(pct(store2.times, 50))} · p95 ${f1(pct(store2.times, 95))}`, shape2]);
+    rows.push([
+      `Store queryReadings, ${DAYS} d, maxPoints 2000`,
+      `p50 ${f1(pct(store2.times, 50))} · p95 ${f1(pct(store2.times, 95))}`,
+      shape2,
+    ]);
 
     // ---- a full raw SELECT of the same range (epoch ms as the store returns them).
     const raw: number[] = [];
@@ -205,7 +232,11 @@ async function main() {
       rawRows = r.rowCount ?? 0;
     }
     const rawMed = pct(raw, 50);
-    rows.push(['Full raw SELECT of the same range', secs(rawMed), `${(rawRows / 1e6).toFixed(2)} M rows, median of 3; ratio raw ÷ endpoint p50 = ${(rawMed / pct(store.times, 50)).toFixed(0)}×`]);
+    rows.push([
+      'Full raw SELECT of the same range',
+      secs(rawMed),
+      `${(rawRows / 1e6).toFixed(2)} M rows, median of 3; ratio raw ÷ endpoint p50 = ${(rawMed / pct(store.times, 50)).toFixed(0)}×`,
+    ]);
 
     // ---- the same over HTTP, against the built web server.
     const outDir = path.join(base, 'dist');
@@ -220,7 +251,15 @@ async function main() {
     const baseUrl = `http://127.0.0.1:${port}`;
     const web = spawn(process.execPath, [path.join(outDir, 'server', 'entry.mjs')], {
       cwd: root,
-      env: { ...process.env, DATABASE_URL: pgh.url, HOST: '127.0.0.1', PORT: String(port), PUBLIC_ORIGIN: baseUrl, MQTT_PORT: String(await freePort()), ASTRO_TELEMETRY_DISABLED: '1' },
+      env: {
+        ...process.env,
+        DATABASE_URL: pgh.url,
+        HOST: '127.0.0.1',
+        PORT: String(port),
+        PUBLIC_ORIGIN: baseUrl,
+        MQTT_PORT: String(await freePort()),
+        ASTRO_TELEMETRY_DISABLED: '1',
+      },
       stdio: ['ignore', fs.openSync(path.join(base, 'web.log'), 'a'), fs.openSync(path.join(base, 'web.log'), 'a')],
     });
     kids.push(web);
@@ -228,21 +267,40 @@ async function main() {
       if ((await fetch(`${baseUrl}/login`).catch(() => null))?.status === 200) break;
       await new Promise((r) => setTimeout(r, 200));
     }
-    const login = await fetch(`${baseUrl}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ username: 'viewer', password: PASSWORD }) });
+    const login = await fetch(`${baseUrl}/api/auth/login`, {
+      method: 'POST',
+      headers: { 'content-type': 'application/json' },
+      body: JSON.stringify({ username: 'viewer', password: PASSWORD }),
+    });
     if (login.status !== 200) throw new Error(`sign-in failed: ${login.status}`);
     const cookie = (login.headers.get('set-cookie') ?? '').split(';')[0]!;
     let bytes = 0;
     const http = await timeRuns(RUNS, async () => {
-      const r = await fetch(`${baseUrl}/api/v1/channels/${queried}/readings?from=${start}&to=${end}&maxPoints=${MAX_POINTS}`, { headers: { cookie } });
+      const r = await fetch(`${baseUrl}/api/v1/channels/${queried}/readings?from=${start}&to=${end}&maxPoints=${MAX_POINTS}`, {
+        headers: { cookie },
+      });
       bytes = (await r.arrayBuffer()).byteLength;
       if (r.status !== 200) throw new Error(`readings: ${r.status}`);
     });
-    rows.push([`HTTP GET …/readings, ${DAYS} d, maxPoints ${MAX_POINTS}`, `p50 ${f1(pct(http.times, 50))} · p95 ${f1(pct(http.times, 95))}`, `${RUNS} runs after one warm-up (${f1(http.first)}); ${(bytes / 1024).toFixed(0)} KiB JSON`]);
+    rows.push([
+      `HTTP GET …/readings, ${DAYS} d, maxPoints ${MAX_POINTS}`,
+      `p50 ${f1(pct(http.times, 50))} · p95 ${f1(pct(http.times, 95))}`,
+      `${RUNS} runs after one warm-up (${f1(http.first)}); ${(bytes / 1024).toFixed(0)} KiB JSON`,
+    ]);
 
     // ---- first drawn chart in Chromium.
     const browser = await chromium.launch({
       executablePath: '/usr/bin/chromium',
-      args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+      args: [
+        '--headless',
+        '--no-sandbox',
+        '--disable-gpu',
+        '--disable-quic',
+        '--no-first-run',
+        '--disable-background-networking',
+        '--disable-component-update',
+        '--disable-sync',
+      ],
     });
     const draws: number[] = [];
     let points = '';
@@ -265,12 +323,18 @@ async function main() {
       await browser.close();
     }
     const warm = draws.slice(1);
-    rows.push([`Chromium: trend page to drawn chart, ${DAYS} d`, `first ${f1(draws[0]!)} · then p50 ${f1(pct(warm, 50))}, max ${f1(Math.max(...warm))}`, `navigation → data-drawn, fresh browser context each time; ${points} points plotted`]);
+    rows.push([
+      `Chromium: trend page to drawn chart, ${DAYS} d`,
+      `first ${f1(draws[0]!)} · then p50 ${f1(pct(warm, 50))}, max ${f1(Math.max(...warm))}`,
+      `navigation → data-drawn, fresh browser context each time; ${points} points plotted`,
+    ]);
 
     // ---- the table.
     const w0 = Math.max(...rows.map((r) => r[0].length));
     const w1 = Math.max(...rows.map((r) => r[1].length));
-    console.log(`\nChart read path — ${DAYS} days of 1 Hz readings, one channel, on this machine (${os.cpus().length} cores; load average at start ${load0}, at end ${os.loadavg()[0]!.toFixed(1)})\n`);
+    console.log(
+      `\nChart read path — ${DAYS} days of 1 Hz readings, one channel, on this machine (${os.cpus().length} cores; load average at start ${load0}, at end ${os.loadavg()[0]!.toFixed(1)})\n`,
+    );
     console.log(`${'measure'.padEnd(w0)}  ${'figure'.padEnd(w1)}  notes`);
     console.log(`${'-'.repeat(w0)}  ${'-'.repeat(w1)}  -----`);
     for (const r of rows) console.log(`${r[0].padEnd(w0)}  ${r[1].padEnd(w1)}  ${r[2]}`);

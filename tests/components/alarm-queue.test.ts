@@ -98,7 +98,16 @@ describe('sparkline', () => {
     expect(s.limitY).toBe(12);
     expect([s.min, s.max]).toEqual([0, 10]);
     expect(sparkline([], 0, 1000, 100, 24)).toBeNull();
-    const joined = sparkline([{ t: 0, v: 1 }, { t: 100, v: 1 }], 0, 1000, 100, 24)!;
+    const joined = sparkline(
+      [
+        { t: 0, v: 1 },
+        { t: 100, v: 1 },
+      ],
+      0,
+      1000,
+      100,
+      24,
+    )!;
     expect(joined.path).toBe('M0.0,12.0L10.0,12.0'); // flat line: range widened to 0–2
   });
 });

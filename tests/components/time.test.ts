@@ -62,7 +62,9 @@ describe('clock, range and tick labels', () => {
   });
   it('prints the date once when both ends share it', () => {
     expect(formatRange(winter - 3_600_000, winter, LDN)).toBe('2026-12-02 13:05 – 14:05 GMT');
-    expect(formatRange(autumnChange - 3_600_000, autumnChange + 3_600_000, LDN)).toBe('2026-10-25 01:00 BST – 2026-10-25 02:00 GMT');
+    expect(formatRange(autumnChange - 3_600_000, autumnChange + 3_600_000, LDN)).toBe(
+      '2026-10-25 01:00 BST – 2026-10-25 02:00 GMT',
+    );
   });
   it.each([
     [60_000, '14:05:09'],
@@ -107,18 +109,43 @@ describe('timeTicks: round ticks on the site wall clock', () => {
   it('24 h from 10:24 GMT, at most 10 ticks → every 3 h (2.4 h rounds up the ladder) from 12:00', () => {
     const from = Date.UTC(2026, 11, 1, 10, 24);
     const ticks = timeTicks(from, from + 86_400_000, LDN, 10);
-    expect(ticks.map((t) => formatClock(t, LDN))).toEqual(['12:00 GMT', '15:00 GMT', '18:00 GMT', '21:00 GMT', '00:00 GMT', '03:00 GMT', '06:00 GMT', '09:00 GMT']);
+    expect(ticks.map((t) => formatClock(t, LDN))).toEqual([
+      '12:00 GMT',
+      '15:00 GMT',
+      '18:00 GMT',
+      '21:00 GMT',
+      '00:00 GMT',
+      '03:00 GMT',
+      '06:00 GMT',
+      '09:00 GMT',
+    ]);
   });
   it('aligns to the BST wall clock in summer (an hour from 08:10 UTC = 09:10 BST, 10-min steps from 09:20 BST)', () => {
     const from = Date.UTC(2026, 6, 1, 8, 10);
     const ticks = timeTicks(from, from + 3_600_000, LDN, 6);
     // 60 min / 6 = 10 min per tick
-    expect(ticks.map((t) => formatClock(t, LDN))).toEqual(['09:10 BST', '09:20 BST', '09:30 BST', '09:40 BST', '09:50 BST', '10:00 BST', '10:10 BST']);
+    expect(ticks.map((t) => formatClock(t, LDN))).toEqual([
+      '09:10 BST',
+      '09:20 BST',
+      '09:30 BST',
+      '09:40 BST',
+      '09:50 BST',
+      '10:00 BST',
+      '10:10 BST',
+    ]);
   });
   it('7 days → daily ticks at local midnight', () => {
     const from = Date.UTC(2026, 10, 25, 10, 24); // Wed 25 Nov
     const ticks = timeTicks(from, from + 7 * 86_400_000, LDN, 8);
-    expect(ticks.map((t) => tickLabel(t, LDN, 7 * 86_400_000))).toEqual(['Thu 26', 'Fri 27', 'Sat 28', 'Sun 29', 'Mon 30', 'Tue 01', 'Wed 02']);
+    expect(ticks.map((t) => tickLabel(t, LDN, 7 * 86_400_000))).toEqual([
+      'Thu 26',
+      'Fri 27',
+      'Sat 28',
+      'Sun 29',
+      'Mon 30',
+      'Tue 01',
+      'Wed 02',
+    ]);
   });
   it('30 days with at most 6 ticks → Mondays (7-day steps)', () => {
     const from = Date.UTC(2026, 10, 2, 12); // Mon 2 Nov 2026

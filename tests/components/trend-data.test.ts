@@ -46,7 +46,13 @@ const limits = (visc: { min: number; max: number; target?: number }): ProcessWin
 describe('windowRangeFor: the window field each channel kind is held to', () => {
   const l = limits({ min: 8, max: 11, target: 9.5 });
   it('takes the viscosity window for a viscosity channel', () => {
-    expect(windowRangeFor('viscosity', l)).toEqual({ min: 8, max: 11, target: 9.5, lowApplies: 'always', label: 'Bath viscosity window' });
+    expect(windowRangeFor('viscosity', l)).toEqual({
+      min: 8,
+      max: 11,
+      target: 9.5,
+      lowApplies: 'always',
+      label: 'Bath viscosity window',
+    });
   });
   it('holds oven air between minimum cure temperature (in soak only) and maximum part temperature', () => {
     expect(windowRangeFor('air-temperature', l)).toMatchObject({ min: 110, max: 130, lowApplies: 'soak' });
@@ -216,18 +222,51 @@ describe('window steps', () => {
     ]);
   });
   it('windowBands: a new version with the same viscosity limits does not redraw; changed limits start a new band; no window → no band', () => {
-    const seg = (fromMs: number, toMs: number, version: number | null, visc?: { min: number; max: number; target?: number }): WindowSegment => ({
+    const seg = (
+      fromMs: number,
+      toMs: number,
+      version: number | null,
+      visc?: { min: number; max: number; target?: number },
+    ): WindowSegment => ({
       fromMs,
       toMs,
-      window: version === null ? null : { id: version, version, name: 'HC-300 on CR-39', limits: limits(visc!), effectiveFrom: '2026-11-01T00:00:00Z' },
+      window:
+        version === null
+          ? null
+          : { id: version, version, name: 'HC-300 on CR-39', limits: limits(visc!), effectiveFrom: '2026-11-01T00:00:00Z' },
     });
     const bands = windowBands(
-      [seg(0, 10, null), seg(10, 20, 1, { min: 8, max: 11 }), seg(20, 30, 2, { min: 8, max: 11 }), seg(30, 40, 3, { min: 8.5, max: 11, target: 9.5 })],
+      [
+        seg(0, 10, null),
+        seg(10, 20, 1, { min: 8, max: 11 }),
+        seg(20, 30, 2, { min: 8, max: 11 }),
+        seg(30, 40, 3, { min: 8.5, max: 11, target: 9.5 }),
+      ],
       'viscosity',
     );
     expect(bands).toEqual([
-      { fromMs: 10, toMs: 30, min: 8, max: 11, target: null, lowApplies: 'always', label: 'HC-300 on CR-39 v1', windowId: 1, version: 1 },
-      { fromMs: 30, toMs: 40, min: 8.5, max: 11, target: 9.5, lowApplies: 'always', label: 'HC-300 on CR-39 v3', windowId: 3, version: 3 },
+      {
+        fromMs: 10,
+        toMs: 30,
+        min: 8,
+        max: 11,
+        target: null,
+        lowApplies: 'always',
+        label: 'HC-300 on CR-39 v1',
+        windowId: 1,
+        version: 1,
+      },
+      {
+        fromMs: 30,
+        toMs: 40,
+        min: 8.5,
+        max: 11,
+        target: 9.5,
+        lowApplies: 'always',
+        label: 'HC-300 on CR-39 v3',
+        windowId: 3,
+        version: 3,
+      },
     ]);
     expect(windowChanges(bands)).toEqual([{ tMs: 30, label: 'Window HC-300 on CR-39 v3 from here: 8.5–11' }]);
     expect(windowBands([seg(0, 10, 1, { min: 8, max: 11 })], 'door')).toEqual([]);
@@ -289,7 +328,11 @@ describe('trendCsv: exactly the plotted series, units on every row, ISO times wi
     const t0 = Date.UTC(2026, 6, 1, 8, 30, 0); // 09:30 BST
     const csv = trendCsv(
       [
-        { name: 'Line 1 bath viscosity', unit: 'mm²/s', shaped: { mode: 'raw', bucketMs: null, source: 'raw', rows: [{ x: t0, value: 9.52 }] } },
+        {
+          name: 'Line 1 bath viscosity',
+          unit: 'mm²/s',
+          shaped: { mode: 'raw', bucketMs: null, source: 'raw', rows: [{ x: t0, value: 9.52 }] },
+        },
         {
           name: 'Oven A zone 1 air',
           unit: '°C',
@@ -341,14 +384,24 @@ describe('view range: pan, zoom, presets and the page query', () => {
       add: [3, 7],
     });
     expect(parseTrendQuery(new URLSearchParams('from=1000&to=5000'), now).range).toEqual({ fromMs: 1000, toMs: 5000 });
-    expect(parseTrendQuery(new URLSearchParams('range=8h'), now)).toMatchObject({ range: { fromMs: 92 * H, toMs: now }, live: true, preset: '8h' });
-    expect(parseTrendQuery(new URLSearchParams('range=nonsense&from=9&to=3'), now)).toMatchObject({ range: { fromMs: 99 * H, toMs: now }, preset: '1h' });
+    expect(parseTrendQuery(new URLSearchParams('range=8h'), now)).toMatchObject({
+      range: { fromMs: 92 * H, toMs: now },
+      live: true,
+      preset: '8h',
+    });
+    expect(parseTrendQuery(new URLSearchParams('range=nonsense&from=9&to=3'), now)).toMatchObject({
+      range: { fromMs: 99 * H, toMs: now },
+      preset: '1h',
+    });
   });
 });
 
 describe('AnnotationsQuerySchema', () => {
   it('takes epoch ms and refuses a reversed range with a field path', () => {
-    expect(AnnotationsQuerySchema.parse({ from: '1796205600000', to: '1796209200000' })).toEqual({ from: 1796205600000, to: 1796209200000 });
+    expect(AnnotationsQuerySchema.parse({ from: '1796205600000', to: '1796209200000' })).toEqual({
+      from: 1796205600000,
+      to: 1796209200000,
+    });
     const bad = AnnotationsQuerySchema.safeParse({ from: '1796209200000', to: '1796205600000' });
     expect(bad.success).toBe(false);
     expect(bad.error?.issues[0]?.path).toEqual(['from']);

@@ -36,7 +36,20 @@ describe('migrations on an empty database', () => {
     const seq = createSequelize({ url: scratch.toString(), max: 1 });
     const up = await migrateUp(seq);
     expect(up).toEqual(migrations.map((m) => m.name));
-    expect(await tables(client)).toEqual(expect.arrayContaining(['sites', 'assets', 'channels', 'devices', 'users', 'user_sessions', 'audit_log', 'readings', 'readings_1m', 'readings_1h']));
+    expect(await tables(client)).toEqual(
+      expect.arrayContaining([
+        'sites',
+        'assets',
+        'channels',
+        'devices',
+        'users',
+        'user_sessions',
+        'audit_log',
+        'readings',
+        'readings_1m',
+        'readings_1h',
+      ]),
+    );
     const down = await migrateDownAll(seq);
     expect(down).toEqual(migrations.map((m) => m.name).reverse());
     expect(await tables(client)).toEqual(['schema_migrations']);

@@ -27,7 +27,16 @@ beforeAll(async () => {
   await dev.publish('dip-1', 'room-temp', 21.8, Date.now() - 2 * 60_000);
   browser = await chromium.launch({
     executablePath: '/usr/bin/chromium',
-    args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+    args: [
+      '--headless',
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+    ],
   });
   const context = await browser.newContext({ viewport: { width: 1440, height: 900 }, timezoneId: 'Europe/London' });
   const operator = await signIn('operator');
@@ -57,7 +66,11 @@ describe('alarm queue in the browser', () => {
     await expect(row.textContent()).resolves.toContain('Needs acknowledgement');
     await expect(row.textContent()).resolves.toContain('Room temperature 36.4 °C above the alarm high 35.0 °C');
     await expect(row.getAttribute('data-state')).resolves.toBe('unacked');
-    await page.locator('svg[role="img"]').first().waitFor({ timeout: 5_000 }).catch(() => {});
+    await page
+      .locator('svg[role="img"]')
+      .first()
+      .waitFor({ timeout: 5_000 })
+      .catch(() => {});
     await page.screenshot({ path: path.join(OUT, 'alarm-queue-new.png'), fullPage: true });
 
     await row.getByRole('button', { name: 'Acknowledge' }).click();

@@ -27,7 +27,16 @@ beforeAll(async () => {
   fs.mkdirSync(OUT, { recursive: true });
   browser = await chromium.launch({
     executablePath: '/usr/bin/chromium',
-    args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+    args: [
+      '--headless',
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+    ],
   });
 }, 60_000);
 
@@ -59,7 +68,9 @@ describe('alarm settings and health screens', () => {
     await page.getByText('Saved the alarm settings of UV lamp irradiance').waitFor();
     await expect(uvRow.textContent()).resolves.toContain('200 – 260 mW/cm²');
     const ch = await channelIdOf('uv-1', 'irradiance');
-    const db = await testDb().query<{ low: number; high: number }>('select low, high from alarm_configs where channel_id = $1', [ch]);
+    const db = await testDb().query<{ low: number; high: number }>('select low, high from alarm_configs where channel_id = $1', [
+      ch,
+    ]);
     expect(db.rows[0]).toEqual({ low: 200, high: 260 });
     await page.screenshot({ path: path.join(OUT, 'alarm-settings.png'), fullPage: true });
     await ctx.close();

@@ -29,7 +29,9 @@ const channelOf = (tile: string, kind: string) => {
 };
 
 function publish(topic: string, payload: unknown): Promise<void> {
-  return new Promise((resolve, reject) => device.publish(topic, JSON.stringify(payload), { qos: 1 }, (e) => (e ? reject(e) : resolve())));
+  return new Promise((resolve, reject) =>
+    device.publish(topic, JSON.stringify(payload), { qos: 1 }, (e) => (e ? reject(e) : resolve())),
+  );
 }
 
 beforeAll(async () => {
@@ -44,9 +46,22 @@ beforeAll(async () => {
   });
   browser = await chromium.launch({
     executablePath: '/usr/bin/chromium',
-    args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+    args: [
+      '--headless',
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+    ],
   });
-  context = await browser.newContext({ viewport: { width: 1440, height: 900 }, timezoneId: 'Europe/London', acceptDownloads: true });
+  context = await browser.newContext({
+    viewport: { width: 1440, height: 900 },
+    timezoneId: 'Europe/London',
+    acceptDownloads: true,
+  });
   const [name, ...rest] = operator.cookie.split('=');
   await context.addCookies([{ name: name!, value: rest.join('='), url: base() }]);
   page = await context.newPage();
@@ -150,16 +165,23 @@ describe('the channel trend in the browser', () => {
     await page.screenshot({ path: path.join(OUT, 'trend-two-channels.png'), fullPage: true });
 
     // CSV of the plotted data: header, units on every row, ISO times with the site offset.
-    const [csvDl] = await Promise.all([page.waitForEvent('download'), page.getByRole('button', { name: 'Download CSV' }).click()]);
+    const [csvDl] = await Promise.all([
+      page.waitForEvent('download'),
+      page.getByRole('button', { name: 'Download CSV' }).click(),
+    ]);
     const csv = fs.readFileSync((await csvDl.path())!, 'utf8').replace(/^\ufeff/, '');
     const lines = csv.trim().split('\r\n');
     expect(lines[0]).toBe('channel,unit,time,zone,kind,value,min,mean,max,samples,bucket_start,bucket_end');
     expect(lines.length).toBeGreaterThan(2);
     expect(lines.some((l) => l.startsWith(`${visc.name},mm²/s,`))).toBe(true);
     expect(lines.some((l) => l.startsWith(`${temp.name},°C,`))).toBe(true);
-    for (const l of lines.slice(1)) expect(l).toMatch(/,\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}\.\d{3}[+-]\d{2}:\d{2},Europe\/London (GMT|BST),/);
+    for (const l of lines.slice(1))
+      expect(l).toMatch(/,\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}\.\d{3}[+-]\d{2}:\d{2},Europe\/London (GMT|BST),/);
     // PNG of the chart.
-    const [pngDl] = await Promise.all([page.waitForEvent('download'), page.getByRole('button', { name: 'Download PNG' }).click()]);
+    const [pngDl] = await Promise.all([
+      page.waitForEvent('download'),
+      page.getByRole('button', { name: 'Download PNG' }).click(),
+    ]);
     const png = fs.readFileSync((await pngDl.path())!);
     expect([...png.subarray(0, 8)]).toEqual([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]); // PNG signature (RFC 2083)
     fs.writeFileSync(path.join(OUT, 'trend-export.png'), png);

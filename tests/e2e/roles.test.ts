@@ -36,26 +36,30 @@ const EXPECTED: Record<Role, string[]> = {
 };
 
 describe('navigation per role', () => {
-  it.each(ROLES.map((r) => [r] as const))('%s sees only what the role may open, and a forbidden page answers 403', async (role) => {
-    const page = await newPage(browser);
-    try {
-      await signIn(page, role);
-      const nav = page.getByRole('navigation', { name: 'Main' });
-      const labels = (await nav.getByRole('link').allInnerTexts()).map((s) => s.trim());
-      expect(labels).toContain('Floor');
-      const guardedShown = GUARDED.filter((g) => labels.includes(g.label)).map((g) => g.label);
-      expect(guardedShown).toEqual(EXPECTED[role]);
-      expect(guardedShown).toEqual(GUARDED.filter((g) => can(role, g.action)).map((g) => g.label));
-      for (const g of GUARDED) {
-        const r = await page.goto(g.href);
-        expect(r?.status(), `${role} opening ${g.href}`).toBe(can(role, g.action) ? 200 : 403);
+  it.each(ROLES.map((r) => [r] as const))(
+    '%s sees only what the role may open, and a forbidden page answers 403',
+    async (role) => {
+      const page = await newPage(browser);
+      try {
+        await signIn(page, role);
+        const nav = page.getByRole('navigation', { name: 'Main' });
+        const labels = (await nav.getByRole('link').allInnerTexts()).map((s) => s.trim());
+        expect(labels).toContain('Floor');
+        const guardedShown = GUARDED.filter((g) => labels.includes(g.label)).map((g) => g.label);
+        expect(guardedShown).toEqual(EXPECTED[role]);
+        expect(guardedShown).toEqual(GUARDED.filter((g) => can(role, g.action)).map((g) => g.label));
+        for (const g of GUARDED) {
+          const r = await page.goto(g.href);
+          expect(r?.status(), `${role} opening ${g.href}`).toBe(can(role, g.action) ? 200 : 403);
+        }
+        await page.goto('/');
+        await screenshot(page, `roles-nav-${role}`);
+      } finally {
+        await page.context().close();
       }
-      await page.goto('/');
-      await screenshot(page, `roles-nav-${role}`);
-    } finally {
-      await page.context().close();
-    }
-  }, 60_000);
+    },
+    60_000,
+  );
 
   it('sends an anonymous visitor to the sign-in page, and back after signing in', async () => {
     const page = await newPage(browser);
@@ -119,7 +123,9 @@ describe('admin, plant set-up and audit screens', () => {
       await page.getByRole('cell', { name: 'coatrail/v1/fernhollow/gw-dip-1/dip-1-hc/viscosity' }).waitFor();
       await page.getByRole('radio', { name: 'Show the mqtt example for gw-oven-a' }).check();
       const line = page.locator('pre', { hasText: 'mqtt pub' });
-      expect(await line.innerText()).toMatch(/^mqtt pub -h 127\.0\.0\.1 -p \d+ -u gw-oven-a -P '<device password>' -q 1 -t 'coatrail\/v1\/fernhollow\/gw-oven-a\/oven-a[^']*' -m '\{"t":/);
+      expect(await line.innerText()).toMatch(
+        /^mqtt pub -h 127\.0\.0\.1 -p \d+ -u gw-oven-a -P '<device password>' -q 1 -t 'coatrail\/v1\/fernhollow\/gw-oven-a\/oven-a[^']*' -m '\{"t":/,
+      );
       // Engineers add channels but do not create devices.
       await expect(page.getByRole('heading', { name: 'New channel' }).isVisible()).resolves.toBe(true);
       await expect(page.getByRole('button', { name: 'Create device' }).count()).resolves.toBe(0);

@@ -40,23 +40,57 @@ beforeAll(async () => {
     const cold = m <= 10 ? 90 + 2 * m : m <= 70 ? 110 : 110 - 2 * (m - 70);
     rows.push({ ch: oven.zoneIds[1], t: start + m * MIN, v: cold }, { ch: oven.zoneIds[0], t: start + m * MIN, v: cold + 1.5 });
   }
-  rows.push({ ch: oven.setpointId, t: start, v: 110 }, { ch: oven.setpointId, t: start + 70 * MIN, v: 25 }, { ch: oven.doorId, t: start - MIN, v: 0 });
+  rows.push(
+    { ch: oven.setpointId, t: start, v: 110 },
+    { ch: oven.setpointId, t: start + 70 * MIN, v: 25 },
+    { ch: oven.doorId, t: start - MIN, v: 0 },
+  );
   await insertReadings(pool, rows);
   for (const [i, rack] of [`EA-${t}`, `EB-${t}`].entries()) {
-    const r = await api('/api/v1/dip-runs', { method: 'POST', session: operator, json: { lineAssetId: line.id, dippedAt: new Date(start - (60 - i * 5) * MIN).toISOString(), rackCode: rack, jobNumbers: jobs.slice(i * 4, i * 4 + 4) } });
+    const r = await api('/api/v1/dip-runs', {
+      method: 'POST',
+      session: operator,
+      json: {
+        lineAssetId: line.id,
+        dippedAt: new Date(start - (60 - i * 5) * MIN).toISOString(),
+        rackCode: rack,
+        jobNumbers: jobs.slice(i * 4, i * 4 + 4),
+      },
+    });
     expect(r.status).toBe(201);
   }
-  const open = await api('/api/v1/loads', { method: 'POST', session: operator, json: { ovenAssetId: oven.id, openedAt: new Date(start).toISOString() } });
+  const open = await api('/api/v1/loads', {
+    method: 'POST',
+    session: operator,
+    json: { ovenAssetId: oven.id, openedAt: new Date(start).toISOString() },
+  });
   loadId = open.body.id;
   await api(`/api/v1/loads/${loadId}/jobs`, { method: 'POST', session: operator, json: { rackCodes: [`EA-${t}`, `EB-${t}`] } });
-  const closed = await api(`/api/v1/loads/${loadId}/close`, { method: 'POST', session: operator, json: { closedAt: new Date(start + 80 * MIN).toISOString() } });
+  const closed = await api(`/api/v1/loads/${loadId}/close`, {
+    method: 'POST',
+    session: operator,
+    json: { closedAt: new Date(start + 80 * MIN).toISOString() },
+  });
   expect(closed.body.verdict).toBe('under-cured');
-  const fail = await api('/api/v1/quality/tests', { method: 'POST', session: quality, json: { kind: 'crosscut', jobNumber: jobs[0], percentRemoved: 18 } });
+  const fail = await api('/api/v1/quality/tests', {
+    method: 'POST',
+    session: quality,
+    json: { kind: 'crosscut', jobNumber: jobs[0], percentRemoved: 18 },
+  });
   expect(fail.body.result).toBe('fail');
 
   browser = await chromium.launch({
     executablePath: '/usr/bin/chromium',
-    args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+    args: [
+      '--headless',
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+    ],
   });
   const context = await browser.newContext({ viewport: { width: 1440, height: 900 }, timezoneId: 'Europe/London' });
   const [name, ...rest] = quality.cookie.split('=');
@@ -102,7 +136,11 @@ describe('from a failed test to the load, and hold the siblings', () => {
     await form.getByRole('button', { name: /Everything in the same load \(7\)/ }).click();
     await expect(form.getByLabel('Reason for the hold').inputValue()).resolves.toContain(`load ${loadId} under-cured`);
     const hold = form.getByRole('button', { name: 'Hold 8 selected jobs' });
-    await page.screenshot({ path: path.join(OUT, 'trace-4-siblings-selected.png'), fullPage: false, clip: { x: 0, y: 0, width: 1440, height: 900 } });
+    await page.screenshot({
+      path: path.join(OUT, 'trace-4-siblings-selected.png'),
+      fullPage: false,
+      clip: { x: 0, y: 0, width: 1440, height: 900 },
+    });
     await form.scrollIntoViewIfNeeded();
     await hold.click();
     await form.getByRole('status').filter({ hasText: '8 job(s) put on hold' }).waitFor();
@@ -117,7 +155,10 @@ describe('from a failed test to the load, and hold the siblings', () => {
 
     // After the reload the siblings show their hold.
     await page.waitForLoadState('load');
-    await page.getByText(/on hold since/).first().waitFor({ timeout: 10_000 });
+    await page
+      .getByText(/on hold since/)
+      .first()
+      .waitFor({ timeout: 10_000 });
     await page.locator('section[aria-labelledby="sib-h"]').screenshot({ path: path.join(OUT, 'trace-6-siblings-held.png') });
   }, 90_000);
 });

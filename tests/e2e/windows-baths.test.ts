@@ -39,29 +39,71 @@ beforeAll(async () => {
   const engineer = await signIn('engineer');
   // A line and hard-coat tank of this test's own, on the seeded example CR-39 window, charged from a new lot.
   const { rows: site } = await pool.query(`select id from sites where code = 'fernhollow'`);
-  const { rows: line } = await pool.query(`insert into assets (site_id, kind, code, name) values ($1, 'line', $2, $3) returning id`, [site[0].id, `e2e-${tag}`, `E2E line ${tag}`]);
+  const { rows: line } = await pool.query(
+    `insert into assets (site_id, kind, code, name) values ($1, 'line', $2, $3) returning id`,
+    [site[0].id, `e2e-${tag}`, `E2E line ${tag}`],
+  );
   tankName = `E2E bath ${tag}`;
-  const { rows: tank } = await pool.query(`insert into assets (site_id, parent_id, kind, code, name, details) values ($1, $2, 'tank', $3, $4, '{"role":"hard-coat"}') returning id`, [
-    site[0].id,
-    line[0].id,
-    `e2e-${tag}-hc`,
-    tankName,
-  ]);
+  const { rows: tank } = await pool.query(
+    `insert into assets (site_id, parent_id, kind, code, name, details) values ($1, $2, 'tank', $3, $4, '{"role":"hard-coat"}') returning id`,
+    [site[0].id, line[0].id, `e2e-${tag}-hc`, tankName],
+  );
   tankId = tank[0].id;
   const windows = await api('/api/v1/windows?status=effective', { session: engineer });
   const example = windows.body.find((w: any) => w.lacquer === 'FH-Siloxane 30 (example)' && w.substrate === 'CR-39-type 1.50');
-  expect((await api('/api/v1/windows/assignments', { method: 'POST', session: engineer, json: { assetId: line[0].id, windowId: example.id } })).status).toBe(201);
-  const lacquer = (await api('/api/v1/lacquers', { session: engineer })).body.find((l: any) => l.name === 'FH-Siloxane 30 (example)');
+  expect(
+    (
+      await api('/api/v1/windows/assignments', {
+        method: 'POST',
+        session: engineer,
+        json: { assetId: line[0].id, windowId: example.id },
+      })
+    ).status,
+  ).toBe(201);
+  const lacquer = (await api('/api/v1/lacquers', { session: engineer })).body.find(
+    (l: any) => l.name === 'FH-Siloxane 30 (example)',
+  );
   const day = (d: number) => new Date(Date.now() + d * 86_400_000).toISOString().slice(0, 10);
-  const lot = await api('/api/v1/lots', { method: 'POST', session: engineer, json: { lacquerId: lacquer.id, lotCode: `E2E-${tag}`, receivedOn: day(-10), expiresOn: day(150), solidsPct: 30.4 } });
+  const lot = await api('/api/v1/lots', {
+    method: 'POST',
+    session: engineer,
+    json: { lacquerId: lacquer.id, lotCode: `E2E-${tag}`, receivedOn: day(-10), expiresOn: day(150), solidsPct: 30.4 },
+  });
   expect(lot.status).toBe(201);
-  const charge = await api('/api/v1/baths/charges', { method: 'POST', session: engineer, json: { tankAssetId: tankId, lotId: lot.body.id, massKg: 38, potLifeDays: 30, chargedAt: new Date(Date.now() - 5 * 86_400_000).toISOString() } });
+  const charge = await api('/api/v1/baths/charges', {
+    method: 'POST',
+    session: engineer,
+    json: {
+      tankAssetId: tankId,
+      lotId: lot.body.id,
+      massKg: 38,
+      potLifeDays: 30,
+      chargedAt: new Date(Date.now() - 5 * 86_400_000).toISOString(),
+    },
+  });
   expect(charge.status).toBe(201);
   lacquerName = `E2E lacquer ${tag}`;
-  expect((await api('/api/v1/lacquers', { method: 'POST', session: engineer, json: { name: lacquerName, maker: 'E2E maker', solidsPct: 30, densityGCm3: 0.95, activationEnergyKJMol: 75 } })).status).toBe(201);
+  expect(
+    (
+      await api('/api/v1/lacquers', {
+        method: 'POST',
+        session: engineer,
+        json: { name: lacquerName, maker: 'E2E maker', solidsPct: 30, densityGCm3: 0.95, activationEnergyKJMol: 75 },
+      })
+    ).status,
+  ).toBe(201);
   browser = await chromium.launch({
     executablePath: '/usr/bin/chromium',
-    args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+    args: [
+      '--headless',
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+    ],
   });
 }, 60_000);
 
@@ -108,7 +150,10 @@ describe('bath check on the tablet form (operator)', () => {
     await page.getByText('Addition logged: 1.44 kg of solvent').waitFor();
     await form.screenshot({ path: path.join(OUT, 'bath-check-logged.png') });
 
-    const { rows } = await pool.query(`select k.kinematic_mm2s, k.cup, k.efflux_seconds, a.mass_kg from bath_checks k join bath_additions a on a.check_id = k.id where k.tank_asset_id = $1`, [tankId]);
+    const { rows } = await pool.query(
+      `select k.kinematic_mm2s, k.cup, k.efflux_seconds, a.mass_kg from bath_checks k join bath_additions a on a.check_id = k.id where k.tank_asset_id = $1`,
+      [tankId],
+    );
     expect(rows).toHaveLength(1);
     expect(rows[0]).toMatchObject({ cup: 'zahn-1', efflux_seconds: 41.5, mass_kg: 1.44 });
     expect(rows[0].kinematic_mm2s).toBeCloseTo(13.75, 10);
@@ -141,8 +186,16 @@ describe('calculator pages (viewer)', () => {
     await page.goto(`${base()}/calculators/fringe-thickness`);
     await page.locator('astro-island:not([ssr])').first().waitFor();
     // R(λ) = 0.04 + 0.02·cos(4π·1.5·2000/λ): fringes of a 2000 nm coat with n = 1.5 (thin-film interference)
-    const csv = ['wavelength_nm,reflectance', ...Array.from({ length: 451 }, (_, i) => `${450 + i},${(0.04 + 0.02 * Math.cos((4 * Math.PI * 1.5 * 2000) / (450 + i))).toFixed(6)}`)].join('\n');
-    await page.getByLabel(/Reflectance spectrum/).setInputFiles({ name: 'spectrum.csv', mimeType: 'text/csv', buffer: Buffer.from(csv) });
+    const csv = [
+      'wavelength_nm,reflectance',
+      ...Array.from(
+        { length: 451 },
+        (_, i) => `${450 + i},${(0.04 + 0.02 * Math.cos((4 * Math.PI * 1.5 * 2000) / (450 + i))).toFixed(6)}`,
+      ),
+    ].join('\n');
+    await page
+      .getByLabel(/Reflectance spectrum/)
+      .setInputFiles({ name: 'spectrum.csv', mimeType: 'text/csv', buffer: Buffer.from(csv) });
     await page.getByRole('button', { name: 'Find the fringes' }).click();
     const result = page.getByRole('region', { name: 'Spectrum result' });
     await result.getByText('Pairs used').waitFor();
@@ -192,7 +245,10 @@ describe('process window draft and signed approval (engineer)', () => {
     await page.goto(`${base()}/windows`);
     expect(await page.locator('main').textContent()).toContain(`E2E window ${tag}`);
     await page.screenshot({ path: path.join(OUT, 'windows-index.png'), fullPage: true });
-    const { rows } = await pool.query(`select action from audit_log where entity = 'process_window' and entity_id = $1 order by id`, [String(id)]);
+    const { rows } = await pool.query(
+      `select action from audit_log where entity = 'process_window' and entity_id = $1 order by id`,
+      [String(id)],
+    );
     expect(rows.map((r) => r.action)).toEqual(['window.draft', 'window.approve']);
     await page.context().close();
   }, 90_000);

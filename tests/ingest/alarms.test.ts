@@ -128,7 +128,10 @@ describe('process-window fallback and the seeded example settings', () => {
     await ovenB.publish('oven-b', 'setpoint', 110, t);
     await ovenC.publish('oven-c', 'setpoint', 25, t);
     stream.mark();
-    for (const [dev, code] of [[ovenB, 'oven-b'], [ovenC, 'oven-c']] as const) {
+    for (const [dev, code] of [
+      [ovenB, 'oven-b'],
+      [ovenC, 'oven-c'],
+    ] as const) {
       await dev.publish(code, 'door', 1, t + 5_000);
       await dev.publish(code, 'door', 1, t + 16_000); // seeded on-delay 10 s
     }
@@ -190,16 +193,27 @@ describe('stale data, device offline, ingest lag', () => {
     stream.mark();
     await ovenB.publish('oven-b-z1', 'air-temp', 110.2);
     await stream.next((x) => x.data.id === e.data.id && x.data.state === 'rtn-unacked', 5_000);
-    await configureChannel(ch, { staleSeconds: 60, stalePriority: 'high', note: "Example default — replace with the lacquer maker's data." });
+    await configureChannel(ch, {
+      staleSeconds: 60,
+      stalePriority: 'high',
+      note: "Example default — replace with the lacquer maker's data.",
+    });
   });
 
   it('a device offline for more than 60 s raises an alarm; reconnecting clears it', async () => {
     const dev = await testDb().query<{ id: number }>(`select id from devices where username = 'gw-oven-c'`);
     const id = dev.rows[0]!.id;
     await ovenC.close();
-    await eventually(async () => (await testDb().query(`select online from devices where id = $1`, [id])).rows[0]?.online === false, 10_000, 'gw-oven-c offline');
+    await eventually(
+      async () => (await testDb().query(`select online from devices where id = $1`, [id])).rows[0]?.online === false,
+      10_000,
+      'gw-oven-c offline',
+    );
     // Instead of waiting a minute: the disconnection happened two minutes ago.
-    await testDb().query(`update device_events set at = at - interval '2 minutes' where device_id = $1 and kind = 'offline' and at > now() - interval '1 minute'`, [id]);
+    await testDb().query(
+      `update device_events set at = at - interval '2 minutes' where device_id = $1 and kind = 'offline' and at > now() - interval '1 minute'`,
+      [id],
+    );
     const e = await stream.next((x) => x.data.sourceKey === `device:${id}` && x.data.state === 'unacked', 12_000);
     expect(e.data.message).toMatch(/^Device gw-oven-c offline for \d+ s: its channels are not being recorded$/);
     stream.mark();

@@ -10,7 +10,15 @@ import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { freePort } from '../../db/pg-control.ts';
 import { root, TEST_DEVICE_SECRET } from '../support/test-stack.ts';
 import mqtt, { type MqttClient } from 'mqtt';
-import { SERVICE_PASSWORD, sleep, startChild, startOwnBroker, waitFor, type Child, type OwnBroker } from '../support/ingest-harness.ts';
+import {
+  SERVICE_PASSWORD,
+  sleep,
+  startChild,
+  startOwnBroker,
+  waitFor,
+  type Child,
+  type OwnBroker,
+} from '../support/ingest-harness.ts';
 
 const dir = path.join(root, 'var', `test-reconnect-${process.pid}`);
 let dbUrl: string;
@@ -34,13 +42,37 @@ beforeAll(async () => {
   dbUrl = inject('stack').databaseUrl;
   broker = await startOwnBroker(dbUrl, dir);
   const mqttUrl = `mqtt://127.0.0.1:${broker.port}`;
-  watcher = mqtt.connect(mqttUrl, { username: 'svc-ingest', password: SERVICE_PASSWORD, protocolVersion: 4, reconnectPeriod: 300, clean: true });
+  watcher = mqtt.connect(mqttUrl, {
+    username: 'svc-ingest',
+    password: SERVICE_PASSWORD,
+    protocolVersion: 4,
+    reconnectPeriod: 300,
+    clean: true,
+  });
   watcher.on('connect', () => watcher.subscribe('coatrail/v1/+/gw-uv-1/uv-1/irradiance', { qos: 0 }));
   watcher.on('message', () => heard.push(Date.now()));
   const port = await freePort();
   webUrl = `http://127.0.0.1:${port}`;
-  web = startChild('web', 'dist/server/entry.mjs', { ...process.env, DATABASE_URL: dbUrl, MQTT_URL: mqttUrl, MQTT_SERVICE_PASSWORD: SERVICE_PASSWORD, HOST: '127.0.0.1', PORT: String(port), PUBLIC_ORIGIN: webUrl }, dir);
-  sim = startChild('simulator', 'seeds/simulator.ts', { ...process.env, MQTT_URL: mqttUrl, SIM_DEVICE_SECRET: TEST_DEVICE_SECRET }, dir);
+  web = startChild(
+    'web',
+    'dist/server/entry.mjs',
+    {
+      ...process.env,
+      DATABASE_URL: dbUrl,
+      MQTT_URL: mqttUrl,
+      MQTT_SERVICE_PASSWORD: SERVICE_PASSWORD,
+      HOST: '127.0.0.1',
+      PORT: String(port),
+      PUBLIC_ORIGIN: webUrl,
+    },
+    dir,
+  );
+  sim = startChild(
+    'simulator',
+    'seeds/simulator.ts',
+    { ...process.env, MQTT_URL: mqttUrl, SIM_DEVICE_SECRET: TEST_DEVICE_SECRET },
+    dir,
+  );
   await waitFor(brokerOk, 40_000, 'the web server to reach the broker');
 }, 90_000);
 

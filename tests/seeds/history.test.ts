@@ -7,14 +7,25 @@ import pg from 'pg';
 import { afterAll, beforeAll, describe, expect, it, inject } from 'vitest';
 import { equivalentMinutes, type ProfilePoint } from '../../src/lib/domain/cure/arrhenius.ts';
 import { demoHistoryRecord, seedHistory, type DemoHistoryRecord } from '../../seeds/history.ts';
-import { HOUR_MS, MINUTE_MS, buildPlantModel, demoOvenCycles, demoStoryLoad, historySeries, type OvenCycle } from '../../seeds/plant-model.ts';
+import {
+  HOUR_MS,
+  MINUTE_MS,
+  buildPlantModel,
+  demoOvenCycles,
+  demoStoryLoad,
+  historySeries,
+  type OvenCycle,
+} from '../../seeds/plant-model.ts';
 import { TEST_HISTORY_DAYS } from '../support/test-stack.ts';
 
 let pool: pg.Pool;
 let rec: DemoHistoryRecord;
 
 async function channelId(asset: string, key: string): Promise<number> {
-  const { rows } = await pool.query<{ id: number }>(`select c.id from channels c join assets a on a.id = c.asset_id where a.code = $1 and c.key = $2`, [asset, key]);
+  const { rows } = await pool.query<{ id: number }>(
+    `select c.id from channels c join assets a on a.id = c.asset_id where a.code = $1 and c.key = $2`,
+    [asset, key],
+  );
   return rows[0]!.id;
 }
 
@@ -41,7 +52,10 @@ describe('seeded history', () => {
   it('stores exactly the samples the generators make (one oven zone, one bath channel)', async () => {
     const model = buildPlantModel(rec.nowMs);
     const want = new Map([...historySeries(model, rec.fromMs, rec.nowMs)].map((s) => [`${s.asset}/${s.channel}`, s]));
-    for (const [asset, key] of [['oven-b-z2', 'air-temp'], ['dip-1-hc', 'viscosity']] as const) {
+    for (const [asset, key] of [
+      ['oven-b-z2', 'air-temp'],
+      ['dip-1-hc', 'viscosity'],
+    ] as const) {
       const id = await channelId(asset, key);
       const { rows } = await pool.query<{ t: number; v: number }>(
         `select (extract(epoch from ts) * 1000)::float8 as t, value as v from readings
@@ -60,11 +74,19 @@ describe('seeded history', () => {
     // Whole hours inside the history, before its anchor (nothing published live is that old).
     const from = Math.ceil(rec.fromMs / HOUR_MS) * HOUR_MS;
     const to = rec.anchorMs;
-    const q = async (sql: string) => (await pool.query<{ n: number; lo: number; hi: number; sum: number }>(sql, [id, from, to])).rows[0]!;
-    const range = (col: string) => `channel_id = $1 and ${col} >= to_timestamp($2::float8 / 1000) and ${col} < to_timestamp($3::float8 / 1000)`;
-    const raw = await q(`select count(*)::int as n, min(value) as lo, max(value) as hi, sum(value) as sum from readings where ${range('ts')}`);
-    const m = await q(`select sum(n)::int as n, min(vmin) as lo, max(vmax) as hi, sum(vsum) as sum from readings_1m where ${range('bucket')}`);
-    const h = await q(`select sum(n)::int as n, min(vmin) as lo, max(vmax) as hi, sum(vsum) as sum from readings_1h where ${range('bucket')}`);
+    const q = async (sql: string) =>
+      (await pool.query<{ n: number; lo: number; hi: number; sum: number }>(sql, [id, from, to])).rows[0]!;
+    const range = (col: string) =>
+      `channel_id = $1 and ${col} >= to_timestamp($2::float8 / 1000) and ${col} < to_timestamp($3::float8 / 1000)`;
+    const raw = await q(
+      `select count(*)::int as n, min(value) as lo, max(value) as hi, sum(value) as sum from readings where ${range('ts')}`,
+    );
+    const m = await q(
+      `select sum(n)::int as n, min(vmin) as lo, max(vmax) as hi, sum(vsum) as sum from readings_1m where ${range('bucket')}`,
+    );
+    const h = await q(
+      `select sum(n)::int as n, min(vmin) as lo, max(vmax) as hi, sum(vsum) as sum from readings_1h where ${range('bucket')}`,
+    );
     // Oven zones are sampled every 30 s: two per minute, less thermocouple dropouts.
     expect(raw.n).toBeGreaterThan(((to - from) / MINUTE_MS) * 2 * 0.97);
     for (const r of [m, h]) {

@@ -60,7 +60,11 @@ describe('determinism', () => {
   it('rebuilds the same lists for the same hour, also after another anchor was built in between', () => {
     const first = JSON.stringify([demoOvenCycles(NOW), demoDipStrokes(NOW), demoBathEvents(NOW)]);
     buildPlantModel(NOW + 5 * HOUR_MS); // evicts the cache
-    const again = JSON.stringify([demoOvenCycles(NOW + 20 * MINUTE_MS), demoDipStrokes(NOW - 30 * MINUTE_MS), demoBathEvents(NOW)]);
+    const again = JSON.stringify([
+      demoOvenCycles(NOW + 20 * MINUTE_MS),
+      demoDipStrokes(NOW - 30 * MINUTE_MS),
+      demoBathEvents(NOW),
+    ]);
     expect(anchorOf(NOW + 20 * MINUTE_MS)).toBe(anchorOf(NOW - 30 * MINUTE_MS));
     expect(again).toBe(first);
   });
@@ -81,9 +85,15 @@ describe('oven cycles', () => {
     for (const c of cycles) {
       expect(c.loadStartMs).toBeGreaterThanOrEqual(anchorOf(NOW) - 12 * DAY_MS);
       expect(c.loadEndMs).toBeLessThanOrEqual(anchorOf(NOW));
-      expect(c.loadStartMs < c.rampStartMs && c.rampStartMs < c.soakStartMs && c.soakStartMs < c.soakEndMs && c.soakEndMs < c.loadEndMs).toBe(true);
+      expect(
+        c.loadStartMs < c.rampStartMs &&
+          c.rampStartMs < c.soakStartMs &&
+          c.soakStartMs < c.soakEndMs &&
+          c.soakEndMs < c.loadEndMs,
+      ).toBe(true);
       expect(isShift(c.loadStartMs)).toBe(true);
-      for (const o of c.doorOpenings) expect(o.startMs >= c.loadStartMs && o.endMs <= c.loadEndMs && o.startMs < o.endMs).toBe(true);
+      for (const o of c.doorOpenings)
+        expect(o.startMs >= c.loadStartMs && o.endMs <= c.loadEndMs && o.startMs < o.endMs).toBe(true);
     }
     for (const oven of ['oven-a', 'oven-b', 'oven-c']) {
       const mine = cycles.filter((c) => c.oven === oven);
@@ -94,7 +104,9 @@ describe('oven cycles', () => {
   it('include a door opened mid-soak and a thermocouple dropout of 20–40 min', () => {
     const door = cycles.find((c) => c.kind === 'door-opened')!;
     const drop = cycles.find((c) => c.kind === 'tc-dropout')!;
-    expect(door.doorOpenings.some((o) => o.reason === 'mid-soak' && o.startMs > door.soakStartMs && o.endMs < door.soakEndMs)).toBe(true);
+    expect(
+      door.doorOpenings.some((o) => o.reason === 'mid-soak' && o.startMs > door.soakStartMs && o.endMs < door.soakEndMs),
+    ).toBe(true);
     const d = drop.dropouts[0]!;
     expect((d.endMs - d.startMs) / MINUTE_MS).toBeGreaterThanOrEqual(20);
     expect((d.endMs - d.startMs) / MINUTE_MS).toBeLessThanOrEqual(40);
@@ -170,7 +182,10 @@ describe('dip lines', () => {
     for (const line of ['dip-1', 'dip-2'] as const) {
       const mine = strokes.filter((s) => s.line === line);
       expect(mine.every((s) => isShift(s.tMs))).toBe(true);
-      const gaps = mine.slice(1).map((s, i) => s.tMs - mine[i]!.tMs).filter((g) => g < 20 * MINUTE_MS);
+      const gaps = mine
+        .slice(1)
+        .map((s, i) => s.tMs - mine[i]!.tMs)
+        .filter((g) => g < 20 * MINUTE_MS);
       const meanGapMin = gaps.reduce((a, b) => a + b, 0) / gaps.length / MINUTE_MS;
       expect(meanGapMin).toBeGreaterThan(3.8);
       expect(meanGapMin).toBeLessThan(4.2);

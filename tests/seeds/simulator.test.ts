@@ -17,7 +17,11 @@ const startedMs = Date.now();
 
 beforeAll(async () => {
   pool = new pg.Pool({ connectionString: inject('stack').databaseUrl, max: 2 });
-  const env: NodeJS.ProcessEnv = { ...process.env, MQTT_PORT: String(inject('stack').mqttPort), SIM_DEVICE_SECRET: TEST_DEVICE_SECRET };
+  const env: NodeJS.ProcessEnv = {
+    ...process.env,
+    MQTT_PORT: String(inject('stack').mqttPort),
+    SIM_DEVICE_SECRET: TEST_DEVICE_SECRET,
+  };
   delete env['MQTT_URL'];
   sim = spawn(process.execPath, ['--import', 'tsx', 'seeds/simulator.ts'], {
     cwd: root,
@@ -59,7 +63,12 @@ describe('demo-plant simulator', () => {
       ['uv-1', 'spin-speed'],
     ];
     for (const [asset, key] of channels) {
-      await waitFor(async () => (await newRows(asset, key)).n > 0, 40_000, `live readings of ${asset}/${key} (simulator output: ${output.slice(-500)})`, 500);
+      await waitFor(
+        async () => (await newRows(asset, key)).n > 0,
+        40_000,
+        `live readings of ${asset}/${key} (simulator output: ${output.slice(-500)})`,
+        500,
+      );
     }
     // Ovens publish every 2 s: after ten more seconds several more zone readings have arrived.
     const before = (await newRows('oven-a-z1', 'air-temp')).n;
@@ -71,10 +80,16 @@ describe('demo-plant simulator', () => {
       [startedMs, DEMO_DEVICES.map((d) => d.username)],
     );
     expect(refused).toEqual([]);
-    const { rows: online } = await pool.query<{ username: string; online: boolean }>(`select username, online from devices where username = any($1)`, [
-      DEMO_DEVICES.map((d) => d.username),
-    ]);
-    expect(online.filter((d) => d.online).map((d) => d.username).sort()).toEqual(DEMO_DEVICES.map((d) => d.username).sort());
+    const { rows: online } = await pool.query<{ username: string; online: boolean }>(
+      `select username, online from devices where username = any($1)`,
+      [DEMO_DEVICES.map((d) => d.username)],
+    );
+    expect(
+      online
+        .filter((d) => d.online)
+        .map((d) => d.username)
+        .sort(),
+    ).toEqual(DEMO_DEVICES.map((d) => d.username).sort());
   }, 90_000);
 
   it('stops cleanly on SIGTERM by its PID and its gateways go offline', async () => {
@@ -84,7 +99,10 @@ describe('demo-plant simulator', () => {
     expect(proc.exitCode).toBe(0);
     await waitFor(
       async () => {
-        const { rows } = await pool.query<{ n: number }>(`select count(*)::int as n from devices where username = any($1) and online`, [DEMO_DEVICES.map((d) => d.username)]);
+        const { rows } = await pool.query<{ n: number }>(
+          `select count(*)::int as n from devices where username = any($1) and online`,
+          [DEMO_DEVICES.map((d) => d.username)],
+        );
         return rows[0]!.n === 0;
       },
       10_000,

@@ -36,7 +36,11 @@ export async function createThrowawayUser(role = 'operator', prefix = 't'): Prom
   const username = `${prefix}-${tag}`.slice(0, 40);
   const email = `${username}@example.test`;
   const password = `pw-${randomBytes(8).toString('hex')}`;
-  const r = await api('/api/v1/admin/users', { method: 'POST', session: admin, json: { username, displayName: `Test ${tag}`, email, role, password } });
+  const r = await api('/api/v1/admin/users', {
+    method: 'POST',
+    session: admin,
+    json: { username, displayName: `Test ${tag}`, email, role, password },
+  });
   if (r.status !== 201) throw new Error(`creating ${username} failed: ${r.status} ${JSON.stringify(r.body)}`);
   return { id: r.body.user.id, username, email, password, role };
 }

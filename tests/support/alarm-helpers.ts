@@ -152,14 +152,22 @@ export async function openStream(session: Session, kinds: string[]): Promise<Liv
 /** Set a channel's alarm settings through the API as the demo engineer. */
 export async function configureChannel(channelId: number, config: Record<string, unknown>): Promise<void> {
   const engineer = await signIn('engineer');
-  const r = await api(`/api/v1/alarm-configs/${channelId}`, { method: 'PUT', session: engineer, json: { enabled: true, ...config } });
+  const r = await api(`/api/v1/alarm-configs/${channelId}`, {
+    method: 'PUT',
+    session: engineer,
+    json: { enabled: true, ...config },
+  });
   if (r.status !== 200) throw new Error(`configure channel ${channelId}: ${r.status} ${JSON.stringify(r.body)}`);
   // The worker re-reads alarm settings every 2 s.
   await new Promise((r2) => setTimeout(r2, 2_500));
 }
 
 /** Poll until `fn` returns a truthy value, or throw after `timeoutMs`. */
-export async function eventually<T>(fn: () => Promise<T | null | undefined | false>, timeoutMs = 10_000, what = 'condition'): Promise<T> {
+export async function eventually<T>(
+  fn: () => Promise<T | null | undefined | false>,
+  timeoutMs = 10_000,
+  what = 'condition',
+): Promise<T> {
   const until = Date.now() + timeoutMs;
   for (;;) {
     const v = await fn();
@@ -171,6 +179,8 @@ export async function eventually<T>(fn: () => Promise<T | null | undefined | fal
 
 /** The open alarm of a source key (via SQL), or null. */
 export async function openAlarmId(sourceKey: string): Promise<number | null> {
-  const r = await testDb().query<{ id: number }>(`select id from alarms where source_key = $1 and state <> 'normal'`, [sourceKey]);
+  const r = await testDb().query<{ id: number }>(`select id from alarms where source_key = $1 and state <> 'normal'`, [
+    sourceKey,
+  ]);
   return r.rows[0]?.id ?? null;
 }

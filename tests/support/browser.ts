@@ -45,7 +45,10 @@ export async function signIn(page: Page, username: string, password = TEST_PASSW
   await page.goto(`/login?next=${encodeURIComponent(next)}`);
   await page.getByLabel('Username').fill(username);
   await page.getByLabel('Password').fill(password);
-  await Promise.all([page.waitForURL((u) => !u.pathname.startsWith('/login')), page.getByRole('button', { name: 'Sign in' }).click()]);
+  await Promise.all([
+    page.waitForURL((u) => !u.pathname.startsWith('/login')),
+    page.getByRole('button', { name: 'Sign in' }).click(),
+  ]);
 }
 
 /** Save a full-page PNG as test-results/<name>.png and return its path. */

@@ -27,7 +27,10 @@ export async function signIn(username: string, password = TEST_PASSWORD): Promis
   return s;
 }
 
-export async function api(path: string, init: RequestInit & { session?: Session | null; json?: unknown } = {}): Promise<{ status: number; body: any; headers: Headers }> {
+export async function api(
+  path: string,
+  init: RequestInit & { session?: Session | null; json?: unknown } = {},
+): Promise<{ status: number; body: any; headers: Headers }> {
   const headers = new Headers(init.headers);
   if (init.session) headers.set('cookie', init.session.cookie);
   let body = init.body;

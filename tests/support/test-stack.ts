@@ -61,8 +61,14 @@ export async function startTestStack(): Promise<TestStack> {
   const sequelize = createSequelize({ url: pgh.url, max: 2 });
   await migrateUp(sequelize);
   const seedStart = performance.now();
-  await seedAll(sequelize, { demoPassword: TEST_PASSWORD, deviceSecret: TEST_DEVICE_SECRET, history: { days: TEST_HISTORY_DAYS } });
-  console.log(`[test] seeded the demo plant and ${TEST_HISTORY_DAYS} days of history in ${((performance.now() - seedStart) / 1000).toFixed(1)} s`);
+  await seedAll(sequelize, {
+    demoPassword: TEST_PASSWORD,
+    deviceSecret: TEST_DEVICE_SECRET,
+    history: { days: TEST_HISTORY_DAYS },
+  });
+  console.log(
+    `[test] seeded the demo plant and ${TEST_HISTORY_DAYS} days of history in ${((performance.now() - seedStart) / 1000).toFixed(1)} s`,
+  );
   await sequelize.close();
   const pool = createPool({ url: pgh.url, max: 2 });
   const smtp: FakeSmtp = await startFakeSmtp(pool, 0);
@@ -114,7 +120,8 @@ export async function startTestStack(): Promise<TestStack> {
       for (const proc of children.values()) if (proc.exitCode === null) proc.kill('SIGTERM');
       for (const proc of children.values()) {
         const until = Date.now() + 5000;
-        while (proc.exitCode === null && proc.signalCode === null && Date.now() < until) await new Promise((r) => setTimeout(r, 50));
+        while (proc.exitCode === null && proc.signalCode === null && Date.now() < until)
+          await new Promise((r) => setTimeout(r, 50));
         if (proc.exitCode === null && proc.signalCode === null) proc.kill('SIGKILL');
       }
       await smtp.close();

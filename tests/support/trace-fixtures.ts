@@ -41,7 +41,14 @@ async function device(pool: pg.Pool, t: string, password?: string): Promise<{ id
   return { id: rows[0]!.id, username, prefix };
 }
 
-async function asset(pool: pg.Pool, parentId: number | null, kind: string, code: string, name: string, details: Record<string, unknown> = {}): Promise<number> {
+async function asset(
+  pool: pg.Pool,
+  parentId: number | null,
+  kind: string,
+  code: string,
+  name: string,
+  details: Record<string, unknown> = {},
+): Promise<number> {
   const site = await siteId(pool);
   const { rows } = await pool.query<{ id: number }>(
     `insert into assets (site_id, parent_id, kind, code, name, details) values ($1, $2, $3, $4, $5, $6::jsonb) returning id`,
@@ -50,7 +57,16 @@ async function asset(pool: pg.Pool, parentId: number | null, kind: string, code:
   return rows[0]!.id;
 }
 
-async function channel(pool: pg.Pool, assetId: number, deviceId: number, key: string, kind: string, unit: string, min: number, max: number): Promise<number> {
+async function channel(
+  pool: pg.Pool,
+  assetId: number,
+  deviceId: number,
+  key: string,
+  kind: string,
+  unit: string,
+  min: number,
+  max: number,
+): Promise<number> {
   const { rows } = await pool.query<{ id: number }>(
     `insert into channels (asset_id, device_id, key, name, kind, unit, min, max) values ($1, $2, $3, $4, $5, $6, $7, $8) returning id`,
     [assetId, deviceId, key, `${key} ${assetId}`, kind, unit, min, max],
@@ -59,7 +75,12 @@ async function channel(pool: pg.Pool, assetId: number, deviceId: number, key: st
 }
 
 /** An effective window (own lacquer, CR-39 material) assigned to `assetIds` from 30 days ago. */
-export async function testWindow(pool: pg.Pool, t: string, assetIds: number[], limits: ProcessWindowLimits = TEST_CURE_LIMITS): Promise<number> {
+export async function testWindow(
+  pool: pg.Pool,
+  t: string,
+  assetIds: number[],
+  limits: ProcessWindowLimits = TEST_CURE_LIMITS,
+): Promise<number> {
   const lac = await pool.query<{ id: number }>(
     `insert into lacquers (name, maker, solids_pct, density_g_cm3, activation_energy_kj_mol) values ($1, 'test', 30, 0.95, $2) returning id`,
     [`T9 lacquer ${t}`, limits.activationEnergyKJMol],
@@ -72,7 +93,10 @@ export async function testWindow(pool: pg.Pool, t: string, assetIds: number[], l
     [lac.rows[0]!.id, mat.rows[0]!.id, `T9 window ${t}`, JSON.stringify(limits), JSON.stringify(sig)],
   );
   for (const a of assetIds) {
-    await pool.query(`insert into window_assignments (asset_id, window_id, valid_from) values ($1, $2, now() - interval '30 days')`, [a, w.rows[0]!.id]);
+    await pool.query(
+      `insert into window_assignments (asset_id, window_id, valid_from) values ($1, $2, now() - interval '30 days')`,
+      [a, w.rows[0]!.id],
+    );
   }
   return w.rows[0]!.id;
 }
@@ -90,7 +114,11 @@ export interface TestOven {
 }
 
 /** A throwaway oven with two zones and its own window (TEST_CURE_LIMITS unless given); a device password lets a test publish for it. */
-export async function createTestOven(pool: pg.Pool, limits: ProcessWindowLimits = TEST_CURE_LIMITS, devicePassword?: string): Promise<TestOven> {
+export async function createTestOven(
+  pool: pg.Pool,
+  limits: ProcessWindowLimits = TEST_CURE_LIMITS,
+  devicePassword?: string,
+): Promise<TestOven> {
   const t = tag();
   const d = await device(pool, t, devicePassword);
   const dev = d.id;

@@ -60,11 +60,21 @@ export default function LocksAdmin({ initial, timeZone }: { initial: LockView[];
         <table>
           <thead>
             <tr>
-              <SortTh k="subject" sort={sort} toggle={toggle}>User or address</SortTh>
-              <SortTh k="kind" sort={sort} toggle={toggle}>Kind</SortTh>
-              <SortTh k="failures" sort={sort} toggle={toggle}>Failed attempts</SortTh>
-              <SortTh k="lastFailureAt" sort={sort} toggle={toggle}>Last failure</SortTh>
-              <SortTh k="lockedUntil" sort={sort} toggle={toggle}>State</SortTh>
+              <SortTh k="subject" sort={sort} toggle={toggle}>
+                User or address
+              </SortTh>
+              <SortTh k="kind" sort={sort} toggle={toggle}>
+                Kind
+              </SortTh>
+              <SortTh k="failures" sort={sort} toggle={toggle}>
+                Failed attempts
+              </SortTh>
+              <SortTh k="lastFailureAt" sort={sort} toggle={toggle}>
+                Last failure
+              </SortTh>
+              <SortTh k="lockedUntil" sort={sort} toggle={toggle}>
+                State
+              </SortTh>
               <th scope="col">Action</th>
             </tr>
           </thead>
@@ -84,13 +94,20 @@ export default function LocksAdmin({ initial, timeZone }: { initial: LockView[];
                 <td className="num whitespace-nowrap">{formatSiteTime(l.lastFailureAt, timeZone, { seconds: true })}</td>
                 <td className="whitespace-nowrap">
                   {l.locked ? (
-                    <span className="tag border-alert-high text-alert-high">■ Locked until {formatSiteTime(l.lockedUntil, timeZone)}</span>
+                    <span className="tag border-alert-high text-alert-high">
+                      ■ Locked until {formatSiteTime(l.lockedUntil, timeZone)}
+                    </span>
                   ) : (
                     <span className="text-ink-soft">counting</span>
                   )}
                 </td>
                 <td>
-                  <button type="button" className="btn-quiet px-2 py-1 text-sm" disabled={busy === l.key} onClick={() => void unlock(l)}>
+                  <button
+                    type="button"
+                    className="btn-quiet px-2 py-1 text-sm"
+                    disabled={busy === l.key}
+                    onClick={() => void unlock(l)}
+                  >
                     {l.locked ? 'Unlock' : 'Reset count'}
                   </button>
                 </td>

@@ -23,7 +23,15 @@ export default function TokensAdmin({ initial, timeZone, origin }: { initial: To
   const [showRevoked, setShowRevoked] = useState(false);
   const { sort, toggle } = useSort<Key>({ key: 'createdAt', dir: -1 });
 
-  const shown = useMemo(() => sortRows(tokens.filter((t) => showRevoked || !t.revokedAt), (t) => t[sort.key], sort.dir), [tokens, sort, showRevoked]);
+  const shown = useMemo(
+    () =>
+      sortRows(
+        tokens.filter((t) => showRevoked || !t.revokedAt),
+        (t) => t[sort.key],
+        sort.dir,
+      ),
+    [tokens, sort, showRevoked],
+  );
 
   async function create(e: SubmitEvent<HTMLFormElement>) {
     e.preventDefault();
@@ -65,10 +73,12 @@ export default function TokensAdmin({ initial, timeZone, origin }: { initial: To
       <section aria-labelledby="tok-h" className="min-w-0 space-y-3">
         <div className="flex flex-wrap items-end gap-3">
           <h2 id="tok-h" className="mr-auto">
-            API tokens <span className="text-sm font-normal text-ink-soft">({tokens.filter((t) => !t.revokedAt).length} in use)</span>
+            API tokens{' '}
+            <span className="text-sm font-normal text-ink-soft">({tokens.filter((t) => !t.revokedAt).length} in use)</span>
           </h2>
           <label className="flex items-center gap-2 font-normal">
-            <input type="checkbox" className="w-auto" checked={showRevoked} onChange={(e) => setShowRevoked(e.target.checked)} /> Show revoked
+            <input type="checkbox" className="w-auto" checked={showRevoked} onChange={(e) => setShowRevoked(e.target.checked)} />{' '}
+            Show revoked
           </label>
           <button
             type="button"
@@ -88,7 +98,9 @@ export default function TokensAdmin({ initial, timeZone, origin }: { initial: To
           <div role="status" className="rounded-md border-2 border-lacquer bg-white p-4">
             <p className="font-bold">Token “{secret.name}” — copy it now. It is shown this once; Coatrail keeps only a hash.</p>
             <div className="mt-2 flex gap-2">
-              <code className="num flex-1 select-all break-all rounded border border-slate-line bg-slate-panel/50 px-2 py-1.5">{secret.value}</code>
+              <code className="num flex-1 select-all break-all rounded border border-slate-line bg-slate-panel/50 px-2 py-1.5">
+                {secret.value}
+              </code>
               <button
                 type="button"
                 className="btn-quiet"
@@ -100,7 +112,10 @@ export default function TokensAdmin({ initial, timeZone, origin }: { initial: To
               </button>
             </div>
             <p className="mt-2 text-sm text-ink-soft">
-              Use it as <code className="num">curl -H "Authorization: Bearer {secret.value.slice(0, 8)}…" {origin}/api/v1/channels</code>
+              Use it as{' '}
+              <code className="num">
+                curl -H "Authorization: Bearer {secret.value.slice(0, 8)}…" {origin}/api/v1/channels
+              </code>
             </p>
             <button type="button" className="mt-2 text-sm underline" onClick={() => setSecret(null)}>
               I have stored it — hide
@@ -112,13 +127,27 @@ export default function TokensAdmin({ initial, timeZone, origin }: { initial: To
           <table>
             <thead>
               <tr>
-                <SortTh k="name" sort={sort} toggle={toggle}>Name</SortTh>
-                <SortTh k="role" sort={sort} toggle={toggle}>Role</SortTh>
-                <SortTh k="prefix" sort={sort} toggle={toggle}>Starts with</SortTh>
-                <SortTh k="createdAt" sort={sort} toggle={toggle}>Created</SortTh>
-                <SortTh k="createdBy" sort={sort} toggle={toggle}>By</SortTh>
-                <SortTh k="lastUsedAt" sort={sort} toggle={toggle}>Last used</SortTh>
-                <SortTh k="revokedAt" sort={sort} toggle={toggle}>Status</SortTh>
+                <SortTh k="name" sort={sort} toggle={toggle}>
+                  Name
+                </SortTh>
+                <SortTh k="role" sort={sort} toggle={toggle}>
+                  Role
+                </SortTh>
+                <SortTh k="prefix" sort={sort} toggle={toggle}>
+                  Starts with
+                </SortTh>
+                <SortTh k="createdAt" sort={sort} toggle={toggle}>
+                  Created
+                </SortTh>
+                <SortTh k="createdBy" sort={sort} toggle={toggle}>
+                  By
+                </SortTh>
+                <SortTh k="lastUsedAt" sort={sort} toggle={toggle}>
+                  Last used
+                </SortTh>
+                <SortTh k="revokedAt" sort={sort} toggle={toggle}>
+                  Status
+                </SortTh>
                 <th scope="col">Action</th>
               </tr>
             </thead>
@@ -138,10 +167,21 @@ export default function TokensAdmin({ initial, timeZone, origin }: { initial: To
                   <td className="num whitespace-nowrap">{formatSiteTime(t.createdAt, timeZone)}</td>
                   <td className="font-mono">{t.createdBy}</td>
                   <td className="num whitespace-nowrap">{t.lastUsedAt ? formatSiteTime(t.lastUsedAt, timeZone) : 'never'}</td>
-                  <td className="whitespace-nowrap">{t.revokedAt ? <span className="tag border-ink-faint">✕ Revoked {formatSiteTime(t.revokedAt, timeZone)}</span> : <span className="tag border-slate-line">In use</span>}</td>
+                  <td className="whitespace-nowrap">
+                    {t.revokedAt ? (
+                      <span className="tag border-ink-faint">✕ Revoked {formatSiteTime(t.revokedAt, timeZone)}</span>
+                    ) : (
+                      <span className="tag border-slate-line">In use</span>
+                    )}
+                  </td>
                   <td>
                     {!t.revokedAt && (
-                      <button type="button" className="btn-quiet px-2 py-1 text-sm" disabled={busy === `t${t.id}`} onClick={() => void revoke(t)}>
+                      <button
+                        type="button"
+                        className="btn-quiet px-2 py-1 text-sm"
+                        disabled={busy === `t${t.id}`}
+                        onClick={() => void revoke(t)}
+                      >
                         Revoke
                       </button>
                     )}
@@ -151,14 +191,22 @@ export default function TokensAdmin({ initial, timeZone, origin }: { initial: To
             </tbody>
           </table>
         </div>
-        <p className="text-sm text-ink-soft">Last use is recorded at most once a minute. A token acts with its role; what it changes is audited under its name.</p>
+        <p className="text-sm text-ink-soft">
+          Last use is recorded at most once a minute. A token acts with its role; what it changes is audited under its name.
+        </p>
       </section>
       <section aria-labelledby="new-tok-h" className="panel h-fit">
         <h2 id="new-tok-h">New token</h2>
         <form onSubmit={create} className="mt-3 space-y-3" noValidate>
           <div>
             <label htmlFor="tok-name">Name (which client uses it)</label>
-            <input id="tok-name" value={name} onChange={(e) => setName(e.target.value)} aria-invalid={!!nameError} aria-describedby={nameError ? 'tok-name-err' : undefined} />
+            <input
+              id="tok-name"
+              value={name}
+              onChange={(e) => setName(e.target.value)}
+              aria-invalid={!!nameError}
+              aria-describedby={nameError ? 'tok-name-err' : undefined}
+            />
             {nameError && (
               <p id="tok-name-err" className="mt-1 text-sm text-alert-high">
                 ✕ {nameError}

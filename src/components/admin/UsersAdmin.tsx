@@ -33,7 +33,11 @@ export default function UsersAdmin({ initial, timeZone, currentUserId }: Props) 
 
   const shown = useMemo(() => {
     const f = filter.trim().toLowerCase();
-    const rows = users.filter((u) => (showInactive || u.active) && (!f || [u.username, u.displayName, u.email ?? '', u.role].some((s) => s.toLowerCase().includes(f))));
+    const rows = users.filter(
+      (u) =>
+        (showInactive || u.active) &&
+        (!f || [u.username, u.displayName, u.email ?? '', u.role].some((s) => s.toLowerCase().includes(f))),
+    );
     return sortRows(rows, (u) => (sort.key === 'active' ? (u.active ? 1 : 0) : u[sort.key]), sort.dir);
   }, [users, filter, showInactive, sort]);
 
@@ -55,7 +59,12 @@ export default function UsersAdmin({ initial, timeZone, currentUserId }: Props) 
       setForm(emptyForm);
       setSetPassword(false);
       setShowForm(false);
-      setNotice({ kind: 'ok', text: r.invited ? `${r.user.username} created; a link to set a password went to ${r.user.email} (valid ${RESET_LINK_MINUTES} minutes).` : `${r.user.username} created with the password you set.` });
+      setNotice({
+        kind: 'ok',
+        text: r.invited
+          ? `${r.user.username} created; a link to set a password went to ${r.user.email} (valid ${RESET_LINK_MINUTES} minutes).`
+          : `${r.user.username} created with the password you set.`,
+      });
     } catch (err) {
       const fe = (err as { errors?: { path: string; message: string }[] }).errors ?? [];
       setFieldErrors(Object.fromEntries(fe.map((f) => [f.path, f.message])));
@@ -80,7 +89,10 @@ export default function UsersAdmin({ initial, timeZone, currentUserId }: Props) 
   async function sendReset(u: UserView) {
     setBusy(`u${u.id}`);
     try {
-      const r = await apiFetch<{ to: string; expiresInMinutes: number }>(`/api/v1/admin/users/${u.id}/password-reset`, { method: 'POST', body: {} });
+      const r = await apiFetch<{ to: string; expiresInMinutes: number }>(`/api/v1/admin/users/${u.id}/password-reset`, {
+        method: 'POST',
+        body: {},
+      });
       setNotice({ kind: 'ok', text: `A one-time link went to ${r.to}; it expires in ${r.expiresInMinutes} minutes.` });
     } catch (err) {
       setNotice({ kind: 'error', text: problemText(err) });
@@ -135,15 +147,29 @@ export default function UsersAdmin({ initial, timeZone, currentUserId }: Props) 
             <fieldset className="space-y-1 sm:col-span-2">
               <legend className="mb-1 text-sm font-bold text-ink-soft">Password</legend>
               <label className="flex items-center gap-2 font-normal">
-                <input type="radio" className="w-auto" name="pw" checked={!setPassword} onChange={() => setSetPassword(false)} /> E-mail them a link to set it (valid {RESET_LINK_MINUTES} min)
+                <input type="radio" className="w-auto" name="pw" checked={!setPassword} onChange={() => setSetPassword(false)} />{' '}
+                E-mail them a link to set it (valid {RESET_LINK_MINUTES} min)
               </label>
               <label className="flex items-center gap-2 font-normal">
-                <input type="radio" className="w-auto" name="pw" checked={setPassword} onChange={() => setSetPassword(true)} /> Set an initial password now
+                <input type="radio" className="w-auto" name="pw" checked={setPassword} onChange={() => setSetPassword(true)} />{' '}
+                Set an initial password now
               </label>
             </fieldset>
-            {setPassword ? field('password', `Initial password (${PASSWORD_MIN}+ characters)`, { type: 'password', autoComplete: 'new-password' }) : <div />}
+            {setPassword ? (
+              field('password', `Initial password (${PASSWORD_MIN}+ characters)`, {
+                type: 'password',
+                autoComplete: 'new-password',
+              })
+            ) : (
+              <div />
+            )}
             <div className="self-end">
-              <button className="btn w-full justify-center" type="submit" disabled={busy === 'create'} aria-busy={busy === 'create'}>
+              <button
+                className="btn w-full justify-center"
+                type="submit"
+                disabled={busy === 'create'}
+                aria-busy={busy === 'create'}
+              >
                 {busy === 'create' ? 'Creating…' : 'Create user'}
               </button>
             </div>
@@ -153,14 +179,30 @@ export default function UsersAdmin({ initial, timeZone, currentUserId }: Props) 
       <section aria-labelledby="users-h" className="min-w-0 space-y-3">
         <div className="flex flex-wrap items-end gap-3">
           <h2 id="users-h" className="mr-auto">
-            People <span className="text-sm font-normal text-ink-soft">({users.filter((u) => u.active).length} active, {users.filter((u) => !u.active).length} deactivated)</span>
+            People{' '}
+            <span className="text-sm font-normal text-ink-soft">
+              ({users.filter((u) => u.active).length} active, {users.filter((u) => !u.active).length} deactivated)
+            </span>
           </h2>
           <div>
             <label htmlFor="u-filter">Filter</label>
-            <input id="u-filter" type="search" value={filter} onChange={(e) => setFilter(e.target.value)} placeholder="name, e-mail, role" className="w-56" />
+            <input
+              id="u-filter"
+              type="search"
+              value={filter}
+              onChange={(e) => setFilter(e.target.value)}
+              placeholder="name, e-mail, role"
+              className="w-56"
+            />
           </div>
           <label className="flex items-center gap-2 font-normal">
-            <input type="checkbox" className="w-auto" checked={showInactive} onChange={(e) => setShowInactive(e.target.checked)} /> Show deactivated
+            <input
+              type="checkbox"
+              className="w-auto"
+              checked={showInactive}
+              onChange={(e) => setShowInactive(e.target.checked)}
+            />{' '}
+            Show deactivated
           </label>
           {!showForm && (
             <button type="button" className="btn" onClick={() => setShowForm(true)}>
@@ -174,7 +216,15 @@ export default function UsersAdmin({ initial, timeZone, currentUserId }: Props) 
               downloadCsv(
                 'coatrail-users.csv',
                 ['username', 'name', 'email', 'role', 'active', 'last_sign_in_utc', 'sessions'],
-                shown.map((u) => [u.username, u.displayName, u.email, u.role, u.active ? 'yes' : 'no', u.lastSignInAt, u.sessions]),
+                shown.map((u) => [
+                  u.username,
+                  u.displayName,
+                  u.email,
+                  u.role,
+                  u.active ? 'yes' : 'no',
+                  u.lastSignInAt,
+                  u.sessions,
+                ]),
               )
             }
           >
@@ -186,13 +236,27 @@ export default function UsersAdmin({ initial, timeZone, currentUserId }: Props) 
           <table>
             <thead>
               <tr>
-                <SortTh k="username" sort={sort} toggle={toggle}>Username</SortTh>
-                <SortTh k="displayName" sort={sort} toggle={toggle}>Name</SortTh>
-                <SortTh k="email" sort={sort} toggle={toggle}>E-mail</SortTh>
-                <SortTh k="role" sort={sort} toggle={toggle}>Role</SortTh>
-                <SortTh k="active" sort={sort} toggle={toggle}>Status</SortTh>
-                <SortTh k="lastSignInAt" sort={sort} toggle={toggle}>Last sign-in</SortTh>
-                <SortTh k="sessions" sort={sort} toggle={toggle}>Sessions</SortTh>
+                <SortTh k="username" sort={sort} toggle={toggle}>
+                  Username
+                </SortTh>
+                <SortTh k="displayName" sort={sort} toggle={toggle}>
+                  Name
+                </SortTh>
+                <SortTh k="email" sort={sort} toggle={toggle}>
+                  E-mail
+                </SortTh>
+                <SortTh k="role" sort={sort} toggle={toggle}>
+                  Role
+                </SortTh>
+                <SortTh k="active" sort={sort} toggle={toggle}>
+                  Status
+                </SortTh>
+                <SortTh k="lastSignInAt" sort={sort} toggle={toggle}>
+                  Last sign-in
+                </SortTh>
+                <SortTh k="sessions" sort={sort} toggle={toggle}>
+                  Sessions
+                </SortTh>
                 <th scope="col">Actions</th>
               </tr>
             </thead>
@@ -224,7 +288,9 @@ export default function UsersAdmin({ initial, timeZone, currentUserId }: Props) 
                         title={self ? 'Another administrator changes your own role.' : undefined}
                         onChange={(e) => {
                           const role = e.target.value as Role;
-                          if (window.confirm(`Change ${u.username}'s role from ${ROLE_LABELS[u.role]} to ${ROLE_LABELS[role]}?`)) {
+                          if (
+                            window.confirm(`Change ${u.username}'s role from ${ROLE_LABELS[u.role]} to ${ROLE_LABELS[role]}?`)
+                          ) {
                             void patch(u, { role }, `${u.username} is now ${ROLE_LABELS[role]}.`);
                           }
                         }}
@@ -236,13 +302,25 @@ export default function UsersAdmin({ initial, timeZone, currentUserId }: Props) 
                         ))}
                       </select>
                     </td>
-                    <td>{u.active ? <span className="tag border-slate-line">Active</span> : <span className="tag border-ink-faint">◌ Deactivated</span>}</td>
+                    <td>
+                      {u.active ? (
+                        <span className="tag border-slate-line">Active</span>
+                      ) : (
+                        <span className="tag border-ink-faint">◌ Deactivated</span>
+                      )}
+                    </td>
                     <td className="num whitespace-nowrap">{u.lastSignInAt ? formatSiteTime(u.lastSignInAt, timeZone) : '—'}</td>
                     <td className="num text-right">{u.sessions}</td>
                     <td className="whitespace-nowrap">
                       <div className="flex gap-1.5">
                         {u.active && (
-                          <button type="button" className="btn-quiet px-2 py-1 text-sm" disabled={rowBusy || !u.email} onClick={() => void sendReset(u)} title={u.email ? undefined : 'Add an e-mail address first'}>
+                          <button
+                            type="button"
+                            className="btn-quiet px-2 py-1 text-sm"
+                            disabled={rowBusy || !u.email}
+                            onClick={() => void sendReset(u)}
+                            title={u.email ? undefined : 'Add an e-mail address first'}
+                          >
                             Send reset link
                           </button>
                         )}
@@ -253,7 +331,11 @@ export default function UsersAdmin({ initial, timeZone, currentUserId }: Props) 
                               className="btn-quiet px-2 py-1 text-sm"
                               disabled={rowBusy}
                               onClick={() => {
-                                if (window.confirm(`Deactivate ${u.username}? Their sessions end now; their records keep their name.`)) {
+                                if (
+                                  window.confirm(
+                                    `Deactivate ${u.username}? Their sessions end now; their records keep their name.`,
+                                  )
+                                ) {
                                   void patch(u, { active: false }, `${u.username} is deactivated and signed out everywhere.`);
                                 }
                               }}
@@ -261,7 +343,12 @@ export default function UsersAdmin({ initial, timeZone, currentUserId }: Props) 
                               Deactivate
                             </button>
                           ) : (
-                            <button type="button" className="btn-quiet px-2 py-1 text-sm" disabled={rowBusy} onClick={() => void patch(u, { active: true }, `${u.username} is active again.`)}>
+                            <button
+                              type="button"
+                              className="btn-quiet px-2 py-1 text-sm"
+                              disabled={rowBusy}
+                              onClick={() => void patch(u, { active: true }, `${u.username} is active again.`)}
+                            >
                               Reactivate
                             </button>
                           ))}
@@ -273,9 +360,11 @@ export default function UsersAdmin({ initial, timeZone, currentUserId }: Props) 
             </tbody>
           </table>
         </div>
-        <p className="text-sm text-ink-soft">Users are never deleted: the records they made keep their name. Deactivating someone ends their sessions at once. Every change here is written to the audit trail.</p>
+        <p className="text-sm text-ink-soft">
+          Users are never deleted: the records they made keep their name. Deactivating someone ends their sessions at once. Every
+          change here is written to the audit trail.
+        </p>
       </section>
-
     </div>
   );
 }

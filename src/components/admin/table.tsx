@@ -31,11 +31,27 @@ export function sortRows<T>(rows: readonly T[], get: (row: T) => string | number
   });
 }
 
-export function SortTh<K extends string>({ k, sort, toggle, children, className }: { k: K; sort: Sort<K>; toggle: (k: K) => void; children: ReactNode; className?: string }) {
+export function SortTh<K extends string>({
+  k,
+  sort,
+  toggle,
+  children,
+  className,
+}: {
+  k: K;
+  sort: Sort<K>;
+  toggle: (k: K) => void;
+  children: ReactNode;
+  className?: string;
+}) {
   const active = sort.key === k;
   return (
     <th scope="col" aria-sort={active ? (sort.dir === 1 ? 'ascending' : 'descending') : 'none'} className={className}>
-      <button type="button" onClick={() => toggle(k)} className="inline-flex items-center gap-1 font-bold text-ink-soft hover:text-ink">
+      <button
+        type="button"
+        onClick={() => toggle(k)}
+        className="inline-flex items-center gap-1 font-bold text-ink-soft hover:text-ink"
+      >
         {children}
         <span aria-hidden="true" className="text-xs text-ink-faint">
           {active ? (sort.dir === 1 ? '▲' : '▼') : '↕'}
@@ -84,7 +100,8 @@ export function NoticeLine({ notice, onClose }: { notice: Notice; onClose: () =>
 export function problemText(e: unknown): string {
   if (e && typeof e === 'object' && 'title' in e) {
     const p = e as { title: string; detail?: string; errors?: { path: string; message: string }[] };
-    if (p.errors?.length) return p.errors.map((f) => (f.path && f.path !== '(body)' ? `${f.path}: ${f.message}` : f.message)).join(' ');
+    if (p.errors?.length)
+      return p.errors.map((f) => (f.path && f.path !== '(body)' ? `${f.path}: ${f.message}` : f.message)).join(' ');
     return p.detail ? `${p.title}: ${p.detail}` : p.title;
   }
   return e instanceof Error ? e.message : 'Something went wrong.';

@@ -26,7 +26,17 @@ import { ISA_18_2_BENCHMARKS, RATE_BAND_LABELS, type AlarmKpiReport } from '../.
 import { PRIORITY_MEANINGS } from '../../lib/shared/alarms.ts';
 import { formatAge, formatRange, formatSiteTime, fromLocalInput, tickLabel, toLocalInput } from '../../lib/shared/time.ts';
 
-ChartJS.register(BarController, BarElement, CategoryScale, LinearScale, LineController, LineElement, PointElement, Tooltip, Legend);
+ChartJS.register(
+  BarController,
+  BarElement,
+  CategoryScale,
+  LinearScale,
+  LineController,
+  LineElement,
+  PointElement,
+  Tooltip,
+  Legend,
+);
 
 type Health = AlarmKpiReport & { per10Min: { startMs: number; count: number }[]; meanTimeToAckMs: number | null };
 
@@ -98,7 +108,13 @@ export default function AlarmHealth({ timeZone, nowMs }: Props) {
       <section className="panel flex flex-wrap items-end gap-4" aria-label="Period">
         <div role="group" aria-label="Quick periods" className="flex flex-wrap gap-1">
           {PRESETS.map(([key, label, ms]) => (
-            <button key={key} type="button" className={preset === key ? 'btn' : 'btn-quiet'} aria-pressed={preset === key} onClick={() => choosePreset(key, ms)}>
+            <button
+              key={key}
+              type="button"
+              className={preset === key ? 'btn' : 'btn-quiet'}
+              aria-pressed={preset === key}
+              onClick={() => choosePreset(key, ms)}
+            >
               {label}
             </button>
           ))}
@@ -118,7 +134,14 @@ export default function AlarmHealth({ timeZone, nowMs }: Props) {
         </form>
         <div className="w-40">
           <label htmlFor="h-pos">Operator positions</label>
-          <input id="h-pos" type="number" min={1} max={50} value={positions} onChange={(e) => setPositions(Math.max(1, Math.min(50, Math.round(Number(e.target.value)) || 1)))} />
+          <input
+            id="h-pos"
+            type="number"
+            min={1}
+            max={50}
+            value={positions}
+            onChange={(e) => setPositions(Math.max(1, Math.min(50, Math.round(Number(e.target.value)) || 1)))}
+          />
         </div>
         <a className="btn-quiet" href={`/api/v1/alarms/kpi?${query}&format=csv`} download>
           Export CSV
@@ -163,10 +186,42 @@ function Report({ data, timeZone }: { data: Health; timeZone: string }) {
       data: {
         labels,
         datasets: [
-          { type: 'bar', label: 'Alarms in the 10 minutes', data: data.per10Min.map((b) => b.count), backgroundColor: INK, order: 2 },
-          { type: 'line', label: `About ${ISA_18_2_BENCHMARKS.acceptablePer10Min * pos} per 10 min: very likely acceptable`, data: flat(ISA_18_2_BENCHMARKS.acceptablePer10Min * pos), borderColor: FAINT, borderDash: [4, 3], pointRadius: 0, borderWidth: 1.5, order: 1 },
-          { type: 'line', label: `About ${ISA_18_2_BENCHMARKS.maxManageablePer10Min * pos} per 10 min: most manageable`, data: flat(ISA_18_2_BENCHMARKS.maxManageablePer10Min * pos), borderColor: AMBER, borderDash: [8, 3], pointRadius: 0, borderWidth: 1.5, order: 1 },
-          { type: 'line', label: `More than ${ISA_18_2_BENCHMARKS.floodMoreThan * pos} per 10 min: flood`, data: flat(ISA_18_2_BENCHMARKS.floodMoreThan * pos), borderColor: RED, pointRadius: 0, borderWidth: 1.5, order: 1 },
+          {
+            type: 'bar',
+            label: 'Alarms in the 10 minutes',
+            data: data.per10Min.map((b) => b.count),
+            backgroundColor: INK,
+            order: 2,
+          },
+          {
+            type: 'line',
+            label: `About ${ISA_18_2_BENCHMARKS.acceptablePer10Min * pos} per 10 min: very likely acceptable`,
+            data: flat(ISA_18_2_BENCHMARKS.acceptablePer10Min * pos),
+            borderColor: FAINT,
+            borderDash: [4, 3],
+            pointRadius: 0,
+            borderWidth: 1.5,
+            order: 1,
+          },
+          {
+            type: 'line',
+            label: `About ${ISA_18_2_BENCHMARKS.maxManageablePer10Min * pos} per 10 min: most manageable`,
+            data: flat(ISA_18_2_BENCHMARKS.maxManageablePer10Min * pos),
+            borderColor: AMBER,
+            borderDash: [8, 3],
+            pointRadius: 0,
+            borderWidth: 1.5,
+            order: 1,
+          },
+          {
+            type: 'line',
+            label: `More than ${ISA_18_2_BENCHMARKS.floodMoreThan * pos} per 10 min: flood`,
+            data: flat(ISA_18_2_BENCHMARKS.floodMoreThan * pos),
+            borderColor: RED,
+            pointRadius: 0,
+            borderWidth: 1.5,
+            order: 1,
+          },
         ],
       },
       options: {
@@ -174,7 +229,11 @@ function Report({ data, timeZone }: { data: Health; timeZone: string }) {
         maintainAspectRatio: false,
         interaction: { mode: 'index', intersect: false },
         scales: {
-          x: { ticks: { autoSkip: true, maxTicksLimit: 12, maxRotation: 0 }, title: { display: true, text: `10-minute periods (${timeZone})` }, grid: { display: false } },
+          x: {
+            ticks: { autoSkip: true, maxTicksLimit: 12, maxRotation: 0 },
+            title: { display: true, text: `10-minute periods (${timeZone})` },
+            grid: { display: false },
+          },
           y: { beginAtZero: true, title: { display: true, text: 'alarms per 10 min' }, ticks: { precision: 0 } },
         },
         plugins: { legend: { position: 'bottom', labels: { boxWidth: 18 } } },
@@ -204,10 +263,18 @@ function Report({ data, timeZone }: { data: Health; timeZone: string }) {
       data: {
         labels: ['High', 'Medium', 'Low'],
         datasets: [
-          { label: 'This period (%)', data: [r.priorities.percent.high, r.priorities.percent.medium, r.priorities.percent.low], backgroundColor: INK },
+          {
+            label: 'This period (%)',
+            data: [r.priorities.percent.high, r.priorities.percent.medium, r.priorities.percent.low],
+            backgroundColor: INK,
+          },
           {
             label: 'Common practice target (%)',
-            data: [r.priorities.commonPracticeTargetPercent.high, r.priorities.commonPracticeTargetPercent.medium, r.priorities.commonPracticeTargetPercent.low],
+            data: [
+              r.priorities.commonPracticeTargetPercent.high,
+              r.priorities.commonPracticeTargetPercent.medium,
+              r.priorities.commonPracticeTargetPercent.low,
+            ],
             backgroundColor: '#c4c8c6',
           },
         ],
@@ -245,12 +312,18 @@ function Report({ data, timeZone }: { data: Health; timeZone: string }) {
           value={`${r.floods.percentTimeInFlood.toFixed(1)} %`}
           note={`${r.floods.periods.length} flood period${r.floods.periods.length === 1 ? '' : 's'}; target below ${ISA_18_2_BENCHMARKS.timeInFloodPercentBelow} %`}
         />
-        <Figure label="Mean time to acknowledge" value={data.meanTimeToAckMs === null ? '—' : formatAge(data.meanTimeToAckMs)} note="of the acknowledged alarms" />
+        <Figure
+          label="Mean time to acknowledge"
+          value={data.meanTimeToAckMs === null ? '—' : formatAge(data.meanTimeToAckMs)}
+          note="of the acknowledged alarms"
+        />
       </section>
 
       <section className="panel" aria-labelledby="rate-h">
         <h2 id="rate-h">Alarms per 10 minutes against the benchmark</h2>
-        <p className="text-xs text-ink-soft">{r.rate.benchmark}; lines scaled to {pos} position{pos > 1 ? 's' : ''}.</p>
+        <p className="text-xs text-ink-soft">
+          {r.rate.benchmark}; lines scaled to {pos} position{pos > 1 ? 's' : ''}.
+        </p>
         {r.totalAlarms === 0 ? (
           <p className="empty mt-2">No alarms were raised in this period.</p>
         ) : (
@@ -267,7 +340,12 @@ function Report({ data, timeZone }: { data: Health; timeZone: string }) {
             <p className="empty mt-2">None.</p>
           ) : (
             <>
-              <div className="mt-2" style={{ height: `${Math.max(120, r.topSources.length * 28 + 40)}px` }} role="img" aria-label="Bar chart of the most frequent sources">
+              <div
+                className="mt-2"
+                style={{ height: `${Math.max(120, r.topSources.length * 28 + 40)}px` }}
+                role="img"
+                aria-label="Bar chart of the most frequent sources"
+              >
                 <Bar data={sourcesChart.data} options={sourcesChart.options} />
               </div>
               <table className="mt-2">
@@ -299,7 +377,8 @@ function Report({ data, timeZone }: { data: Health; timeZone: string }) {
           <ul className="mt-2 space-y-0.5 text-sm">
             {(['high', 'medium', 'low'] as const).map((p) => (
               <li key={p}>
-                <span className="font-bold">{p}</span>: {r.priorities.counts[p]} ({r.priorities.percent[p].toFixed(1)} %, target ≈ {r.priorities.commonPracticeTargetPercent[p]} %) — {PRIORITY_MEANINGS[p]}
+                <span className="font-bold">{p}</span>: {r.priorities.counts[p]} ({r.priorities.percent[p].toFixed(1)} %, target ≈{' '}
+                {r.priorities.commonPracticeTargetPercent[p]} %) — {PRIORITY_MEANINGS[p]}
               </li>
             ))}
           </ul>
@@ -333,7 +412,9 @@ function Report({ data, timeZone }: { data: Health; timeZone: string }) {
         </section>
         <section className="panel" aria-labelledby="chat-h">
           <h2 id="chat-h">Chattering sources</h2>
-          <p className="text-xs text-ink-soft">{ISA_18_2_BENCHMARKS.chatterCount} or more activations within 60 s; target: none.</p>
+          <p className="text-xs text-ink-soft">
+            {ISA_18_2_BENCHMARKS.chatterCount} or more activations within 60 s; target: none.
+          </p>
           {r.chattering.length === 0 ? (
             <p className="mt-2 text-sm">None — good.</p>
           ) : (

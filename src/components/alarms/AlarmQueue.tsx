@@ -287,9 +287,23 @@ export default function AlarmQueue({ initial, role, timeZone, focusId, nowMs }: 
         </label>
         <div className="ml-auto flex flex-wrap items-center gap-3 text-sm">
           <span aria-live="polite" className="text-ink-soft">
-            {loading ? 'Refreshing…' : live.lastMs ? `Live — last change ${formatAge(now - live.lastMs)} ago` : 'Live — waiting for changes'}
+            {loading
+              ? 'Refreshing…'
+              : live.lastMs
+                ? `Live — last change ${formatAge(now - live.lastMs)} ago`
+                : 'Live — waiting for changes'}
           </span>
-          <button type="button" className="btn-quiet" aria-pressed={muted} onClick={toggleMute} title={soundBlocked && !muted ? 'The browser holds sound until you click or press a key on this page' : 'Sound for new high and medium alarms'}>
+          <button
+            type="button"
+            className="btn-quiet"
+            aria-pressed={muted}
+            onClick={toggleMute}
+            title={
+              soundBlocked && !muted
+                ? 'The browser holds sound until you click or press a key on this page'
+                : 'Sound for new high and medium alarms'
+            }
+          >
             <SpeakerIcon muted={muted} /> {muted ? 'Sound off' : soundBlocked ? 'Sound on — click to allow' : 'Sound on'}
           </button>
         </div>
@@ -336,7 +350,11 @@ export default function AlarmQueue({ initial, role, timeZone, focusId, nowMs }: 
       {rows.length === 0 ? (
         <div className="empty" role="status">
           <p className="font-bold text-ink">
-            {view === 'open' ? 'No alarms need attention.' : view === 'held' ? 'No alarms are shelved or out of service.' : 'No recent alarms.'}
+            {view === 'open'
+              ? 'No alarms need attention.'
+              : view === 'held'
+                ? 'No alarms are shelved or out of service.'
+                : 'No recent alarms.'}
           </p>
           {priorities.size < 3 && <p className="mt-1 text-sm">Some priorities are hidden by the filter above.</p>}
         </div>
@@ -345,7 +363,11 @@ export default function AlarmQueue({ initial, role, timeZone, focusId, nowMs }: 
           <table aria-label={`Alarms: ${VIEW_LABELS[view]}`}>
             <thead>
               <tr>
-                {mayAck && <th className="w-8"><span className="sr-only">Select</span></th>}
+                {mayAck && (
+                  <th className="w-8">
+                    <span className="sr-only">Select</span>
+                  </th>
+                )}
                 <th>State</th>
                 <th>Priority</th>
                 <th>Source</th>
@@ -392,8 +414,8 @@ export default function AlarmQueue({ initial, role, timeZone, focusId, nowMs }: 
         </div>
       )}
       <p className="text-xs text-ink-soft">
-        Legend: <span aria-hidden="true">●</span> needs acknowledgement · <span aria-hidden="true">○</span> acknowledged, still active ·{' '}
-        <span aria-hidden="true">◌</span> cleared, not yet acknowledged · <span aria-hidden="true">‖</span> shelved ·{' '}
+        Legend: <span aria-hidden="true">●</span> needs acknowledgement · <span aria-hidden="true">○</span> acknowledged, still
+        active · <span aria-hidden="true">◌</span> cleared, not yet acknowledged · <span aria-hidden="true">‖</span> shelved ·{' '}
         <span aria-hidden="true">⊗</span> out of service. Priority: ▲ high, ◆ medium, ■ low. Times in {timeZone}.
       </p>
     </div>
@@ -458,12 +480,21 @@ function AlarmRow(p: RowProps) {
         {p.selectable && (
           <td className={waiting ? `border-l-4 ${PRIORITY_CLASS[a.priority].split(' ')[1]}` : 'border-l-4 border-l-transparent'}>
             {waiting && (
-              <input type="checkbox" className="w-auto" checked={p.selected} onChange={p.onSelect} aria-label={`Select alarm ${a.id}: ${a.sourceLabel}`} />
+              <input
+                type="checkbox"
+                className="w-auto"
+                checked={p.selected}
+                onChange={p.onSelect}
+                aria-label={`Select alarm ${a.id}: ${a.sourceLabel}`}
+              />
             )}
           </td>
         )}
         <td className="whitespace-nowrap">
-          <span aria-hidden="true" className={`mr-1 text-base ${waiting ? PRIORITY_CLASS[a.priority].split(' ')[0] : 'text-ink-soft'}`}>
+          <span
+            aria-hidden="true"
+            className={`mr-1 text-base ${waiting ? PRIORITY_CLASS[a.priority].split(' ')[0] : 'text-ink-soft'}`}
+          >
             {STATE_ICON[a.state]}
           </span>
           <span className={waiting ? 'font-bold' : 'font-normal'}>{label}</span>
@@ -564,7 +595,9 @@ function Spark({ a }: { a: AlarmView }) {
     let gone = false;
     let p = sparkCache.get(key);
     if (!p) {
-      p = apiFetch<ReadingsResponse>(`/api/v1/channels/${a.channelId}/readings?from=${Math.round(from)}&to=${Math.round(to) + 1}&maxPoints=120`);
+      p = apiFetch<ReadingsResponse>(
+        `/api/v1/channels/${a.channelId}/readings?from=${Math.round(from)}&to=${Math.round(to) + 1}&maxPoints=120`,
+      );
       sparkCache.set(key, p);
       p.catch(() => sparkCache.delete(key));
     }
@@ -579,8 +612,17 @@ function Spark({ a }: { a: AlarmView }) {
   const s = sparkline(points, from, to, SPARK_W, SPARK_H, { alarmAtMs: a.lastActivatedAtMs, limit: a.limit, gapMs: 120_000 });
   if (!s) return <span className="text-xs font-normal text-ink-soft">No readings around the alarm</span>;
   return (
-    <svg width={SPARK_W} height={SPARK_H} viewBox={`0 0 ${SPARK_W} ${SPARK_H}`} role="img" aria-label={`Trend of the channel from 10 minutes before the alarm, range ${s.min.toFixed(2)}–${s.max.toFixed(2)} ${data.unit}`} className="block">
-      {s.limitY !== null && <line x1={0} x2={SPARK_W} y1={s.limitY} y2={s.limitY} stroke="#b3261e" strokeDasharray="3 2" strokeWidth={1} />}
+    <svg
+      width={SPARK_W}
+      height={SPARK_H}
+      viewBox={`0 0 ${SPARK_W} ${SPARK_H}`}
+      role="img"
+      aria-label={`Trend of the channel from 10 minutes before the alarm, range ${s.min.toFixed(2)}–${s.max.toFixed(2)} ${data.unit}`}
+      className="block"
+    >
+      {s.limitY !== null && (
+        <line x1={0} x2={SPARK_W} y1={s.limitY} y2={s.limitY} stroke="#b3261e" strokeDasharray="3 2" strokeWidth={1} />
+      )}
       {s.alarmX !== null && <line x1={s.alarmX} x2={s.alarmX} y1={0} y2={SPARK_H} stroke="#7b858c" strokeWidth={1} />}
       <path d={s.path} fill="none" stroke="#2d3a42" strokeWidth={1.4} />
     </svg>
@@ -601,7 +643,8 @@ function History({ id, timeZone, updatedAtMs }: { id: number; timeZone: string; 
     <ol className="space-y-0.5 text-sm font-normal" aria-label={`History of alarm ${id}`}>
       {events.map((e) => (
         <li key={e.id}>
-          <span className="num text-xs">{formatSiteTime(e.atMs, timeZone, { seconds: true })}</span> — {EVENT_LABELS[e.event] ?? e.event}
+          <span className="num text-xs">{formatSiteTime(e.atMs, timeZone, { seconds: true })}</span> —{' '}
+          {EVENT_LABELS[e.event] ?? e.event}
           {e.userName ? ` by ${e.userName}` : ''} → {STATE_LABELS[e.toState]}
           {e.comment ? <span className="text-ink-soft">: “{e.comment}”</span> : null}
         </li>
@@ -733,7 +776,15 @@ function ActionForm({
       )}
       <div className="flex gap-2">
         <button type="submit" className="btn" disabled={busy}>
-          {busy ? 'Saving…' : form.kind === 'ack' ? 'Acknowledge' : form.kind === 'shelve' ? 'Shelve' : form.kind === 'oos' ? 'Take out of service' : 'Return to service'}
+          {busy
+            ? 'Saving…'
+            : form.kind === 'ack'
+              ? 'Acknowledge'
+              : form.kind === 'shelve'
+                ? 'Shelve'
+                : form.kind === 'oos'
+                  ? 'Take out of service'
+                  : 'Return to service'}
         </button>
         <button type="button" className="btn-quiet" onClick={onCancel} disabled={busy}>
           Cancel

@@ -82,7 +82,8 @@ export default function AlarmSettings({ channels: initial, characteristics, esca
   const rows = useMemo(() => {
     const f = filter.trim().toLowerCase();
     const list = channels.filter((c) => !f || `${c.assetName} ${c.channelName} ${c.channelKind}`.toLowerCase().includes(f));
-    const key = (c: ChannelAlarmConfigView) => (sort.key === 'asset' ? `${c.assetName} ${c.channelName}` : sort.key === 'channel' ? c.channelName : sourceOf(c));
+    const key = (c: ChannelAlarmConfigView) =>
+      sort.key === 'asset' ? `${c.assetName} ${c.channelName}` : sort.key === 'channel' ? c.channelName : sourceOf(c);
     return list.sort((a, b) => key(a).localeCompare(key(b)) * sort.dir);
   }, [channels, filter, sort]);
 
@@ -90,12 +91,48 @@ export default function AlarmSettings({ channels: initial, characteristics, esca
   const ariaSort = (key: SortKey) => (sort.key === key ? (sort.dir === 1 ? 'ascending' : 'descending') : 'none');
 
   function exportCsv() {
-    const head = ['asset', 'channel', 'kind', 'unit', 'source', 'limits mode', 'low', 'high', 'deadband', 'on-delay s', 'off-delay s', 'priority', 'only while running', 'wording', 'stale s', 'stale priority', 'note'];
+    const head = [
+      'asset',
+      'channel',
+      'kind',
+      'unit',
+      'source',
+      'limits mode',
+      'low',
+      'high',
+      'deadband',
+      'on-delay s',
+      'off-delay s',
+      'priority',
+      'only while running',
+      'wording',
+      'stale s',
+      'stale priority',
+      'note',
+    ];
     const lines = [head.join(',')];
     for (const c of rows) {
       const g = c.config;
       lines.push(
-        [c.assetName, c.channelName, c.channelKind, c.unit, sourceOf(c), g?.limitsMode, g?.low, g?.high, g?.deadband, g ? g.onDelayMs / 1000 : '', g ? g.offDelayMs / 1000 : '', g?.priority, g ? (g.onlyWhileRunning ? 'yes' : 'no') : '', g?.label, g?.staleSeconds, g?.stalePriority, g?.note]
+        [
+          c.assetName,
+          c.channelName,
+          c.channelKind,
+          c.unit,
+          sourceOf(c),
+          g?.limitsMode,
+          g?.low,
+          g?.high,
+          g?.deadband,
+          g ? g.onDelayMs / 1000 : '',
+          g ? g.offDelayMs / 1000 : '',
+          g?.priority,
+          g ? (g.onlyWhileRunning ? 'yes' : 'no') : '',
+          g?.label,
+          g?.staleSeconds,
+          g?.stalePriority,
+          g?.note,
+        ]
           .map(csvCell)
           .join(','),
       );
@@ -113,10 +150,10 @@ export default function AlarmSettings({ channels: initial, characteristics, esca
       <section className="panel space-y-3" aria-labelledby="limits-h">
         <h2 id="limits-h">Limit and no-data alarms per channel</h2>
         <p className="text-sm text-ink-soft">
-          A channel without limits of its own is judged against the process window in force for its line (viscosity, withdrawal speed, bath
-          temperature, room humidity): high = window maximum, low = window minimum, deadband {fallback.deadbandPercent} % of the window’s width,
-          on-delay {fallback.onDelaySeconds} s, priority {fallback.priority}. Ovens count as running while their setpoint is at or above 50 °C;
-          other channels while they had data in the last hour.
+          A channel without limits of its own is judged against the process window in force for its line (viscosity, withdrawal
+          speed, bath temperature, room humidity): high = window maximum, low = window minimum, deadband{' '}
+          {fallback.deadbandPercent} % of the window’s width, on-delay {fallback.onDelaySeconds} s, priority {fallback.priority}.
+          Ovens count as running while their setpoint is at or above 50 °C; other channels while they had data in the last hour.
         </p>
         {notice && (
           <p className="rounded border border-slate-line bg-paper px-3 py-2 text-sm" role="status">
@@ -126,7 +163,13 @@ export default function AlarmSettings({ channels: initial, characteristics, esca
         <div className="flex flex-wrap items-end gap-3">
           <div className="w-64">
             <label htmlFor="cfg-filter">Filter channels</label>
-            <input id="cfg-filter" type="search" value={filter} onChange={(e) => setFilter(e.target.value)} placeholder="e.g. viscosity, Oven B" />
+            <input
+              id="cfg-filter"
+              type="search"
+              value={filter}
+              onChange={(e) => setFilter(e.target.value)}
+              placeholder="e.g. viscosity, Oven B"
+            />
           </div>
           <button type="button" className="btn-quiet" onClick={exportCsv}>
             Export CSV
@@ -191,7 +234,9 @@ export default function AlarmSettings({ channels: initial, characteristics, esca
 function CharacteristicSection({ initial, timeZone }: { initial: CharacteristicAlarmConfigView[]; timeZone: string }) {
   const [rows, setRows] = useState(initial);
   const [draft, setDraft] = useState<Record<number, { enabled: boolean; priority: AlarmPriority }>>(() =>
-    Object.fromEntries(initial.map((c) => [c.characteristicId, { enabled: c.config?.enabled ?? true, priority: c.config?.priority ?? 'medium' }])),
+    Object.fromEntries(
+      initial.map((c) => [c.characteristicId, { enabled: c.config?.enabled ?? true, priority: c.config?.priority ?? 'medium' }]),
+    ),
   );
   const [busy, setBusy] = useState<number | null>(null);
   const [status, setStatus] = useState<string | null>(null);
@@ -206,7 +251,11 @@ function CharacteristicSection({ initial, timeZone }: { initial: CharacteristicA
         { method: 'PUT', body: { enabled: d.enabled, priority: d.priority } },
       );
       setRows((list) =>
-        list.map((x) => (x.characteristicId === c.characteristicId ? { ...x, config: { ...saved, updatedAtMs: Date.now(), updatedBy: 'you' } } : x)),
+        list.map((x) =>
+          x.characteristicId === c.characteristicId
+            ? { ...x, config: { ...saved, updatedAtMs: Date.now(), updatedBy: 'you' } }
+            : x,
+        ),
       );
       setStatus(`Saved: control-chart alarms of ${c.name} ${d.enabled ? `on, ${d.priority} priority` : 'off'}.`);
     } catch (err) {
@@ -220,8 +269,8 @@ function CharacteristicSection({ initial, timeZone }: { initial: CharacteristicA
     <section className="panel space-y-3" aria-labelledby="spc-h">
       <h2 id="spc-h">Control-chart alarms per characteristic</h2>
       <p className="text-sm text-ink-soft">
-        A point that breaks a run rule of its characteristic’s control chart raises an alarm. Characteristics without settings here raise at
-        medium priority.
+        A point that breaks a run rule of its characteristic’s control chart raises an alarm. Characteristics without settings
+        here raise at medium priority.
       </p>
       {status && (
         <p className="text-sm" role="status">
@@ -257,14 +306,26 @@ function CharacteristicSection({ initial, timeZone }: { initial: CharacteristicA
                   <td>{c.assetName}</td>
                   <td>
                     <label className="mb-0 flex items-center gap-2 font-normal text-ink">
-                      <input type="checkbox" className="w-auto" checked={d.enabled} onChange={(e) => set({ enabled: e.target.checked })} /> {d.enabled ? 'On' : 'Off'}
+                      <input
+                        type="checkbox"
+                        className="w-auto"
+                        checked={d.enabled}
+                        onChange={(e) => set({ enabled: e.target.checked })}
+                      />{' '}
+                      {d.enabled ? 'On' : 'Off'}
                     </label>
                   </td>
                   <td>
                     <label className="sr-only" htmlFor={`spc-pri-${c.characteristicId}`}>
                       Priority for {c.name}
                     </label>
-                    <select id={`spc-pri-${c.characteristicId}`} className="w-auto py-1" value={d.priority} disabled={!d.enabled} onChange={(e) => set({ priority: e.target.value as AlarmPriority })}>
+                    <select
+                      id={`spc-pri-${c.characteristicId}`}
+                      className="w-auto py-1"
+                      value={d.priority}
+                      disabled={!d.enabled}
+                      onChange={(e) => set({ priority: e.target.value as AlarmPriority })}
+                    >
                       {ALARM_PRIORITIES.map((p) => (
                         <option key={p} value={p}>
                           {p}
@@ -273,10 +334,17 @@ function CharacteristicSection({ initial, timeZone }: { initial: CharacteristicA
                     </select>
                   </td>
                   <td className="text-xs text-ink-soft">
-                    {c.config ? `${formatSiteTime(c.config.updatedAtMs, timeZone)}${c.config.updatedBy ? ` by ${c.config.updatedBy}` : ''}` : 'defaults'}
+                    {c.config
+                      ? `${formatSiteTime(c.config.updatedAtMs, timeZone)}${c.config.updatedBy ? ` by ${c.config.updatedBy}` : ''}`
+                      : 'defaults'}
                   </td>
                   <td>
-                    <button type="button" className="btn-quiet" disabled={busy === c.characteristicId} onClick={() => void save(c)}>
+                    <button
+                      type="button"
+                      className="btn-quiet"
+                      disabled={busy === c.characteristicId}
+                      onClick={() => void save(c)}
+                    >
                       {busy === c.characteristicId ? 'Saving…' : 'Save'}
                     </button>
                   </td>
@@ -317,8 +385,12 @@ function ChannelRow({
           {g?.label && <div className="font-sans text-xs text-ink-soft">“{g.label}”</div>}
           {g?.onlyWhileRunning && <div className="font-sans text-xs text-ink-soft">only while running</div>}
         </td>
-        <td className="num text-right">{g && (g.high != null || g.low != null) && c.channelKind !== 'door' ? `${g.deadband} ${c.unit}` : '—'}</td>
-        <td className="num text-right">{g && (g.high != null || g.low != null) ? `${g.onDelayMs / 1000} s / ${g.offDelayMs / 1000} s` : '—'}</td>
+        <td className="num text-right">
+          {g && (g.high != null || g.low != null) && c.channelKind !== 'door' ? `${g.deadband} ${c.unit}` : '—'}
+        </td>
+        <td className="num text-right">
+          {g && (g.high != null || g.low != null) ? `${g.onDelayMs / 1000} s / ${g.offDelayMs / 1000} s` : '—'}
+        </td>
         <td>{g && (g.high != null || g.low != null) ? g.priority : '—'}</td>
         <td className="num">{g?.staleSeconds ? `${g.staleSeconds} s (${g.stalePriority})` : '—'}</td>
         <td className="text-xs text-ink-soft">
@@ -351,7 +423,15 @@ function ChannelRow({
 
 const numOrNull = (s: string): number | null => (s.trim() === '' ? null : Number(s));
 
-function ConfigForm({ c, onSaved, onCancel }: { c: ChannelAlarmConfigView; onSaved(c: ChannelAlarmConfigView, m: string): void; onCancel(): void }) {
+function ConfigForm({
+  c,
+  onSaved,
+  onCancel,
+}: {
+  c: ChannelAlarmConfigView;
+  onSaved(c: ChannelAlarmConfigView, m: string): void;
+  onCancel(): void;
+}) {
   const g = c.config;
   const [v, setV] = useState({
     enabled: g?.enabled ?? true,
@@ -401,11 +481,17 @@ function ConfigForm({ c, onSaved, onCancel }: { c: ChannelAlarmConfigView; onSav
     }
     setBusy(true);
     try {
-      const saved = await apiFetch<NonNullable<ChannelAlarmConfigView['config']> & { channelId: number }>(`/api/v1/alarm-configs/${c.channelId}`, {
-        method: 'PUT',
-        body: local.data,
-      });
-      onSaved({ ...c, config: saved }, `Saved the alarm settings of ${c.channelName}. The ingest worker applies them within a few seconds.`);
+      const saved = await apiFetch<NonNullable<ChannelAlarmConfigView['config']> & { channelId: number }>(
+        `/api/v1/alarm-configs/${c.channelId}`,
+        {
+          method: 'PUT',
+          body: local.data,
+        },
+      );
+      onSaved(
+        { ...c, config: saved },
+        `Saved the alarm settings of ${c.channelName}. The ingest worker applies them within a few seconds.`,
+      );
     } catch (err) {
       if (err instanceof ApiError && err.errors.length) setErrors(Object.fromEntries(err.errors.map((x) => [x.path, x.message])));
       else setError(err instanceof Error ? err.message : String(err));
@@ -419,7 +505,10 @@ function ConfigForm({ c, onSaved, onCancel }: { c: ChannelAlarmConfigView; onSav
     setError(null);
     try {
       await apiFetch<null>(`/api/v1/alarm-configs/${c.channelId}`, { method: 'DELETE' });
-      onSaved({ ...c, config: null }, `Removed the own settings of ${c.channelName}; ${WINDOW_KINDS[c.channelKind] ? 'the process window applies' : 'it raises no alarms now'}.`);
+      onSaved(
+        { ...c, config: null },
+        `Removed the own settings of ${c.channelName}; ${WINDOW_KINDS[c.channelKind] ? 'the process window applies' : 'it raises no alarms now'}.`,
+      );
     } catch (err) {
       setError(err instanceof Error ? err.message : String(err));
     } finally {
@@ -460,9 +549,23 @@ function ConfigForm({ c, onSaved, onCancel }: { c: ChannelAlarmConfigView; onSav
         )}
         {field('low', `Low (${c.unit})`, <input id={id('low')} inputMode="decimal" value={v.low} onChange={set('low')} />)}
         {field('high', `High (${c.unit})`, <input id={id('high')} inputMode="decimal" value={v.high} onChange={set('high')} />)}
-        {field('deadband', `Deadband (${c.unit})`, <input id={id('deadband')} inputMode="decimal" value={v.deadband} onChange={set('deadband')} />, 'Clears only once back inside by more than this.')}
-        {field('onDelayMs', 'On-delay (s)', <input id={id('onDelayMs')} inputMode="decimal" value={v.onDelayS} onChange={set('onDelayS')} />, 'Must stay beyond the limit this long.')}
-        {field('offDelayMs', 'Off-delay (s)', <input id={id('offDelayMs')} inputMode="decimal" value={v.offDelayS} onChange={set('offDelayS')} />)}
+        {field(
+          'deadband',
+          `Deadband (${c.unit})`,
+          <input id={id('deadband')} inputMode="decimal" value={v.deadband} onChange={set('deadband')} />,
+          'Clears only once back inside by more than this.',
+        )}
+        {field(
+          'onDelayMs',
+          'On-delay (s)',
+          <input id={id('onDelayMs')} inputMode="decimal" value={v.onDelayS} onChange={set('onDelayS')} />,
+          'Must stay beyond the limit this long.',
+        )}
+        {field(
+          'offDelayMs',
+          'Off-delay (s)',
+          <input id={id('offDelayMs')} inputMode="decimal" value={v.offDelayS} onChange={set('offDelayS')} />,
+        )}
         {field(
           'priority',
           'Priority',
@@ -474,14 +577,29 @@ function ConfigForm({ c, onSaved, onCancel }: { c: ChannelAlarmConfigView; onSav
             ))}
           </select>,
         )}
-        {field('label', 'Wording (optional)', <input id={id('label')} value={v.label} maxLength={120} onChange={set('label')} placeholder="e.g. Oven door open during cure" />)}
+        {field(
+          'label',
+          'Wording (optional)',
+          <input
+            id={id('label')}
+            value={v.label}
+            maxLength={120}
+            onChange={set('label')}
+            placeholder="e.g. Oven door open during cure"
+          />,
+        )}
         <label className="flex items-center gap-2 font-normal text-ink md:col-span-4">
-          <input type="checkbox" className="w-auto" checked={v.onlyWhileRunning} onChange={set('onlyWhileRunning')} /> Only while the asset runs (ovens: setpoint ≥ 50 °C)
+          <input type="checkbox" className="w-auto" checked={v.onlyWhileRunning} onChange={set('onlyWhileRunning')} /> Only while
+          the asset runs (ovens: setpoint ≥ 50 °C)
         </label>
       </fieldset>
       <fieldset className="grid gap-3 md:grid-cols-4">
         <legend className="mb-1 text-sm font-bold">No-data alarm</legend>
-        {field('staleSeconds', 'No reading for (s, empty = off)', <input id={id('staleSeconds')} inputMode="numeric" value={v.staleSeconds} onChange={set('staleSeconds')} />)}
+        {field(
+          'staleSeconds',
+          'No reading for (s, empty = off)',
+          <input id={id('staleSeconds')} inputMode="numeric" value={v.staleSeconds} onChange={set('staleSeconds')} />,
+        )}
         {field(
           'stalePriority',
           'Priority',
@@ -493,7 +611,19 @@ function ConfigForm({ c, onSaved, onCancel }: { c: ChannelAlarmConfigView; onSav
             ))}
           </select>,
         )}
-        <div className="md:col-span-2">{field('note', 'Where these values come from', <input id={id('note')} value={v.note} maxLength={500} onChange={set('note')} placeholder="e.g. lacquer data sheet rev. C" />)}</div>
+        <div className="md:col-span-2">
+          {field(
+            'note',
+            'Where these values come from',
+            <input
+              id={id('note')}
+              value={v.note}
+              maxLength={500}
+              onChange={set('note')}
+              placeholder="e.g. lacquer data sheet rev. C"
+            />,
+          )}
+        </div>
       </fieldset>
       {errors['form'] && <p className="text-sm text-alert-high">{errors['form']}</p>}
       {error && (
@@ -520,10 +650,15 @@ function ConfigForm({ c, onSaved, onCancel }: { c: ChannelAlarmConfigView; onSav
 
 function EscalationForm({ initial }: { initial: EscalationSettings }) {
   const byPriority = (rules: EscalationRule[]) =>
-    Object.fromEntries(ALARM_PRIORITIES.map((p) => [p, (rules.find((r) => r.priority === p)?.steps ?? []).map((s) => ({ afterMinutes: String(s.afterMinutes), notify: s.notify }))])) as Record<
-      AlarmPriority,
-      { afterMinutes: string; notify: string }[]
-    >;
+    Object.fromEntries(
+      ALARM_PRIORITIES.map((p) => [
+        p,
+        (rules.find((r) => r.priority === p)?.steps ?? []).map((s) => ({
+          afterMinutes: String(s.afterMinutes),
+          notify: s.notify,
+        })),
+      ]),
+    ) as Record<AlarmPriority, { afterMinutes: string; notify: string }[]>;
   const [steps, setSteps] = useState(() => byPriority(initial.rules));
   const [email, setEmail] = useState(initial.onShiftEngineerEmail);
   const [errors, setErrors] = useState<Record<string, string>>({});
@@ -564,13 +699,20 @@ function EscalationForm({ initial }: { initial: EscalationSettings }) {
     <section className="panel space-y-3" aria-labelledby="esc-h">
       <h2 id="esc-h">Escalation of unacknowledged alarms</h2>
       <p className="text-sm text-ink-soft">
-        When an alarm still waits for acknowledgement this many minutes after it was raised, an e-mail goes to the chosen people with a link to the
-        alarm. Each step is sent once per alarm. Steps count from the alarm’s latest activation, in whole minutes, in increasing order.
+        When an alarm still waits for acknowledgement this many minutes after it was raised, an e-mail goes to the chosen people
+        with a link to the alarm. Each step is sent once per alarm. Steps count from the alarm’s latest activation, in whole
+        minutes, in increasing order.
       </p>
       <form onSubmit={save} className="space-y-4" noValidate aria-label="Escalation rules">
         <div className="max-w-md">
           <label htmlFor="esc-email">On-shift engineer’s e-mail</label>
-          <input id="esc-email" type="email" value={email} onChange={(e) => setEmail(e.target.value)} aria-invalid={!!errors['onShiftEngineerEmail']} />
+          <input
+            id="esc-email"
+            type="email"
+            value={email}
+            onChange={(e) => setEmail(e.target.value)}
+            aria-invalid={!!errors['onShiftEngineerEmail']}
+          />
           {errors['onShiftEngineerEmail'] && <p className="text-sm text-alert-high">{errors['onShiftEngineerEmail']}</p>}
         </div>
         {ALARM_PRIORITIES.map((p) => {
@@ -588,11 +730,20 @@ function EscalationForm({ initial }: { initial: EscalationSettings }) {
                     <li key={i} className="flex flex-wrap items-end gap-3">
                       <div className="w-40">
                         <label htmlFor={`esc-${p}-${i}-min`}>After (minutes)</label>
-                        <input id={`esc-${p}-${i}-min`} inputMode="numeric" value={s.afterMinutes} onChange={(e) => update(p, i, { afterMinutes: e.target.value })} />
+                        <input
+                          id={`esc-${p}-${i}-min`}
+                          inputMode="numeric"
+                          value={s.afterMinutes}
+                          onChange={(e) => update(p, i, { afterMinutes: e.target.value })}
+                        />
                       </div>
                       <div className="w-72">
                         <label htmlFor={`esc-${p}-${i}-to`}>E-mail</label>
-                        <select id={`esc-${p}-${i}-to`} value={s.notify} onChange={(e) => update(p, i, { notify: e.target.value })}>
+                        <select
+                          id={`esc-${p}-${i}-to`}
+                          value={s.notify}
+                          onChange={(e) => update(p, i, { notify: e.target.value })}
+                        >
                           {NOTIFY_OPTIONS.map(([k, l]) => (
                             <option key={k} value={k}>
                               {l}
@@ -600,7 +751,11 @@ function EscalationForm({ initial }: { initial: EscalationSettings }) {
                           ))}
                         </select>
                       </div>
-                      <button type="button" className="btn-quiet" onClick={() => setSteps((x) => ({ ...x, [p]: x[p].filter((_, j) => j !== i) }))}>
+                      <button
+                        type="button"
+                        className="btn-quiet"
+                        onClick={() => setSteps((x) => ({ ...x, [p]: x[p].filter((_, j) => j !== i) }))}
+                      >
                         Remove step
                       </button>
                       {(errors[`${path}.afterMinutes`] || errors[path]) && (
@@ -612,7 +767,9 @@ function EscalationForm({ initial }: { initial: EscalationSettings }) {
                   );
                 })}
               </ol>
-              {errors[`rules.${ruleIndex}.steps`] && <p className="text-sm text-alert-high">{errors[`rules.${ruleIndex}.steps`]}</p>}
+              {errors[`rules.${ruleIndex}.steps`] && (
+                <p className="text-sm text-alert-high">{errors[`rules.${ruleIndex}.steps`]}</p>
+              )}
               <button
                 type="button"
                 className="btn-quiet mt-2"
@@ -620,7 +777,13 @@ function EscalationForm({ initial }: { initial: EscalationSettings }) {
                 onClick={() =>
                   setSteps((x) => ({
                     ...x,
-                    [p]: [...x[p], { afterMinutes: String((Number(x[p][x[p].length - 1]?.afterMinutes) || 0) + 10), notify: 'on-shift-engineer' }],
+                    [p]: [
+                      ...x[p],
+                      {
+                        afterMinutes: String((Number(x[p][x[p].length - 1]?.afterMinutes) || 0) + 10),
+                        notify: 'on-shift-engineer',
+                      },
+                    ],
                   }))
                 }
               >

@@ -63,7 +63,9 @@ function Detail({ row, timeZone }: { row: AuditRowView; timeZone: string }) {
     <div className="space-y-2 bg-paper/60 p-3 text-sm">
       {row.signature && (
         <p className="rounded border border-slate-line bg-white p-2">
-          <strong>Signed</strong> by {row.signature.displayName} ({row.signature.username}) on {formatSiteTime(row.signature.signedAt, timeZone, { seconds: true })} — meaning: <strong>{row.signature.meaning}</strong>
+          <strong>Signed</strong> by {row.signature.displayName} ({row.signature.username}) on{' '}
+          {formatSiteTime(row.signature.signedAt, timeZone, { seconds: true })} — meaning:{' '}
+          <strong>{row.signature.meaning}</strong>
         </p>
       )}
       {keys.length > 0 ? (
@@ -144,7 +146,11 @@ export default function AuditTrail({ initial, initialFilters, timeZone, entities
 
   return (
     <div className="space-y-3">
-      <form onSubmit={submit} className="panel grid grid-cols-2 items-end gap-3 md:grid-cols-4 xl:grid-cols-8" aria-label="Filter the audit trail">
+      <form
+        onSubmit={submit}
+        className="panel grid grid-cols-2 items-end gap-3 md:grid-cols-4 xl:grid-cols-8"
+        aria-label="Filter the audit trail"
+      >
         {input('actor', 'Who', { placeholder: 'username' })}
         {input('action', 'Action contains', { placeholder: 'e.g. role, signed', list: 'af-actions' })}
         <div>
@@ -196,7 +202,9 @@ export default function AuditTrail({ initial, initialFilters, timeZone, entities
 
       <div className="flex flex-wrap items-center gap-3">
         <p className="mr-auto text-sm text-ink-soft" aria-live="polite">
-          {page.total === 0 ? 'No entries match.' : `Entries ${(page.page - 1) * page.pageSize + 1}–${Math.min(page.total, page.page * page.pageSize)} of ${page.total}, newest first. Sorting a column sorts this page.`}
+          {page.total === 0
+            ? 'No entries match.'
+            : `Entries ${(page.page - 1) * page.pageSize + 1}–${Math.min(page.total, page.page * page.pageSize)} of ${page.total}, newest first. Sorting a column sorts this page.`}
         </p>
         <a className="btn-quiet" href={`/api/v1/audit?${query(applied, 1, pageSize, 'csv')}`} download>
           Export all {page.total} as CSV
@@ -204,18 +212,33 @@ export default function AuditTrail({ initial, initialFilters, timeZone, entities
       </div>
       <NoticeLine notice={notice} onClose={() => setNotice(null)} />
 
-      <div className={`overflow-x-auto rounded-md border border-slate-line bg-white ${loading ? 'opacity-60' : ''}`} aria-busy={loading}>
+      <div
+        className={`overflow-x-auto rounded-md border border-slate-line bg-white ${loading ? 'opacity-60' : ''}`}
+        aria-busy={loading}
+      >
         <table>
           <thead>
             <tr>
-              <SortTh k="at" sort={sort} toggle={toggle}>When ({timeZone})</SortTh>
-              <SortTh k="actor" sort={sort} toggle={toggle}>Who</SortTh>
-              <SortTh k="action" sort={sort} toggle={toggle}>Action</SortTh>
-              <SortTh k="entity" sort={sort} toggle={toggle}>Record</SortTh>
-              <SortTh k="entityId" sort={sort} toggle={toggle}>Id</SortTh>
+              <SortTh k="at" sort={sort} toggle={toggle}>
+                When ({timeZone})
+              </SortTh>
+              <SortTh k="actor" sort={sort} toggle={toggle}>
+                Who
+              </SortTh>
+              <SortTh k="action" sort={sort} toggle={toggle}>
+                Action
+              </SortTh>
+              <SortTh k="entity" sort={sort} toggle={toggle}>
+                Record
+              </SortTh>
+              <SortTh k="entityId" sort={sort} toggle={toggle}>
+                Id
+              </SortTh>
               <th scope="col">Changed</th>
               <th scope="col">Signed</th>
-              <SortTh k="address" sort={sort} toggle={toggle}>From address</SortTh>
+              <SortTh k="address" sort={sort} toggle={toggle}>
+                From address
+              </SortTh>
               <th scope="col">
                 <span className="sr-only">Details</span>
               </th>
@@ -243,7 +266,12 @@ export default function AuditTrail({ initial, initialFilters, timeZone, entities
                   <td>{r.signature ? <span className="tag border-slate-line">✎ {r.signature.meaning}</span> : ''}</td>
                   <td className="num text-ink-soft">{r.address ?? '—'}</td>
                   <td>
-                    <button type="button" className="text-sm underline" aria-expanded={open === r.id} onClick={() => setOpen(open === r.id ? null : r.id)}>
+                    <button
+                      type="button"
+                      className="text-sm underline"
+                      aria-expanded={open === r.id}
+                      onClick={() => setOpen(open === r.id ? null : r.id)}
+                    >
                       {open === r.id ? 'Hide' : 'Details'}
                     </button>
                   </td>
@@ -262,13 +290,23 @@ export default function AuditTrail({ initial, initialFilters, timeZone, entities
       </div>
 
       <nav aria-label="Pages" className="flex items-center gap-2">
-        <button type="button" className="btn-quiet" disabled={loading || page.page <= 1} onClick={() => void load(applied, page.page - 1, pageSize)}>
+        <button
+          type="button"
+          className="btn-quiet"
+          disabled={loading || page.page <= 1}
+          onClick={() => void load(applied, page.page - 1, pageSize)}
+        >
           ← Newer
         </button>
         <span className="text-sm text-ink-soft">
           Page {page.page} of {pages}
         </span>
-        <button type="button" className="btn-quiet" disabled={loading || page.page >= pages} onClick={() => void load(applied, page.page + 1, pageSize)}>
+        <button
+          type="button"
+          className="btn-quiet"
+          disabled={loading || page.page >= pages}
+          onClick={() => void load(applied, page.page + 1, pageSize)}
+        >
           Older →
         </button>
       </nav>

@@ -8,7 +8,14 @@
 import { useId, useMemo, useState, type SyntheticEvent } from 'react';
 import { CUPS } from '../../lib/domain/film/viscosity-cups.ts';
 import { apiFetch, ApiError } from '../../lib/client/api.ts';
-import { BATH_CAUTION, BathCheckInputSchema, computeBathCheck, describeAddition, type BathCheckComputation, type BathCheckContext } from '../../lib/shared/baths.ts';
+import {
+  BATH_CAUTION,
+  BathCheckInputSchema,
+  computeBathCheck,
+  describeAddition,
+  type BathCheckComputation,
+  type BathCheckContext,
+} from '../../lib/shared/baths.ts';
 import type { ProcessWindowInForce } from '../../lib/shared/windows.ts';
 import WindowBar from '../windows/WindowBar.tsx';
 
@@ -97,7 +104,10 @@ export default function BathCheckForm({ tanks, canLog, defaultTankId }: Props) {
   const live: BathCheckComputation | null = useMemo(() => {
     if (!tank || !parsed.success) return null;
     const density = tank.densityGCm3 ?? undefined;
-    return computeBathCheck({ ...parsed.data, ...(density !== undefined && parsed.data.densityGCm3 === undefined ? { densityGCm3: density } : {}) }, tank.context);
+    return computeBathCheck(
+      { ...parsed.data, ...(density !== undefined && parsed.data.densityGCm3 === undefined ? { densityGCm3: density } : {}) },
+      tank.context,
+    );
   }, [tank, parsed.success, parsed.data]);
 
   const fieldErrors: Record<string, string> = { ...errors };
@@ -144,7 +154,12 @@ export default function BathCheckForm({ tanks, canLog, defaultTankId }: Props) {
     setBusy(true);
     try {
       const r = await apiFetch<{ id: number; massKg: number; kind: string }>('/api/v1/baths/additions', {
-        body: { tankAssetId: tankId, kind: a.kind === 'solvent' ? 'solvent' : 'fresh-lacquer', massKg: kg, checkId: recorded.check.id },
+        body: {
+          tankAssetId: tankId,
+          kind: a.kind === 'solvent' ? 'solvent' : 'fresh-lacquer',
+          massKg: kg,
+          checkId: recorded.check.id,
+        },
       });
       setAdditionDone(`Addition logged: ${r.massKg} kg of ${r.kind === 'solvent' ? 'solvent' : 'fresh lacquer'}.`);
     } catch (err) {
@@ -191,7 +206,8 @@ export default function BathCheckForm({ tanks, canLog, defaultTankId }: Props) {
         </div>
         {tank && (
           <p className="mt-1 text-sm text-ink-soft">
-            {tank.chargeLabel ?? 'No charge on record for this tank.'} · {tank.windowLabel ? `Window: ${tank.windowLabel}` : 'No process window in force.'}
+            {tank.chargeLabel ?? 'No charge on record for this tank.'} ·{' '}
+            {tank.windowLabel ? `Window: ${tank.windowLabel}` : 'No process window in force.'}
           </p>
         )}
       </fieldset>
@@ -199,10 +215,22 @@ export default function BathCheckForm({ tanks, canLog, defaultTankId }: Props) {
       <fieldset>
         <legend className="mb-1 text-sm font-bold text-ink-soft">Reading</legend>
         <div className="flex gap-2" role="radiogroup" aria-label="How the viscosity was measured">
-          <button type="button" role="radio" aria-checked={mode === 'cup'} onClick={() => setMode('cup')} className={mode === 'cup' ? 'btn' : 'btn-quiet'}>
+          <button
+            type="button"
+            role="radio"
+            aria-checked={mode === 'cup'}
+            onClick={() => setMode('cup')}
+            className={mode === 'cup' ? 'btn' : 'btn-quiet'}
+          >
             Cup and seconds
           </button>
-          <button type="button" role="radio" aria-checked={mode === 'measured'} onClick={() => setMode('measured')} className={mode === 'measured' ? 'btn' : 'btn-quiet'}>
+          <button
+            type="button"
+            role="radio"
+            aria-checked={mode === 'measured'}
+            onClick={() => setMode('measured')}
+            className={mode === 'measured' ? 'btn' : 'btn-quiet'}
+          >
             Measured viscosity
           </button>
         </div>
@@ -247,7 +275,14 @@ export default function BathCheckForm({ tanks, canLog, defaultTankId }: Props) {
         ) : (
           <div className="mt-3 max-w-xs">
             <label htmlFor={`${id}-meas`}>Kinematic viscosity (mm²/s)</label>
-            <input id={`${id}-meas`} className={big} inputMode="decimal" value={measured} onChange={(e) => setMeasured(e.target.value)} aria-invalid={!!fieldErrors['measuredMm2S']} />
+            <input
+              id={`${id}-meas`}
+              className={big}
+              inputMode="decimal"
+              value={measured}
+              onChange={(e) => setMeasured(e.target.value)}
+              aria-invalid={!!fieldErrors['measuredMm2S']}
+            />
             {err('measuredMm2S')}
           </div>
         )}
@@ -256,12 +291,26 @@ export default function BathCheckForm({ tanks, canLog, defaultTankId }: Props) {
       <div className="grid gap-3 sm:grid-cols-3">
         <div>
           <label htmlFor={`${id}-temp`}>Bath temperature (°C)</label>
-          <input id={`${id}-temp`} className={big} inputMode="decimal" value={temp} onChange={(e) => setTemp(e.target.value)} aria-invalid={!!fieldErrors['bathTempC']} />
+          <input
+            id={`${id}-temp`}
+            className={big}
+            inputMode="decimal"
+            value={temp}
+            onChange={(e) => setTemp(e.target.value)}
+            aria-invalid={!!fieldErrors['bathTempC']}
+          />
           {err('bathTempC')}
         </div>
         <div>
           <label htmlFor={`${id}-solids`}>Solids (wt %)</label>
-          <input id={`${id}-solids`} className={big} inputMode="decimal" value={solids} onChange={(e) => setSolids(e.target.value)} aria-invalid={!!fieldErrors['solidsPct']} />
+          <input
+            id={`${id}-solids`}
+            className={big}
+            inputMode="decimal"
+            value={solids}
+            onChange={(e) => setSolids(e.target.value)}
+            aria-invalid={!!fieldErrors['solidsPct']}
+          />
           {err('solidsPct')}
         </div>
         <div>
@@ -270,7 +319,9 @@ export default function BathCheckForm({ tanks, canLog, defaultTankId }: Props) {
             id={`${id}-mass`}
             className={big}
             inputMode="decimal"
-            placeholder={tank?.context.estimatedBathMassKg != null ? `${tank.context.estimatedBathMassKg} kg if not weighed` : 'not weighed'}
+            placeholder={
+              tank?.context.estimatedBathMassKg != null ? `${tank.context.estimatedBathMassKg} kg if not weighed` : 'not weighed'
+            }
             value={mass}
             onChange={(e) => setMass(e.target.value)}
             aria-invalid={!!fieldErrors['bathMassKg']}
@@ -286,7 +337,9 @@ export default function BathCheckForm({ tanks, canLog, defaultTankId }: Props) {
       <section aria-live="polite" className="panel space-y-3 bg-slate-panel/40">
         <h3 className="font-bold">This reading</h3>
         {!live ? (
-          <p className="text-ink-soft">Type the efflux seconds (or a measured viscosity) to see the viscosity against the window.</p>
+          <p className="text-ink-soft">
+            Type the efflux seconds (or a measured viscosity) to see the viscosity against the window.
+          </p>
         ) : !live.viscosity.ok ? (
           <p role="alert" className="rounded border-l-4 border-alert-high bg-alert-bg p-3 font-bold">
             <span aria-hidden="true">✕ </span>
@@ -312,25 +365,37 @@ export default function BathCheckForm({ tanks, canLog, defaultTankId }: Props) {
               </p>
             )}
             <p className="text-xs text-ink-soft">
-              {live.viscosity.method === 'cup' ? `From ${cup} at ${seconds} s · ${live.viscosity.source}` : 'Measured kinematic viscosity'}
+              {live.viscosity.method === 'cup'
+                ? `From ${cup} at ${seconds} s · ${live.viscosity.source}`
+                : 'Measured kinematic viscosity'}
               {live.viscosity.dynamicMPaS !== undefined ? ` · dynamic ${live.viscosity.dynamicMPaS.toFixed(2)} mPa·s` : ''}
             </p>
           </>
         )}
         {limits?.bathTempC && parsed.success && parsed.data.bathTempC !== undefined && (
-          <WindowBar label="Bath temperature" value={parsed.data.bathTempC} min={limits.bathTempC.min} max={limits.bathTempC.max} target={limits.bathTempC.target} unit="°C" />
+          <WindowBar
+            label="Bath temperature"
+            value={parsed.data.bathTempC}
+            min={limits.bathTempC.min}
+            max={limits.bathTempC.max}
+            target={limits.bathTempC.target}
+            unit="°C"
+          />
         )}
         <div>
           <h4 className="text-sm font-bold text-ink-soft">Addition to bring solids back to target</h4>
           {live?.addition ? (
             <p className={live.addition.ok ? 'text-lg font-bold' : 'text-ink-soft'}>{describeAddition(live.addition)}</p>
           ) : (
-            <p className="text-ink-soft">{live?.additionNote ?? 'Enter the solids to get the solvent or fresh-lacquer addition (mass balance).'}</p>
+            <p className="text-ink-soft">
+              {live?.additionNote ?? 'Enter the solids to get the solvent or fresh-lacquer addition (mass balance).'}
+            </p>
           )}
           {tank?.context.targetSolidsPct != null && (
             <p className="text-xs text-ink-soft">
-              Target {tank.context.targetSolidsPct} % solids (the lacquer’s nominal); fresh lacquer of the charged lot at {tank.context.lotSolidsPct ?? '—'} %. Without a
-              weighed mass the bath is taken at its charged mass{tank.context.estimatedBathMassKg !== null ? ` (${tank.context.estimatedBathMassKg} kg)` : ''}.
+              Target {tank.context.targetSolidsPct} % solids (the lacquer’s nominal); fresh lacquer of the charged lot at{' '}
+              {tank.context.lotSolidsPct ?? '—'} %. Without a weighed mass the bath is taken at its charged mass
+              {tank.context.estimatedBathMassKg !== null ? ` (${tank.context.estimatedBathMassKg} kg)` : ''}.
             </p>
           )}
         </div>
@@ -354,13 +419,27 @@ export default function BathCheckForm({ tanks, canLog, defaultTankId }: Props) {
           <p>
             <strong>✓ Check logged</strong> on {recorded.check.tankCode}: the server computed and stored{' '}
             <span className="num font-bold">{recorded.check.kinematicMm2S.toFixed(2)} mm²/s</span>
-            {recorded.computation.band === 'high' ? ' — above the window.' : recorded.computation.band === 'low' ? ' — below the window.' : recorded.computation.band === 'in' ? ' — inside the window.' : '.'}
+            {recorded.computation.band === 'high'
+              ? ' — above the window.'
+              : recorded.computation.band === 'low'
+                ? ' — below the window.'
+                : recorded.computation.band === 'in'
+                  ? ' — inside the window.'
+                  : '.'}
           </p>
           {recorded.computation.addition?.ok && recorded.computation.addition.kind !== 'none' && (
             <div className="flex flex-wrap items-end gap-2">
               <div>
-                <label htmlFor={`${id}-add`}>{recorded.computation.addition.kind === 'solvent' ? 'Solvent added (kg)' : 'Fresh lacquer added (kg)'}</label>
-                <input id={`${id}-add`} className={`${big} w-40`} inputMode="decimal" value={additionKg} onChange={(e) => setAdditionKg(e.target.value)} />
+                <label htmlFor={`${id}-add`}>
+                  {recorded.computation.addition.kind === 'solvent' ? 'Solvent added (kg)' : 'Fresh lacquer added (kg)'}
+                </label>
+                <input
+                  id={`${id}-add`}
+                  className={`${big} w-40`}
+                  inputMode="decimal"
+                  value={additionKg}
+                  onChange={(e) => setAdditionKg(e.target.value)}
+                />
               </div>
               <button type="button" className="btn py-3" onClick={logAddition} disabled={busy || !!additionDone}>
                 Log this addition

@@ -20,7 +20,11 @@ function StatusLine({ status }: { status: Status }) {
   return (
     <p
       role={status.kind === 'error' ? 'alert' : 'status'}
-      className={status.kind === 'error' ? 'rounded border-l-4 border-alert-high bg-alert-bg p-2 text-sm' : 'rounded border-l-4 border-lacquer bg-lacquer-light/60 p-2 text-sm'}
+      className={
+        status.kind === 'error'
+          ? 'rounded border-l-4 border-alert-high bg-alert-bg p-2 text-sm'
+          : 'rounded border-l-4 border-lacquer bg-lacquer-light/60 p-2 text-sm'
+      }
     >
       <strong>{status.kind === 'error' ? '✕ Not logged.' : '✓ Logged.'}</strong> {status.text}
     </p>
@@ -40,7 +44,13 @@ export default function BathEntryForms({ tanks, canLog }: Props) {
   const [filterStatus, setFilterStatus] = useState<Status>(null);
   const [busy, setBusy] = useState(false);
 
-  async function send(path: string, schema: typeof BathAdditionEntrySchema | typeof FilterChangeSchema, body: Record<string, unknown>, set: (s: Status) => void, done: () => void) {
+  async function send(
+    path: string,
+    schema: typeof BathAdditionEntrySchema | typeof FilterChangeSchema,
+    body: Record<string, unknown>,
+    set: (s: Status) => void,
+    done: () => void,
+  ) {
     const parsed = schema.safeParse(body);
     if (!parsed.success) {
       set({ kind: 'error', text: parsed.error.issues.map((i) => i.message).join(' ') });
@@ -63,10 +73,18 @@ export default function BathEntryForms({ tanks, canLog }: Props) {
     void send(
       '/api/v1/baths/additions',
       BathAdditionEntrySchema,
-      { tankAssetId: tankId, kind, ...(m !== undefined ? { massKg: m } : {}), ...(addNote.trim() ? { note: addNote.trim() } : {}) },
+      {
+        tankAssetId: tankId,
+        kind,
+        ...(m !== undefined ? { massKg: m } : {}),
+        ...(addNote.trim() ? { note: addNote.trim() } : {}),
+      },
       setAddStatus,
       () => {
-        setAddStatus({ kind: 'ok', text: `${m} kg of ${kind === 'solvent' ? 'solvent' : 'fresh lacquer'} on ${tanks.find((t) => t.id === tankId)?.name}.` });
+        setAddStatus({
+          kind: 'ok',
+          text: `${m} kg of ${kind === 'solvent' ? 'solvent' : 'fresh lacquer'} on ${tanks.find((t) => t.id === tankId)?.name}.`,
+        });
         setMassKg('');
         setAddNote('');
       },
@@ -79,7 +97,12 @@ export default function BathEntryForms({ tanks, canLog }: Props) {
     void send(
       '/api/v1/baths/filter-changes',
       FilterChangeSchema,
-      { tankAssetId: tankId, filterType: filterType.trim(), ...(r !== undefined ? { ratingUm: r } : {}), ...(filterNote.trim() ? { note: filterNote.trim() } : {}) },
+      {
+        tankAssetId: tankId,
+        filterType: filterType.trim(),
+        ...(r !== undefined ? { ratingUm: r } : {}),
+        ...(filterNote.trim() ? { note: filterNote.trim() } : {}),
+      },
       setFilterStatus,
       () => {
         setFilterStatus({ kind: 'ok', text: `Filter change on ${tanks.find((t) => t.id === tankId)?.name}.` });
@@ -107,14 +130,27 @@ export default function BathEntryForms({ tanks, canLog }: Props) {
           <h3 className="font-bold">Addition</h3>
           <div className="flex gap-2" role="radiogroup" aria-label="What was added">
             {(['solvent', 'fresh-lacquer'] as const).map((k) => (
-              <button key={k} type="button" role="radio" aria-checked={kind === k} className={kind === k ? 'btn' : 'btn-quiet'} onClick={() => setKind(k)}>
+              <button
+                key={k}
+                type="button"
+                role="radio"
+                aria-checked={kind === k}
+                className={kind === k ? 'btn' : 'btn-quiet'}
+                onClick={() => setKind(k)}
+              >
                 {k === 'solvent' ? 'Solvent' : 'Fresh lacquer'}
               </button>
             ))}
           </div>
           <div>
             <label htmlFor={`${id}-mass`}>Mass added (kg)</label>
-            <input id={`${id}-mass`} className="py-2.5 text-lg" inputMode="decimal" value={massKg} onChange={(e) => setMassKg(e.target.value)} />
+            <input
+              id={`${id}-mass`}
+              className="py-2.5 text-lg"
+              inputMode="decimal"
+              value={massKg}
+              onChange={(e) => setMassKg(e.target.value)}
+            />
           </div>
           <div>
             <label htmlFor={`${id}-anote`}>Note (optional)</label>
@@ -132,11 +168,23 @@ export default function BathEntryForms({ tanks, canLog }: Props) {
           <h3 className="font-bold">Filter change</h3>
           <div>
             <label htmlFor={`${id}-ftype`}>Filter type</label>
-            <input id={`${id}-ftype`} className="py-2.5 text-lg" value={filterType} onChange={(e) => setFilterType(e.target.value)} placeholder="e.g. pleated cartridge" />
+            <input
+              id={`${id}-ftype`}
+              className="py-2.5 text-lg"
+              value={filterType}
+              onChange={(e) => setFilterType(e.target.value)}
+              placeholder="e.g. pleated cartridge"
+            />
           </div>
           <div>
             <label htmlFor={`${id}-rating`}>Rating (µm, optional)</label>
-            <input id={`${id}-rating`} className="py-2.5 text-lg" inputMode="decimal" value={rating} onChange={(e) => setRating(e.target.value)} />
+            <input
+              id={`${id}-rating`}
+              className="py-2.5 text-lg"
+              inputMode="decimal"
+              value={rating}
+              onChange={(e) => setRating(e.target.value)}
+            />
           </div>
           <div>
             <label htmlFor={`${id}-fnote`}>Note (optional)</label>

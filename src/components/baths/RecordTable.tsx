@@ -29,14 +29,31 @@ interface Props {
   pageSize?: number;
 }
 
-export default function RecordTable({ caption, columns, rows, filename, empty = 'Nothing recorded yet.', hrefKey, initialSort, pageSize = 50 }: Props) {
+export default function RecordTable({
+  caption,
+  columns,
+  rows,
+  filename,
+  empty = 'Nothing recorded yet.',
+  hrefKey,
+  initialSort,
+  pageSize = 50,
+}: Props) {
   const id = useId();
   const [filter, setFilter] = useState('');
   const [limit, setLimit] = useState(pageSize);
   const { sort, toggle } = useSort<string>(initialSort ?? { key: columns[0]?.key ?? '', dir: -1 });
   const shown = useMemo(() => {
     const f = filter.trim().toLowerCase();
-    const kept = f ? rows.filter((r) => columns.some((c) => String(r[c.key] ?? '').toLowerCase().includes(f))) : rows;
+    const kept = f
+      ? rows.filter((r) =>
+          columns.some((c) =>
+            String(r[c.key] ?? '')
+              .toLowerCase()
+              .includes(f),
+          ),
+        )
+      : rows;
     return sortRows(kept, (r) => r[sort.key] ?? null, sort.dir);
   }, [rows, columns, filter, sort]);
   return (
@@ -44,12 +61,24 @@ export default function RecordTable({ caption, columns, rows, filename, empty = 
       <div className="flex flex-wrap items-end gap-3">
         <div className="w-64">
           <label htmlFor={`${id}-filter`}>Filter</label>
-          <input id={`${id}-filter`} type="search" value={filter} onChange={(e) => setFilter(e.target.value)} placeholder="any column contains…" />
+          <input
+            id={`${id}-filter`}
+            type="search"
+            value={filter}
+            onChange={(e) => setFilter(e.target.value)}
+            placeholder="any column contains…"
+          />
         </div>
         <button
           type="button"
           className="btn-quiet"
-          onClick={() => downloadCsv(`${filename}.csv`, columns.map((c) => c.label), shown.map((r) => columns.map((c) => r[c.key] ?? '')))}
+          onClick={() =>
+            downloadCsv(
+              `${filename}.csv`,
+              columns.map((c) => c.label),
+              shown.map((r) => columns.map((c) => r[c.key] ?? '')),
+            )
+          }
           disabled={shown.length === 0}
         >
           Export CSV

@@ -47,7 +47,19 @@ function useSubmit(schema: z.ZodType, path: string, toBody: (v: Values) => Recor
   return { errors, status, busy, submit };
 }
 
-function Form({ title, fields, initial, hook, children }: { title: string; fields: FieldSpec[]; initial: Values; hook: ReturnType<typeof useSubmit>; children?: ReactNode }) {
+function Form({
+  title,
+  fields,
+  initial,
+  hook,
+  children,
+}: {
+  title: string;
+  fields: FieldSpec[];
+  initial: Values;
+  hook: ReturnType<typeof useSubmit>;
+  children?: ReactNode;
+}) {
   const id = useId();
   const [values, setValues] = useState<Values>(initial);
   async function onSubmit(e: SyntheticEvent) {
@@ -62,7 +74,12 @@ function Form({ title, fields, initial, hook, children }: { title: string; field
           <div key={f.name}>
             <label htmlFor={`${id}-${f.name}`}>{f.label}</label>
             {f.type === 'select' ? (
-              <select id={`${id}-${f.name}`} value={values[f.name] ?? ''} onChange={(e) => setValues({ ...values, [f.name]: e.target.value })} aria-invalid={!!hook.errors[f.name]}>
+              <select
+                id={`${id}-${f.name}`}
+                value={values[f.name] ?? ''}
+                onChange={(e) => setValues({ ...values, [f.name]: e.target.value })}
+                aria-invalid={!!hook.errors[f.name]}
+              >
                 <option value="">Choose…</option>
                 {f.options?.map((o) => (
                   <option key={o.value} value={o.value}>
@@ -93,7 +110,13 @@ function Form({ title, fields, initial, hook, children }: { title: string; field
       {children}
       <div aria-live="polite">
         {hook.status && (
-          <p className={hook.status.kind === 'error' ? 'rounded border-l-4 border-alert-high bg-alert-bg p-2 text-sm' : 'rounded border-l-4 border-lacquer bg-lacquer-light/60 p-2 text-sm'}>
+          <p
+            className={
+              hook.status.kind === 'error'
+                ? 'rounded border-l-4 border-alert-high bg-alert-bg p-2 text-sm'
+                : 'rounded border-l-4 border-lacquer bg-lacquer-light/60 p-2 text-sm'
+            }
+          >
             <strong>{hook.status.kind === 'error' ? '✕ Not saved.' : '✓ Saved.'}</strong> {hook.status.text}
           </p>
         )}
@@ -130,9 +153,19 @@ export function LacquerForm() {
       fields={[
         { name: 'name', label: 'Name' },
         { name: 'maker', label: 'Maker' },
-        { name: 'solidsPct', label: 'Nominal solids (wt %)', type: 'number', hint: 'The bath is held at this solids content (additions aim for it).' },
+        {
+          name: 'solidsPct',
+          label: 'Nominal solids (wt %)',
+          type: 'number',
+          hint: 'The bath is held at this solids content (additions aim for it).',
+        },
         { name: 'densityGCm3', label: 'Density (g/cm³)', type: 'number' },
-        { name: 'activationEnergyKJMol', label: 'Activation energy (kJ/mol)', type: 'number', hint: 'From the lacquer maker’s data or the lab’s validation.' },
+        {
+          name: 'activationEnergyKJMol',
+          label: 'Activation energy (kJ/mol)',
+          type: 'number',
+          hint: 'From the lacquer maker’s data or the lab’s validation.',
+        },
         { name: 'note', label: 'Note (optional)' },
       ]}
     />
@@ -159,7 +192,12 @@ export function LotForm({ lacquers }: { lacquers: { id: number; name: string }[]
       hook={hook}
       initial={{ receivedOn: new Date().toISOString().slice(0, 10) }}
       fields={[
-        { name: 'lacquerId', label: 'Lacquer', type: 'select', options: lacquers.map((l) => ({ value: String(l.id), label: l.name })) },
+        {
+          name: 'lacquerId',
+          label: 'Lacquer',
+          type: 'select',
+          options: lacquers.map((l) => ({ value: String(l.id), label: l.name })),
+        },
         { name: 'lotCode', label: 'Maker’s lot number' },
         { name: 'receivedOn', label: 'Received on', type: 'date' },
         { name: 'expiresOn', label: 'Expires on', type: 'date' },
@@ -190,7 +228,12 @@ export function ChargeForm({ tanks, lots }: { tanks: { id: number; name: string 
       hook={hook}
       initial={{}}
       fields={[
-        { name: 'tankAssetId', label: 'Tank', type: 'select', options: tanks.map((t) => ({ value: String(t.id), label: t.name })) },
+        {
+          name: 'tankAssetId',
+          label: 'Tank',
+          type: 'select',
+          options: tanks.map((t) => ({ value: String(t.id), label: t.name })),
+        },
         { name: 'lotId', label: 'Lot', type: 'select', options: lots.map((l) => ({ value: String(l.id), label: l.label })) },
         { name: 'chargedAt', label: 'Charged at (your local time; empty = now)', type: 'datetime-local' },
         { name: 'massKg', label: 'Charged mass (kg)', type: 'number' },
@@ -199,7 +242,8 @@ export function ChargeForm({ tanks, lots }: { tanks: { id: number; name: string 
       ]}
     >
       <p className="caution">
-        <strong>Caution.</strong> Lacquers and their solvents are flammable and harmful. Charge baths following the material’s safety data sheet, with ventilation, and under local fire codes.
+        <strong>Caution.</strong> Lacquers and their solvents are flammable and harmful. Charge baths following the material’s
+        safety data sheet, with ventilation, and under local fire codes.
       </p>
     </Form>
   );

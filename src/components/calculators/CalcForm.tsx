@@ -34,7 +34,12 @@ export function numberRows(text: string): number[][] {
     .split(/\r?\n/)
     .map((l) => l.trim())
     .filter((l) => l && !l.startsWith('#'))
-    .map((l) => l.split(/[,;\t ]+/).filter(Boolean).map((c) => Number(c.replace(',', '.'))));
+    .map((l) =>
+      l
+        .split(/[,;\t ]+/)
+        .filter(Boolean)
+        .map((c) => Number(c.replace(',', '.'))),
+    );
 }
 
 interface Props<R> {
@@ -67,7 +72,11 @@ export default function CalcForm<R>({ endpoint, fields, build, render, submitLab
         const byField: Record<string, string> = {};
         for (const f of err.errors) {
           const head = fields.find((x) => f.path === x.name || f.path.startsWith(`${x.name}.`))?.name ?? '(form)';
-          byField[head] = byField[head] ? `${byField[head]} ${f.message}` : f.path.includes('.') ? `${f.path}: ${f.message}` : f.message;
+          byField[head] = byField[head]
+            ? `${byField[head]} ${f.message}`
+            : f.path.includes('.')
+              ? `${f.path}: ${f.message}`
+              : f.message;
         }
         setErrors(byField);
         setProblem(err.detail ?? err.title);
@@ -106,9 +115,19 @@ export default function CalcForm<R>({ endpoint, fields, build, render, submitLab
                   ))}
                 </select>
               ) : f.type === 'textarea' ? (
-                <textarea {...common} className="num" rows={f.rows ?? 6} onChange={(e) => setValues({ ...values, [f.name]: e.target.value })} />
+                <textarea
+                  {...common}
+                  className="num"
+                  rows={f.rows ?? 6}
+                  onChange={(e) => setValues({ ...values, [f.name]: e.target.value })}
+                />
               ) : (
-                <input {...common} inputMode={f.type === 'text' ? undefined : 'decimal'} className="num" onChange={(e) => setValues({ ...values, [f.name]: e.target.value })} />
+                <input
+                  {...common}
+                  inputMode={f.type === 'text' ? undefined : 'decimal'}
+                  className="num"
+                  onChange={(e) => setValues({ ...values, [f.name]: e.target.value })}
+                />
               )}
               {f.hint && !errors[f.name] && (
                 <p id={`${fid}-hint`} className="mt-0.5 text-xs text-ink-soft">
@@ -174,4 +193,5 @@ export function Warnings({ items }: { items?: string[] | undefined }) {
 }
 
 /** Significant figures without trailing exponent noise. */
-export const sig = (v: number, n = 4) => (Math.abs(v) >= 1e-3 && Math.abs(v) < 1e6 ? Number(v.toPrecision(n)).toString() : v.toExponential(n - 1));
+export const sig = (v: number, n = 4) =>
+  Math.abs(v) >= 1e-3 && Math.abs(v) < 1e6 ? Number(v.toPrecision(n)).toString() : v.toExponential(n - 1);

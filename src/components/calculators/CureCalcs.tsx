@@ -14,7 +14,13 @@ export function CureEquivalentCalc() {
           rows: 8,
           initial: '# minutes, °C\n0, 25\n30, 110\n210, 110\n240, 40',
         },
-        { name: 'activationEnergyKJMol', label: 'Activation energy Ea', unit: 'kJ/mol', initial: '75', hint: 'From the lacquer maker or the lab’s validation.' },
+        {
+          name: 'activationEnergyKJMol',
+          label: 'Activation energy Ea',
+          unit: 'kJ/mol',
+          initial: '75',
+          hint: 'From the lacquer maker or the lab’s validation.',
+        },
         { name: 'referenceC', label: 'Reference temperature', unit: '°C', initial: '110' },
         { name: 'thresholdC', label: 'Count time at or above (optional)', unit: '°C', initial: '100' },
       ]}
@@ -27,7 +33,9 @@ export function CureEquivalentCalc() {
       render={(r, v) => (
         <dl>
           <Out label={`Equivalent minutes at ${v['referenceC']} °C`} value={sig(r.equivalentMinutes)} unit="min" strong />
-          {r.minutesAtOrAbove !== undefined && <Out label={`Time at or above ${v['thresholdC']} °C`} value={sig(r.minutesAtOrAbove)} unit="min" />}
+          {r.minutesAtOrAbove !== undefined && (
+            <Out label={`Time at or above ${v['thresholdC']} °C`} value={sig(r.minutesAtOrAbove)} unit="min" />
+          )}
         </dl>
       )}
     />

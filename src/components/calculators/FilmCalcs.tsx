@@ -5,14 +5,26 @@ import CalcForm, { num, numberRows, opt, Out, sig, Warnings } from './CalcForm.t
 
 export function DipThicknessCalc() {
   return (
-    <CalcForm<{ wetThicknessUm: number; dryThicknessUm?: number; capillaryNumber: number; capillaryLengthMm: number; regime: string; warnings: string[] }>
+    <CalcForm<{
+      wetThicknessUm: number;
+      dryThicknessUm?: number;
+      capillaryNumber: number;
+      capillaryLengthMm: number;
+      regime: string;
+      warnings: string[];
+    }>
       endpoint="/api/v1/calc/dip-thickness"
       fields={[
         { name: 'viscosityMPaS', label: 'Dynamic viscosity η', unit: 'mPa·s', initial: '9' },
         { name: 'speedMmS', label: 'Withdrawal speed U', unit: 'mm/s', initial: '2.0' },
         { name: 'surfaceTensionMNm', label: 'Surface tension γ', unit: 'mN/m', initial: '25' },
         { name: 'densityKgM3', label: 'Density ρ', unit: 'kg/m³', initial: '950' },
-        { name: 'solidsVolumeFraction', label: 'Solids volume fraction φ (optional)', unit: '0–1', hint: 'Gives the dry thickness ≈ wet × φ.' },
+        {
+          name: 'solidsVolumeFraction',
+          label: 'Solids volume fraction φ (optional)',
+          unit: '0–1',
+          hint: 'Gives the dry thickness ≈ wet × φ.',
+        },
       ]}
       build={(v) => ({
         ...opt('viscosityMPaS', num(v['viscosityMPaS'])),
@@ -28,7 +40,10 @@ export function DipThicknessCalc() {
             {r.dryThicknessUm !== undefined && <Out label="Dry thickness" value={sig(r.dryThicknessUm)} unit="µm" strong />}
             <Out label="Capillary number Ca = ηU/γ" value={sig(r.capillaryNumber, 3)} />
             <Out label="Capillary length ℓc = √(γ/ρg)" value={sig(r.capillaryLengthMm)} unit="mm" />
-            <Out label="Regime" value={r.regime === 'landau-levich' ? 'Landau–Levich (Ca ≤ 10⁻²)' : 'gravity–viscous (outside Landau–Levich)'} />
+            <Out
+              label="Regime"
+              value={r.regime === 'landau-levich' ? 'Landau–Levich (Ca ≤ 10⁻²)' : 'gravity–viscous (outside Landau–Levich)'}
+            />
           </dl>
           <Warnings items={r.warnings} />
         </>
@@ -43,10 +58,30 @@ export function SpeedAdvisorCalc() {
       endpoint="/api/v1/calc/speed-advisor"
       fields={[
         { name: 'viscosityMPaS', label: 'Bath viscosity now η', unit: 'mPa·s', initial: '9' },
-        { name: 'targetKind', label: 'Target is the', type: 'select', options: [{ value: 'dry', label: 'dry (cured) thickness' }, { value: 'wet', label: 'wet thickness' }], initial: 'dry' },
+        {
+          name: 'targetKind',
+          label: 'Target is the',
+          type: 'select',
+          options: [
+            { value: 'dry', label: 'dry (cured) thickness' },
+            { value: 'wet', label: 'wet thickness' },
+          ],
+          initial: 'dry',
+        },
         { name: 'targetUm', label: 'Target thickness', unit: 'µm', initial: '2.0' },
-        { name: 'thicknessConstant', label: 'Calibrated constant C (optional)', unit: 'µm/(mPa·s·mm/s)^(2/3)', hint: 'From the calibration calculator; replaces the theory when given.' },
-        { name: 'solidsVolumeFraction', label: 'Solids volume fraction φ', unit: '0–1', initial: '0.25', hint: 'Needed for a dry target without a calibrated constant.' },
+        {
+          name: 'thicknessConstant',
+          label: 'Calibrated constant C (optional)',
+          unit: 'µm/(mPa·s·mm/s)^(2/3)',
+          hint: 'From the calibration calculator; replaces the theory when given.',
+        },
+        {
+          name: 'solidsVolumeFraction',
+          label: 'Solids volume fraction φ',
+          unit: '0–1',
+          initial: '0.25',
+          hint: 'Needed for a dry target without a calibrated constant.',
+        },
         { name: 'surfaceTensionMNm', label: 'Surface tension γ', unit: 'mN/m', initial: '25' },
         { name: 'densityKgM3', label: 'Density ρ', unit: 'kg/m³', initial: '950' },
       ]}
@@ -62,7 +97,16 @@ export function SpeedAdvisorCalc() {
         <>
           <dl>
             <Out label="Withdrawal speed" value={sig(r.speedMmS, 3)} unit="mm/s" strong />
-            <Out label="Model" value={r.model === 'calibrated' ? 'the lab’s calibrated constant' : r.model === 'landau-levich' ? 'Landau–Levich theory' : 'gravity–viscous estimate'} />
+            <Out
+              label="Model"
+              value={
+                r.model === 'calibrated'
+                  ? 'the lab’s calibrated constant'
+                  : r.model === 'landau-levich'
+                    ? 'Landau–Levich theory'
+                    : 'gravity–viscous estimate'
+              }
+            />
             {r.capillaryNumber !== undefined && <Out label="Capillary number at that speed" value={sig(r.capillaryNumber, 3)} />}
           </dl>
           <Warnings items={r.warnings} />
@@ -92,10 +136,17 @@ export function CalibrationCalc() {
           unit: 'mm/s, mPa·s, µm',
           type: 'textarea',
           rows: 8,
-          initial: '# speed mm/s, viscosity mPa·s, cured thickness µm\n1.8, 9.0, 1.86\n2.0, 9.2, 2.03\n2.2, 9.5, 2.21\n2.0, 10.5, 2.15',
+          initial:
+            '# speed mm/s, viscosity mPa·s, cured thickness µm\n1.8, 9.0, 1.86\n2.0, 9.2, 2.03\n2.2, 9.5, 2.21\n2.0, 10.5, 2.15',
         },
       ]}
-      build={(v) => ({ points: numberRows(v['points'] ?? '').map(([speedMmS, viscosityMPaS, thicknessUm]) => ({ speedMmS, viscosityMPaS, thicknessUm })) })}
+      build={(v) => ({
+        points: numberRows(v['points'] ?? '').map(([speedMmS, viscosityMPaS, thicknessUm]) => ({
+          speedMmS,
+          viscosityMPaS,
+          thicknessUm,
+        })),
+      })}
       render={(r) => {
         const fit = (label: string, f: Fit) => (
           <div className="mb-3">
@@ -113,7 +164,11 @@ export function CalibrationCalc() {
         return (
           <>
             {fit('Landau–Levich exponent fixed at 2/3', r.fixedExponent)}
-            {r.freeExponent ? fit('Exponent fitted freely', r.freeExponent) : <p className="text-sm text-ink-soft">A free-exponent fit needs 3 or more points with different ηU.</p>}
+            {r.freeExponent ? (
+              fit('Exponent fitted freely', r.freeExponent)
+            ) : (
+              <p className="text-sm text-ink-soft">A free-exponent fit needs 3 or more points with different ηU.</p>
+            )}
           </>
         );
       }}
@@ -123,10 +178,24 @@ export function CalibrationCalc() {
 
 export function ViscosityCupCalc() {
   return (
-    <CalcForm<{ inRange: boolean; kinematicMm2S?: number; dynamicMPaS?: number; validSeconds: { min: number; max: number }; source: string; provenance: string; message?: string }>
+    <CalcForm<{
+      inRange: boolean;
+      kinematicMm2S?: number;
+      dynamicMPaS?: number;
+      validSeconds: { min: number; max: number };
+      source: string;
+      provenance: string;
+      message?: string;
+    }>
       endpoint="/api/v1/calc/viscosity-cup"
       fields={[
-        { name: 'cup', label: 'Cup', type: 'select', options: CUPS.map((c) => ({ value: c.id, label: `${c.id} (${c.validSeconds.min}–${c.validSeconds.max} s)` })), initial: 'zahn-1' },
+        {
+          name: 'cup',
+          label: 'Cup',
+          type: 'select',
+          options: CUPS.map((c) => ({ value: c.id, label: `${c.id} (${c.validSeconds.min}–${c.validSeconds.max} s)` })),
+          initial: 'zahn-1',
+        },
         { name: 'seconds', label: 'Efflux time', unit: 's', initial: '38' },
         { name: 'densityGCm3', label: 'Density (optional)', unit: 'g/cm³', hint: 'Gives the dynamic viscosity η = ν·ρ.' },
       ]}
@@ -171,7 +240,15 @@ export function BathAdditionCalc() {
         })}
         render={(r) => (
           <dl>
-            <Out label="Add" value={r.kind === 'none' ? 'nothing — on target' : `${r.massKg.toFixed(2)} kg of ${r.kind === 'solvent' ? 'solvent' : 'fresh lacquer'}`} strong />
+            <Out
+              label="Add"
+              value={
+                r.kind === 'none'
+                  ? 'nothing — on target'
+                  : `${r.massKg.toFixed(2)} kg of ${r.kind === 'solvent' ? 'solvent' : 'fresh lacquer'}`
+              }
+              strong
+            />
             <Out label="Bath mass after" value={r.resultingBathMassKg.toFixed(2)} unit="kg" />
             <Out label="Solids after" value={r.resultingSolidsPct.toFixed(2)} unit="wt %" />
           </dl>

@@ -11,7 +11,12 @@ export function FringeThicknessCalc() {
         { name: 'lambda1Nm', label: 'Longer-wavelength extremum λ1', unit: 'nm', initial: '600' },
         { name: 'lambda2Nm', label: 'Shorter-wavelength extremum λ2', unit: 'nm', initial: '500' },
         { name: 'refractiveIndex', label: 'Coat refractive index n', initial: '1.5' },
-        { name: 'fringes', label: 'Fringe orders between them (optional)', unit: 'count', hint: '1 for adjacent maxima (or minima).' },
+        {
+          name: 'fringes',
+          label: 'Fringe orders between them (optional)',
+          unit: 'count',
+          hint: '1 for adjacent maxima (or minima).',
+        },
       ]}
       build={(v) => ({
         ...opt('lambda1Nm', num(v['lambda1Nm'])),
@@ -56,7 +61,8 @@ export function SpectrumUpload() {
     setResult(null);
     setProblem(null);
     if (!file) return setProblem({ title: 'Choose a CSV file first.', lines: [] });
-    if (file.size > MAX_SPECTRUM_BYTES) return setProblem({ title: `The file is ${(file.size / 1048576).toFixed(2)} MB; the limit is 1 MB.`, lines: [] });
+    if (file.size > MAX_SPECTRUM_BYTES)
+      return setProblem({ title: `The file is ${(file.size / 1048576).toFixed(2)} MB; the limit is 1 MB.`, lines: [] });
     const opts = SpectrumOptionsSchema.safeParse({ refractiveIndex: n });
     if (!opts.success) return setProblem({ title: opts.error.issues.map((i) => i.message).join(' '), lines: [] });
     const form = new FormData();
@@ -67,7 +73,12 @@ export function SpectrumUpload() {
       const r = await fetch('/api/v1/calc/fringe-thickness/spectrum', { method: 'POST', body: form, credentials: 'same-origin' });
       const data = await r.json().catch(() => null);
       if (!r.ok) {
-        setProblem({ title: data?.title ? `${data.title}.` : `HTTP ${r.status}`, lines: (data?.errors ?? []).map((x: { path: string; message: string }) => `${x.path.replace('file:', '')}: ${x.message}`) });
+        setProblem({
+          title: data?.title ? `${data.title}.` : `HTTP ${r.status}`,
+          lines: (data?.errors ?? []).map(
+            (x: { path: string; message: string }) => `${x.path.replace('file:', '')}: ${x.message}`,
+          ),
+        });
       } else setResult(data as SpectrumResult);
     } catch {
       setProblem({ title: 'The upload failed (network error).', lines: [] });
@@ -81,7 +92,12 @@ export function SpectrumUpload() {
       <form onSubmit={submit} noValidate className="space-y-3">
         <div>
           <label htmlFor={`${id}-file`}>Reflectance spectrum (CSV: wavelength nm, reflectance; at most 1 MB)</label>
-          <input id={`${id}-file`} type="file" accept=".csv,text/csv,text/plain" onChange={(e) => setFile(e.target.files?.[0] ?? null)} />
+          <input
+            id={`${id}-file`}
+            type="file"
+            accept=".csv,text/csv,text/plain"
+            onChange={(e) => setFile(e.target.files?.[0] ?? null)}
+          />
         </div>
         <div>
           <label htmlFor={`${id}-n`}>Coat refractive index n</label>
@@ -148,7 +164,10 @@ export function AbrasionCalc() {
         { name: 'referenceHazeGainPct', label: 'Haze gain of the uncoated CR-39 reference', unit: 'haze %', initial: '20' },
         { name: 'testHazeGainPct', label: 'Haze gain of the test lens', unit: 'haze %', initial: '5' },
       ]}
-      build={(v) => ({ ...opt('referenceHazeGainPct', num(v['referenceHazeGainPct'])), ...opt('testHazeGainPct', num(v['testHazeGainPct'])) })}
+      build={(v) => ({
+        ...opt('referenceHazeGainPct', num(v['referenceHazeGainPct'])),
+        ...opt('testHazeGainPct', num(v['testHazeGainPct'])),
+      })}
       render={(r) => (
         <dl>
           <Out label="Bayer ratio" value={sig(r.bayerRatio, 3)} strong />
@@ -161,7 +180,15 @@ export function AbrasionCalc() {
 
 export function UniformityCalc() {
   return (
-    <CalcForm<{ hottestDeviationC: number; coldestDeviationC: number; hottestSensor: string; coldestSensor: string; uniformityClass: number | null; classToleranceC: number | null; message?: string }>
+    <CalcForm<{
+      hottestDeviationC: number;
+      coldestDeviationC: number;
+      hottestSensor: string;
+      coldestSensor: string;
+      uniformityClass: number | null;
+      classToleranceC: number | null;
+      message?: string;
+    }>
       endpoint="/api/v1/calc/uniformity"
       fields={[
         { name: 'setpointC', label: 'Setpoint', unit: '°C', initial: '110' },
@@ -171,7 +198,8 @@ export function UniformityCalc() {
           unit: '°C',
           type: 'textarea',
           rows: 8,
-          initial: 'front-left: 111.2, 111.8, 112.0\nfront-right: 109.5, 109.9, 110.3\nback-left: 108.9, 109.2, 109.0\nback-right: 110.8, 111.1, 110.7\ncentre: 110.1, 110.4, 110.2',
+          initial:
+            'front-left: 111.2, 111.8, 112.0\nfront-right: 109.5, 109.9, 110.3\nback-left: 108.9, 109.2, 109.0\nback-right: 110.8, 111.1, 110.7\ncentre: 110.1, 110.4, 110.2',
         },
         { name: 'stabilisedFromIndex', label: 'First reading of the stabilised soak (optional)', unit: 'index from 0' },
       ]}
@@ -186,16 +214,33 @@ export function UniformityCalc() {
             const m = head.match(/^(.*?)\s*\[([-+0-9.,]+)\]\s*$/);
             const name = (m ? m[1] : head)?.trim() ?? '';
             const correction = m ? Number(m[2]!.replace(',', '.')) : undefined;
-            const readingsC = rest.split(/[,;\s]+/).filter(Boolean).map((x) => Number(x.replace(',', '.')));
+            const readingsC = rest
+              .split(/[,;\s]+/)
+              .filter(Boolean)
+              .map((x) => Number(x.replace(',', '.')));
             return { name, readingsC, ...opt('correctionC', correction) };
           }),
         ...opt('stabilisedFromIndex', num(v['stabilisedFromIndex'])),
       })}
       render={(r) => (
         <dl>
-          <Out label="Hottest deviation" value={`${r.hottestDeviationC >= 0 ? '+' : ''}${sig(r.hottestDeviationC, 3)}`} unit={`°C (${r.hottestSensor})`} strong />
-          <Out label="Coldest deviation" value={`${r.coldestDeviationC >= 0 ? '+' : ''}${sig(r.coldestDeviationC, 3)}`} unit={`°C (${r.coldestSensor})`} strong />
-          <Out label="Uniformity class (AMS2750G template)" value={r.uniformityClass === null ? '✕ outside every class' : `class ${r.uniformityClass} (±${r.classToleranceC} °C)`} strong />
+          <Out
+            label="Hottest deviation"
+            value={`${r.hottestDeviationC >= 0 ? '+' : ''}${sig(r.hottestDeviationC, 3)}`}
+            unit={`°C (${r.hottestSensor})`}
+            strong
+          />
+          <Out
+            label="Coldest deviation"
+            value={`${r.coldestDeviationC >= 0 ? '+' : ''}${sig(r.coldestDeviationC, 3)}`}
+            unit={`°C (${r.coldestSensor})`}
+            strong
+          />
+          <Out
+            label="Uniformity class (AMS2750G template)"
+            value={r.uniformityClass === null ? '✕ outside every class' : `class ${r.uniformityClass} (±${r.classToleranceC} °C)`}
+            strong
+          />
         </dl>
       )}
     />

@@ -15,9 +15,13 @@ export const CALCULATORS: CalculatorInfo[] = [
   {
     slug: 'dip-thickness',
     title: 'Dip-coat film thickness',
-    summary: 'Wet and dry film thickness from viscosity and withdrawal speed (Landau–Levich), with the capillary number and regime.',
+    summary:
+      'Wet and dry film thickness from viscosity and withdrawal speed (Landau–Levich), with the capillary number and regime.',
     endpoint: '/api/v1/calc/dip-thickness',
-    sources: ['L. Landau & B. Levich, Acta Physicochimica URSS 17 (1942) 42–54', 'C. J. Brinker & G. W. Scherer, Sol-Gel Science (1990), ch. 13'],
+    sources: [
+      'L. Landau & B. Levich, Acta Physicochimica URSS 17 (1942) 42–54',
+      'C. J. Brinker & G. W. Scherer, Sol-Gel Science (1990), ch. 13',
+    ],
     validity:
       'Newtonian liquid, a lens the lacquer wets, steady withdrawal, and capillary number Ca = ηU/γ ≤ 10⁻² (a common-practice bound); above it the gravity–viscous estimate is shown with a warning. Dry thickness = wet × solids volume fraction ignores shrinkage beyond solvent loss.',
   },
@@ -36,12 +40,14 @@ export const CALCULATORS: CalculatorInfo[] = [
     summary: 'Fit h = C·(ηU)^k to measured thickness against speed and viscosity by least squares, with its fit quality.',
     endpoint: '/api/v1/calc/calibration',
     sources: ['Landau & Levich 1942 (exponent 2/3)', 'Ordinary least squares in log space (simple-statistics)'],
-    validity: 'Valid between the lowest and highest ηU of the measurements; r² and the residual spread say how well the law fits your lacquer.',
+    validity:
+      'Valid between the lowest and highest ηU of the measurements; r² and the residual spread say how well the law fits your lacquer.',
   },
   {
     slug: 'viscosity-cup',
     title: 'Viscosity from a flow cup',
-    summary: 'Efflux seconds → kinematic viscosity (and dynamic with a density) for Zahn, Shell, Ford, ISO 2431 and DIN 4 mm cups.',
+    summary:
+      'Efflux seconds → kinematic viscosity (and dynamic with a density) for Zahn, Shell, Ford, ISO 2431 and DIN 4 mm cups.',
     endpoint: '/api/v1/calc/viscosity-cup',
     sources: ['ASTM D4212 (Zahn, Shell)', 'ASTM D1200 (Ford)', 'ISO 2431', 'DIN 53211 (withdrawn)'],
     validity:
@@ -53,15 +59,18 @@ export const CALCULATORS: CalculatorInfo[] = [
     summary: 'Solvent or fresh lacquer to bring the bath’s solids back to target, by mass balance.',
     endpoint: '/api/v1/calc/bath-addition',
     sources: ['Steady-state solids mass balance (e.g. Himmelblau, Basic Principles and Calculations in Chemical Engineering)'],
-    validity: 'Assumes perfect mixing and that solvent carries no solids; the solids reading and the bath mass limit its accuracy.',
+    validity:
+      'Assumes perfect mixing and that solvent carries no solids; the solids reading and the bath mass limit its accuracy.',
   },
   {
     slug: 'cure-equivalent',
     title: 'Equivalent cure minutes',
-    summary: 'Arrhenius equivalent minutes at a reference temperature for a temperature profile, and time at or above a temperature.',
+    summary:
+      'Arrhenius equivalent minutes at a reference temperature for a temperature profile, and time at or above a temperature.',
     endpoint: '/api/v1/calc/cure-equivalent',
     sources: ['ASTM C1074 equivalent-age function (interval mean temperature)', 'Arrhenius law; R = 8.314462618 J/(mol·K)'],
-    validity: 'The activation energy must come from the lacquer maker or the lab’s validation; the sum assumes one rate-limiting reaction over the profile’s temperatures.',
+    validity:
+      'The activation energy must come from the lacquer maker or the lab’s validation; the sum assumes one rate-limiting reaction over the profile’s temperatures.',
   },
   {
     slug: 'activation-energy',
@@ -77,7 +86,8 @@ export const CALCULATORS: CalculatorInfo[] = [
     summary: 'Coat thickness from two interference extrema, or from an uploaded reflectance spectrum.',
     endpoint: '/api/v1/calc/fringe-thickness',
     sources: ['H. A. Macleod, Thin-Film Optical Filters (normal incidence, non-absorbing film)'],
-    validity: 'Normal incidence, a non-absorbing coat, dispersion neglected. An index-matched coat shows too little contrast to measure, and the calculator says so.',
+    validity:
+      'Normal incidence, a non-absorbing coat, dispersion neglected. An index-matched coat shows too little contrast to measure, and the calculator says so.',
   },
   {
     slug: 'crosscut',
@@ -85,7 +95,8 @@ export const CALCULATORS: CalculatorInfo[] = [
     summary: 'Percent of the lattice removed → ISO 2409 class and ASTM D3359 method B class.',
     endpoint: '/api/v1/calc/crosscut',
     sources: ['ISO 2409 Table 1', 'ASTM D3359 method B'],
-    validity: 'Classification of the estimated area removed; the estimate itself comes from the inspector against the standards’ pictures.',
+    validity:
+      'Classification of the estimated area removed; the estimate itself comes from the inspector against the standards’ pictures.',
   },
   {
     slug: 'abrasion',
@@ -93,7 +104,8 @@ export const CALCULATORS: CalculatorInfo[] = [
     summary: 'Reference haze gain ÷ test haze gain.',
     endpoint: '/api/v1/calc/abrasion',
     sources: ['ASTM F735'],
-    validity: 'Compares lenses abraded in the same run against the uncoated CR-39 reference; ≥ 4 is called premium by common practice.',
+    validity:
+      'Compares lenses abraded in the same run against the uncoated CR-39 reference; ≥ 4 is called premium by common practice.',
   },
   {
     slug: 'uniformity',
@@ -101,7 +113,8 @@ export const CALCULATORS: CalculatorInfo[] = [
     summary: 'Hottest and coldest deviation from setpoint over a multi-sensor survey and the uniformity class.',
     endpoint: '/api/v1/calc/uniformity',
     sources: ['SAE AMS2750G furnace classes (used as a published template)'],
-    validity: 'Readings should cover the stabilised soak and carry each sensor’s calibration correction; the class table is a template, configurable per site.',
+    validity:
+      'Readings should cover the stabilised soak and carry each sensor’s calibration correction; the class table is a template, configurable per site.',
   },
 ];
 

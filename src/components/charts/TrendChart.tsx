@@ -25,7 +25,16 @@ import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import { Chart } from 'react-chartjs-2';
 import { apiFetch, ApiError } from '../../lib/client/api.ts';
 import type { ReadingsResponse } from '../../lib/shared/telemetry.ts';
-import { formatClock, formatRange, formatSiteTime, fromLocalInput, tickLabel, timeTicks, toLocalInput, zonesOver } from '../../lib/shared/time.ts';
+import {
+  formatClock,
+  formatRange,
+  formatSiteTime,
+  fromLocalInput,
+  tickLabel,
+  timeTicks,
+  toLocalInput,
+  zonesOver,
+} from '../../lib/shared/time.ts';
 import {
   clampToNow,
   EVENT_STYLE,
@@ -109,7 +118,13 @@ const PRIORITY_COLOUR = { high: '#b3261e', medium: '#c26a00', low: '#8a6d00' } a
 const SOURCE_WORDS = { raw: 'raw readings', minute: 'minute rollup', hour: 'hourly rollup' } as const;
 
 const widthWords = (ms: number) =>
-  ms % 86_400_000 === 0 ? `${ms / 86_400_000} d` : ms % 3_600_000 === 0 ? `${ms / 3_600_000} h` : ms % 60_000 === 0 ? `${ms / 60_000} min` : `${ms / 1000} s`;
+  ms % 86_400_000 === 0
+    ? `${ms / 86_400_000} d`
+    : ms % 3_600_000 === 0
+      ? `${ms / 3_600_000} h`
+      : ms % 60_000 === 0
+        ? `${ms / 60_000} min`
+        : `${ms / 1000} s`;
 
 /** Paints the canvas white behind everything, so the PNG export is not transparent. */
 const whiteBackground: Plugin<'line'> = {
@@ -147,7 +162,10 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
   const [showWindow, setShowWindow] = useState(true);
   const [widthPx, setWidthPx] = useState(1000);
   const [picker, setPicker] = useState('');
-  const [custom, setCustom] = useState(() => ({ from: toLocalInput(initialRange.fromMs, tz), to: toLocalInput(initialRange.toMs, tz) }));
+  const [custom, setCustom] = useState(() => ({
+    from: toLocalInput(initialRange.fromMs, tz),
+    to: toLocalInput(initialRange.toMs, tz),
+  }));
   const [customError, setCustomError] = useState<string | null>(null);
   const [sel, setSel] = useState<{ x0: number; x1: number } | null>(null);
   const chartRef = useRef<ChartJS<'line', ChartPoint[]> | null>(null);
@@ -177,13 +195,21 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
     const to = Math.round(toMs);
     // The first load asks exactly what the page preloaded; later ones about one point per pixel (≤ 2 000).
     const maxPoints = first ? INITIAL_MAX_POINTS : maxPointsFor((boxRef.current?.clientWidth ?? 1000) - 120);
-    const message = (e: unknown) => (e instanceof ApiError ? `${e.title}${e.detail ? `: ${e.detail}` : ''}` : e instanceof Error ? e.message : String(e));
+    const message = (e: unknown) =>
+      e instanceof ApiError ? `${e.title}${e.detail ? `: ${e.detail}` : ''}` : e instanceof Error ? e.message : String(e);
     const run = async () => {
       if (!quiet) setLoading({ done: 0, total: ids.length });
       void Promise.all(
         ids.map(async (id): Promise<[number, Note]> => {
           try {
-            return [id, { a: await apiFetch<AnnotationsResponse>(`/api/v1/channels/${id}/annotations?from=${from}&to=${to}`, { signal: ac.signal }) }];
+            return [
+              id,
+              {
+                a: await apiFetch<AnnotationsResponse>(`/api/v1/channels/${id}/annotations?from=${from}&to=${to}`, {
+                  signal: ac.signal,
+                }),
+              },
+            ];
           } catch (e) {
             return [id, { a: null, error: message(e) }];
           }
@@ -195,7 +221,10 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
       const results = await Promise.all(
         ids.map(async (id): Promise<[number, SeriesState]> => {
           try {
-            const resp = await apiFetch<ReadingsResponse>(`/api/v1/channels/${id}/readings?from=${from}&to=${to}&maxPoints=${maxPoints}`, { signal: ac.signal });
+            const resp = await apiFetch<ReadingsResponse>(
+              `/api/v1/channels/${id}/readings?from=${from}&to=${to}&maxPoints=${maxPoints}`,
+              { signal: ac.signal },
+            );
             return [id, { status: 'ok', shaped: shapeReadings(resp) }];
           } catch (e) {
             return [id, { status: 'error', error: message(e) }];
@@ -281,8 +310,25 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
       const rows = new Map<number, PlottedRow>(s.rows.map((r) => [r.x, r]));
       const common = { yAxisID, spanGaps: false, parsing: false, normalized: true, _ch: ch, _rows: rows, _mode: s.mode };
       if (s.mode === 'bucketed') {
-        datasets.push({ ...common, label: `${ch.name} max`, data: s.max, borderWidth: 0, pointRadius: 0, fill: '+1', backgroundColor: style.fill, _role: 'band' });
-        datasets.push({ ...common, label: `${ch.name} min`, data: s.min, borderWidth: 0, pointRadius: 0, fill: false, _role: 'band' });
+        datasets.push({
+          ...common,
+          label: `${ch.name} max`,
+          data: s.max,
+          borderWidth: 0,
+          pointRadius: 0,
+          fill: '+1',
+          backgroundColor: style.fill,
+          _role: 'band',
+        });
+        datasets.push({
+          ...common,
+          label: `${ch.name} min`,
+          data: s.min,
+          borderWidth: 0,
+          pointRadius: 0,
+          fill: false,
+          _role: 'band',
+        });
         datasets.push({
           ...common,
           label: `${ch.name} (${ch.unit}) — mean, min–max band per ${widthWords(s.bucketMs ?? 0)}`,
@@ -330,7 +376,8 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
           pointStyle: st.shape,
           pointRadius: (c: any) => (c.raw?._m?.count > 1 ? 8 : 6.5),
           pointHoverRadius: 9,
-          pointBackgroundColor: (c: any) => (kind === 'alarm' ? PRIORITY_COLOUR[(c.raw?._m as Marker | undefined)?.priority ?? 'low'] : '#4a545b'),
+          pointBackgroundColor: (c: any) =>
+            kind === 'alarm' ? PRIORITY_COLOUR[(c.raw?._m as Marker | undefined)?.priority ?? 'low'] : '#4a545b',
           pointBorderColor: '#1f2529',
           borderColor: kind === 'alarm' ? PRIORITY_COLOUR.high : '#4a545b',
           backgroundColor: kind === 'alarm' ? PRIORITY_COLOUR.high : '#4a545b',
@@ -350,7 +397,13 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
         const style = STYLES[i % STYLES.length]!;
         const yScaleID = axisOf(ch.unit);
         bands.forEach((b, k) => {
-          const base = { xScaleID: 'x', yScaleID, xMin: Math.max(b.fromMs, fromMs), xMax: Math.min(b.toMs, toMs), drawTime: 'beforeDatasetsDraw' };
+          const base = {
+            xScaleID: 'x',
+            yScaleID,
+            xMin: Math.max(b.fromMs, fromMs),
+            xMax: Math.min(b.toMs, toMs),
+            drawTime: 'beforeDatasetsDraw',
+          };
           annotations[`w${id}-${k}`] = {
             ...base,
             type: 'box',
@@ -373,7 +426,15 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
             ['hi', b.max, [6, 4]],
             ...(b.target !== null ? [['tg', b.target, [1, 3]] as const] : []),
           ] as const) {
-            annotations[`w${id}-${k}-${key}`] = { ...base, type: 'line', yMin: y, yMax: y, borderColor: i === 0 ? '#2f6f73' : style.line, borderWidth: i === 0 ? 1 : 1.4, borderDash: dash };
+            annotations[`w${id}-${k}-${key}`] = {
+              ...base,
+              type: 'line',
+              yMin: y,
+              yMax: y,
+              borderColor: i === 0 ? '#2f6f73' : style.line,
+              borderWidth: i === 0 ? 1 : 1.4,
+              borderDash: dash,
+            };
           }
         });
         windowChanges(bands).forEach((c, k) => {
@@ -386,7 +447,13 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
             borderColor: '#2f6f73',
             borderWidth: 1.5,
             borderDash: [3, 3],
-            label: { display: true, content: c.label, position: 'end', backgroundColor: 'rgba(31,78,81,0.85)', font: { size: 10 } },
+            label: {
+              display: true,
+              content: c.label,
+              position: 'end',
+              backgroundColor: 'rgba(31,78,81,0.85)',
+              font: { size: 10 },
+            },
           };
         });
       });
@@ -399,7 +466,13 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
         xMax: at,
         borderColor: '#1f2529',
         borderWidth: 2,
-        label: { display: true, content: `Linked time ${formatClock(at, tz, { seconds: true })}`, position: 'start', backgroundColor: '#1f2529', font: { size: 11 } },
+        label: {
+          display: true,
+          content: `Linked time ${formatClock(at, tz, { seconds: true })}`,
+          position: 'start',
+          backgroundColor: '#1f2529',
+          font: { size: 11 },
+        },
       };
     }
     // Extents of the shaded windows per axis, so a window is visible even when the data sits inside it.
@@ -419,10 +492,17 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
         type: 'linear',
         min: fromMs,
         max: toMs,
-        ticks: { callback: (v: string | number) => tickLabel(Number(v), tz, span), maxRotation: 0, autoSkipPadding: 18, color: '#4a545b' },
+        ticks: {
+          callback: (v: string | number) => tickLabel(Number(v), tz, span),
+          maxRotation: 0,
+          autoSkipPadding: 18,
+          color: '#4a545b',
+        },
         // Round ticks on the site's wall clock (chart.js would align them to the browser's zone).
         afterBuildTicks: (scale: Scale) => {
-          scale.ticks = timeTicks(fromMs, toMs, tz, Math.max(3, Math.floor((scale.width || widthPx) / 110))).map((value) => ({ value }));
+          scale.ticks = timeTicks(fromMs, toMs, tz, Math.max(3, Math.floor((scale.width || widthPx) / 110))).map((value) => ({
+            value,
+          }));
         },
         title: { display: true, text: `Time (${tz}, ${zonesOver(fromMs, toMs, tz)})`, color: '#4a545b' },
         grid: { color: '#ebebe6' },
@@ -459,7 +539,13 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
       plugins: {
         legend: {
           position: 'bottom',
-          labels: { usePointStyle: true, filter: (item: { datasetIndex?: number }, d: ChartData) => (d.datasets[item.datasetIndex ?? 0] as any)?._role !== 'band', color: '#1f2529', boxHeight: 8 },
+          labels: {
+            usePointStyle: true,
+            filter: (item: { datasetIndex?: number }, d: ChartData) =>
+              (d.datasets[item.datasetIndex ?? 0] as any)?._role !== 'band',
+            color: '#1f2529',
+            boxHeight: 8,
+          },
         },
         tooltip: {
           filter: (item: TooltipItem<'line'>) => (item.dataset as any)._role !== 'band',
@@ -484,7 +570,11 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
     const rect = chart.canvas.getBoundingClientRect();
     const x = clientX - rect.left;
     const { left, right } = chart.chartArea;
-    return { x: Math.min(right, Math.max(left, x)), inside: x >= left && x <= right, ms: (px: number) => chart.scales['x']!.getValueForPixel(px) ?? fromMs };
+    return {
+      x: Math.min(right, Math.max(left, x)),
+      inside: x >= left && x <= right,
+      ms: (px: number) => chart.scales['x']!.getValueForPixel(px) ?? fromMs,
+    };
   };
   const onPointerDown = (e: React.PointerEvent) => {
     if (e.button !== 0) return;
@@ -515,7 +605,11 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
       const p = plotX(e.clientX);
       if (!p?.inside) return;
       e.preventDefault();
-      setView((v) => ({ range: clampToNow(zoomRange(v.range, e.deltaY < 0 ? 0.7 : 1 / 0.7, p.ms(p.x)), Date.now() + 60_000), live: false, preset: null }));
+      setView((v) => ({
+        range: clampToNow(zoomRange(v.range, e.deltaY < 0 ? 0.7 : 1 / 0.7, p.ms(p.x)), Date.now() + 60_000),
+        live: false,
+        preset: null,
+      }));
     };
     el.addEventListener('wheel', onWheel, { passive: false });
     return () => el.removeEventListener('wheel', onWheel);
@@ -578,13 +672,29 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
             </button>
           ))}
           <span className="mx-1 h-6 w-px bg-slate-line" aria-hidden="true" />
-          <button type="button" className="btn-quiet" onClick={() => go(panRange(view.range, -0.5))} title="Earlier by half the view (← key)">
+          <button
+            type="button"
+            className="btn-quiet"
+            onClick={() => go(panRange(view.range, -0.5))}
+            title="Earlier by half the view (← key)"
+          >
             ← Earlier
           </button>
-          <button type="button" className="btn-quiet" onClick={() => go(panRange(view.range, 0.5))} disabled={toMs >= Date.now()} title="Later by half the view (→ key)">
+          <button
+            type="button"
+            className="btn-quiet"
+            onClick={() => go(panRange(view.range, 0.5))}
+            disabled={toMs >= Date.now()}
+            title="Later by half the view (→ key)"
+          >
             Later →
           </button>
-          <button type="button" className="btn-quiet" onClick={() => go(zoomRange(view.range, 0.5))} title="Zoom in (+ key; or drag across the chart)">
+          <button
+            type="button"
+            className="btn-quiet"
+            onClick={() => go(zoomRange(view.range, 0.5))}
+            title="Zoom in (+ key; or drag across the chart)"
+          >
             Zoom in
           </button>
           <button type="button" className="btn-quiet" onClick={() => go(zoomRange(view.range, 2))} title="Zoom out (− key)">
@@ -594,11 +704,23 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
         <form className="flex flex-wrap items-end gap-2" onSubmit={applyCustom} aria-label="Custom range">
           <div>
             <label htmlFor="trend-from">From ({tz})</label>
-            <input id="trend-from" type="datetime-local" className="w-auto" value={custom.from} onChange={(e) => setCustom({ ...custom, from: e.target.value })} />
+            <input
+              id="trend-from"
+              type="datetime-local"
+              className="w-auto"
+              value={custom.from}
+              onChange={(e) => setCustom({ ...custom, from: e.target.value })}
+            />
           </div>
           <div>
             <label htmlFor="trend-to">To ({tz})</label>
-            <input id="trend-to" type="datetime-local" className="w-auto" value={custom.to} onChange={(e) => setCustom({ ...custom, to: e.target.value })} />
+            <input
+              id="trend-to"
+              type="datetime-local"
+              className="w-auto"
+              value={custom.to}
+              onChange={(e) => setCustom({ ...custom, to: e.target.value })}
+            />
           </div>
           <button type="submit" className="btn-quiet">
             Show range
@@ -622,13 +744,29 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
             {loaded.map(({ id, ch }, i) => (
               <li key={id} className="flex items-center gap-1 rounded border border-slate-line bg-paper px-2 py-1 text-sm">
                 <svg width="26" height="8" aria-hidden="true">
-                  <line x1="0" y1="4" x2="26" y2="4" stroke={STYLES[i % STYLES.length]!.line} strokeWidth="2" strokeDasharray={STYLES[i % STYLES.length]!.dash.join(' ')} />
+                  <line
+                    x1="0"
+                    y1="4"
+                    x2="26"
+                    y2="4"
+                    stroke={STYLES[i % STYLES.length]!.line}
+                    strokeWidth="2"
+                    strokeDasharray={STYLES[i % STYLES.length]!.dash.join(' ')}
+                  />
                 </svg>
                 <span>
-                  <span className="font-bold">{ch.name}</span> <span className="text-ink-soft">({ch.unit}, {STYLES[i % STYLES.length]!.name})</span>
+                  <span className="font-bold">{ch.name}</span>{' '}
+                  <span className="text-ink-soft">
+                    ({ch.unit}, {STYLES[i % STYLES.length]!.name})
+                  </span>
                 </span>
                 {ids.length > 1 && (
-                  <button type="button" className="ml-1 rounded px-1 font-bold text-ink-soft hover:bg-slate-panel" aria-label={`Remove ${ch.name}`} onClick={() => setIds(ids.filter((x) => x !== id))}>
+                  <button
+                    type="button"
+                    className="ml-1 rounded px-1 font-bold text-ink-soft hover:bg-slate-panel"
+                    aria-label={`Remove ${ch.name}`}
+                    onClick={() => setIds(ids.filter((x) => x !== id))}
+                  >
                     ×
                   </button>
                 )}
@@ -669,10 +807,12 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
           )}
           <span className="ml-auto flex flex-wrap gap-4 text-sm">
             <label className="mb-0 flex items-center gap-1.5 font-normal text-ink">
-              <input type="checkbox" className="w-auto" checked={showWindow} onChange={(e) => setShowWindow(e.target.checked)} /> Process window
+              <input type="checkbox" className="w-auto" checked={showWindow} onChange={(e) => setShowWindow(e.target.checked)} />{' '}
+              Process window
             </label>
             <label className="mb-0 flex items-center gap-1.5 font-normal text-ink">
-              <input type="checkbox" className="w-auto" checked={showEvents} onChange={(e) => setShowEvents(e.target.checked)} /> Alarms and events
+              <input type="checkbox" className="w-auto" checked={showEvents} onChange={(e) => setShowEvents(e.target.checked)} />{' '}
+              Alarms and events
             </label>
           </span>
         </div>
@@ -681,7 +821,8 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
       <div className="panel p-3">
         <p className="mb-2 text-sm text-ink-soft">
           <span className="font-bold text-ink">{formatRange(fromMs, toMs, tz)}</span>
-          {view.live ? ' · following live' : ''} · drag across the chart to zoom in; ← → keys move, + − zoom; Ctrl + wheel zooms at the pointer.
+          {view.live ? ' · following live' : ''} · drag across the chart to zoom in; ← → keys move, + − zoom; Ctrl + wheel zooms
+          at the pointer.
         </p>
         <div
           ref={boxRef}
@@ -709,7 +850,10 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
               <div className="rounded border border-slate-line bg-white px-4 py-3 text-sm shadow-sm">
                 Loading readings… {loading.done} of {loading.total} channel{loading.total === 1 ? '' : 's'}
                 <div className="mt-2 h-1.5 w-48 rounded bg-slate-panel">
-                  <div className="h-1.5 rounded bg-lacquer" style={{ width: `${(100 * loading.done) / Math.max(1, loading.total)}%` }} />
+                  <div
+                    className="h-1.5 rounded bg-lacquer"
+                    style={{ width: `${(100 * loading.done) / Math.max(1, loading.total)}%` }}
+                  />
                 </div>
               </div>
             </div>
@@ -761,8 +905,9 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
             </li>
           ))}
           <li>
-            Shaded: the process window in force at the time (dashed limits, dotted target). Markers: ▲ alarms (colour by priority), ● solvent and ▬ lacquer additions, ■ filter changes, ◆ door openings,
-            ✕ load start, ★ load end; a larger marker stands for several events — hover for the list.
+            Shaded: the process window in force at the time (dashed limits, dotted target). Markers: ▲ alarms (colour by
+            priority), ● solvent and ▬ lacquer additions, ■ filter changes, ◆ door openings, ✕ load start, ★ load end; a larger
+            marker stands for several events — hover for the list.
           </li>
         </ul>
       </div>
@@ -775,14 +920,17 @@ function tooltipLines(item: TooltipItem<'line'>, tz: string): string | string[] 
   const raw = item.raw as ChartPoint & { _m?: Marker };
   if (ds._role === 'marker' && raw._m) {
     const m = raw._m;
-    const lines = m.events.slice(0, 6).map((e) => `${formatClock(e.tMs, tz, { seconds: true })} ${e.label}${e.detail ? ` (${e.detail})` : ''}`);
+    const lines = m.events
+      .slice(0, 6)
+      .map((e) => `${formatClock(e.tMs, tz, { seconds: true })} ${e.label}${e.detail ? ` (${e.detail})` : ''}`);
     if (m.count > 6) lines.push(`… and ${m.count - 6} more — zoom in to see them`);
     return m.count > 1 ? [m.label, ...lines] : lines;
   }
   const ch = ds._ch as TrendChannelOption;
   const row = (ds._rows as Map<number, PlottedRow>).get(raw.x);
   if (!row) return `${ch.name}: ${raw.y} ${ch.unit}`;
-  if (ds._mode === 'raw') return `${ch.name}: ${row.value} ${ch.unit}${row.quality ? ` (quality ${row.quality === 1 ? 'uncertain' : 'bad'})` : ''}`;
+  if (ds._mode === 'raw')
+    return `${ch.name}: ${row.value} ${ch.unit}${row.quality ? ` (quality ${row.quality === 1 ? 'uncertain' : 'bad'})` : ''}`;
   const f = (v: number | undefined) => (v === undefined ? '—' : Number(v.toPrecision(6)));
   return `${ch.name}: mean ${f(row.mean)} ${ch.unit} (min ${f(row.min)}, max ${f(row.max)}; ${row.n} readings from ${formatClock(row.bucketStartMs ?? raw.x, tz)})`;
 }

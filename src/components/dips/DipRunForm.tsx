@@ -39,7 +39,8 @@ export default function DipRunForm({ lines, timeZone }: { lines: { id: number; n
   const [created, setCreated] = useState<Created | null>(null);
   const parsed = parseJobList(scan);
 
-  const errText = (err: unknown) => (err instanceof ApiError ? err.errors.map((f) => f.message).join(' ') || (err.detail ?? err.title) : 'Something went wrong.');
+  const errText = (err: unknown) =>
+    err instanceof ApiError ? err.errors.map((f) => f.message).join(' ') || (err.detail ?? err.title) : 'Something went wrong.';
 
   async function checkCsv() {
     if (!csv) return setMsg({ kind: 'error', text: 'Choose a CSV file first.' });
@@ -59,12 +60,17 @@ export default function DipRunForm({ lines, timeZone }: { lines: { id: number; n
     if (!csv || !preview) return;
     setBusy('commit');
     try {
-      const r = await apiFetch<{ imported: number; created: number; jobNumbers: string[] }>('/api/v1/jobs/import/commit', { body: { csv: csv.text, sha256: preview.sha256 } });
+      const r = await apiFetch<{ imported: number; created: number; jobNumbers: string[] }>('/api/v1/jobs/import/commit', {
+        body: { csv: csv.text, sha256: preview.sha256 },
+      });
       const merged = [...new Set([...parsed.jobNumbers, ...r.jobNumbers])];
       setScan(merged.join('\n'));
       const racks = [...new Set(preview.good.map((g) => g.rackCode).filter(Boolean))];
       if (!rack && racks.length === 1) setRack(racks[0]!);
-      setMsg({ kind: 'ok', text: `${r.imported} job(s) kept (${r.created} new); ${preview.bad.length} bad row(s) skipped. Their numbers are in the job list below — record the dip to put them on the rack.` });
+      setMsg({
+        kind: 'ok',
+        text: `${r.imported} job(s) kept (${r.created} new); ${preview.bad.length} bad row(s) skipped. Their numbers are in the job list below — record the dip to put them on the rack.`,
+      });
       setPreview(null);
       setCsv(null);
     } catch (err) {
@@ -77,9 +83,19 @@ export default function DipRunForm({ lines, timeZone }: { lines: { id: number; n
   async function submit(e: SyntheticEvent) {
     e.preventDefault();
     setMsg(null);
-    if (parsed.invalid.length) return setMsg({ kind: 'error', text: `Not job numbers: ${parsed.invalid.map((x) => `line ${x.line} “${x.value}”`).join(', ')}.` });
+    if (parsed.invalid.length)
+      return setMsg({
+        kind: 'error',
+        text: `Not job numbers: ${parsed.invalid.map((x) => `line ${x.line} “${x.value}”`).join(', ')}.`,
+      });
     const when = fromLocalInput(at, timeZone);
-    const body = { lineAssetId: lineId, ...(Number.isFinite(when) ? { dippedAt: new Date(when).toISOString() } : {}), ...(rack.trim() ? { rackCode: rack.trim() } : {}), jobNumbers: parsed.jobNumbers, ...(note.trim() ? { note: note.trim() } : {}) };
+    const body = {
+      lineAssetId: lineId,
+      ...(Number.isFinite(when) ? { dippedAt: new Date(when).toISOString() } : {}),
+      ...(rack.trim() ? { rackCode: rack.trim() } : {}),
+      jobNumbers: parsed.jobNumbers,
+      ...(note.trim() ? { note: note.trim() } : {}),
+    };
     const p = DipRunCreateSchema.safeParse(body);
     if (!p.success) return setMsg({ kind: 'error', text: p.error.issues.map((i) => i.message).join(' ') });
     setBusy('save');
@@ -105,7 +121,11 @@ export default function DipRunForm({ lines, timeZone }: { lines: { id: number; n
           <div>
             <label htmlFor="d-line">Line</label>
             <select id="d-line" value={lineId} onChange={(e) => setLineId(Number(e.target.value))}>
-              {lines.map((l) => <option key={l.id} value={l.id}>{l.name}</option>)}
+              {lines.map((l) => (
+                <option key={l.id} value={l.id}>
+                  {l.name}
+                </option>
+              ))}
             </select>
           </div>
           <div>
@@ -119,10 +139,24 @@ export default function DipRunForm({ lines, timeZone }: { lines: { id: number; n
         </div>
         <div>
           <label htmlFor="d-jobs">Jobs on the rack — scan each ticket (one per line) or type numbers separated by commas</label>
-          <textarea id="d-jobs" rows={6} value={scan} onChange={(e) => setScan(e.target.value)} className="font-mono" autoComplete="off" spellCheck={false} />
+          <textarea
+            id="d-jobs"
+            rows={6}
+            value={scan}
+            onChange={(e) => setScan(e.target.value)}
+            className="font-mono"
+            autoComplete="off"
+            spellCheck={false}
+          />
           <p className="text-xs text-ink-soft" aria-live="polite">
-            {parsed.jobNumbers.length} job(s){parsed.duplicates.length ? `, ${parsed.duplicates.length} scanned twice (kept once)` : ''}
-            {parsed.invalid.length ? `, ${parsed.invalid.length} not valid: ${parsed.invalid.slice(0, 3).map((x) => `line ${x.line}`).join(', ')}` : ''}
+            {parsed.jobNumbers.length} job(s)
+            {parsed.duplicates.length ? `, ${parsed.duplicates.length} scanned twice (kept once)` : ''}
+            {parsed.invalid.length
+              ? `, ${parsed.invalid.length} not valid: ${parsed.invalid
+                  .slice(0, 3)
+                  .map((x) => `line ${x.line}`)
+                  .join(', ')}`
+              : ''}
             {parsed.jobNumbers.length > MAX_JOBS_PER_SCAN ? ` — at most ${MAX_JOBS_PER_SCAN}` : ''}.
           </p>
         </div>
@@ -130,12 +164,17 @@ export default function DipRunForm({ lines, timeZone }: { lines: { id: number; n
           <label htmlFor="d-note">Note (optional)</label>
           <input id="d-note" value={note} onChange={(e) => setNote(e.target.value)} maxLength={1000} />
         </div>
-        <button className="btn" disabled={busy !== null}>{busy === 'save' ? 'Recording…' : 'Record the dip'}</button>
+        <button className="btn" disabled={busy !== null}>
+          {busy === 'save' ? 'Recording…' : 'Record the dip'}
+        </button>
         {created && (
           <div role="status" className="rounded border-l-4 border-lacquer bg-lacquer-light/60 p-2 text-sm">
             <strong>✓ Dip run {created.id} recorded</strong> with {created.jobs.length} job(s).{' '}
-            {created.withdrawalSpeedMmS !== null ? `Withdrawal speed ${created.withdrawalSpeedMmS.toFixed(3)} mm/s (${created.strokeSamples} reading(s) in the stroke).` : 'No withdrawal stroke found in the stored readings around that time.'}{' '}
-            {created.bathChargeId ? `Bath charge ${created.bathChargeId}` : 'No bath charge'} and {created.lastCheckId ? `bath check ${created.lastCheckId}` : 'no earlier bath check'} linked.
+            {created.withdrawalSpeedMmS !== null
+              ? `Withdrawal speed ${created.withdrawalSpeedMmS.toFixed(3)} mm/s (${created.strokeSamples} reading(s) in the stroke).`
+              : 'No withdrawal stroke found in the stored readings around that time.'}{' '}
+            {created.bathChargeId ? `Bath charge ${created.bathChargeId}` : 'No bath charge'} and{' '}
+            {created.lastCheckId ? `bath check ${created.lastCheckId}` : 'no earlier bath check'} linked.
           </div>
         )}
       </form>
@@ -143,46 +182,98 @@ export default function DipRunForm({ lines, timeZone }: { lines: { id: number; n
       <section className="panel space-y-3" aria-labelledby="csv-h">
         <h2 id="csv-h">Jobs from a CSV file</h2>
         <p className="text-sm text-ink-soft">
-          A header row naming <code>job_number</code>, optionally <code>customer_ref</code>, <code>lens_material</code>, <code>rack</code>. Step 1 checks the file (nothing is stored); step 2 keeps only the good rows.
+          A header row naming <code>job_number</code>, optionally <code>customer_ref</code>, <code>lens_material</code>,{' '}
+          <code>rack</code>. Step 1 checks the file (nothing is stored); step 2 keeps only the good rows.
         </p>
         <div>
           <label htmlFor="d-csv">CSV file</label>
-          <input id="d-csv" type="file" accept=".csv,text/csv,text/plain" onChange={async (e) => { const f = e.target.files?.[0]; setPreview(null); setCsv(f ? { name: f.name, text: await f.text() } : null); }} />
+          <input
+            id="d-csv"
+            type="file"
+            accept=".csv,text/csv,text/plain"
+            onChange={async (e) => {
+              const f = e.target.files?.[0];
+              setPreview(null);
+              setCsv(f ? { name: f.name, text: await f.text() } : null);
+            }}
+          />
         </div>
-        <button type="button" className="btn-quiet" disabled={!csv || busy !== null} onClick={checkCsv}>{busy === 'preview' ? 'Checking…' : '1 · Check the file'}</button>
+        <button type="button" className="btn-quiet" disabled={!csv || busy !== null} onClick={checkCsv}>
+          {busy === 'preview' ? 'Checking…' : '1 · Check the file'}
+        </button>
         {preview && (
           <div className="space-y-2">
             <p className="text-sm">
-              <strong>{preview.good.length}</strong> good row(s){preview.existing.length ? ` (${preview.existing.length} already known)` : ''}, <strong className={preview.bad.length ? 'text-alert-high' : ''}>{preview.bad.length}</strong> bad row(s).
+              <strong>{preview.good.length}</strong> good row(s)
+              {preview.existing.length ? ` (${preview.existing.length} already known)` : ''},{' '}
+              <strong className={preview.bad.length ? 'text-alert-high' : ''}>{preview.bad.length}</strong> bad row(s).
             </p>
             {preview.bad.length > 0 && (
               <div className="max-h-48 overflow-auto rounded border border-alert-high">
                 <table>
-                  <thead><tr><th>Line</th><th>Why it is refused</th></tr></thead>
-                  <tbody>{preview.bad.map((b) => <tr key={b.line}><td className="num">✕ {b.line}</td><td className="text-sm">{b.errors.join('; ')}</td></tr>)}</tbody>
+                  <thead>
+                    <tr>
+                      <th>Line</th>
+                      <th>Why it is refused</th>
+                    </tr>
+                  </thead>
+                  <tbody>
+                    {preview.bad.map((b) => (
+                      <tr key={b.line}>
+                        <td className="num">✕ {b.line}</td>
+                        <td className="text-sm">{b.errors.join('; ')}</td>
+                      </tr>
+                    ))}
+                  </tbody>
                 </table>
               </div>
             )}
             {preview.good.length > 0 && (
               <div className="max-h-48 overflow-auto rounded border border-slate-line">
                 <table>
-                  <thead><tr><th>Line</th><th>Job</th><th>Customer ref</th><th>Material</th><th>Rack</th></tr></thead>
-                  <tbody>{preview.good.map((g) => <tr key={g.line}><td className="num">{g.line}</td><td className="num">{g.jobNumber}</td><td>{g.customerRef ?? ''}</td><td>{g.lensMaterial ?? ''}</td><td className="num">{g.rackCode ?? ''}</td></tr>)}</tbody>
+                  <thead>
+                    <tr>
+                      <th>Line</th>
+                      <th>Job</th>
+                      <th>Customer ref</th>
+                      <th>Material</th>
+                      <th>Rack</th>
+                    </tr>
+                  </thead>
+                  <tbody>
+                    {preview.good.map((g) => (
+                      <tr key={g.line}>
+                        <td className="num">{g.line}</td>
+                        <td className="num">{g.jobNumber}</td>
+                        <td>{g.customerRef ?? ''}</td>
+                        <td>{g.lensMaterial ?? ''}</td>
+                        <td className="num">{g.rackCode ?? ''}</td>
+                      </tr>
+                    ))}
+                  </tbody>
                 </table>
               </div>
             )}
             <div className="flex flex-wrap gap-2">
               <button type="button" className="btn" disabled={preview.good.length === 0 || busy !== null} onClick={keepGood}>
-                {busy === 'commit' ? 'Keeping…' : `2 · Keep the ${preview.good.length} good row(s)${preview.bad.length ? `, skip ${preview.bad.length}` : ''}`}
+                {busy === 'commit'
+                  ? 'Keeping…'
+                  : `2 · Keep the ${preview.good.length} good row(s)${preview.bad.length ? `, skip ${preview.bad.length}` : ''}`}
               </button>
-              <button type="button" className="btn-quiet" onClick={() => setPreview(null)}>Cancel</button>
+              <button type="button" className="btn-quiet" onClick={() => setPreview(null)}>
+                Cancel
+              </button>
             </div>
           </div>
         )}
       </section>
       {msg && (
-        <p role={msg.kind === 'error' ? 'alert' : 'status'} className={`xl:col-span-2 ${msg.kind === 'error' ? 'rounded border-l-4 border-alert-high bg-alert-bg p-2 text-sm' : 'rounded border-l-4 border-lacquer bg-lacquer-light/60 p-2 text-sm'}`}>
-          <strong>{msg.kind === 'error' ? '✕ ' : '✓ '}</strong>{msg.text}
+        <p
+          role={msg.kind === 'error' ? 'alert' : 'status'}
+          className={`xl:col-span-2 ${msg.kind === 'error' ? 'rounded border-l-4 border-alert-high bg-alert-bg p-2 text-sm' : 'rounded border-l-4 border-lacquer bg-lacquer-light/60 p-2 text-sm'}`}
+        >
+          <strong>{msg.kind === 'error' ? '✕ ' : '✓ '}</strong>
+          {msg.text}
         </p>
       )}
     </div>

@@ -37,8 +37,26 @@ interface Props {
 
 /** Colours for abnormal states only; the normal state stays grey. Two palettes: paper and wall. */
 const TONE = {
-  paper: { high: '#b3261e', med: '#c26a00', low: '#8a6d00', normal: '#4a545b', faint: '#7b858c', track: '#e2e3de', band: '#c4c8c6', ink: '#1f2529' },
-  wall: { high: '#ff8a80', med: '#ffb74d', low: '#e6cf6a', normal: '#b8c0c5', faint: '#8a949a', track: '#2b3338', band: '#4d585e', ink: '#eef1f2' },
+  paper: {
+    high: '#b3261e',
+    med: '#c26a00',
+    low: '#8a6d00',
+    normal: '#4a545b',
+    faint: '#7b858c',
+    track: '#e2e3de',
+    band: '#c4c8c6',
+    ink: '#1f2529',
+  },
+  wall: {
+    high: '#ff8a80',
+    med: '#ffb74d',
+    low: '#e6cf6a',
+    normal: '#b8c0c5',
+    faint: '#8a949a',
+    track: '#2b3338',
+    band: '#4d585e',
+    ink: '#eef1f2',
+  },
 } as const;
 type Tone = (typeof TONE)[keyof typeof TONE];
 
@@ -48,7 +66,9 @@ const PRIORITY_WORD = { high: 'high', medium: 'medium', low: 'low' } as const;
 export function FloorBoard({ initial, wall = false }: Props) {
   const tone = wall ? TONE.wall : TONE.paper;
   const [snap, setSnap] = useState<FloorSnapshot>(initial);
-  const [latest, setLatest] = useState<Latest>(() => new Map(initial.tiles.flatMap((t) => t.channels.flatMap((c) => (c.latest ? [[c.id, c.latest] as const] : [])))));
+  const [latest, setLatest] = useState<Latest>(
+    () => new Map(initial.tiles.flatMap((t) => t.channels.flatMap((c) => (c.latest ? [[c.id, c.latest] as const] : [])))),
+  );
   const [sparks, setSparks] = useState<ReadonlyMap<number, ChartPoint[]>>(new Map());
   const [sparkState, setSparkState] = useState<'loading' | 'ready' | 'error'>('loading');
   const [now, setNow] = useState(initial.atMs);
@@ -68,7 +88,12 @@ export function FloorBoard({ initial, wall = false }: Props) {
     try {
       const s = await apiFetch<FloorSnapshot>('/api/v1/floor');
       setSnap(s);
-      setLatest((cur) => applyLatest(cur, s.tiles.flatMap((t) => t.channels.flatMap((c) => (c.latest ? [{ channelId: c.id, ...c.latest }] : [])))));
+      setLatest((cur) =>
+        applyLatest(
+          cur,
+          s.tiles.flatMap((t) => t.channels.flatMap((c) => (c.latest ? [{ channelId: c.id, ...c.latest }] : []))),
+        ),
+      );
       setRefreshError(null);
     } catch (e) {
       setRefreshError((e as Error).message);
@@ -89,7 +114,10 @@ export function FloorBoard({ initial, wall = false }: Props) {
     const ids = initial.tiles.flatMap((t) => t.channels.map((c) => c.id));
     Promise.all(
       ids.map(async (id) => {
-        const r = await apiFetch<ReadingsResponse>(`/api/v1/channels/${id}/readings?from=${to - SPARK_MS}&to=${to + 1}&maxPoints=${SPARK_POINTS}`, { signal: ac.signal });
+        const r = await apiFetch<ReadingsResponse>(
+          `/api/v1/channels/${id}/readings?from=${to - SPARK_MS}&to=${to + 1}&maxPoints=${SPARK_POINTS}`,
+          { signal: ac.signal },
+        );
         return [id, shapeReadings(r).line] as const;
       }),
     )
@@ -124,7 +152,8 @@ export function FloorBoard({ initial, wall = false }: Props) {
         setLatest((cur) => applyLatest(cur, batch));
         setSparks((cur) => {
           const next = new Map(cur);
-          for (const r of batch) next.set(r.channelId, appendSpark(next.get(r.channelId) ?? [], { x: r.tMs, y: r.value }, SPARK_MS));
+          for (const r of batch)
+            next.set(r.channelId, appendSpark(next.get(r.channelId) ?? [], { x: r.tMs, y: r.value }, SPARK_MS));
           return next;
         });
       } else {
@@ -144,7 +173,10 @@ export function FloorBoard({ initial, wall = false }: Props) {
 
   return (
     <div className={wall ? 'floor-wall' : ''} data-floor-ready="true">
-      <div className={`mb-3 flex flex-wrap items-center gap-x-5 gap-y-1 ${wall ? 'text-lg' : 'text-sm'}`} style={{ color: tone.normal }}>
+      <div
+        className={`mb-3 flex flex-wrap items-center gap-x-5 gap-y-1 ${wall ? 'text-lg' : 'text-sm'}`}
+        style={{ color: tone.normal }}
+      >
         <span aria-live="polite">
           {liveAge !== null && liveAge < 30_000 ? (
             <>
@@ -156,7 +188,9 @@ export function FloorBoard({ initial, wall = false }: Props) {
             </>
           )}
         </span>
-        <span>Times in {tz} ({formatClock(now, tz, { seconds: true })})</span>
+        <span>
+          Times in {tz} ({formatClock(now, tz, { seconds: true })})
+        </span>
         <span className="flex flex-wrap gap-x-3" aria-label="Legend">
           <span>
             <span aria-hidden="true">▲</span> HIGH
@@ -183,9 +217,22 @@ export function FloorBoard({ initial, wall = false }: Props) {
           <p className="mt-1 text-sm">An engineer adds them under Admin → Plant set-up.</p>
         </div>
       ) : (
-        <div className={`grid gap-4 ${wall ? 'md:grid-cols-2 xl:grid-cols-3 min-[1800px]:grid-cols-4' : 'md:grid-cols-2 xl:grid-cols-3'}`}>
+        <div
+          className={`grid gap-4 ${wall ? 'md:grid-cols-2 xl:grid-cols-3 min-[1800px]:grid-cols-4' : 'md:grid-cols-2 xl:grid-cols-3'}`}
+        >
           {snap.tiles.map((t) => (
-            <Tile key={t.id} tile={t} latest={latest} sparks={sparks} sparkState={sparkState} devices={devices} now={now} tz={tz} wall={wall} tone={tone} />
+            <Tile
+              key={t.id}
+              tile={t}
+              latest={latest}
+              sparks={sparks}
+              sparkState={sparkState}
+              devices={devices}
+              now={now}
+              tz={tz}
+              wall={wall}
+              tone={tone}
+            />
           ))}
         </div>
       )}
@@ -210,7 +257,12 @@ function Tile(props: {
   const inSoak = tile.load?.phase === 'soak';
   const inLoad = tile.load !== null;
   const topPriority = tile.alarms[0]?.priority ?? null;
-  const border = tile.alarmCount > 0 && topPriority ? tone[topPriority === 'medium' ? 'med' : topPriority === 'high' ? 'high' : 'low'] : wall ? '#3a4449' : '#c9cdcf';
+  const border =
+    tile.alarmCount > 0 && topPriority
+      ? tone[topPriority === 'medium' ? 'med' : topPriority === 'high' ? 'high' : 'low']
+      : wall
+        ? '#3a4449'
+        : '#c9cdcf';
   return (
     <section
       className={`rounded-md border p-3 ${wall ? 'bg-[#242b30]' : 'bg-white'}`}
@@ -231,7 +283,9 @@ function Tile(props: {
           ) : (
             <span className="font-bold" style={{ color: tone.high }} title={offline.map((d) => d.name).join(', ')}>
               <span aria-hidden="true">⊘</span> OFFLINE
-              {offline[0]?.lastSeenMs ? <span className="font-normal"> · last seen {formatClock(offline[0].lastSeenMs, tz)}</span> : null}
+              {offline[0]?.lastSeenMs ? (
+                <span className="font-normal"> · last seen {formatClock(offline[0].lastSeenMs, tz)}</span>
+              ) : null}
             </span>
           )}
         </div>
@@ -240,10 +294,18 @@ function Tile(props: {
       {tile.alarms.length > 0 && (
         <ul className={`mt-2 space-y-0.5 ${wall ? 'text-lg' : 'text-sm'}`} aria-label={`Open alarms on ${tile.name}`}>
           {tile.alarms.slice(0, wall ? 1 : 3).map((a) => (
-            <li key={a.id} className={wall ? 'truncate' : ''} style={{ color: tone[a.priority === 'medium' ? 'med' : a.priority] }} title={a.message}>
-              <span aria-hidden="true">{PRIORITY_SHAPE[a.priority]}</span> <span className="font-bold">{PRIORITY_WORD[a.priority].toUpperCase()}</span>{' '}
+            <li
+              key={a.id}
+              className={wall ? 'truncate' : ''}
+              style={{ color: tone[a.priority === 'medium' ? 'med' : a.priority] }}
+              title={a.message}
+            >
+              <span aria-hidden="true">{PRIORITY_SHAPE[a.priority]}</span>{' '}
+              <span className="font-bold">{PRIORITY_WORD[a.priority].toUpperCase()}</span>{' '}
               <span style={{ color: tone.ink }}>{a.message}</span>
-              {a.state === 'unacked' || a.state === 'rtn-unacked' ? <span style={{ color: tone.normal }}> · not acknowledged</span> : null}
+              {a.state === 'unacked' || a.state === 'rtn-unacked' ? (
+                <span style={{ color: tone.normal }}> · not acknowledged</span>
+              ) : null}
             </li>
           ))}
         </ul>
@@ -312,7 +374,13 @@ function LoadLine({ tile, now, tz, wall, tone }: { tile: FloorTile; now: number;
       {l.setpointC !== null ? <> at setpoint {l.setpointC.toFixed(0)} °C</> : null}
       {l.phase === 'soak' && soakMin !== null ? <> · soak {formatMinutes(soakMin)}</> : null}
       {l.predictedEndMs !== null ? (
-        <> · predicted end {siteDate(l.predictedEndMs, tz) === siteDate(now, tz) ? formatClock(l.predictedEndMs, tz) : formatSiteTime(l.predictedEndMs, tz)}</>
+        <>
+          {' '}
+          · predicted end{' '}
+          {siteDate(l.predictedEndMs, tz) === siteDate(now, tz)
+            ? formatClock(l.predictedEndMs, tz)
+            : formatSiteTime(l.predictedEndMs, tz)}
+        </>
       ) : null}
       <span style={{ color: tone.normal }}>
         {' '}
@@ -380,7 +448,11 @@ function ChannelRow(props: {
           {stateWords}
         </div>
         <div className="grid grid-cols-[minmax(0,1fr)_auto_auto] items-center gap-x-3">
-          <div className="min-w-[60px]">{c.kind !== 'door' && band && latest && <Band c={c} band={band} value={latest.value} tone={tone} wall={wall} abnormal={abnormal && !stale} />}</div>
+          <div className="min-w-[60px]">
+            {c.kind !== 'door' && band && latest && (
+              <Band c={c} band={band} value={latest.value} tone={tone} wall={wall} abnormal={abnormal && !stale} />
+            )}
+          </div>
           <div className="text-right">{valueEl}</div>
           <Spark c={c} points={props.spark} state={props.sparkState} now={now} tone={tone} wall={wall} />
         </div>
@@ -404,13 +476,19 @@ function ChannelRow(props: {
           {valueEl}
           {stateWords}
         </div>
-        {c.kind !== 'door' && band && latest && <Band c={c} band={band} value={latest.value} tone={tone} wall={wall} abnormal={abnormal && !stale} />}
+        {c.kind !== 'door' && band && latest && (
+          <Band c={c} band={band} value={latest.value} tone={tone} wall={wall} abnormal={abnormal && !stale} />
+        )}
         <div className="text-xs" style={{ color: tone.normal }}>
           {c.window ? (
             <>
               window {c.window.min}–{c.window.max} {c.unit}
               {c.window.target !== undefined ? ` (target ${c.window.target})` : ''}
-              {c.window.lowApplies === 'soak' ? ' · low limit in soak only' : c.window.lowApplies === 'load' ? ' · low limit while loaded' : ''}
+              {c.window.lowApplies === 'soak'
+                ? ' · low limit in soak only'
+                : c.window.lowApplies === 'load'
+                  ? ' · low limit while loaded'
+                  : ''}
             </>
           ) : c.kind === 'door' ? (
             'door switch'
@@ -434,7 +512,21 @@ function StateWord({ shape, word, colour, wall }: { shape: string; word: string;
 }
 
 /** Where the value sits between its window limits (or in the channel range when there is no window). */
-function Band({ c, band, value, tone, wall, abnormal }: { c: FloorChannel; band: ReturnType<typeof placeOnBand>; value: number; tone: Tone; wall: boolean; abnormal: boolean }) {
+function Band({
+  c,
+  band,
+  value,
+  tone,
+  wall,
+  abnormal,
+}: {
+  c: FloorChannel;
+  band: ReturnType<typeof placeOnBand>;
+  value: number;
+  tone: Tone;
+  wall: boolean;
+  abnormal: boolean;
+}) {
   const W = 100;
   const H = wall ? 20 : 12;
   const x = band.at * W;
@@ -442,15 +534,36 @@ function Band({ c, band, value, tone, wall, abnormal }: { c: FloorChannel; band:
     ? `${c.shortName} ${value} ${c.unit}; window ${c.window.min} to ${c.window.max} ${c.unit}; ${band.state === 'normal' ? 'inside the window' : band.state === 'high' ? 'above the window' : 'below the window'}`
     : `${c.shortName} ${value} ${c.unit} in the channel range ${c.min} to ${c.max} ${c.unit}; no window`;
   return (
-    <svg viewBox={`0 0 ${W} ${H}`} preserveAspectRatio="none" className="mt-1 block w-full" style={{ height: H }} role="img" aria-label={label}>
+    <svg
+      viewBox={`0 0 ${W} ${H}`}
+      preserveAspectRatio="none"
+      className="mt-1 block w-full"
+      style={{ height: H }}
+      role="img"
+      aria-label={label}
+    >
       <rect x={0} y={H * 0.3} width={W} height={H * 0.4} fill={tone.track} />
       {band.windowFrom !== null && band.windowTo !== null && (
-        <rect x={band.windowFrom * W} y={H * 0.15} width={(band.windowTo - band.windowFrom) * W} height={H * 0.7} fill={tone.band} />
+        <rect
+          x={band.windowFrom * W}
+          y={H * 0.15}
+          width={(band.windowTo - band.windowFrom) * W}
+          height={H * 0.7}
+          fill={tone.band}
+        />
       )}
-      {band.targetAt !== null && <rect x={band.targetAt * W - 0.3} y={H * 0.05} width={0.6} height={H * 0.9} fill={tone.normal} />}
+      {band.targetAt !== null && (
+        <rect x={band.targetAt * W - 0.3} y={H * 0.05} width={0.6} height={H * 0.9} fill={tone.normal} />
+      )}
       <rect x={Math.min(W - 1.6, Math.max(0, x - 0.8))} y={0} width={1.6} height={H} fill={abnormal ? tone.high : tone.ink} />
       {band.offScale && (
-        <text x={band.offScale === 'above' ? W - 3 : 3} y={H * 0.8} fontSize={H * 0.8} textAnchor={band.offScale === 'above' ? 'end' : 'start'} fill={abnormal ? tone.high : tone.normal}>
+        <text
+          x={band.offScale === 'above' ? W - 3 : 3}
+          y={H * 0.8}
+          fontSize={H * 0.8}
+          textAnchor={band.offScale === 'above' ? 'end' : 'start'}
+          fill={abnormal ? tone.high : tone.normal}
+        >
           {band.offScale === 'above' ? '»' : '«'}
         </text>
       )}
@@ -458,7 +571,21 @@ function Band({ c, band, value, tone, wall, abnormal }: { c: FloorChannel; band:
   );
 }
 
-function Spark({ c, points, state, now, tone, wall }: { c: FloorChannel; points: ChartPoint[]; state: 'loading' | 'ready' | 'error'; now: number; tone: Tone; wall: boolean }) {
+function Spark({
+  c,
+  points,
+  state,
+  now,
+  tone,
+  wall,
+}: {
+  c: FloorChannel;
+  points: ChartPoint[];
+  state: 'loading' | 'ready' | 'error';
+  now: number;
+  tone: Tone;
+  wall: boolean;
+}) {
   const W = wall ? 130 : 120;
   const H = wall ? 40 : 40;
   const ys = points.flatMap((p) => (p.y === null ? [] : [p.y]));
@@ -484,7 +611,15 @@ function Spark({ c, points, state, now, tone, wall }: { c: FloorChannel; points:
   return (
     <a href={`/charts/channel/${c.id}`} aria-label={`Trend of ${c.name}, last 60 minutes`} className="block">
       <svg width={W} height={H} viewBox={`0 0 ${W} ${H}`} role="img" aria-hidden="true">
-        {c.window && <rect x={0} y={yOf(c.window.max)} width={W} height={Math.max(1, yOf(c.window.min) - yOf(c.window.max))} fill={tone.track} />}
+        {c.window && (
+          <rect
+            x={0}
+            y={yOf(c.window.max)}
+            width={W}
+            height={Math.max(1, yOf(c.window.min) - yOf(c.window.max))}
+            fill={tone.track}
+          />
+        )}
         {paths.map((p, i) => (
           <polyline key={i} points={p} fill="none" stroke={tone.normal} strokeWidth={wall ? 2 : 1.5} strokeLinejoin="round" />
         ))}

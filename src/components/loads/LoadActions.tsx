@@ -30,13 +30,20 @@ export default function LoadActions({ loadId, status, canManage, canRecompute }:
 
   async function addJobs(e: SyntheticEvent) {
     e.preventDefault();
-    if (parsed.invalid.length) return setMsg({ kind: 'error', text: `Not a job or rack code: ${parsed.invalid.map((x) => `line ${x.line} “${x.value}”`).join(', ')}.` });
+    if (parsed.invalid.length)
+      return setMsg({
+        kind: 'error',
+        text: `Not a job or rack code: ${parsed.invalid.map((x) => `line ${x.line} “${x.value}”`).join(', ')}.`,
+      });
     if (!parsed.jobNumbers.length) return setMsg({ kind: 'error', text: 'Scan or type at least one code.' });
     setBusy('scan');
     try {
-      const r = await apiFetch<{ added: string[]; alreadyInLoad: string[]; unknownRacks: string[] }>(`/api/v1/loads/${loadId}/jobs`, {
-        body: asRacks ? { rackCodes: parsed.jobNumbers } : { jobNumbers: parsed.jobNumbers },
-      });
+      const r = await apiFetch<{ added: string[]; alreadyInLoad: string[]; unknownRacks: string[] }>(
+        `/api/v1/loads/${loadId}/jobs`,
+        {
+          body: asRacks ? { rackCodes: parsed.jobNumbers } : { jobNumbers: parsed.jobNumbers },
+        },
+      );
       setScan('');
       const parts = [`${r.added.length} job(s) added`];
       if (r.alreadyInLoad.length) parts.push(`${r.alreadyInLoad.length} already in this load`);
@@ -51,7 +58,11 @@ export default function LoadActions({ loadId, status, canManage, canRecompute }:
   }
 
   async function post(what: 'close' | 'recompute') {
-    if (what === 'close' && !window.confirm('Close this load now? Its cure record will be computed from the readings stored so far.')) return;
+    if (
+      what === 'close' &&
+      !window.confirm('Close this load now? Its cure record will be computed from the readings stored so far.')
+    )
+      return;
     setBusy(what);
     setMsg(null);
     try {
@@ -89,13 +100,25 @@ export default function LoadActions({ loadId, status, canManage, canRecompute }:
               <input type="radio" className="w-auto" checked={!asRacks} onChange={() => setAsRacks(false)} /> Job tickets
             </label>
             <label className="flex items-center gap-1 font-normal">
-              <input type="radio" className="w-auto" checked={asRacks} onChange={() => setAsRacks(true)} /> Racks / trays (all jobs of the rack’s last dip)
+              <input type="radio" className="w-auto" checked={asRacks} onChange={() => setAsRacks(true)} /> Racks / trays (all
+              jobs of the rack’s last dip)
             </label>
           </fieldset>
-          <label htmlFor="scan-box">{asRacks ? 'Rack codes' : 'Job numbers'} — one per line (scanner) or separated by commas</label>
-          <textarea id="scan-box" rows={4} value={scan} onChange={(e) => setScan(e.target.value)} className="font-mono" autoComplete="off" spellCheck={false} />
+          <label htmlFor="scan-box">
+            {asRacks ? 'Rack codes' : 'Job numbers'} — one per line (scanner) or separated by commas
+          </label>
+          <textarea
+            id="scan-box"
+            rows={4}
+            value={scan}
+            onChange={(e) => setScan(e.target.value)}
+            className="font-mono"
+            autoComplete="off"
+            spellCheck={false}
+          />
           <p className="text-xs text-ink-soft" aria-live="polite">
-            {parsed.jobNumbers.length} code(s) read{parsed.duplicates.length ? `, ${parsed.duplicates.length} repeated (kept once)` : ''}
+            {parsed.jobNumbers.length} code(s) read
+            {parsed.duplicates.length ? `, ${parsed.duplicates.length} repeated (kept once)` : ''}
             {parsed.invalid.length ? `, ${parsed.invalid.length} not valid` : ''}.
           </p>
           <button className="btn" disabled={busy !== null}>
@@ -104,7 +127,14 @@ export default function LoadActions({ loadId, status, canManage, canRecompute }:
         </form>
       )}
       {msg && (
-        <p role={msg.kind === 'error' ? 'alert' : 'status'} className={msg.kind === 'error' ? 'rounded border-l-4 border-alert-high bg-alert-bg p-2 text-sm' : 'rounded border-l-4 border-lacquer bg-lacquer-light/60 p-2 text-sm'}>
+        <p
+          role={msg.kind === 'error' ? 'alert' : 'status'}
+          className={
+            msg.kind === 'error'
+              ? 'rounded border-l-4 border-alert-high bg-alert-bg p-2 text-sm'
+              : 'rounded border-l-4 border-lacquer bg-lacquer-light/60 p-2 text-sm'
+          }
+        >
           <strong>{msg.kind === 'error' ? '✕ ' : '✓ '}</strong>
           {msg.text}
         </p>

@@ -57,9 +57,25 @@ export default function LoadTable({ initial, timeZone, query, ovens, canManage }
 
   const shown = useMemo(() => {
     const q = text.trim().toLowerCase();
-    const f = q ? rows.filter((r) => [String(r.id), r.ovenCode, r.ovenName, r.verdict ?? '', r.status, r.windowName ?? ''].some((s) => s.toLowerCase().includes(q))) : rows;
+    const f = q
+      ? rows.filter((r) =>
+          [String(r.id), r.ovenCode, r.ovenName, r.verdict ?? '', r.status, r.windowName ?? ''].some((s) =>
+            s.toLowerCase().includes(q),
+          ),
+        )
+      : rows;
     const get = (r: LoadListItem) =>
-      ({ id: r.id, oven: r.ovenCode, opened: r.openedAt, closed: r.closedAt, status: r.status, verdict: r.verdict, jobs: r.jobs, eq: r.equivalentMinutes, peak: r.peakC })[sort.key];
+      ({
+        id: r.id,
+        oven: r.ovenCode,
+        opened: r.openedAt,
+        closed: r.closedAt,
+        status: r.status,
+        verdict: r.verdict,
+        jobs: r.jobs,
+        eq: r.equivalentMinutes,
+        peak: r.peakC,
+      })[sort.key];
     return sortRows(f, get, sort.dir);
   }, [rows, text, sort]);
 
@@ -80,8 +96,36 @@ export default function LoadTable({ initial, timeZone, query, ovens, canManage }
   const csv = () =>
     downloadCsv(
       'oven-loads.csv',
-      ['load', 'oven', `opened (${timeZone})`, `closed (${timeZone})`, 'status', 'phase', 'verdict', 'jobs', 'equivalent min', 'peak °C', 'door openings', 'data gaps', 'window'],
-      shown.map((r) => [r.id, r.ovenCode, t(r.openedAt), t(r.closedAt), r.status, r.phase ?? '', r.verdict ? VERDICT_LABELS[r.verdict] : '', r.jobs, r.equivalentMinutes?.toFixed(1) ?? '', r.peakC?.toFixed(1) ?? '', r.doorOpenings ?? '', r.gaps ?? '', r.windowName ? `${r.windowName} v${r.windowVersion}` : '']),
+      [
+        'load',
+        'oven',
+        `opened (${timeZone})`,
+        `closed (${timeZone})`,
+        'status',
+        'phase',
+        'verdict',
+        'jobs',
+        'equivalent min',
+        'peak °C',
+        'door openings',
+        'data gaps',
+        'window',
+      ],
+      shown.map((r) => [
+        r.id,
+        r.ovenCode,
+        t(r.openedAt),
+        t(r.closedAt),
+        r.status,
+        r.phase ?? '',
+        r.verdict ? VERDICT_LABELS[r.verdict] : '',
+        r.jobs,
+        r.equivalentMinutes?.toFixed(1) ?? '',
+        r.peakC?.toFixed(1) ?? '',
+        r.doorOpenings ?? '',
+        r.gaps ?? '',
+        r.windowName ? `${r.windowName} v${r.windowVersion}` : '',
+      ]),
     );
 
   return (
@@ -101,7 +145,10 @@ export default function LoadTable({ initial, timeZone, query, ovens, canManage }
           <button className="btn" disabled={opening || !ovenId}>
             {opening ? 'Opening…' : 'Open load'}
           </button>
-          <p className="text-xs text-ink-soft">Loads also open by themselves when an oven’s setpoint rises by 50 °C or more, and close when it falls back and the oven has cooled.</p>
+          <p className="text-xs text-ink-soft">
+            Loads also open by themselves when an oven’s setpoint rises by 50 °C or more, and close when it falls back and the
+            oven has cooled.
+          </p>
           {error && (
             <p role="alert" className="w-full rounded border-l-4 border-alert-high bg-alert-bg p-2 text-sm">
               <strong>✕ </strong>
@@ -113,34 +160,64 @@ export default function LoadTable({ initial, timeZone, query, ovens, canManage }
       <div className="flex flex-wrap items-end gap-3">
         <div>
           <label htmlFor="load-q">Filter the rows shown</label>
-          <input id="load-q" type="search" value={text} onChange={(e) => setText(e.target.value)} placeholder="load, oven, verdict…" className="w-64" />
+          <input
+            id="load-q"
+            type="search"
+            value={text}
+            onChange={(e) => setText(e.target.value)}
+            placeholder="load, oven, verdict…"
+            className="w-64"
+          />
         </div>
         <button type="button" className="btn-quiet" onClick={csv}>
           CSV of these {shown.length} rows
         </button>
         <span className="text-xs text-ink-soft" aria-live="polite">
-          {live === 'live' ? '● live: open loads update by themselves' : live === 'off' ? '○ live updates paused — reload the page' : '…'}
+          {live === 'live'
+            ? '● live: open loads update by themselves'
+            : live === 'off'
+              ? '○ live updates paused — reload the page'
+              : '…'}
         </span>
       </div>
       {shown.length === 0 ? (
         <div className="empty" role="status">
-          No oven loads match. {rows.length > 0 ? 'Clear the filter.' : 'Loads appear here when an oven starts a cycle or an operator opens one.'}
+          No oven loads match.{' '}
+          {rows.length > 0 ? 'Clear the filter.' : 'Loads appear here when an oven starts a cycle or an operator opens one.'}
         </div>
       ) : (
         <div className="overflow-x-auto rounded-md border border-slate-line bg-white">
           <table>
             <thead>
               <tr>
-                <SortTh k="id" sort={sort} toggle={toggle}>Load</SortTh>
-                <SortTh k="oven" sort={sort} toggle={toggle}>Oven</SortTh>
-                <SortTh k="opened" sort={sort} toggle={toggle}>Opened ({timeZone})</SortTh>
-                <SortTh k="closed" sort={sort} toggle={toggle}>Closed</SortTh>
-                <SortTh k="status" sort={sort} toggle={toggle}>Phase</SortTh>
-                <SortTh k="verdict" sort={sort} toggle={toggle}>Verdict</SortTh>
-                <SortTh k="eq" sort={sort} toggle={toggle} className="text-right">Equivalent min</SortTh>
-                <SortTh k="peak" sort={sort} toggle={toggle} className="text-right">Peak °C</SortTh>
+                <SortTh k="id" sort={sort} toggle={toggle}>
+                  Load
+                </SortTh>
+                <SortTh k="oven" sort={sort} toggle={toggle}>
+                  Oven
+                </SortTh>
+                <SortTh k="opened" sort={sort} toggle={toggle}>
+                  Opened ({timeZone})
+                </SortTh>
+                <SortTh k="closed" sort={sort} toggle={toggle}>
+                  Closed
+                </SortTh>
+                <SortTh k="status" sort={sort} toggle={toggle}>
+                  Phase
+                </SortTh>
+                <SortTh k="verdict" sort={sort} toggle={toggle}>
+                  Verdict
+                </SortTh>
+                <SortTh k="eq" sort={sort} toggle={toggle} className="text-right">
+                  Equivalent min
+                </SortTh>
+                <SortTh k="peak" sort={sort} toggle={toggle} className="text-right">
+                  Peak °C
+                </SortTh>
                 <th scope="col">Door / gaps</th>
-                <SortTh k="jobs" sort={sort} toggle={toggle} className="text-right">Jobs</SortTh>
+                <SortTh k="jobs" sort={sort} toggle={toggle} className="text-right">
+                  Jobs
+                </SortTh>
               </tr>
             </thead>
             <tbody>
@@ -169,7 +246,8 @@ export default function LoadTable({ initial, timeZone, query, ovens, canManage }
         </div>
       )}
       <p className="text-xs text-ink-soft">
-        Equivalent minutes: Arrhenius-equivalent minutes at the window’s reference temperature (the equivalent-age form of ASTM C1074). Door / gaps: door openings and stretches without oven data during the load.
+        Equivalent minutes: Arrhenius-equivalent minutes at the window’s reference temperature (the equivalent-age form of ASTM
+        C1074). Door / gaps: door openings and stretches without oven data during the load.
       </p>
     </div>
   );

@@ -40,7 +40,18 @@ export interface OvenTrendProps {
 
 const ZONE_COLOURS = ['#1f2529', '#4a545b', '#7b858c', '#2d3a42'];
 
-export default function OvenTrend({ series, timeZone, openedAtMs, closedAtMs, minTempC, maxPartTempC, soak, gaps = [], title, height = 320 }: OvenTrendProps) {
+export default function OvenTrend({
+  series,
+  timeZone,
+  openedAtMs,
+  closedAtMs,
+  minTempC,
+  maxPartTempC,
+  soak,
+  gaps = [],
+  title,
+  height = 320,
+}: OvenTrendProps) {
   const temps = series.filter((s) => s.kind !== 'door');
   const door = series.find((s) => s.kind === 'door');
   const all = temps.flatMap((s) => s.points);
@@ -78,16 +89,87 @@ export default function OvenTrend({ series, timeZone, openedAtMs, closedAtMs, mi
 
   const annotations: Record<string, object> = {};
   doorIntervals.forEach((d, i) => {
-    annotations[`door${i}`] = { type: 'box', xMin: d.from, xMax: d.to, backgroundColor: 'rgba(194,106,0,0.15)', borderWidth: 0, label: { display: i < 12, content: 'door', position: 'start', font: { size: 10 }, color: '#7a4300' } };
+    annotations[`door${i}`] = {
+      type: 'box',
+      xMin: d.from,
+      xMax: d.to,
+      backgroundColor: 'rgba(194,106,0,0.15)',
+      borderWidth: 0,
+      label: { display: i < 12, content: 'door', position: 'start', font: { size: 10 }, color: '#7a4300' },
+    };
   });
   gaps.forEach((g, i) => {
-    annotations[`gap${i}`] = { type: 'box', xMin: g.startMs, xMax: g.endMs, backgroundColor: 'rgba(138,109,0,0.18)', borderColor: '#8a6d00', borderWidth: 1, borderDash: [2, 2], label: { display: true, content: 'no data', color: '#5c4900', font: { size: 10 } } };
+    annotations[`gap${i}`] = {
+      type: 'box',
+      xMin: g.startMs,
+      xMax: g.endMs,
+      backgroundColor: 'rgba(138,109,0,0.18)',
+      borderColor: '#8a6d00',
+      borderWidth: 1,
+      borderDash: [2, 2],
+      label: { display: true, content: 'no data', color: '#5c4900', font: { size: 10 } },
+    };
   });
-  if (soak) annotations['soak'] = { type: 'box', xMin: soak.startMs, xMax: soak.endMs, backgroundColor: 'rgba(47,111,115,0.06)', borderWidth: 0, label: { display: true, content: 'soak', position: { x: 'center', y: 'end' }, color: '#1f4e51', font: { size: 10 } } };
-  annotations['opened'] = { type: 'line', xMin: openedAtMs, xMax: openedAtMs, borderColor: '#2d3a42', borderWidth: 1.5, label: { display: true, content: 'load opened', position: 'start', font: { size: 10 } } };
-  if (closedAtMs) annotations['closed'] = { type: 'line', xMin: closedAtMs, xMax: closedAtMs, borderColor: '#2d3a42', borderWidth: 1.5, label: { display: true, content: 'load closed', position: 'start', font: { size: 10 } } };
-  if (minTempC != null) annotations['min'] = { type: 'line', yMin: minTempC, yMax: minTempC, borderColor: '#4a545b', borderDash: [3, 3], borderWidth: 1, label: { display: true, content: `minimum cure ${minTempC} °C`, position: 'end', font: { size: 10 }, backgroundColor: 'rgba(244,243,239,0.9)', color: '#1f2529' } };
-  if (maxPartTempC != null) annotations['max'] = { type: 'line', yMin: maxPartTempC, yMax: maxPartTempC, borderColor: '#c26a00', borderDash: [3, 3], borderWidth: 1, label: { display: true, content: `highest part ${maxPartTempC} °C`, position: 'end', font: { size: 10 }, backgroundColor: 'rgba(244,243,239,0.9)', color: '#7a4300' } };
+  if (soak)
+    annotations['soak'] = {
+      type: 'box',
+      xMin: soak.startMs,
+      xMax: soak.endMs,
+      backgroundColor: 'rgba(47,111,115,0.06)',
+      borderWidth: 0,
+      label: { display: true, content: 'soak', position: { x: 'center', y: 'end' }, color: '#1f4e51', font: { size: 10 } },
+    };
+  annotations['opened'] = {
+    type: 'line',
+    xMin: openedAtMs,
+    xMax: openedAtMs,
+    borderColor: '#2d3a42',
+    borderWidth: 1.5,
+    label: { display: true, content: 'load opened', position: 'start', font: { size: 10 } },
+  };
+  if (closedAtMs)
+    annotations['closed'] = {
+      type: 'line',
+      xMin: closedAtMs,
+      xMax: closedAtMs,
+      borderColor: '#2d3a42',
+      borderWidth: 1.5,
+      label: { display: true, content: 'load closed', position: 'start', font: { size: 10 } },
+    };
+  if (minTempC != null)
+    annotations['min'] = {
+      type: 'line',
+      yMin: minTempC,
+      yMax: minTempC,
+      borderColor: '#4a545b',
+      borderDash: [3, 3],
+      borderWidth: 1,
+      label: {
+        display: true,
+        content: `minimum cure ${minTempC} °C`,
+        position: 'end',
+        font: { size: 10 },
+        backgroundColor: 'rgba(244,243,239,0.9)',
+        color: '#1f2529',
+      },
+    };
+  if (maxPartTempC != null)
+    annotations['max'] = {
+      type: 'line',
+      yMin: maxPartTempC,
+      yMax: maxPartTempC,
+      borderColor: '#c26a00',
+      borderDash: [3, 3],
+      borderWidth: 1,
+      label: {
+        display: true,
+        content: `highest part ${maxPartTempC} °C`,
+        position: 'end',
+        font: { size: 10 },
+        backgroundColor: 'rgba(244,243,239,0.9)',
+        color: '#7a4300',
+      },
+    };
 
   const options: ChartOptions<'line'> = {
     animation: false,
@@ -97,12 +179,27 @@ export default function OvenTrend({ series, timeZone, openedAtMs, closedAtMs, mi
     normalized: true,
     interaction: { mode: 'nearest', axis: 'x', intersect: false },
     scales: {
-      x: { type: 'linear', min: xMin, max: xMax, ticks: { maxTicksLimit: 10, callback: (v) => tickLabel(Number(v), timeZone, span) }, grid: { color: '#e8e8e3' } },
-      y: { title: { display: true, text: '°C' }, grid: { color: '#e8e8e3' }, suggestedMax: maxPartTempC != null ? maxPartTempC + 5 : undefined },
+      x: {
+        type: 'linear',
+        min: xMin,
+        max: xMax,
+        ticks: { maxTicksLimit: 10, callback: (v) => tickLabel(Number(v), timeZone, span) },
+        grid: { color: '#e8e8e3' },
+      },
+      y: {
+        title: { display: true, text: '°C' },
+        grid: { color: '#e8e8e3' },
+        suggestedMax: maxPartTempC != null ? maxPartTempC + 5 : undefined,
+      },
     },
     plugins: {
       legend: { position: 'bottom', labels: { boxWidth: 18, font: { size: 11 } } },
-      tooltip: { callbacks: { title: (items) => formatSiteTime(items[0]?.parsed.x ?? 0, timeZone, { seconds: true }), label: (i) => `${i.dataset.label}: ${Number(i.parsed.y).toFixed(1)}` } },
+      tooltip: {
+        callbacks: {
+          title: (items) => formatSiteTime(items[0]?.parsed.x ?? 0, timeZone, { seconds: true }),
+          label: (i) => `${i.dataset.label}: ${Number(i.parsed.y).toFixed(1)}`,
+        },
+      },
       annotation: { annotations },
     },
   };

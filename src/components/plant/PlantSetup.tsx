@@ -52,10 +52,12 @@ function CopyButton({ text, label = 'Copy' }: { text: string; label?: string }) 
     <button
       type="button"
       className="btn-quiet px-2 py-1 text-sm"
-      onClick={() => void navigator.clipboard?.writeText(text).then(() => {
-        setDone(true);
-        setTimeout(() => setDone(false), 1500);
-      })}
+      onClick={() =>
+        void navigator.clipboard?.writeText(text).then(() => {
+          setDone(true);
+          setTimeout(() => setDone(false), 1500);
+        })
+      }
     >
       {done ? 'Copied ✓' : label}
     </button>
@@ -67,7 +69,16 @@ function fieldErrorsOf(err: unknown): Record<string, string> {
   return Object.fromEntries(fe.map((f) => [f.path, f.message]));
 }
 
-const emptyChannel = { assetId: '', deviceId: '', name: '', kind: 'viscosity' as ChannelKind, unit: KIND_UNITS.viscosity, min: '', max: '', key: '' };
+const emptyChannel = {
+  assetId: '',
+  deviceId: '',
+  name: '',
+  kind: 'viscosity' as ChannelKind,
+  unit: KIND_UNITS.viscosity,
+  min: '',
+  max: '',
+  key: '',
+};
 const emptyApprove = { name: '', kind: 'other' as ChannelKind, unit: '', min: '', max: '' };
 
 export default function PlantSetup(props: Props) {
@@ -95,7 +106,9 @@ export default function PlantSetup(props: Props) {
   useEffect(
     () =>
       subscribeLive(['devices'], (_k, p: { deviceId: number; online: boolean }) =>
-        setDevices((all) => all.map((d) => (d.id === p.deviceId ? { ...d, online: p.online, lastSeenAt: new Date().toISOString() } : d))),
+        setDevices((all) =>
+          all.map((d) => (d.id === p.deviceId ? { ...d, online: p.online, lastSeenAt: new Date().toISOString() } : d)),
+        ),
       ),
     [],
   );
@@ -119,14 +132,36 @@ export default function PlantSetup(props: Props) {
 
   const shownChannels = useMemo(() => {
     const f = text.trim().toLowerCase();
-    const rows = channels.filter((c) => (!subtree || subtree.has(c.assetId)) && (!f || [c.name, c.topic, c.kind, c.unit, c.assetName].some((s) => s.toLowerCase().includes(f))));
+    const rows = channels.filter(
+      (c) =>
+        (!subtree || subtree.has(c.assetId)) &&
+        (!f || [c.name, c.topic, c.kind, c.unit, c.assetName].some((s) => s.toLowerCase().includes(f))),
+    );
     return sortRows(rows, (c) => c[chSort.sort.key], chSort.sort.dir);
   }, [channels, subtree, text, chSort.sort]);
-  const shownDevices = useMemo(() => sortRows(devices, (d) => (devSort.sort.key === 'online' ? (d.enabled ? (d.online ? 2 : 1) : 0) : d[devSort.sort.key]), devSort.sort.dir), [devices, devSort.sort]);
+  const shownDevices = useMemo(
+    () =>
+      sortRows(
+        devices,
+        (d) => (devSort.sort.key === 'online' ? (d.enabled ? (d.online ? 2 : 1) : 0) : d[devSort.sort.key]),
+        devSort.sort.dir,
+      ),
+    [devices, devSort.sort],
+  );
 
   const device = devices.find((d) => d.id === selectedDevice) ?? null;
-  const exampleTopic = device ? (channels.find((c) => c.deviceId === device.id)?.topic ?? `${device.topicPrefix}/<asset code>/<channel code>`) : '';
-  const example = device ? mqttExample({ host: mqtt.host, port: mqtt.port, username: device.username, topic: exampleTopic, ...(credentials?.id === device.id ? { password: credentials.password } : {}) }) : '';
+  const exampleTopic = device
+    ? (channels.find((c) => c.deviceId === device.id)?.topic ?? `${device.topicPrefix}/<asset code>/<channel code>`)
+    : '';
+  const example = device
+    ? mqttExample({
+        host: mqtt.host,
+        port: mqtt.port,
+        username: device.username,
+        topic: exampleTopic,
+        ...(credentials?.id === device.id ? { password: credentials.password } : {}),
+      })
+    : '';
 
   async function refreshDevices() {
     setDevices(await apiFetch<DeviceView[]>('/api/v1/devices'));
@@ -152,7 +187,12 @@ export default function PlantSetup(props: Props) {
   }
 
   async function rotate(d: DeviceView) {
-    if (!window.confirm(`Give ${d.username} a new password? The device must be reconfigured; the old password stops working at its next connection.`)) return;
+    if (
+      !window.confirm(
+        `Give ${d.username} a new password? The device must be reconfigured; the old password stops working at its next connection.`,
+      )
+    )
+      return;
     setBusy(`d${d.id}`);
     try {
       const c = await apiFetch<DeviceCredentials>(`/api/v1/devices/${d.id}/rotate-password`, { method: 'POST', body: {} });
@@ -166,7 +206,11 @@ export default function PlantSetup(props: Props) {
   }
 
   async function setEnabled(d: DeviceView, enabled: boolean) {
-    if (!enabled && !window.confirm(`Disable ${d.username}? The broker refuses its next connection; its channels and history stay.`)) return;
+    if (
+      !enabled &&
+      !window.confirm(`Disable ${d.username}? The broker refuses its next connection; its channels and history stay.`)
+    )
+      return;
     setBusy(`d${d.id}`);
     try {
       const v = await apiFetch<DeviceView>(`/api/v1/devices/${d.id}`, { method: 'PATCH', body: { enabled } });
@@ -192,7 +236,8 @@ export default function PlantSetup(props: Props) {
       ...(chForm.key.trim() ? { key: chForm.key.trim() } : {}),
     };
     const parsed = CreateChannelSchema.safeParse(body);
-    if (!parsed.success) return setChErrors(Object.fromEntries(parsed.error.issues.map((i) => [String(i.path[0] ?? ''), i.message])));
+    if (!parsed.success)
+      return setChErrors(Object.fromEntries(parsed.error.issues.map((i) => [String(i.path[0] ?? ''), i.message])));
     setChErrors({});
     setBusy('channel');
     try {
@@ -211,8 +256,13 @@ export default function PlantSetup(props: Props) {
 
   async function approve(e: SubmitEvent<HTMLFormElement>, u: UnknownChannelView) {
     e.preventDefault();
-    const parsed = ApproveUnknownChannelSchema.safeParse({ ...apForm, min: apForm.min === '' ? undefined : Number(apForm.min), max: apForm.max === '' ? undefined : Number(apForm.max) });
-    if (!parsed.success) return setApErrors(Object.fromEntries(parsed.error.issues.map((i) => [String(i.path[0] ?? ''), i.message])));
+    const parsed = ApproveUnknownChannelSchema.safeParse({
+      ...apForm,
+      min: apForm.min === '' ? undefined : Number(apForm.min),
+      max: apForm.max === '' ? undefined : Number(apForm.max),
+    });
+    if (!parsed.success)
+      return setApErrors(Object.fromEntries(parsed.error.issues.map((i) => [String(i.path[0] ?? ''), i.message])));
     setApErrors({});
     setBusy(`u${u.id}`);
     try {
@@ -261,7 +311,11 @@ export default function PlantSetup(props: Props) {
       <aside className="panel h-fit space-y-2" aria-labelledby="assets-h">
         <h2 id="assets-h">Assets</h2>
         <p className="text-sm text-ink-soft">Choose one to show only its channels.</p>
-        {assets.length === 0 ? <p className="empty">No assets. Seed the plant first.</p> : <ul className="-mx-1">{renderTree(null, 0)}</ul>}
+        {assets.length === 0 ? (
+          <p className="empty">No assets. Seed the plant first.</p>
+        ) : (
+          <ul className="-mx-1">{renderTree(null, 0)}</ul>
+        )}
       </aside>
 
       <div className="min-w-0 space-y-5">
@@ -269,7 +323,9 @@ export default function PlantSetup(props: Props) {
 
         {credentials && (
           <div role="status" className="rounded-md border-2 border-lacquer bg-white p-4">
-            <p className="font-bold">{credentials.what} Copy the password now: it is shown this once, Coatrail keeps only a hash.</p>
+            <p className="font-bold">
+              {credentials.what} Copy the password now: it is shown this once, Coatrail keeps only a hash.
+            </p>
             <dl className="mt-2 grid grid-cols-[max-content_1fr_auto] items-center gap-x-3 gap-y-1 text-sm">
               <dt className="font-bold text-ink-soft">Username</dt>
               <dd className="num">{credentials.username}</dd>
@@ -292,13 +348,23 @@ export default function PlantSetup(props: Props) {
         <section aria-labelledby="dev-h" className="space-y-2">
           <div className="flex flex-wrap items-end gap-3">
             <h2 id="dev-h" className="mr-auto">
-              Devices <span className="text-sm font-normal text-ink-soft">({devices.filter((d) => d.enabled && d.online).length} of {devices.length} online)</span>
+              Devices{' '}
+              <span className="text-sm font-normal text-ink-soft">
+                ({devices.filter((d) => d.enabled && d.online).length} of {devices.length} online)
+              </span>
             </h2>
             {canManageDevices && (
               <form onSubmit={createDevice} className="flex items-end gap-2" noValidate>
                 <div>
                   <label htmlFor="new-device">New device name</label>
-                  <input id="new-device" className="w-64" value={newDeviceName} onChange={(e) => setNewDeviceName(e.target.value)} placeholder="e.g. Dip line 3 PLC gateway" aria-invalid={!!deviceError} />
+                  <input
+                    id="new-device"
+                    className="w-64"
+                    value={newDeviceName}
+                    onChange={(e) => setNewDeviceName(e.target.value)}
+                    placeholder="e.g. Dip line 3 PLC gateway"
+                    aria-invalid={!!deviceError}
+                  />
                 </div>
                 <button className="btn" type="submit" disabled={busy === 'device'} aria-busy={busy === 'device'}>
                   {busy === 'device' ? 'Creating…' : 'Create device'}
@@ -314,11 +380,21 @@ export default function PlantSetup(props: Props) {
                   <th scope="col">
                     <span className="sr-only">Selected</span>
                   </th>
-                  <SortTh k="name" {...devSort}>Name</SortTh>
-                  <SortTh k="username" {...devSort}>MQTT username</SortTh>
-                  <SortTh k="online" {...devSort}>State</SortTh>
-                  <SortTh k="lastSeenAt" {...devSort}>Last seen</SortTh>
-                  <SortTh k="channels" {...devSort}>Channels</SortTh>
+                  <SortTh k="name" {...devSort}>
+                    Name
+                  </SortTh>
+                  <SortTh k="username" {...devSort}>
+                    MQTT username
+                  </SortTh>
+                  <SortTh k="online" {...devSort}>
+                    State
+                  </SortTh>
+                  <SortTh k="lastSeenAt" {...devSort}>
+                    Last seen
+                  </SortTh>
+                  <SortTh k="channels" {...devSort}>
+                    Channels
+                  </SortTh>
                   {canManageDevices && <th scope="col">Actions</th>}
                 </tr>
               </thead>
@@ -326,14 +402,22 @@ export default function PlantSetup(props: Props) {
                 {shownDevices.length === 0 && (
                   <tr>
                     <td colSpan={7} className="text-ink-soft">
-                      No devices yet.{canManageDevices ? ' Create one for each PLC gateway or sensor box.' : ' An administrator creates them.'}
+                      No devices yet.
+                      {canManageDevices ? ' Create one for each PLC gateway or sensor box.' : ' An administrator creates them.'}
                     </td>
                   </tr>
                 )}
                 {shownDevices.map((d) => (
                   <tr key={d.id} className={selectedDevice === d.id ? 'bg-lacquer-light/50' : ''}>
                     <td>
-                      <input type="radio" className="w-auto" name="device" aria-label={`Show the mqtt example for ${d.username}`} checked={selectedDevice === d.id} onChange={() => setSelectedDevice(d.id)} />
+                      <input
+                        type="radio"
+                        className="w-auto"
+                        name="device"
+                        aria-label={`Show the mqtt example for ${d.username}`}
+                        checked={selectedDevice === d.id}
+                        onChange={() => setSelectedDevice(d.id)}
+                      />
                     </td>
                     <td>{d.name}</td>
                     <td className="font-mono">{d.username}</td>
@@ -345,10 +429,20 @@ export default function PlantSetup(props: Props) {
                     {canManageDevices && (
                       <td className="whitespace-nowrap">
                         <div className="flex gap-1.5">
-                          <button type="button" className="btn-quiet px-2 py-1 text-sm" disabled={busy === `d${d.id}`} onClick={() => void rotate(d)}>
+                          <button
+                            type="button"
+                            className="btn-quiet px-2 py-1 text-sm"
+                            disabled={busy === `d${d.id}`}
+                            onClick={() => void rotate(d)}
+                          >
                             New password
                           </button>
-                          <button type="button" className="btn-quiet px-2 py-1 text-sm" disabled={busy === `d${d.id}`} onClick={() => void setEnabled(d, !d.enabled)}>
+                          <button
+                            type="button"
+                            className="btn-quiet px-2 py-1 text-sm"
+                            disabled={busy === `d${d.id}`}
+                            onClick={() => void setEnabled(d, !d.enabled)}
+                          >
                             {d.enabled ? 'Disable' : 'Enable'}
                           </button>
                         </div>
@@ -367,10 +461,13 @@ export default function PlantSetup(props: Props) {
                 </h3>
                 <CopyButton text={example} label="Copy command" />
               </div>
-              <pre className="num overflow-x-auto whitespace-pre-wrap break-all rounded bg-slate-deep p-2 text-[13px] text-paper">{example}</pre>
+              <pre className="num overflow-x-auto whitespace-pre-wrap break-all rounded bg-slate-deep p-2 text-[13px] text-paper">
+                {example}
+              </pre>
               <p className="text-sm text-ink-soft">
-                With the MQTT.js command-line tool (<code className="num">npm i -g mqtt</code>). A payload is one sample <code className="num">{'{"t": <ISO 8601 or epoch ms>, "v": <number>}'}</code> or a list of them; the device may publish only under{' '}
-                <code className="num">{device.topicPrefix}/</code>.
+                With the MQTT.js command-line tool (<code className="num">npm i -g mqtt</code>). A payload is one sample{' '}
+                <code className="num">{'{"t": <ISO 8601 or epoch ms>, "v": <number>}'}</code> or a list of them; the device may
+                publish only under <code className="num">{device.topicPrefix}/</code>.
               </p>
             </div>
           )}
@@ -428,9 +525,15 @@ export default function PlantSetup(props: Props) {
               </div>
             )}
             {approvingRow && (
-              <form onSubmit={(e) => void approve(e, approvingRow)} className="panel grid grid-cols-2 items-end gap-3 md:grid-cols-6" aria-label={`Approve ${approvingRow.topic}`} noValidate>
+              <form
+                onSubmit={(e) => void approve(e, approvingRow)}
+                className="panel grid grid-cols-2 items-end gap-3 md:grid-cols-6"
+                aria-label={`Approve ${approvingRow.topic}`}
+                noValidate
+              >
                 <p className="col-span-full text-sm">
-                  Make <code className="num">{approvingRow.topic}</code> a channel of asset <span className="font-mono">{approvingRow.assetCode}</span>:
+                  Make <code className="num">{approvingRow.topic}</code> a channel of asset{' '}
+                  <span className="font-mono">{approvingRow.assetCode}</span>:
                 </p>
                 <div className="col-span-2">
                   <label htmlFor="ap-name">Name</label>
@@ -439,7 +542,17 @@ export default function PlantSetup(props: Props) {
                 </div>
                 <div>
                   <label htmlFor="ap-kind">Kind</label>
-                  <select id="ap-kind" value={apForm.kind} onChange={(e) => setApForm({ ...apForm, kind: e.target.value as ChannelKind, unit: apForm.unit || KIND_UNITS[e.target.value as ChannelKind] })}>
+                  <select
+                    id="ap-kind"
+                    value={apForm.kind}
+                    onChange={(e) =>
+                      setApForm({
+                        ...apForm,
+                        kind: e.target.value as ChannelKind,
+                        unit: apForm.unit || KIND_UNITS[e.target.value as ChannelKind],
+                      })
+                    }
+                  >
                     {CHANNEL_KINDS.map((k) => (
                       <option key={k}>{k}</option>
                     ))}
@@ -452,12 +565,22 @@ export default function PlantSetup(props: Props) {
                 </div>
                 <div>
                   <label htmlFor="ap-min">Lowest valid</label>
-                  <input id="ap-min" inputMode="decimal" value={apForm.min} onChange={(e) => setApForm({ ...apForm, min: e.target.value })} />
+                  <input
+                    id="ap-min"
+                    inputMode="decimal"
+                    value={apForm.min}
+                    onChange={(e) => setApForm({ ...apForm, min: e.target.value })}
+                  />
                   {err(apErrors, 'min')}
                 </div>
                 <div>
                   <label htmlFor="ap-max">Highest valid</label>
-                  <input id="ap-max" inputMode="decimal" value={apForm.max} onChange={(e) => setApForm({ ...apForm, max: e.target.value })} />
+                  <input
+                    id="ap-max"
+                    inputMode="decimal"
+                    value={apForm.max}
+                    onChange={(e) => setApForm({ ...apForm, max: e.target.value })}
+                  />
                   {err(apErrors, 'max')}
                 </div>
                 <div className="col-span-full flex gap-2">
@@ -488,7 +611,14 @@ export default function PlantSetup(props: Props) {
             )}
             <div>
               <label htmlFor="ch-filter">Filter</label>
-              <input id="ch-filter" type="search" className="w-56" value={text} onChange={(e) => setText(e.target.value)} placeholder="name, topic, kind" />
+              <input
+                id="ch-filter"
+                type="search"
+                className="w-56"
+                value={text}
+                onChange={(e) => setText(e.target.value)}
+                placeholder="name, topic, kind"
+              />
             </div>
             <button
               type="button"
@@ -508,12 +638,24 @@ export default function PlantSetup(props: Props) {
             <table>
               <thead>
                 <tr>
-                  <SortTh k="name" {...chSort}>Channel</SortTh>
-                  <SortTh k="assetCode" {...chSort}>Asset</SortTh>
-                  <SortTh k="kind" {...chSort}>Kind</SortTh>
-                  <SortTh k="unit" {...chSort}>Unit</SortTh>
-                  <SortTh k="min" {...chSort}>Valid range</SortTh>
-                  <SortTh k="topic" {...chSort}>Topic</SortTh>
+                  <SortTh k="name" {...chSort}>
+                    Channel
+                  </SortTh>
+                  <SortTh k="assetCode" {...chSort}>
+                    Asset
+                  </SortTh>
+                  <SortTh k="kind" {...chSort}>
+                    Kind
+                  </SortTh>
+                  <SortTh k="unit" {...chSort}>
+                    Unit
+                  </SortTh>
+                  <SortTh k="min" {...chSort}>
+                    Valid range
+                  </SortTh>
+                  <SortTh k="topic" {...chSort}>
+                    Topic
+                  </SortTh>
                 </tr>
               </thead>
               <tbody>
@@ -546,7 +688,11 @@ export default function PlantSetup(props: Props) {
         {canConfigure && (
           <section aria-labelledby="newch-h" className="panel space-y-3">
             <h2 id="newch-h">New channel</h2>
-            <form onSubmit={createChannel} className="grid grid-cols-2 items-start gap-3 md:grid-cols-4 xl:grid-cols-8" noValidate>
+            <form
+              onSubmit={createChannel}
+              className="grid grid-cols-2 items-start gap-3 md:grid-cols-4 xl:grid-cols-8"
+              noValidate
+            >
               <div className="col-span-2">
                 <label htmlFor="ch-asset">Asset</label>
                 <select id="ch-asset" value={chForm.assetId} onChange={(e) => setChForm({ ...chForm, assetId: e.target.value })}>
@@ -561,7 +707,11 @@ export default function PlantSetup(props: Props) {
               </div>
               <div className="col-span-2">
                 <label htmlFor="ch-device">Device that publishes it</label>
-                <select id="ch-device" value={chForm.deviceId} onChange={(e) => setChForm({ ...chForm, deviceId: e.target.value })}>
+                <select
+                  id="ch-device"
+                  value={chForm.deviceId}
+                  onChange={(e) => setChForm({ ...chForm, deviceId: e.target.value })}
+                >
                   <option value="">Choose…</option>
                   {devices.map((d) => (
                     <option key={d.id} value={d.id}>
@@ -573,17 +723,34 @@ export default function PlantSetup(props: Props) {
               </div>
               <div className="col-span-2">
                 <label htmlFor="ch-name">Name</label>
-                <input id="ch-name" value={chForm.name} onChange={(e) => setChForm({ ...chForm, name: e.target.value })} placeholder="e.g. Line 3 bath viscosity" />
+                <input
+                  id="ch-name"
+                  value={chForm.name}
+                  onChange={(e) => setChForm({ ...chForm, name: e.target.value })}
+                  placeholder="e.g. Line 3 bath viscosity"
+                />
                 {err(chErrors, 'name')}
               </div>
               <div className="col-span-2">
                 <label htmlFor="ch-key">Topic code (optional)</label>
-                <input id="ch-key" value={chForm.key} onChange={(e) => setChForm({ ...chForm, key: e.target.value })} placeholder="from the name" spellCheck={false} />
+                <input
+                  id="ch-key"
+                  value={chForm.key}
+                  onChange={(e) => setChForm({ ...chForm, key: e.target.value })}
+                  placeholder="from the name"
+                  spellCheck={false}
+                />
                 {err(chErrors, 'key')}
               </div>
               <div className="col-span-2">
                 <label htmlFor="ch-kind">Kind</label>
-                <select id="ch-kind" value={chForm.kind} onChange={(e) => setChForm({ ...chForm, kind: e.target.value as ChannelKind, unit: KIND_UNITS[e.target.value as ChannelKind] })}>
+                <select
+                  id="ch-kind"
+                  value={chForm.kind}
+                  onChange={(e) =>
+                    setChForm({ ...chForm, kind: e.target.value as ChannelKind, unit: KIND_UNITS[e.target.value as ChannelKind] })
+                  }
+                >
                   {CHANNEL_KINDS.map((k) => (
                     <option key={k}>{k}</option>
                   ))}
@@ -596,12 +763,22 @@ export default function PlantSetup(props: Props) {
               </div>
               <div>
                 <label htmlFor="ch-min">Lowest valid</label>
-                <input id="ch-min" inputMode="decimal" value={chForm.min} onChange={(e) => setChForm({ ...chForm, min: e.target.value })} />
+                <input
+                  id="ch-min"
+                  inputMode="decimal"
+                  value={chForm.min}
+                  onChange={(e) => setChForm({ ...chForm, min: e.target.value })}
+                />
                 {err(chErrors, 'min')}
               </div>
               <div>
                 <label htmlFor="ch-max">Highest valid</label>
-                <input id="ch-max" inputMode="decimal" value={chForm.max} onChange={(e) => setChForm({ ...chForm, max: e.target.value })} />
+                <input
+                  id="ch-max"
+                  inputMode="decimal"
+                  value={chForm.max}
+                  onChange={(e) => setChForm({ ...chForm, max: e.target.value })}
+                />
                 {err(chErrors, 'max')}
               </div>
               <div className="col-span-2 self-end">
@@ -610,7 +787,8 @@ export default function PlantSetup(props: Props) {
                 </button>
               </div>
               <p className="col-span-full text-sm text-ink-soft">
-                The valid range is physical plausibility (readings outside it are refused as sensor faults), not the process window. Windows are set under Process windows.
+                The valid range is physical plausibility (readings outside it are refused as sensor faults), not the process
+                window. Windows are set under Process windows.
               </p>
             </form>
           </section>

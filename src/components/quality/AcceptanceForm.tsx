@@ -23,7 +23,13 @@ export default function AcceptanceForm({ initial, canEdit }: { initial: Acceptan
       setA(await apiFetch<Acceptance>('/api/v1/quality/acceptance', { method: 'PUT', body: p.data }));
       setMsg({ kind: 'ok', text: 'Saved. New tests are judged by these settings.' });
     } catch (err) {
-      setMsg({ kind: 'error', text: err instanceof ApiError ? err.errors.map((f) => `${f.path}: ${f.message}`).join(' ') || (err.detail ?? err.title) : 'Not saved.' });
+      setMsg({
+        kind: 'error',
+        text:
+          err instanceof ApiError
+            ? err.errors.map((f) => `${f.path}: ${f.message}`).join(' ') || (err.detail ?? err.title)
+            : 'Not saved.',
+      });
     } finally {
       setBusy(false);
     }
@@ -36,27 +42,57 @@ export default function AcceptanceForm({ initial, canEdit }: { initial: Acceptan
         <div>
           <label htmlFor="a-cc">Worst cross-cut class accepted (dry)</label>
           <select id="a-cc" value={a.crosscutMaxIso} onChange={(e) => setA({ ...a, crosscutMaxIso: Number(e.target.value) })}>
-            {CLASSES.map((c) => <option key={c} value={c}>ISO 2409 class {c} / ASTM D3359 {5 - c}B</option>)}
+            {CLASSES.map((c) => (
+              <option key={c} value={c}>
+                ISO 2409 class {c} / ASTM D3359 {5 - c}B
+              </option>
+            ))}
           </select>
         </div>
         <div>
           <label htmlFor="a-boil">Worst cross-cut class accepted after boiling</label>
           <select id="a-boil" value={a.boilMaxIso} onChange={(e) => setA({ ...a, boilMaxIso: Number(e.target.value) })}>
-            {CLASSES.map((c) => <option key={c} value={c}>ISO 2409 class {c} / ASTM D3359 {5 - c}B</option>)}
+            {CLASSES.map((c) => (
+              <option key={c} value={c}>
+                ISO 2409 class {c} / ASTM D3359 {5 - c}B
+              </option>
+            ))}
           </select>
         </div>
         <div>
           <label htmlFor="a-bayer">Lowest Bayer ratio accepted (ASTM F735; 1 = uncoated CR-39)</label>
-          <input id="a-bayer" type="number" step="0.1" min={0} value={Number.isFinite(a.minBayerRatio) ? a.minBayerRatio : ''} onChange={(e) => setA({ ...a, minBayerRatio: n(e.target.value) })} className="w-32 font-mono" />
+          <input
+            id="a-bayer"
+            type="number"
+            step="0.1"
+            min={0}
+            value={Number.isFinite(a.minBayerRatio) ? a.minBayerRatio : ''}
+            onChange={(e) => setA({ ...a, minBayerRatio: n(e.target.value) })}
+            className="w-32 font-mono"
+          />
         </div>
         <div className="flex gap-3">
           <div>
             <label htmlFor="a-tmin">Thinnest coat (µm)</label>
-            <input id="a-tmin" type="number" step="0.1" value={Number.isFinite(a.thicknessUm.min) ? a.thicknessUm.min : ''} onChange={(e) => setA({ ...a, thicknessUm: { ...a.thicknessUm, min: n(e.target.value) } })} className="w-28 font-mono" />
+            <input
+              id="a-tmin"
+              type="number"
+              step="0.1"
+              value={Number.isFinite(a.thicknessUm.min) ? a.thicknessUm.min : ''}
+              onChange={(e) => setA({ ...a, thicknessUm: { ...a.thicknessUm, min: n(e.target.value) } })}
+              className="w-28 font-mono"
+            />
           </div>
           <div>
             <label htmlFor="a-tmax">Thickest coat (µm)</label>
-            <input id="a-tmax" type="number" step="0.1" value={Number.isFinite(a.thicknessUm.max) ? a.thicknessUm.max : ''} onChange={(e) => setA({ ...a, thicknessUm: { ...a.thicknessUm, max: n(e.target.value) } })} className="w-28 font-mono" />
+            <input
+              id="a-tmax"
+              type="number"
+              step="0.1"
+              value={Number.isFinite(a.thicknessUm.max) ? a.thicknessUm.max : ''}
+              onChange={(e) => setA({ ...a, thicknessUm: { ...a.thicknessUm, max: n(e.target.value) } })}
+              className="w-28 font-mono"
+            />
           </div>
         </div>
         <fieldset className="md:col-span-2">
@@ -65,20 +101,43 @@ export default function AcceptanceForm({ initial, canEdit }: { initial: Acceptan
             {DEFECT_TYPES.map((d: DefectType) => (
               <div key={d}>
                 <label htmlFor={`a-d-${d}`}>{DEFECT_LABELS[d]}</label>
-                <input id={`a-d-${d}`} type="number" min={0} step={1} value={a.cosmeticMaxPerType[d] ?? 0} onChange={(e) => setA({ ...a, cosmeticMaxPerType: { ...a.cosmeticMaxPerType, [d]: Math.max(0, Math.trunc(Number(e.target.value) || 0)) } })} className="w-24 font-mono" />
+                <input
+                  id={`a-d-${d}`}
+                  type="number"
+                  min={0}
+                  step={1}
+                  value={a.cosmeticMaxPerType[d] ?? 0}
+                  onChange={(e) =>
+                    setA({
+                      ...a,
+                      cosmeticMaxPerType: { ...a.cosmeticMaxPerType, [d]: Math.max(0, Math.trunc(Number(e.target.value) || 0)) },
+                    })
+                  }
+                  className="w-24 font-mono"
+                />
               </div>
             ))}
           </div>
         </fieldset>
       </fieldset>
       {canEdit ? (
-        <button className="btn" disabled={busy}>{busy ? 'Saving…' : 'Save the acceptance settings'}</button>
+        <button className="btn" disabled={busy}>
+          {busy ? 'Saving…' : 'Save the acceptance settings'}
+        </button>
       ) : (
         <p className="text-sm text-ink-soft">Only the quality role changes these settings.</p>
       )}
       {msg && (
-        <p role={msg.kind === 'error' ? 'alert' : 'status'} className={msg.kind === 'error' ? 'rounded border-l-4 border-alert-high bg-alert-bg p-2 text-sm' : 'rounded border-l-4 border-lacquer bg-lacquer-light/60 p-2 text-sm'}>
-          <strong>{msg.kind === 'error' ? '✕ ' : '✓ '}</strong>{msg.text}
+        <p
+          role={msg.kind === 'error' ? 'alert' : 'status'}
+          className={
+            msg.kind === 'error'
+              ? 'rounded border-l-4 border-alert-high bg-alert-bg p-2 text-sm'
+              : 'rounded border-l-4 border-lacquer bg-lacquer-light/60 p-2 text-sm'
+          }
+        >
+          <strong>{msg.kind === 'error' ? '✕ ' : '✓ '}</strong>
+          {msg.text}
         </p>
       )}
     </form>

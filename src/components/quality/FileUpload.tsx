@@ -15,7 +15,8 @@ export default function FileUpload({ testId }: { testId: number }) {
     e.preventDefault();
     const file = input.current?.files?.[0];
     if (!file) return setMsg({ kind: 'error', text: 'Choose a file.' });
-    if (file.size > MAX_UPLOAD_BYTES) return setMsg({ kind: 'error', text: `${file.name} is ${(file.size / 1048576).toFixed(1)} MB; the limit is 5 MB.` });
+    if (file.size > MAX_UPLOAD_BYTES)
+      return setMsg({ kind: 'error', text: `${file.name} is ${(file.size / 1048576).toFixed(1)} MB; the limit is 5 MB.` });
     const body = new FormData();
     body.append('file', file);
     const xhr = new XMLHttpRequest();
@@ -49,7 +50,12 @@ export default function FileUpload({ testId }: { testId: number }) {
   return (
     <form onSubmit={submit} className="space-y-2" aria-label="Attach a file">
       <label htmlFor={`file-${testId}`}>Attach a photo, spectrum or report (PNG, JPEG, PDF, CSV or text; at most 5 MB)</label>
-      <input id={`file-${testId}`} ref={input} type="file" accept=".png,.jpg,.jpeg,.pdf,.csv,.txt,image/png,image/jpeg,application/pdf,text/csv,text/plain" />
+      <input
+        id={`file-${testId}`}
+        ref={input}
+        type="file"
+        accept=".png,.jpg,.jpeg,.pdf,.csv,.txt,image/png,image/jpeg,application/pdf,text/csv,text/plain"
+      />
       <div className="flex items-center gap-3">
         <button className="btn" disabled={progress !== null}>
           {progress !== null ? `Uploading… ${progress} %` : 'Upload'}
@@ -57,7 +63,14 @@ export default function FileUpload({ testId }: { testId: number }) {
         {progress !== null && <progress max={100} value={progress} className="w-40" aria-label="Upload progress" />}
       </div>
       {msg && (
-        <p role={msg.kind === 'error' ? 'alert' : 'status'} className={msg.kind === 'error' ? 'rounded border-l-4 border-alert-high bg-alert-bg p-2 text-sm' : 'rounded border-l-4 border-lacquer bg-lacquer-light/60 p-2 text-sm'}>
+        <p
+          role={msg.kind === 'error' ? 'alert' : 'status'}
+          className={
+            msg.kind === 'error'
+              ? 'rounded border-l-4 border-alert-high bg-alert-bg p-2 text-sm'
+              : 'rounded border-l-4 border-lacquer bg-lacquer-light/60 p-2 text-sm'
+          }
+        >
           <strong>{msg.kind === 'error' ? '✕ ' : '✓ '}</strong>
           {msg.text}
         </p>

@@ -14,7 +14,15 @@ import { JobStatusTag } from './marks.tsx';
 
 type Key = 'job' | 'placed' | 'reason' | 'status' | 'closed';
 
-export default function HoldList({ initial, timeZone, canRelease }: { initial: HoldItem[]; timeZone: string; canRelease: boolean }) {
+export default function HoldList({
+  initial,
+  timeZone,
+  canRelease,
+}: {
+  initial: HoldItem[];
+  timeZone: string;
+  canRelease: boolean;
+}) {
   const [selected, setSelected] = useState<Set<number>>(new Set());
   const [text, setText] = useState('');
   const [disposition, setDisposition] = useState<Disposition>('release');
@@ -27,8 +35,16 @@ export default function HoldList({ initial, timeZone, canRelease }: { initial: H
 
   const shown = useMemo(() => {
     const q = text.trim().toLowerCase();
-    const f = q ? initial.filter((h) => [h.jobNumber, h.reason, h.placedBy ?? '', h.disposition ?? ''].some((s) => s.toLowerCase().includes(q))) : initial;
-    return sortRows(f, (h) => ({ job: h.jobNumber, placed: h.placedAt, reason: h.reason, status: h.status, closed: h.closedAt })[sort.key], sort.dir);
+    const f = q
+      ? initial.filter((h) =>
+          [h.jobNumber, h.reason, h.placedBy ?? '', h.disposition ?? ''].some((s) => s.toLowerCase().includes(q)),
+        )
+      : initial;
+    return sortRows(
+      f,
+      (h) => ({ job: h.jobNumber, placed: h.placedAt, reason: h.reason, status: h.status, closed: h.closedAt })[sort.key],
+      sort.dir,
+    );
   }, [initial, text, sort]);
   const active = shown.filter((h) => h.status === 'active');
   const chosen = initial.filter((h) => selected.has(h.id));
@@ -44,12 +60,15 @@ export default function HoldList({ initial, timeZone, canRelease }: { initial: H
   function start() {
     setError(null);
     if (chosen.length === 0) return setError('Select at least one held job.');
-    if (disposition !== 'release' && comment.trim().length < 3) return setError('Say why in the comment: a disposition other than release needs one.');
+    if (disposition !== 'release' && comment.trim().length < 3)
+      return setError('Say why in the comment: a disposition other than release needs one.');
     setSigning(true);
   }
 
   async function sign(password: string, meaning: string) {
-    await apiFetch('/api/v1/holds/close', { body: { holdIds: chosen.map((h) => h.id), disposition, comment: comment.trim(), password, meaning } });
+    await apiFetch('/api/v1/holds/close', {
+      body: { holdIds: chosen.map((h) => h.id), disposition, comment: comment.trim(), password, meaning },
+    });
     setSigning(false);
     setDone(`${chosen.length} hold(s) closed: ${DISPOSITION_LABELS[disposition]}.`);
     setTimeout(() => window.location.reload(), 900);
@@ -58,8 +77,32 @@ export default function HoldList({ initial, timeZone, canRelease }: { initial: H
   const csv = () =>
     downloadCsv(
       'holds.csv',
-      ['hold', 'job', 'status', 'reason', `placed (${timeZone})`, 'placed by', 'disposition', 'comment', `closed (${timeZone})`, 'signed by', 'meaning'],
-      shown.map((h) => [h.id, h.jobNumber, h.status, h.reason, t(h.placedAt), h.placedBy ?? '', h.disposition ? DISPOSITION_LABELS[h.disposition] : '', h.dispositionComment ?? '', h.closedAt ? t(h.closedAt) : '', h.signature?.displayName ?? '', h.signature?.meaning ?? '']),
+      [
+        'hold',
+        'job',
+        'status',
+        'reason',
+        `placed (${timeZone})`,
+        'placed by',
+        'disposition',
+        'comment',
+        `closed (${timeZone})`,
+        'signed by',
+        'meaning',
+      ],
+      shown.map((h) => [
+        h.id,
+        h.jobNumber,
+        h.status,
+        h.reason,
+        t(h.placedAt),
+        h.placedBy ?? '',
+        h.disposition ? DISPOSITION_LABELS[h.disposition] : '',
+        h.dispositionComment ?? '',
+        h.closedAt ? t(h.closedAt) : '',
+        h.signature?.displayName ?? '',
+        h.signature?.meaning ?? '',
+      ]),
     );
 
   return (
@@ -70,7 +113,12 @@ export default function HoldList({ initial, timeZone, canRelease }: { initial: H
           <div className="flex flex-wrap items-end gap-3">
             <div>
               <label htmlFor="disp">Disposition</label>
-              <select id="disp" value={disposition} onChange={(e) => setDisposition(e.target.value as Disposition)} className="w-64">
+              <select
+                id="disp"
+                value={disposition}
+                onChange={(e) => setDisposition(e.target.value as Disposition)}
+                className="w-64"
+              >
                 {DISPOSITIONS.map((d) => (
                   <option value={d} key={d}>
                     {DISPOSITION_LABELS[d]}
@@ -86,7 +134,9 @@ export default function HoldList({ initial, timeZone, canRelease }: { initial: H
               Sign and close {chosen.length} hold{chosen.length === 1 ? '' : 's'}…
             </button>
           </div>
-          <p className="text-xs text-ink-soft">Closing a hold is an electronic signature: you enter your password again and choose what your signature means.</p>
+          <p className="text-xs text-ink-soft">
+            Closing a hold is an electronic signature: you enter your password again and choose what your signature means.
+          </p>
           {error && (
             <p role="alert" className="rounded border-l-4 border-alert-high bg-alert-bg p-2 text-sm">
               <strong>✕ </strong>
@@ -102,7 +152,13 @@ export default function HoldList({ initial, timeZone, canRelease }: { initial: H
         </div>
       )}
       {signing && (
-        <SignDialog title={`${DISPOSITION_LABELS[disposition]}: ${chosen.length} held job(s)`} meaningOptions={[...HOLD_SIGN_MEANINGS]} onSign={sign} onCancel={() => setSigning(false)} signLabel="Sign and close">
+        <SignDialog
+          title={`${DISPOSITION_LABELS[disposition]}: ${chosen.length} held job(s)`}
+          meaningOptions={[...HOLD_SIGN_MEANINGS]}
+          onSign={sign}
+          onCancel={() => setSigning(false)}
+          signLabel="Sign and close"
+        >
           <p className="text-sm">
             Jobs: <span className="num">{chosen.map((h) => h.jobNumber).join(', ')}</span>
           </p>
@@ -112,7 +168,14 @@ export default function HoldList({ initial, timeZone, canRelease }: { initial: H
       <div className="flex flex-wrap items-end gap-3">
         <div>
           <label htmlFor="hold-q">Filter the rows shown</label>
-          <input id="hold-q" type="search" value={text} onChange={(e) => setText(e.target.value)} className="w-64" placeholder="job, reason…" />
+          <input
+            id="hold-q"
+            type="search"
+            value={text}
+            onChange={(e) => setText(e.target.value)}
+            className="w-64"
+            placeholder="job, reason…"
+          />
         </div>
         {canRelease && active.length > 0 && (
           <button type="button" className="btn-quiet" onClick={() => setSelected(new Set(active.map((h) => h.id)))}>
@@ -137,11 +200,21 @@ export default function HoldList({ initial, timeZone, canRelease }: { initial: H
                     <span className="sr-only">Select</span>
                   </th>
                 )}
-                <SortTh k="job" sort={sort} toggle={toggle}>Job</SortTh>
-                <SortTh k="status" sort={sort} toggle={toggle}>Status</SortTh>
-                <SortTh k="reason" sort={sort} toggle={toggle}>Reason</SortTh>
-                <SortTh k="placed" sort={sort} toggle={toggle}>Placed ({timeZone})</SortTh>
-                <SortTh k="closed" sort={sort} toggle={toggle}>Closed / signature</SortTh>
+                <SortTh k="job" sort={sort} toggle={toggle}>
+                  Job
+                </SortTh>
+                <SortTh k="status" sort={sort} toggle={toggle}>
+                  Status
+                </SortTh>
+                <SortTh k="reason" sort={sort} toggle={toggle}>
+                  Reason
+                </SortTh>
+                <SortTh k="placed" sort={sort} toggle={toggle}>
+                  Placed ({timeZone})
+                </SortTh>
+                <SortTh k="closed" sort={sort} toggle={toggle}>
+                  Closed / signature
+                </SortTh>
               </tr>
             </thead>
             <tbody>
@@ -149,7 +222,15 @@ export default function HoldList({ initial, timeZone, canRelease }: { initial: H
                 <tr key={h.id}>
                   {canRelease && (
                     <td>
-                      {h.status === 'active' && <input type="checkbox" className="w-auto" aria-label={`Select hold of ${h.jobNumber}`} checked={selected.has(h.id)} onChange={() => toggleOne(h.id)} />}
+                      {h.status === 'active' && (
+                        <input
+                          type="checkbox"
+                          className="w-auto"
+                          aria-label={`Select hold of ${h.jobNumber}`}
+                          checked={selected.has(h.id)}
+                          onChange={() => toggleOne(h.id)}
+                        />
+                      )}
                     </td>
                   )}
                   <td className="num whitespace-nowrap">
@@ -176,7 +257,8 @@ export default function HoldList({ initial, timeZone, canRelease }: { initial: H
                         <strong>{h.disposition ? DISPOSITION_LABELS[h.disposition] : ''}</strong>
                         {h.dispositionComment ? ` — ${h.dispositionComment}` : ''}
                         <div className="text-xs text-ink-soft">
-                          Signed by {h.signature?.displayName} ({h.signature?.meaning}) {h.signature ? t(h.signature.signedAt) : ''}
+                          Signed by {h.signature?.displayName} ({h.signature?.meaning}){' '}
+                          {h.signature ? t(h.signature.signedAt) : ''}
                         </div>
                       </>
                     ) : (

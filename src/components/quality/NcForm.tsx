@@ -71,7 +71,11 @@ export default function NcForm({ jobNumber, tests, loads, charges, holds, defaul
         <div>
           <label htmlFor="nc-cause">Suspected cause</label>
           <select id="nc-cause" value={cause} onChange={(e) => setCause(e.target.value as typeof cause)}>
-            {SUSPECTED_CAUSES.map((c) => <option key={c} value={c}>{SUSPECTED_CAUSE_LABELS[c]}</option>)}
+            {SUSPECTED_CAUSES.map((c) => (
+              <option key={c} value={c}>
+                {SUSPECTED_CAUSE_LABELS[c]}
+              </option>
+            ))}
           </select>
         </div>
         {(cause === 'load' || cause === 'load-and-bath') && (
@@ -79,7 +83,11 @@ export default function NcForm({ jobNumber, tests, loads, charges, holds, defaul
             <label htmlFor="nc-load">Suspected oven load</label>
             <select id="nc-load" value={loadId} onChange={(e) => setLoadId(e.target.value ? Number(e.target.value) : '')}>
               {loads.length === 0 && <option value="">No load recorded for {jobNumber}</option>}
-              {loads.map((l) => <option key={l.id} value={l.id}>{l.label}</option>)}
+              {loads.map((l) => (
+                <option key={l.id} value={l.id}>
+                  {l.label}
+                </option>
+              ))}
             </select>
           </div>
         )}
@@ -88,7 +96,11 @@ export default function NcForm({ jobNumber, tests, loads, charges, holds, defaul
             <label htmlFor="nc-charge">Suspected bath charge</label>
             <select id="nc-charge" value={chargeId} onChange={(e) => setChargeId(e.target.value ? Number(e.target.value) : '')}>
               {charges.length === 0 && <option value="">No bath charge recorded for {jobNumber}</option>}
-              {charges.map((c) => <option key={c.id} value={c.id}>{c.label}</option>)}
+              {charges.map((c) => (
+                <option key={c.id} value={c.id}>
+                  {c.label}
+                </option>
+              ))}
             </select>
           </div>
         )}
@@ -96,29 +108,64 @@ export default function NcForm({ jobNumber, tests, loads, charges, holds, defaul
       <div className="panel grid gap-4 md:grid-cols-2">
         <fieldset>
           <legend className="mb-1 font-bold">Failed tests</legend>
-          {tests.length === 0 ? <p className="text-sm text-ink-soft">No failed tests.</p> : tests.map((t) => (
-            <label key={t.id} className="flex items-center gap-2 font-normal"><input type="checkbox" className="w-auto" checked={testIds.has(t.id)} onChange={() => setTestIds(flip(testIds, t.id))} /> {t.label}</label>
-          ))}
+          {tests.length === 0 ? (
+            <p className="text-sm text-ink-soft">No failed tests.</p>
+          ) : (
+            tests.map((t) => (
+              <label key={t.id} className="flex items-center gap-2 font-normal">
+                <input
+                  type="checkbox"
+                  className="w-auto"
+                  checked={testIds.has(t.id)}
+                  onChange={() => setTestIds(flip(testIds, t.id))}
+                />{' '}
+                {t.label}
+              </label>
+            ))
+          )}
         </fieldset>
         <fieldset>
-          <legend className="mb-1 font-bold">Holds to tie to it ({holdIds.size} of {holds.length})</legend>
-          {holds.length === 0 ? <p className="text-sm text-ink-soft">No active holds on this job or its load yet. Hold them from the trace first.</p> : (
+          <legend className="mb-1 font-bold">
+            Holds to tie to it ({holdIds.size} of {holds.length})
+          </legend>
+          {holds.length === 0 ? (
+            <p className="text-sm text-ink-soft">No active holds on this job or its load yet. Hold them from the trace first.</p>
+          ) : (
             <>
               <div className="mb-1 flex gap-2 text-sm">
-                <button type="button" className="btn-quiet" onClick={() => setHoldIds(new Set(holds.map((h) => h.id)))}>All</button>
-                <button type="button" className="btn-quiet" onClick={() => setHoldIds(new Set())}>None</button>
+                <button type="button" className="btn-quiet" onClick={() => setHoldIds(new Set(holds.map((h) => h.id)))}>
+                  All
+                </button>
+                <button type="button" className="btn-quiet" onClick={() => setHoldIds(new Set())}>
+                  None
+                </button>
               </div>
               <div className="max-h-64 overflow-auto">
                 {holds.map((h) => (
-                  <label key={h.id} className="mr-4 inline-flex items-center gap-1 font-normal num"><input type="checkbox" className="w-auto" checked={holdIds.has(h.id)} onChange={() => setHoldIds(flip(holdIds, h.id))} /> {h.label}</label>
+                  <label key={h.id} className="mr-4 inline-flex items-center gap-1 font-normal num">
+                    <input
+                      type="checkbox"
+                      className="w-auto"
+                      checked={holdIds.has(h.id)}
+                      onChange={() => setHoldIds(flip(holdIds, h.id))}
+                    />{' '}
+                    {h.label}
+                  </label>
                 ))}
               </div>
             </>
           )}
         </fieldset>
       </div>
-      <button className="btn" disabled={busy}>{busy ? 'Saving…' : 'Write the nonconformance'}</button>
-      {error && <p role="alert" className="rounded border-l-4 border-alert-high bg-alert-bg p-2 text-sm"><strong>✕ Not saved. </strong>{error}</p>}
+      <button className="btn" disabled={busy}>
+        {busy ? 'Saving…' : 'Write the nonconformance'}
+      </button>
+      {error && (
+        <p role="alert" className="rounded border-l-4 border-alert-high bg-alert-bg p-2 text-sm">
+          <strong>✕ Not saved. </strong>
+          {error}
+        </p>
+      )}
     </form>
   );
 }

@@ -4,7 +4,18 @@
  * the server by the SPC library. A week beyond its limits is drawn as a triangle with words in
  * the table below; the chart has a text alternative (the table).
  */
-import { CategoryScale, Chart as ChartJS, Legend, LinearScale, LineController, LineElement, PointElement, Tooltip, type ChartData, type ChartOptions } from 'chart.js';
+import {
+  CategoryScale,
+  Chart as ChartJS,
+  Legend,
+  LinearScale,
+  LineController,
+  LineElement,
+  PointElement,
+  Tooltip,
+  type ChartData,
+  type ChartOptions,
+} from 'chart.js';
 import { Chart } from 'react-chartjs-2';
 import type { AdhesionChart } from '../../lib/shared/trace-views.ts';
 
@@ -17,7 +28,8 @@ export default function PChart({ chart }: { chart: AdhesionChart }) {
   if (!ev) {
     return (
       <div className="empty" role="status">
-        {chart.message ?? 'No adhesion tests yet.'} {chart.weeks.length ? `(${chart.weeks.length} week(s) with tests so far.)` : ''}
+        {chart.message ?? 'No adhesion tests yet.'}{' '}
+        {chart.weeks.length ? `(${chart.weeks.length} week(s) with tests so far.)` : ''}
       </div>
     );
   }
@@ -35,24 +47,55 @@ export default function PChart({ chart }: { chart: AdhesionChart }) {
         pointRadius: ev.points.map((_, i) => (signal[i] ? 7 : 3)),
         borderWidth: 1.5,
       },
-      { label: 'UCL', data: ev.points.map((p) => p.ucl), borderColor: '#4a545b', borderDash: [5, 4], borderWidth: 1, pointRadius: 0, stepped: 'middle' },
+      {
+        label: 'UCL',
+        data: ev.points.map((p) => p.ucl),
+        borderColor: '#4a545b',
+        borderDash: [5, 4],
+        borderWidth: 1,
+        pointRadius: 0,
+        stepped: 'middle',
+      },
       { label: 'Centre p̄', data: ev.points.map((p) => p.center), borderColor: '#2f6f73', borderWidth: 1, pointRadius: 0 },
-      { label: 'LCL', data: ev.points.map((p) => p.lcl), borderColor: '#4a545b', borderDash: [5, 4], borderWidth: 1, pointRadius: 0, stepped: 'middle' },
+      {
+        label: 'LCL',
+        data: ev.points.map((p) => p.lcl),
+        borderColor: '#4a545b',
+        borderDash: [5, 4],
+        borderWidth: 1,
+        pointRadius: 0,
+        stepped: 'middle',
+      },
     ],
   };
   const options: ChartOptions<'line'> = {
     animation: false,
     responsive: true,
     maintainAspectRatio: false,
-    scales: { y: { min: 0, ticks: { callback: (v) => pct(Number(v)) }, title: { display: true, text: 'fraction of adhesion tests failing' } } },
+    scales: {
+      y: {
+        min: 0,
+        ticks: { callback: (v) => pct(Number(v)) },
+        title: { display: true, text: 'fraction of adhesion tests failing' },
+      },
+    },
     plugins: {
       legend: { position: 'bottom', labels: { boxWidth: 16, font: { size: 11 } } },
-      tooltip: { callbacks: { label: (i) => `${i.dataset.label}: ${pct(Number(i.parsed.y))}${i.datasetIndex === 0 ? ` (${chart.weeks[i.dataIndex]?.failed} of ${chart.weeks[i.dataIndex]?.tests})` : ''}` } },
+      tooltip: {
+        callbacks: {
+          label: (i) =>
+            `${i.dataset.label}: ${pct(Number(i.parsed.y))}${i.datasetIndex === 0 ? ` (${chart.weeks[i.dataIndex]?.failed} of ${chart.weeks[i.dataIndex]?.tests})` : ''}`,
+        },
+      },
     },
   };
   return (
     <div>
-      <div style={{ height: 240 }} role="img" aria-label={`p chart of adhesion failures per week, centre ${pct(ev.limits.center)}; ${signal.filter(Boolean).length} week(s) beyond the limits. The table below has the values.`}>
+      <div
+        style={{ height: 240 }}
+        role="img"
+        aria-label={`p chart of adhesion failures per week, centre ${pct(ev.limits.center)}; ${signal.filter(Boolean).length} week(s) beyond the limits. The table below has the values.`}
+      >
         <Chart type="line" data={data} options={options} />
       </div>
       <details className="mt-2 text-sm">

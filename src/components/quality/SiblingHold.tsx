@@ -28,7 +28,16 @@ export interface SiblingHoldProps {
 type Key = 'job' | 'relation' | 'tests' | 'failed' | 'last' | 'status';
 type Placed = { placed: { holdId: number; jobNumber: string }[]; alreadyHeld: string[] };
 
-export default function SiblingHold({ jobNumber, siblings, hours, timeZone, canHold, selfHoldable, defaultReason, ownDipRunIds }: SiblingHoldProps) {
+export default function SiblingHold({
+  jobNumber,
+  siblings,
+  hours,
+  timeZone,
+  canHold,
+  selfHoldable,
+  defaultReason,
+  ownDipRunIds,
+}: SiblingHoldProps) {
   const [selected, setSelected] = useState<Set<string>>(new Set());
   const [includeSelf, setIncludeSelf] = useState(selfHoldable);
   const [reason, setReason] = useState(defaultReason);
@@ -41,10 +50,20 @@ export default function SiblingHold({ jobNumber, siblings, hours, timeZone, canH
 
   const shown = useMemo(() => {
     const q = text.trim().toLowerCase();
-    let f = siblings.filter((s) => (show === 'load' ? s.sameLoads.length > 0 : show === 'bath' ? s.sameBathRuns.length > 0 : true));
+    let f = siblings.filter((s) =>
+      show === 'load' ? s.sameLoads.length > 0 : show === 'bath' ? s.sameBathRuns.length > 0 : true,
+    );
     if (q) f = f.filter((s) => s.jobNumber.toLowerCase().includes(q) || s.status.includes(q));
     const rel = (s: TraceSibling) => (s.sameLoads.length && s.sameBathRuns.length ? 0 : s.sameLoads.length ? 1 : 2);
-    const get = (s: TraceSibling) => ({ job: s.jobNumber, relation: rel(s) * 1e6 + (s.sameBathRuns[0]?.hoursApart ?? 0), tests: s.tests, failed: s.failed, last: s.lastTest?.testedAt ?? null, status: s.status })[sort.key];
+    const get = (s: TraceSibling) =>
+      ({
+        job: s.jobNumber,
+        relation: rel(s) * 1e6 + (s.sameBathRuns[0]?.hoursApart ?? 0),
+        tests: s.tests,
+        failed: s.failed,
+        last: s.lastTest?.testedAt ?? null,
+        status: s.status,
+      })[sort.key];
     return sortRows(f, get, sort.dir);
   }, [siblings, text, show, sort]);
 
@@ -56,7 +75,8 @@ export default function SiblingHold({ jobNumber, siblings, hours, timeZone, canH
       else next.add(n);
       return next;
     });
-  const selectWhere = (pred: (s: TraceSibling) => boolean) => setSelected(new Set(siblings.filter((s) => holdable(s) && pred(s)).map((s) => s.jobNumber)));
+  const selectWhere = (pred: (s: TraceSibling) => boolean) =>
+    setSelected(new Set(siblings.filter((s) => holdable(s) && pred(s)).map((s) => s.jobNumber)));
   const count = selected.size + (includeSelf && selfHoldable ? 1 : 0);
 
   async function hold(e: SyntheticEvent) {
@@ -73,7 +93,11 @@ export default function SiblingHold({ jobNumber, siblings, hours, timeZone, canH
       setIncludeSelf(false);
       setTimeout(() => window.location.reload(), 1500);
     } catch (err) {
-      setError(err instanceof ApiError ? (err.errors.map((f) => f.message).join(' ') || err.detail || err.title) : 'The hold was not placed.');
+      setError(
+        err instanceof ApiError
+          ? err.errors.map((f) => f.message).join(' ') || err.detail || err.title
+          : 'The hold was not placed.',
+      );
     } finally {
       setBusy(false);
     }
@@ -82,13 +106,27 @@ export default function SiblingHold({ jobNumber, siblings, hours, timeZone, canH
   const t = (s: string) => formatSiteTime(s, timeZone);
   const apart = (h: number) => (h < 1 ? `${Math.round(h * 60)} min` : `${h.toFixed(1)} h`);
   const bathText = (s: TraceSibling) =>
-    s.sameBathRuns.some((b) => ownDipRunIds.includes(b.dipRunId)) ? 'same rack (same dip)' : `same bath charge, dipped ${s.sameBathRuns.map((b) => apart(b.hoursApart)).join(', ')} apart`;
-  const relation = (s: TraceSibling) => [s.sameLoads.length ? `same load ${s.sameLoads.join(', ')}` : '', s.sameBathRuns.length ? bathText(s) : ''].filter(Boolean).join('; ');
+    s.sameBathRuns.some((b) => ownDipRunIds.includes(b.dipRunId))
+      ? 'same rack (same dip)'
+      : `same bath charge, dipped ${s.sameBathRuns.map((b) => apart(b.hoursApart)).join(', ')} apart`;
+  const relation = (s: TraceSibling) =>
+    [s.sameLoads.length ? `same load ${s.sameLoads.join(', ')}` : '', s.sameBathRuns.length ? bathText(s) : '']
+      .filter(Boolean)
+      .join('; ');
   const csv = () =>
     downloadCsv(
       `siblings-of-${jobNumber}.csv`,
       ['job', 'relation', 'tests', 'failed', 'last test', `last tested (${timeZone})`, 'status', 'on hold'],
-      shown.map((s) => [s.jobNumber, relation(s), s.tests, s.failed, s.lastTest ? `${TEST_KIND_LABELS[s.lastTest.kind]} ${s.lastTest.result}` : '', s.lastTest ? t(s.lastTest.testedAt) : '', s.status, s.activeHoldId ? 'yes' : 'no']),
+      shown.map((s) => [
+        s.jobNumber,
+        relation(s),
+        s.tests,
+        s.failed,
+        s.lastTest ? `${TEST_KIND_LABELS[s.lastTest.kind]} ${s.lastTest.result}` : '',
+        s.lastTest ? t(s.lastTest.testedAt) : '',
+        s.status,
+        s.activeHoldId ? 'yes' : 'no',
+      ]),
     );
   const nLoad = siblings.filter((s) => s.sameLoads.length > 0).length;
   const nBath = siblings.filter((s) => s.sameBathRuns.length > 0).length;
@@ -96,11 +134,14 @@ export default function SiblingHold({ jobNumber, siblings, hours, timeZone, canH
   return (
     <div className="space-y-3">
       <p className="text-sm text-ink-soft">
-        {siblings.length} sibling job(s): {nLoad} shared an oven load with {jobNumber}; {nBath} were dipped from the same bath charge within ±{hours} h.
+        {siblings.length} sibling job(s): {nLoad} shared an oven load with {jobNumber}; {nBath} were dipped from the same bath
+        charge within ±{hours} h.
       </p>
       {canHold && (
         <form onSubmit={hold} className="panel space-y-2 border-alert-med" aria-labelledby="hold-h">
-          <h3 id="hold-h" className="font-bold">Hold selected jobs</h3>
+          <h3 id="hold-h" className="font-bold">
+            Hold selected jobs
+          </h3>
           <div className="flex flex-wrap gap-2 text-sm">
             <span className="self-center text-ink-soft">Select:</span>
             <button type="button" className="btn-quiet" onClick={() => selectWhere((s) => s.sameLoads.length > 0)}>
@@ -121,16 +162,31 @@ export default function SiblingHold({ jobNumber, siblings, hours, timeZone, canH
           </div>
           {selfHoldable && (
             <label className="flex items-center gap-2 font-normal">
-              <input type="checkbox" className="w-auto" checked={includeSelf} onChange={(e) => setIncludeSelf(e.target.checked)} /> Also hold {jobNumber} itself
+              <input
+                type="checkbox"
+                className="w-auto"
+                checked={includeSelf}
+                onChange={(e) => setIncludeSelf(e.target.checked)}
+              />{' '}
+              Also hold {jobNumber} itself
             </label>
           )}
           <label htmlFor="hold-reason">Reason for the hold</label>
-          <textarea id="hold-reason" rows={2} value={reason} onChange={(e) => setReason(e.target.value)} maxLength={1000} required />
+          <textarea
+            id="hold-reason"
+            rows={2}
+            value={reason}
+            onChange={(e) => setReason(e.target.value)}
+            maxLength={1000}
+            required
+          />
           <div className="flex flex-wrap items-center gap-3">
             <button className="btn" disabled={busy || count === 0}>
               {busy ? 'Placing holds…' : `Hold ${count} selected job${count === 1 ? '' : 's'}`}
             </button>
-            <span className="text-xs text-ink-soft">A hold stops the jobs from shipping until quality releases or dispositions them (signed).</span>
+            <span className="text-xs text-ink-soft">
+              A hold stops the jobs from shipping until quality releases or dispositions them (signed).
+            </span>
           </div>
           {error && (
             <p role="alert" className="rounded border-l-4 border-alert-high bg-alert-bg p-2 text-sm">
@@ -141,7 +197,9 @@ export default function SiblingHold({ jobNumber, siblings, hours, timeZone, canH
           {result && (
             <p role="status" className="rounded border-l-4 border-lacquer bg-lacquer-light/60 p-2 text-sm">
               <strong>✓ Done. </strong>
-              {result.placed.length} job(s) put on hold{result.alreadyHeld.length ? `; ${result.alreadyHeld.length} were already on hold` : ''}. <a href="/quality/holds">See the hold list</a>.
+              {result.placed.length} job(s) put on hold
+              {result.alreadyHeld.length ? `; ${result.alreadyHeld.length} were already on hold` : ''}.{' '}
+              <a href="/quality/holds">See the hold list</a>.
             </p>
           )}
         </form>
@@ -149,24 +207,38 @@ export default function SiblingHold({ jobNumber, siblings, hours, timeZone, canH
       <div className="flex flex-wrap items-end gap-3">
         <div>
           <label htmlFor="sib-q">Filter</label>
-          <input id="sib-q" type="search" value={text} onChange={(e) => setText(e.target.value)} className="w-48" placeholder="job number…" />
+          <input
+            id="sib-q"
+            type="search"
+            value={text}
+            onChange={(e) => setText(e.target.value)}
+            className="w-48"
+            placeholder="job number…"
+          />
         </div>
         <div>
           <label htmlFor="sib-show">Show</label>
           <select id="sib-show" value={show} onChange={(e) => setShow(e.target.value as typeof show)} className="w-56">
             <option value="all">All siblings ({siblings.length})</option>
             <option value="load">Same oven load ({nLoad})</option>
-            <option value="bath">Same bath charge ±{hours} h ({nBath})</option>
+            <option value="bath">
+              Same bath charge ±{hours} h ({nBath})
+            </option>
           </select>
         </div>
         <button type="button" className="btn-quiet" onClick={csv}>
           CSV of these {shown.length} rows
         </button>
-        {canHold && <span className="text-sm" aria-live="polite">{selected.size} selected</span>}
+        {canHold && (
+          <span className="text-sm" aria-live="polite">
+            {selected.size} selected
+          </span>
+        )}
       </div>
       {shown.length === 0 ? (
         <div className="empty" role="status">
-          No sibling jobs {siblings.length ? 'match the filter' : `— nothing else shared this job’s load or its bath charge within ±${hours} h`}.
+          No sibling jobs{' '}
+          {siblings.length ? 'match the filter' : `— nothing else shared this job’s load or its bath charge within ±${hours} h`}.
         </div>
       ) : (
         <div className="max-h-[32rem] overflow-auto rounded-md border border-slate-line bg-white">
@@ -178,12 +250,24 @@ export default function SiblingHold({ jobNumber, siblings, hours, timeZone, canH
                     <span className="sr-only">Select</span>
                   </th>
                 )}
-                <SortTh k="job" sort={sort} toggle={toggle}>Job</SortTh>
-                <SortTh k="relation" sort={sort} toggle={toggle}>Shared with {jobNumber}</SortTh>
-                <SortTh k="tests" sort={sort} toggle={toggle} className="text-right">Tests</SortTh>
-                <SortTh k="failed" sort={sort} toggle={toggle} className="text-right">Failed</SortTh>
-                <SortTh k="last" sort={sort} toggle={toggle}>Last test</SortTh>
-                <SortTh k="status" sort={sort} toggle={toggle}>Status</SortTh>
+                <SortTh k="job" sort={sort} toggle={toggle}>
+                  Job
+                </SortTh>
+                <SortTh k="relation" sort={sort} toggle={toggle}>
+                  Shared with {jobNumber}
+                </SortTh>
+                <SortTh k="tests" sort={sort} toggle={toggle} className="text-right">
+                  Tests
+                </SortTh>
+                <SortTh k="failed" sort={sort} toggle={toggle} className="text-right">
+                  Failed
+                </SortTh>
+                <SortTh k="last" sort={sort} toggle={toggle}>
+                  Last test
+                </SortTh>
+                <SortTh k="status" sort={sort} toggle={toggle}>
+                  Status
+                </SortTh>
               </tr>
             </thead>
             <tbody>
@@ -206,8 +290,16 @@ export default function SiblingHold({ jobNumber, siblings, hours, timeZone, canH
                   </td>
                   <td className="text-sm">{relation(s)}</td>
                   <td className="num text-right">{s.tests}</td>
-                  <td className={`num text-right ${s.failed ? 'font-bold text-alert-high' : ''}`}>{s.failed ? `✕ ${s.failed}` : 0}</td>
-                  <td className="text-sm">{s.lastTest ? `${TEST_KIND_LABELS[s.lastTest.kind]}: ${s.lastTest.result} · ${t(s.lastTest.testedAt)}` : <span className="text-ink-faint">never tested</span>}</td>
+                  <td className={`num text-right ${s.failed ? 'font-bold text-alert-high' : ''}`}>
+                    {s.failed ? `✕ ${s.failed}` : 0}
+                  </td>
+                  <td className="text-sm">
+                    {s.lastTest ? (
+                      `${TEST_KIND_LABELS[s.lastTest.kind]}: ${s.lastTest.result} · ${t(s.lastTest.testedAt)}`
+                    ) : (
+                      <span className="text-ink-faint">never tested</span>
+                    )}
+                  </td>
                   <td>
                     <JobStatusTag status={s.status} />
                   </td>

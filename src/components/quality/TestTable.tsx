@@ -15,9 +15,24 @@ export default function TestTable({ initial, timeZone }: { initial: TestListItem
   const { sort, toggle } = useSort<Key>({ key: 'result', dir: 1 });
   const shown = useMemo(() => {
     const q = text.trim().toLowerCase();
-    const f = q ? initial.filter((r) => [r.jobNumber, r.kind, TEST_KIND_LABELS[r.kind], r.summary, r.ovenCode ?? '', r.testedBy, r.result].some((s) => s.toLowerCase().includes(q))) : initial;
+    const f = q
+      ? initial.filter((r) =>
+          [r.jobNumber, r.kind, TEST_KIND_LABELS[r.kind], r.summary, r.ovenCode ?? '', r.testedBy, r.result].some((s) =>
+            s.toLowerCase().includes(q),
+          ),
+        )
+      : initial;
     if (sort.key === 'result' && sort.dir === 1) return f; // the server's order: failed first, newest first
-    const get = (r: TestListItem) => ({ result: r.result, tested: r.testedAt, job: r.jobNumber, kind: r.kind, summary: r.summary, oven: r.ovenCode, status: r.jobStatus })[sort.key];
+    const get = (r: TestListItem) =>
+      ({
+        result: r.result,
+        tested: r.testedAt,
+        job: r.jobNumber,
+        kind: r.kind,
+        summary: r.summary,
+        oven: r.ovenCode,
+        status: r.jobStatus,
+      })[sort.key];
     return sortRows(f, get, sort.dir);
   }, [initial, text, sort]);
   const t = (s: string) => formatSiteTime(s, timeZone);
@@ -25,14 +40,32 @@ export default function TestTable({ initial, timeZone }: { initial: TestListItem
     downloadCsv(
       'quality-tests.csv',
       ['test', 'job', 'kind', `tested (${timeZone})`, 'result', 'summary', 'tested by', 'load', 'oven', 'job status'],
-      shown.map((r) => [r.id, r.jobNumber, TEST_KIND_LABELS[r.kind], t(r.testedAt), r.result, r.summary, r.testedBy, r.loadId ?? '', r.ovenCode ?? '', r.jobStatus]),
+      shown.map((r) => [
+        r.id,
+        r.jobNumber,
+        TEST_KIND_LABELS[r.kind],
+        t(r.testedAt),
+        r.result,
+        r.summary,
+        r.testedBy,
+        r.loadId ?? '',
+        r.ovenCode ?? '',
+        r.jobStatus,
+      ]),
     );
   return (
     <div className="space-y-2">
       <div className="flex flex-wrap items-end gap-3">
         <div>
           <label htmlFor="test-q">Filter the rows shown</label>
-          <input id="test-q" type="search" value={text} onChange={(e) => setText(e.target.value)} placeholder="job, kind, oven…" className="w-64" />
+          <input
+            id="test-q"
+            type="search"
+            value={text}
+            onChange={(e) => setText(e.target.value)}
+            placeholder="job, kind, oven…"
+            className="w-64"
+          />
         </div>
         <button type="button" className="btn-quiet" onClick={csv}>
           CSV of these {shown.length} rows
@@ -47,13 +80,27 @@ export default function TestTable({ initial, timeZone }: { initial: TestListItem
           <table>
             <thead className="sticky top-0">
               <tr>
-                <SortTh k="result" sort={sort} toggle={toggle}>Result</SortTh>
-                <SortTh k="tested" sort={sort} toggle={toggle}>Tested ({timeZone})</SortTh>
-                <SortTh k="job" sort={sort} toggle={toggle}>Job</SortTh>
-                <SortTh k="kind" sort={sort} toggle={toggle}>Test</SortTh>
-                <SortTh k="summary" sort={sort} toggle={toggle}>Outcome</SortTh>
-                <SortTh k="oven" sort={sort} toggle={toggle}>Cured in</SortTh>
-                <SortTh k="status" sort={sort} toggle={toggle}>Job status</SortTh>
+                <SortTh k="result" sort={sort} toggle={toggle}>
+                  Result
+                </SortTh>
+                <SortTh k="tested" sort={sort} toggle={toggle}>
+                  Tested ({timeZone})
+                </SortTh>
+                <SortTh k="job" sort={sort} toggle={toggle}>
+                  Job
+                </SortTh>
+                <SortTh k="kind" sort={sort} toggle={toggle}>
+                  Test
+                </SortTh>
+                <SortTh k="summary" sort={sort} toggle={toggle}>
+                  Outcome
+                </SortTh>
+                <SortTh k="oven" sort={sort} toggle={toggle}>
+                  Cured in
+                </SortTh>
+                <SortTh k="status" sort={sort} toggle={toggle}>
+                  Job status
+                </SortTh>
                 <th scope="col">Trace</th>
               </tr>
             </thead>
@@ -69,7 +116,15 @@ export default function TestTable({ initial, timeZone }: { initial: TestListItem
                   <td className="num">{r.jobNumber}</td>
                   <td>{TEST_KIND_LABELS[r.kind]}</td>
                   <td>{r.summary}</td>
-                  <td className="num">{r.loadId ? <a href={`/loads/${r.loadId}`}>{r.ovenCode} · load {r.loadId}</a> : '—'}</td>
+                  <td className="num">
+                    {r.loadId ? (
+                      <a href={`/loads/${r.loadId}`}>
+                        {r.ovenCode} · load {r.loadId}
+                      </a>
+                    ) : (
+                      '—'
+                    )}
+                  </td>
                   <td>
                     <JobStatusTag status={r.jobStatus} />
                   </td>

@@ -16,7 +16,12 @@ export default function WindowBar({ value, min, max, unit, digits = 2, label }: 
   const hasWindow = typeof min === 'number' && typeof max === 'number' && max > min;
   if (value === null || !Number.isFinite(value)) return <span className="text-ink-faint">no value</span>;
   const v = value.toFixed(digits);
-  if (!hasWindow) return <span className="num">{v} {unit} <span className="text-xs text-ink-soft">(no window)</span></span>;
+  if (!hasWindow)
+    return (
+      <span className="num">
+        {v} {unit} <span className="text-xs text-ink-soft">(no window)</span>
+      </span>
+    );
   const lo = min as number;
   const hi = max as number;
   const pad = (hi - lo) * 0.25;
@@ -26,14 +31,20 @@ export default function WindowBar({ value, min, max, unit, digits = 2, label }: 
   const out = value < lo ? 'low' : value > hi ? 'high' : null;
   const band = { left: `${((lo - from) / (to - from)) * 100}%`, width: `${((hi - lo) / (to - from)) * 100}%` };
   return (
-    <span className="inline-flex flex-col gap-0.5" aria-label={`${label}: ${v} ${unit}, window ${lo}–${hi} ${unit}${out ? `, ${out === 'low' ? 'below' : 'above'} the window` : ', within the window'}`}>
+    <span
+      className="inline-flex flex-col gap-0.5"
+      aria-label={`${label}: ${v} ${unit}, window ${lo}–${hi} ${unit}${out ? `, ${out === 'low' ? 'below' : 'above'} the window` : ', within the window'}`}
+    >
       <span className={`num ${out ? 'font-bold text-alert-high' : ''}`}>
         {out ? (out === 'low' ? '▼ ' : '▲ ') : ''}
         {v} {unit}
       </span>
       <span aria-hidden="true" className="relative block h-2 w-32 rounded bg-slate-panel">
         <span className="absolute top-0 h-2 rounded bg-lacquer-light" style={band} />
-        <span className={`absolute -top-0.5 h-3 w-1 rounded ${out ? 'bg-alert-high' : 'bg-ink'}`} style={{ left: `calc(${pos}% - 2px)` }} />
+        <span
+          className={`absolute -top-0.5 h-3 w-1 rounded ${out ? 'bg-alert-high' : 'bg-ink'}`}
+          style={{ left: `calc(${pos}% - 2px)` }}
+        />
       </span>
       <span className="text-xs text-ink-soft num">
         window {lo}–{hi} {unit}

@@ -12,10 +12,22 @@ const VERDICT: Record<CureVerdictName, { shape: string; cls: string }> = {
   unverifiable: { shape: '?', cls: 'text-alert-low border-alert-low bg-[#fbf6e0]' },
 };
 
-export function VerdictBadge({ verdict, status, large = false }: { verdict: CureVerdictName | null; status?: 'open' | 'closed'; large?: boolean }) {
+export function VerdictBadge({
+  verdict,
+  status,
+  large = false,
+}: {
+  verdict: CureVerdictName | null;
+  status?: 'open' | 'closed';
+  large?: boolean;
+}) {
   const size = large ? ' !text-base !px-3 !py-1' : '';
   if (!verdict) {
-    return <span className={`tag border-slate-line text-ink-soft${size}`}>{status === 'open' ? '◌ In progress' : '— Not computed'}</span>;
+    return (
+      <span className={`tag border-slate-line text-ink-soft${size}`}>
+        {status === 'open' ? '◌ In progress' : '— Not computed'}
+      </span>
+    );
   }
   const v = VERDICT[verdict];
   return (

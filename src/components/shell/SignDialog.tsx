@@ -31,7 +31,15 @@ export interface SignDialogProps {
 
 const OTHER = '__other__';
 
-export default function SignDialog({ title, meaningOptions, onSign, onCancel, children, allowOtherMeaning = false, signLabel = 'Sign' }: SignDialogProps) {
+export default function SignDialog({
+  title,
+  meaningOptions,
+  onSign,
+  onCancel,
+  children,
+  allowOtherMeaning = false,
+  signLabel = 'Sign',
+}: SignDialogProps) {
   const ref = useRef<HTMLDialogElement>(null);
   const id = useId();
   const freeText = meaningOptions.length === 0;
@@ -114,7 +122,13 @@ export default function SignDialog({ title, meaningOptions, onSign, onCancel, ch
               {allowOtherMeaning && <option value={OTHER}>Other (type it)…</option>}
             </select>
             {choice === OTHER && (
-              <input className="mt-2" aria-label="Meaning, in your words" value={other} onChange={(e) => setOther(e.target.value)} maxLength={200} />
+              <input
+                className="mt-2"
+                aria-label="Meaning, in your words"
+                value={other}
+                onChange={(e) => setOther(e.target.value)}
+                maxLength={200}
+              />
             )}
           </div>
         )}

@@ -38,7 +38,10 @@ export default function AssignForm({ assets, windows, defaultWindowId }: Props) 
     setErrors({});
     setBusy(true);
     try {
-      const r = await apiFetch<{ assetCode: string; windowName: string; windowVersion: number; validFrom: string }>('/api/v1/windows/assignments', { body: parsed.data });
+      const r = await apiFetch<{ assetCode: string; windowName: string; windowVersion: number; validFrom: string }>(
+        '/api/v1/windows/assignments',
+        { body: parsed.data },
+      );
       setStatus({ kind: 'ok', text: `${r.assetCode} runs ${r.windowName} from ${new Date(r.validFrom).toLocaleString()}.` });
       setTimeout(() => window.location.reload(), 900);
     } catch (err) {
@@ -91,7 +94,13 @@ export default function AssignForm({ assets, windows, defaultWindowId }: Props) 
       </div>
       <div aria-live="polite">
         {status && (
-          <p className={status.kind === 'error' ? 'rounded border-l-4 border-alert-high bg-alert-bg p-2 text-sm' : 'rounded border-l-4 border-lacquer bg-lacquer-light/60 p-2 text-sm'}>
+          <p
+            className={
+              status.kind === 'error'
+                ? 'rounded border-l-4 border-alert-high bg-alert-bg p-2 text-sm'
+                : 'rounded border-l-4 border-lacquer bg-lacquer-light/60 p-2 text-sm'
+            }
+          >
             <strong>{status.kind === 'error' ? '✕ Not assigned.' : '✓ Assigned.'}</strong> {status.text}
           </p>
         )}

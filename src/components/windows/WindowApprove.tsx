@@ -29,14 +29,19 @@ export default function WindowApprove({ windowId, title, summary }: Props) {
           signLabel="Sign and approve"
           onCancel={() => setSigning(false)}
           onSign={async (password, meaning) => {
-            const r = await apiFetch<{ effectiveFrom: string; version: number }>(`/api/v1/windows/${windowId}/approve`, { body: { password, meaning } });
+            const r = await apiFetch<{ effectiveFrom: string; version: number }>(`/api/v1/windows/${windowId}/approve`, {
+              body: { password, meaning },
+            });
             setSigning(false);
             setDone(`Version ${r.version} is effective from ${new Date(r.effectiveFrom).toLocaleString()}.`);
             setTimeout(() => window.location.reload(), 800);
           }}
         >
           <p>{summary}</p>
-          <p className="mt-1 text-ink-soft">Approval makes this version effective now and supersedes the version in force. Lines and ovens running this recipe follow it at once.</p>
+          <p className="mt-1 text-ink-soft">
+            Approval makes this version effective now and supersedes the version in force. Lines and ovens running this recipe
+            follow it at once.
+          </p>
         </SignDialog>
       )}
     </div>

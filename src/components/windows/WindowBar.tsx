@@ -53,7 +53,9 @@ export default function WindowBar({ value, min, max, target, unit, label, digits
             <rect x={x - 0.6} y={0} width={1.2} height={H} fill={colour} />
           ) : (
             <polygon
-              points={state === 'high' ? `${x - 2.4},0 ${x - 2.4},${H} ${x},${H / 2}` : `${x + 2.4},0 ${x + 2.4},${H} ${x},${H / 2}`}
+              points={
+                state === 'high' ? `${x - 2.4},0 ${x - 2.4},${H} ${x},${H / 2}` : `${x + 2.4},0 ${x + 2.4},${H} ${x},${H / 2}`
+              }
               fill={colour}
             />
           ))}
@@ -68,7 +70,11 @@ export default function WindowBar({ value, min, max, target, unit, label, digits
         ) : (
           <span className="text-ink-soft">{words}</span>
         )}
-        {target !== undefined && <span className="text-ink-faint">target {f(target)} {unit}</span>}
+        {target !== undefined && (
+          <span className="text-ink-faint">
+            target {f(target)} {unit}
+          </span>
+        )}
       </p>
     </div>
   );

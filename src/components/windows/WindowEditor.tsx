@@ -5,7 +5,13 @@
  */
 import { useId, useState, type SyntheticEvent } from 'react';
 import { apiFetch, ApiError } from '../../lib/client/api.ts';
-import { LIMIT_FIELDS, ProcessWindowLimitsSchema, WindowDraftCreateSchema, WindowDraftUpdateSchema, type ProcessWindowLimits } from '../../lib/shared/windows.ts';
+import {
+  LIMIT_FIELDS,
+  ProcessWindowLimitsSchema,
+  WindowDraftCreateSchema,
+  WindowDraftUpdateSchema,
+  type ProcessWindowLimits,
+} from '../../lib/shared/windows.ts';
 
 interface Props {
   mode: 'create' | 'edit';
@@ -22,7 +28,8 @@ function flatten(limits: Partial<ProcessWindowLimits> | undefined): Flat {
   const out: Flat = {};
   for (const [k, v] of Object.entries(limits ?? {})) {
     if (typeof v === 'number') out[k] = String(v);
-    else if (v && typeof v === 'object') for (const [k2, v2] of Object.entries(v)) if (typeof v2 === 'number') out[`${k}.${k2}`] = String(v2);
+    else if (v && typeof v === 'object')
+      for (const [k2, v2] of Object.entries(v)) if (typeof v2 === 'number') out[`${k}.${k2}`] = String(v2);
   }
   return out;
 }
@@ -37,7 +44,11 @@ function build(flat: Flat): Record<string, unknown> {
       const max = num(flat[`${f.key}.max`]);
       const target = f.target ? num(flat[`${f.key}.target`]) : undefined;
       if (min === undefined && max === undefined && target === undefined) continue;
-      limits[f.key] = { ...(min !== undefined ? { min } : {}), ...(max !== undefined ? { max } : {}), ...(target !== undefined ? { target } : {}) };
+      limits[f.key] = {
+        ...(min !== undefined ? { min } : {}),
+        ...(max !== undefined ? { max } : {}),
+        ...(target !== undefined ? { target } : {}),
+      };
     } else {
       const v = num(flat[f.key]);
       if (v !== undefined) limits[f.key] = v;
@@ -64,7 +75,13 @@ export default function WindowEditor({ mode, windowId, lacquers, materials, init
     const limits = build(flat);
     const body =
       mode === 'create'
-        ? { lacquerId: num(lacquerId), materialId: num(materialId), name: name.trim(), limits, ...(note.trim() ? { note: note.trim() } : {}) }
+        ? {
+            lacquerId: num(lacquerId),
+            materialId: num(materialId),
+            name: name.trim(),
+            limits,
+            ...(note.trim() ? { note: note.trim() } : {}),
+          }
         : { name: name.trim(), limits, ...(note.trim() ? { note: note.trim() } : {}) };
     const parsed = (mode === 'create' ? WindowDraftCreateSchema : WindowDraftUpdateSchema).safeParse(body);
     if (!parsed.success) {
@@ -102,7 +119,14 @@ export default function WindowEditor({ mode, windowId, lacquers, materials, init
       <label htmlFor={`${id}-${key}`} className="text-xs">
         {label}
       </label>
-      <input id={`${id}-${key}`} inputMode="decimal" className="num" value={flat[key] ?? ''} onChange={(ev) => set(key, ev.target.value)} aria-invalid={!!errors[`limits.${key}`]} />
+      <input
+        id={`${id}-${key}`}
+        inputMode="decimal"
+        className="num"
+        value={flat[key] ?? ''}
+        onChange={(ev) => set(key, ev.target.value)}
+        aria-invalid={!!errors[`limits.${key}`]}
+      />
       {e(`limits.${key}`)}
     </div>
   );
@@ -183,7 +207,10 @@ export default function WindowEditor({ mode, windowId, lacquers, materials, init
           ))}
         </tbody>
       </table>
-      <p className="text-xs text-ink-soft">* required. A range needs both its low and high; leave all three empty to leave it out. {liveLimits.success ? 'The limits are consistent.' : ''}</p>
+      <p className="text-xs text-ink-soft">
+        * required. A range needs both its low and high; leave all three empty to leave it out.{' '}
+        {liveLimits.success ? 'The limits are consistent.' : ''}
+      </p>
       <div>
         <label htmlFor={`${id}-note`}>Note (source of the values, e.g. the lacquer maker’s data sheet revision)</label>
         <textarea id={`${id}-note`} rows={2} value={note} onChange={(ev) => setNote(ev.target.value)} />

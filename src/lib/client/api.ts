@@ -18,10 +18,16 @@ export class ApiError extends Error {
   }
 }
 
-export async function apiFetch<T>(path: string, init: { method?: string; body?: unknown; signal?: AbortSignal } = {}): Promise<T> {
+export async function apiFetch<T>(
+  path: string,
+  init: { method?: string; body?: unknown; signal?: AbortSignal } = {},
+): Promise<T> {
   const r = await fetch(path, {
     method: init.method ?? (init.body === undefined ? 'GET' : 'POST'),
-    headers: init.body === undefined ? { accept: 'application/json' } : { 'content-type': 'application/json', accept: 'application/json' },
+    headers:
+      init.body === undefined
+        ? { accept: 'application/json' }
+        : { 'content-type': 'application/json', accept: 'application/json' },
     body: init.body === undefined ? null : JSON.stringify(init.body),
     credentials: 'same-origin',
     signal: init.signal ?? null,

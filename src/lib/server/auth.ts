@@ -177,7 +177,12 @@ async function recordFailure(key: string, lockAfter: number, address: string | n
   if (r?.new_lock && r.locked_until) {
     await audit(
       { id: null, label: 'system', address },
-      { action: 'auth.locked', entity: 'login', entityId: key, after: { lockedUntil: new Date(r.locked_until).toISOString(), failures: r.failures } },
+      {
+        action: 'auth.locked',
+        entity: 'login',
+        entityId: key,
+        after: { lockedUntil: new Date(r.locked_until).toISOString(), failures: r.failures },
+      },
     );
   }
 }
@@ -189,7 +194,11 @@ async function refuseIfLocked(keys: readonly string[]): Promise<Array<{ failures
   for (const st of states) {
     if (st.lockedUntil && st.lockedUntil.getTime() > now) {
       const minutes = Math.ceil((st.lockedUntil.getTime() - now) / 60_000);
-      throw new HttpProblem(429, 'Too many failed sign-ins', `Sign-in is locked for about ${minutes} more minute(s). An administrator can see the lock and lift it.`);
+      throw new HttpProblem(
+        429,
+        'Too many failed sign-ins',
+        `Sign-in is locked for about ${minutes} more minute(s). An administrator can see the lock and lift it.`,
+      );
     }
   }
   return states;
@@ -203,7 +212,8 @@ export function throttleDelay(failures: number, after: number): number {
 }
 
 /** Throttle keys of a sign-in attempt. */
-export const throttleKeys = (username: string, address: string | null) => [`user:${username.trim().toLowerCase()}`, `ip:${address ?? 'unknown'}`] as const;
+export const throttleKeys = (username: string, address: string | null) =>
+  [`user:${username.trim().toLowerCase()}`, `ip:${address ?? 'unknown'}`] as const;
 
 const LOGIN_FAILED = 'The username or password is not right, or the account is not active.';
 
@@ -219,11 +229,16 @@ export async function checkCredentials(username: string, password: string, addre
   // Slow down after a few failures of this user, whether or not the password is right now.
   await sleep(throttleDelay(us!.failures, THROTTLE.slowAfter));
   const user = await User.findOne({ where: { username: uname } });
-  const ok = user ? await verifyPassword(user.passwordHash, password) : (await verifyPassword(await dummyHash(), password), false);
+  const ok = user
+    ? await verifyPassword(user.passwordHash, password)
+    : (await verifyPassword(await dummyHash(), password), false);
   if (!user || !ok || !user.active) {
     await recordFailure(keys[0], THROTTLE.lockAfterUser, address);
     await recordFailure(keys[1], THROTTLE.lockAfterAddress, address);
-    await audit({ id: user?.id ?? null, label: uname || '(blank)', address }, { action: 'auth.failed', entity: 'login', entityId: uname });
+    await audit(
+      { id: user?.id ?? null, label: uname || '(blank)', address },
+      { action: 'auth.failed', entity: 'login', entityId: uname },
+    );
     // An address that keeps failing gets slower failure answers (people behind the same
     // address who sign in correctly are not slowed).
     await sleep(throttleDelay(as!.failures, THROTTLE.slowAfterAddress));
@@ -237,11 +252,18 @@ export async function checkCredentials(username: string, password: string, addre
  * Electronic signature: the signer re-enters the password; returns what is stored with the
  * signed record (printed name, date-time, meaning — 21 CFR 11.50).
  */
-export async function signWithPassword(actor: SessionUser, password: string, meaning: string, address: string | null): Promise<SignatureRecord> {
+export async function signWithPassword(
+  actor: SessionUser,
+  password: string,
+  meaning: string,
+  address: string | null,
+): Promise<SignatureRecord> {
   if (actor.via !== 'session') throw new HttpProblem(403, 'Signature needs a person', 'An API token cannot sign records.');
   const what = meaning.trim();
   if (!what) {
-    throw new HttpProblem(400, 'Invalid input', 'meaning: State the meaning of the signature.', { errors: [{ path: 'meaning', message: 'State the meaning of the signature.' }] });
+    throw new HttpProblem(400, 'Invalid input', 'meaning: State the meaning of the signature.', {
+      errors: [{ path: 'meaning', message: 'State the meaning of the signature.' }],
+    });
   }
   db();
   const user = await User.findByPk(actor.id);
@@ -251,10 +273,21 @@ export async function signWithPassword(actor: SessionUser, password: string, mea
   await refuseIfLocked([key]);
   if (!user || !user.active || !(await verifyPassword(user.passwordHash, password))) {
     await recordFailure(key, THROTTLE.lockAfterUser, address);
-    await audit({ id: actor.id, label: actor.username, address }, { action: 'signature.failed', entity: 'signature', after: { meaning: what } });
-    throw new HttpProblem(403, 'Signature refused', 'The password does not match the signed-in user.', { errors: [{ path: 'password', message: 'The password does not match.' }] });
+    await audit(
+      { id: actor.id, label: actor.username, address },
+      { action: 'signature.failed', entity: 'signature', after: { meaning: what } },
+    );
+    throw new HttpProblem(403, 'Signature refused', 'The password does not match the signed-in user.', {
+      errors: [{ path: 'password', message: 'The password does not match.' }],
+    });
   }
   await LoginThrottle.destroy({ where: { key } });
   // 21 CFR 11.50(a): printed name of the signer, date and time of signing, meaning.
-  return { userId: user.id, username: user.username, displayName: user.displayName, meaning: what, signedAt: new Date().toISOString() };
+  return {
+    userId: user.id,
+    username: user.username,
+    displayName: user.displayName,
+    meaning: what,
+    signedAt: new Date().toISOString(),
+  };
 }

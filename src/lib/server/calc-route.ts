@@ -17,7 +17,8 @@ export function calcRoute<S extends z.ZodType>(schema: S, compute: (input: z.inf
     try {
       result = compute(input);
     } catch (e) {
-      if (e instanceof RangeError) throw new HttpProblem(400, 'Invalid input', e.message, { errors: [{ path: '(body)', message: e.message }] });
+      if (e instanceof RangeError)
+        throw new HttpProblem(400, 'Invalid input', e.message, { errors: [{ path: '(body)', message: e.message }] });
       throw e;
     }
     return Response.json(result);

@@ -22,7 +22,10 @@ export function pageGuard(Astro: AstroGlobal, action: Action = 'view'): SessionU
     return Astro.redirect(`/login?next=${encodeURIComponent(next)}`);
   }
   if (!can(user.role, action)) {
-    return new Response(`Your role (${user.role}) may not open this page.`, { status: 403, headers: { 'content-type': 'text/plain' } });
+    return new Response(`Your role (${user.role}) may not open this page.`, {
+      status: 403,
+      headers: { 'content-type': 'text/plain' },
+    });
   }
   return user;
 }

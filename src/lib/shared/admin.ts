@@ -63,7 +63,10 @@ export const ResetPasswordSchema = z
     password: PasswordSchema,
     confirm: z.string().max(500).optional(),
   })
-  .refine((v) => v.confirm === undefined || v.confirm === v.password, { message: 'The two passwords differ.', path: ['confirm'] });
+  .refine((v) => v.confirm === undefined || v.confirm === v.password, {
+    message: 'The two passwords differ.',
+    path: ['confirm'],
+  });
 
 /** The one answer of the forgot-password form, whatever was entered (no enumeration). */
 export const FORGOT_PASSWORD_ANSWER =

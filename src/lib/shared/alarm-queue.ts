@@ -39,9 +39,7 @@ export function sortQueue(list: readonly AlarmView[], sort: QueueSort = 'priorit
   return [...list].sort((a, b) => {
     if (sort === 'priority') {
       const d =
-        waiting(a) - waiting(b) ||
-        PRIORITY_RANK[a.priority] - PRIORITY_RANK[b.priority] ||
-        Number(b.active) - Number(a.active);
+        waiting(a) - waiting(b) || PRIORITY_RANK[a.priority] - PRIORITY_RANK[b.priority] || Number(b.active) - Number(a.active);
       if (d !== 0) return d;
     }
     return b.lastActivatedAtMs - a.lastActivatedAtMs || b.id - a.id;

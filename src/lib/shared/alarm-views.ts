@@ -98,7 +98,10 @@ const csv = <T extends string>(values: readonly [T, ...T[]], what: string) =>
     .optional()
     .transform((s, ctx) => {
       if (!s) return [] as T[];
-      const parts = s.split(',').map((p) => p.trim()).filter(Boolean);
+      const parts = s
+        .split(',')
+        .map((p) => p.trim())
+        .filter(Boolean);
       const bad = parts.filter((p) => !(values as readonly string[]).includes(p));
       if (bad.length > 0) {
         ctx.addIssue({ code: 'custom', message: `unknown ${what} ${bad.join(', ')}; use ${values.join(', ')}` });
@@ -226,7 +229,12 @@ export const DEVICE_OFFLINE_MS = 60_000;
 export const LAG_RAISE_MS = 10_000;
 export const LAG_CLEAR_MS = 5_000;
 /** Limits for a channel without its own: the process window in force, with these settings. */
-export const WINDOW_FALLBACK: Readonly<{ deadbandFraction: number; onDelayMs: number; offDelayMs: number; priority: AlarmPriority }> = {
+export const WINDOW_FALLBACK: Readonly<{
+  deadbandFraction: number;
+  onDelayMs: number;
+  offDelayMs: number;
+  priority: AlarmPriority;
+}> = {
   deadbandFraction: 0.02,
   onDelayMs: 10_000,
   offDelayMs: 0,

@@ -22,15 +22,7 @@ import { ROLES, type Role } from './roles';
  * (returned to normal, unacknowledged), `shelved`, `suppressed` (suppressed by design) and
  * `out-of-service`. Transitions live in `lib/domain/alarms/state.ts`.
  */
-export const ALARM_STATES = [
-  'normal',
-  'unacked',
-  'acked',
-  'rtn-unacked',
-  'shelved',
-  'suppressed',
-  'out-of-service',
-] as const;
+export const ALARM_STATES = ['normal', 'unacked', 'acked', 'rtn-unacked', 'shelved', 'suppressed', 'out-of-service'] as const;
 
 /** One alarm state (see {@link ALARM_STATES}); validates e.g. `GET /api/v1/alarms?state=…`. */
 export const AlarmStateSchema = z.enum(ALARM_STATES);

@@ -16,7 +16,11 @@ import { againstRange, type ProcessWindowLimits } from './windows.ts';
 export const BATH_CAUTION =
   'Solvents and lacquer are flammable and harmful. Add them following the material’s safety data sheet, with ventilation, and under local fire codes.';
 
-const id = (what: string) => z.number({ error: `Choose a ${what}.` }).int(`Choose a ${what}.`).positive(`Choose a ${what}.`);
+const id = (what: string) =>
+  z
+    .number({ error: `Choose a ${what}.` })
+    .int(`Choose a ${what}.`)
+    .positive(`Choose a ${what}.`);
 const text = (max: number) => z.string().trim().max(max, `At most ${max} characters.`);
 const positive = (label: string, unit: string, max: number) =>
   z
@@ -24,7 +28,10 @@ const positive = (label: string, unit: string, max: number) =>
     .positive(`${label} must be greater than 0 ${unit}.`)
     .max(max, `${label} must be at most ${max} ${unit}.`);
 const pct = (label: string) =>
-  z.number({ error: `${label} must be a number.` }).gt(0, `${label} must be above 0 %.`).lt(100, `${label} must be below 100 %.`);
+  z
+    .number({ error: `${label} must be a number.` })
+    .gt(0, `${label} must be above 0 %.`)
+    .lt(100, `${label} must be below 100 %.`);
 const when = z.iso.datetime({ offset: true, error: 'Give the time as an ISO 8601 date-time with zone.' });
 const day = z.iso.date({ error: 'Give the date as YYYY-MM-DD.' });
 
@@ -44,9 +51,15 @@ export type LacquerCreate = z.infer<typeof LacquerCreateSchema>;
 /** `POST /api/v1/materials` (a substrate for the windows). */
 export const MaterialCreateSchema = z
   .object({
-    code: z.string().trim().regex(/^[a-z0-9][a-z0-9.-]{0,31}$/, 'Use lower-case letters, digits, dots and hyphens (at most 32).'),
+    code: z
+      .string()
+      .trim()
+      .regex(/^[a-z0-9][a-z0-9.-]{0,31}$/, 'Use lower-case letters, digits, dots and hyphens (at most 32).'),
     name: text(120).min(1, 'Enter a name.'),
-    refractiveIndex: z.number({ error: 'Refractive index must be a number.' }).gt(1, 'Refractive index must be above 1.').lt(3, 'Refractive index must be below 3.'),
+    refractiveIndex: z
+      .number({ error: 'Refractive index must be a number.' })
+      .gt(1, 'Refractive index must be above 1.')
+      .lt(3, 'Refractive index must be below 3.'),
   })
   .strict();
 export type MaterialCreate = z.infer<typeof MaterialCreateSchema>;
@@ -62,7 +75,10 @@ export const LotCreateSchema = z
     note: text(2000).optional(),
   })
   .strict()
-  .refine((v) => v.expiresOn >= v.receivedOn, { message: 'The expiry date must not be before the received date.', path: ['expiresOn'] });
+  .refine((v) => v.expiresOn >= v.receivedOn, {
+    message: 'The expiry date must not be before the received date.',
+    path: ['expiresOn'],
+  });
 export type LotCreate = z.infer<typeof LotCreateSchema>;
 
 /** `POST /api/v1/baths/charges` — a tank filled from a lot. */
@@ -89,7 +105,11 @@ export const BathCheckInputSchema = z
     cup: z.enum(CUP_ID_VALUES, { error: 'Choose a cup from the list.' }).optional(),
     effluxSeconds: positive('Efflux time', 's', 3600).optional(),
     measuredMm2S: positive('Measured viscosity', 'mm²/s', 100_000).optional(),
-    bathTempC: z.number({ error: 'Bath temperature must be a number.' }).min(-20, 'Bath temperature must be at least −20 °C.').max(80, 'Bath temperature must be at most 80 °C.').optional(),
+    bathTempC: z
+      .number({ error: 'Bath temperature must be a number.' })
+      .min(-20, 'Bath temperature must be at least −20 °C.')
+      .max(80, 'Bath temperature must be at most 80 °C.')
+      .optional(),
     solidsPct: pct('Solids').optional(),
     densityGCm3: positive('Density', 'g/cm³', 5).optional(),
     bathMassKg: positive('Bath mass', 'kg', 10_000).optional(),
@@ -100,9 +120,17 @@ export const BathCheckInputSchema = z
   .superRefine((v, ctx) => {
     const cupReading = v.cup !== undefined || v.effluxSeconds !== undefined;
     if (cupReading && v.measuredMm2S !== undefined) {
-      ctx.addIssue({ code: 'custom', path: ['measuredMm2S'], message: 'Give either a cup reading or a measured viscosity, not both.' });
+      ctx.addIssue({
+        code: 'custom',
+        path: ['measuredMm2S'],
+        message: 'Give either a cup reading or a measured viscosity, not both.',
+      });
     } else if (!cupReading && v.measuredMm2S === undefined) {
-      ctx.addIssue({ code: 'custom', path: ['effluxSeconds'], message: 'Give a cup and its efflux seconds, or a measured viscosity.' });
+      ctx.addIssue({
+        code: 'custom',
+        path: ['effluxSeconds'],
+        message: 'Give a cup and its efflux seconds, or a measured viscosity.',
+      });
     } else if (cupReading && v.cup === undefined) {
       ctx.addIssue({ code: 'custom', path: ['cup'], message: 'Choose the cup the efflux time was taken with.' });
     } else if (cupReading && v.effluxSeconds === undefined) {
@@ -148,7 +176,14 @@ export const BathListQuerySchema = z.object({
 
 /** The viscosity a check yields, or why it yields none. */
 export type CheckViscosity =
-  | { ok: true; method: 'cup' | 'measured'; kinematicMm2S: number; dynamicMPaS?: number; source: string; validSeconds?: { min: number; max: number } }
+  | {
+      ok: true;
+      method: 'cup' | 'measured';
+      kinematicMm2S: number;
+      dynamicMPaS?: number;
+      source: string;
+      validSeconds?: { min: number; max: number };
+    }
   | { ok: false; message: string; validSeconds: { min: number; max: number }; suggestedCup?: CupId };
 
 /** Context a check is computed in (from the tank's charge, lot and window). */
@@ -201,11 +236,20 @@ export function computeBathCheck(
       if (r.suggestedCup) viscosity.suggestedCup = r.suggestedCup;
     }
   } else {
-    viscosity = { ok: false, message: 'Give a cup and its efflux seconds, or a measured viscosity.', validSeconds: { min: 0, max: 0 } };
+    viscosity = {
+      ok: false,
+      message: 'Give a cup and its efflux seconds, or a measured viscosity.',
+      validSeconds: { min: 0, max: 0 },
+    };
   }
   const band = viscosity.ok ? againstRange(viscosity.kinematicMm2S, ctx.limits?.viscosityMm2S) : null;
   const rec = input.solidsPct !== undefined ? recommendAddition(input.solidsPct, input.bathMassKg, ctx) : null;
-  const out: BathCheckComputation = { viscosity, band, addition: rec?.addition ?? null, bathMassKg: rec?.bathMassKg ?? input.bathMassKg ?? ctx.estimatedBathMassKg };
+  const out: BathCheckComputation = {
+    viscosity,
+    band,
+    addition: rec?.addition ?? null,
+    bathMassKg: rec?.bathMassKg ?? input.bathMassKg ?? ctx.estimatedBathMassKg,
+  };
   if (rec?.note) out.additionNote = rec.note;
   return out;
 }
@@ -228,7 +272,8 @@ export function recommendAddition(
   ctx: BathCheckContext,
 ): { addition: BathAddition | BathAdditionRefusal | null; bathMassKg: number | null; note?: string } {
   const mass = bathMassKg ?? ctx.estimatedBathMassKg;
-  if (ctx.targetSolidsPct === null) return { addition: null, bathMassKg: mass, note: 'No solids target: the tank has no charge on record.' };
+  if (ctx.targetSolidsPct === null)
+    return { addition: null, bathMassKg: mass, note: 'No solids target: the tank has no charge on record.' };
   if (mass === null) return { addition: null, bathMassKg: null, note: 'Enter the bath mass to get an addition.' };
   if (Math.abs(solidsPct - ctx.targetSolidsPct) <= SOLIDS_DEADBAND_PCT + 1e-9) {
     return {
@@ -255,5 +300,7 @@ export function describeAddition(a: BathAddition | BathAdditionRefusal | null): 
   const base = `Add ${a.massKg.toFixed(2)} kg of ${what} (bath then ${a.resultingBathMassKg.toFixed(1)} kg at ${a.resultingSolidsPct.toFixed(1)} % solids).`;
   // More than a quarter of the bath is not a top-up: the reading or the lot's solids deserve a second look.
   const before = a.resultingBathMassKg - a.massKg;
-  return a.massKg > 0.25 * before ? `${base} That is more than a quarter of the bath — check the solids reading and the lot’s solids before adding.` : base;
+  return a.massKg > 0.25 * before
+    ? `${base} That is more than a quarter of the bath — check the solids reading and the lot’s solids before adding.`
+    : base;
 }

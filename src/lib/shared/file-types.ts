@@ -53,7 +53,10 @@ export function sniffUpload(bytes: Uint8Array, name = ''): SniffResult {
   if (isPlainText(bytes)) {
     if (/\.csv$/i.test(name)) return { ok: true, mime: 'text/csv' };
     const head = new TextDecoder().decode(bytes.subarray(0, 4096));
-    const lines = head.split(/\r?\n/).filter((l) => l.trim() !== '').slice(0, 5);
+    const lines = head
+      .split(/\r?\n/)
+      .filter((l) => l.trim() !== '')
+      .slice(0, 5);
     const first = lines[0] ?? '';
     const delim = first.includes(',') ? ',' : first.includes(';') ? ';' : null;
     if (delim && lines.length > 1 && lines.every((l) => l.split(delim).length === first.split(delim).length)) {
@@ -63,13 +66,17 @@ export function sniffUpload(bytes: Uint8Array, name = ''): SniffResult {
   }
   return {
     ok: false,
-    reason: 'The content is not a PNG or JPEG image, a PDF, or UTF-8 text/CSV (the type is read from the file itself, not its name).',
+    reason:
+      'The content is not a PNG or JPEG image, a PDF, or UTF-8 text/CSV (the type is read from the file itself, not its name).',
   };
 }
 
 /** A safe download name: letters, digits, dot, dash, underscore; at most 120 characters. */
 export function safeFileName(name: string): string {
   const base = name.split(/[\\/]/).pop() ?? 'file';
-  const cleaned = base.replace(/[^A-Za-z0-9._-]+/g, '_').replace(/^\.+/, '').slice(0, 120);
+  const cleaned = base
+    .replace(/[^A-Za-z0-9._-]+/g, '_')
+    .replace(/^\.+/, '')
+    .slice(0, 120);
   return cleaned || 'file';
 }

@@ -143,7 +143,15 @@ export const PHASE_WORDS: Readonly<Record<FloorLoad['phase'], string>> = {
 };
 
 /** SVG polyline points ("x,y x,y …") for a sparkline in a `width × height` box; gaps split into several lines. */
-export function sparkPaths(points: readonly ChartPoint[], fromMs: number, toMs: number, lo: number, hi: number, width: number, height: number): string[] {
+export function sparkPaths(
+  points: readonly ChartPoint[],
+  fromMs: number,
+  toMs: number,
+  lo: number,
+  hi: number,
+  width: number,
+  height: number,
+): string[] {
   const span = toMs - fromMs || 1;
   const vspan = hi - lo || 1;
   const paths: string[] = [];

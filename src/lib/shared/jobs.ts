@@ -32,7 +32,11 @@ export const JOB_STATUS_LABELS: Record<JobStatus, string> = {
   scrapped: 'Scrapped',
 };
 
-const id = (what: string) => z.number({ error: `Give the ${what}.` }).int().positive({ error: `Give the ${what}.` });
+const id = (what: string) =>
+  z
+    .number({ error: `Give the ${what}.` })
+    .int()
+    .positive({ error: `Give the ${what}.` });
 const isoTime = (what: string) => z.iso.datetime({ offset: true, error: `${what} must be an ISO 8601 date-time with zone.` });
 const note = z.string().trim().max(1000, { error: 'At most 1000 characters.' });
 
@@ -274,7 +278,13 @@ export interface StoredCureRecord {
     defaulted: string[];
   } | null;
   /** Channels and readings the record was computed from. */
-  source: { zoneChannels: { id: number; name: string }[]; doorChannelId: number | null; readings: number; instants: number; badQualityExcluded: number };
+  source: {
+    zoneChannels: { id: number; name: string }[];
+    doorChannelId: number | null;
+    readings: number;
+    instants: number;
+    badQualityExcluded: number;
+  };
   openedAtMs: number;
   closedAtMs: number;
   durationMinutes: number;
@@ -289,7 +299,12 @@ export interface StoredCureRecord {
   equivalentMinutes: number | null;
   gaps: { startMs: number; endMs: number; durationS: number }[];
   soak: { startMs: number; endMs: number } | null;
-  door: { openings: number; openSeconds: number; openingsDuringSoak: number; events: { openedMs: number; closedMs: number; durationS: number; stillOpen: boolean }[] };
+  door: {
+    openings: number;
+    openSeconds: number;
+    openingsDuringSoak: number;
+    events: { openedMs: number; closedMs: number; durationS: number; stillOpen: boolean }[];
+  };
   verdict: CureVerdictName;
   reasons: string[];
   computedAtMs: number;

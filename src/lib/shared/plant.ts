@@ -61,14 +61,13 @@ export function codeFromName(name: string, maxLength = 32): string {
 const finite = (what: string) => z.number({ error: `Enter the ${what} as a number.` });
 
 /** Name, kind, unit and valid range: shared by a new channel and the approval of an unknown one. */
-export const ChannelSpecSchema = z
-  .object({
-    name: z.string().trim().min(2, 'Name the channel.').max(120),
-    kind: ChannelKindSchema,
-    unit: z.string().trim().min(1, 'Enter the unit (e.g. °C, mm/s, mm²/s).').max(20),
-    min: finite('lowest valid value'),
-    max: finite('highest valid value'),
-  });
+export const ChannelSpecSchema = z.object({
+  name: z.string().trim().min(2, 'Name the channel.').max(120),
+  kind: ChannelKindSchema,
+  unit: z.string().trim().min(1, 'Enter the unit (e.g. °C, mm/s, mm²/s).').max(20),
+  min: finite('lowest valid value'),
+  max: finite('highest valid value'),
+});
 
 const rangeCheck = <T extends { min: number; max: number }>(v: T) => v.max > v.min;
 const rangeIssue = { message: 'The highest valid value must be above the lowest.', path: ['max'] };

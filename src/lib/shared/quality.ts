@@ -131,7 +131,9 @@ export const TestCreateSchema = z.discriminatedUnion(
       .object({
         kind: z.literal('abrasion'),
         ...base,
-        referenceHazeGainPct: num('The reference haze gain').gt(0, { error: 'The reference haze gain must be above 0 %.' }).max(100),
+        referenceHazeGainPct: num('The reference haze gain')
+          .gt(0, { error: 'The reference haze gain must be above 0 %.' })
+          .max(100),
         testHazeGainPct: num('The test-lens haze gain').gt(0, { error: 'The test-lens haze gain must be above 0 %.' }).max(100),
       })
       .strict(),
@@ -142,7 +144,10 @@ export const TestCreateSchema = z.discriminatedUnion(
         method: z.enum(['measured', 'spectrum']),
         thicknessUm: num('Thickness').gt(0, { error: 'Thickness must be above 0 µm.' }).max(100).optional(),
         spectrumCsv: z.string().min(1).max(MAX_SPECTRUM_CSV_CHARS, { error: 'The spectrum is larger than 2 MB.' }).optional(),
-        refractiveIndex: num('Refractive index').min(1.2, { error: 'Refractive index must be at least 1.2.' }).max(2.5).optional(),
+        refractiveIndex: num('Refractive index')
+          .min(1.2, { error: 'Refractive index must be at least 1.2.' })
+          .max(2.5)
+          .optional(),
       })
       .strict()
       .superRefine((v, ctx) => {
@@ -150,8 +155,14 @@ export const TestCreateSchema = z.discriminatedUnion(
           ctx.addIssue({ code: 'custom', path: ['thicknessUm'], message: 'Give the measured thickness in µm.' });
         }
         if (v.method === 'spectrum') {
-          if (!v.spectrumCsv) ctx.addIssue({ code: 'custom', path: ['spectrumCsv'], message: 'Attach the reflectance spectrum (CSV: wavelength_nm, reflectance).' });
-          if (v.refractiveIndex === undefined) ctx.addIssue({ code: 'custom', path: ['refractiveIndex'], message: 'Give the coat’s refractive index.' });
+          if (!v.spectrumCsv)
+            ctx.addIssue({
+              code: 'custom',
+              path: ['spectrumCsv'],
+              message: 'Attach the reflectance spectrum (CSV: wavelength_nm, reflectance).',
+            });
+          if (v.refractiveIndex === undefined)
+            ctx.addIssue({ code: 'custom', path: ['refractiveIndex'], message: 'Give the coat’s refractive index.' });
         }
       }),
     z
@@ -283,7 +294,10 @@ export const NcCreateSchema = z
     suspectedCause: z.enum(SUSPECTED_CAUSES).default('unknown'),
     suspectedLoadId: z.number().int().positive().optional(),
     suspectedBathChargeId: z.number().int().positive().optional(),
-    testIds: z.array(z.number().int().positive()).min(1, { error: 'Tie the nonconformance to at least one failed test.' }).max(200),
+    testIds: z
+      .array(z.number().int().positive())
+      .min(1, { error: 'Tie the nonconformance to at least one failed test.' })
+      .max(200),
     /** Active holds to tie to this nonconformance. */
     holdIds: z.array(z.number().int().positive()).max(MAX_JOBS_PER_SCAN).default([]),
   })

@@ -26,11 +26,19 @@ function fmt(timeZone: string, seconds: boolean): Intl.DateTimeFormat {
 }
 
 /** "YYYY-MM-DD HH:mm[:ss] ZONE" in `timeZone`; '—' for null/NaN. */
-export function formatSiteTime(ms: number | string | Date | null | undefined, timeZone: string, opts: { seconds?: boolean } = {}): string {
+export function formatSiteTime(
+  ms: number | string | Date | null | undefined,
+  timeZone: string,
+  opts: { seconds?: boolean } = {},
+): string {
   if (ms === null || ms === undefined) return '—';
   const t = typeof ms === 'number' ? ms : new Date(ms).getTime();
   if (!Number.isFinite(t)) return '—';
-  const parts = Object.fromEntries(fmt(timeZone, !!opts.seconds).formatToParts(new Date(t)).map((p) => [p.type, p.value]));
+  const parts = Object.fromEntries(
+    fmt(timeZone, !!opts.seconds)
+      .formatToParts(new Date(t))
+      .map((p) => [p.type, p.value]),
+  );
   const sec = opts.seconds ? `:${parts['second']}` : '';
   return `${parts['year']}-${parts['month']}-${parts['day']} ${parts['hour']}:${parts['minute']}${sec} ${parts['timeZoneName']}`;
 }

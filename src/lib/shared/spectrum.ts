@@ -71,7 +71,9 @@ export function parseSpectrumCsv(text: string): ParsedSpectrum {
       skipped++;
       continue;
     }
-    const cells = (/[,;\t]/.test(raw) ? raw.split(/\s*[,;\t]\s*/) : raw.split(/\s+/)).filter((c, k, all) => !(c === '' && k === all.length - 1));
+    const cells = (/[,;\t]/.test(raw) ? raw.split(/\s*[,;\t]\s*/) : raw.split(/\s+/)).filter(
+      (c, k, all) => !(c === '' && k === all.length - 1),
+    );
     const numeric = cells.map((c) => NUMBER.test(c));
     if (headerAllowed && !seenData && numeric.every((n) => !n)) {
       // One header line (e.g. "wavelength_nm,reflectance") before the data.
@@ -97,11 +99,17 @@ export function parseSpectrumCsv(text: string): ParsedSpectrum {
       }
     }
     if (errors.length >= 50) break;
-    if (points.length > MAX_SPECTRUM_ROWS) return { ok: false, errors: [{ line, message: `more than ${MAX_SPECTRUM_ROWS} rows` }] };
+    if (points.length > MAX_SPECTRUM_ROWS)
+      return { ok: false, errors: [{ line, message: `more than ${MAX_SPECTRUM_ROWS} rows` }] };
   }
   if (errors.length) return { ok: false, errors };
   if (points.length < MIN_SPECTRUM_POINTS) {
-    return { ok: false, errors: [{ line: lines.length, message: `a spectrum needs at least ${MIN_SPECTRUM_POINTS} data rows, found ${points.length}` }] };
+    return {
+      ok: false,
+      errors: [
+        { line: lines.length, message: `a spectrum needs at least ${MIN_SPECTRUM_POINTS} data rows, found ${points.length}` },
+      ],
+    };
   }
   return { ok: true, points, skipped };
 }

@@ -40,7 +40,8 @@ export const SurveySettingsSchema = z
       .superRefine((rows, ctx) => {
         const seen = new Set<number>();
         rows.forEach((r, i) => {
-          if (seen.has(r.class)) ctx.addIssue({ code: 'custom', path: [i, 'class'], message: `Class ${r.class} is listed twice.` });
+          if (seen.has(r.class))
+            ctx.addIssue({ code: 'custom', path: [i, 'class'], message: `Class ${r.class} is listed twice.` });
           seen.add(r.class);
         });
       }),
@@ -52,8 +53,14 @@ export type SurveySettings = z.infer<typeof SurveySettingsSchema>;
 export const SurveyInputSchema = z
   .object({
     ovenAssetId: z.number().int().positive({ error: 'Choose the oven.' }),
-    setpointC: z.number({ error: 'Give the setpoint in °C.' }).min(20, { error: 'The setpoint must be at least 20 °C.' }).max(400),
-    csv: z.string({ error: 'Attach the survey CSV.' }).min(1, { error: 'The survey CSV is empty.' }).max(MAX_SURVEY_CSV_CHARS, { error: 'The survey CSV is larger than 5 MB.' }),
+    setpointC: z
+      .number({ error: 'Give the setpoint in °C.' })
+      .min(20, { error: 'The setpoint must be at least 20 °C.' })
+      .max(400),
+    csv: z
+      .string({ error: 'Attach the survey CSV.' })
+      .min(1, { error: 'The survey CSV is empty.' })
+      .max(MAX_SURVEY_CSV_CHARS, { error: 'The survey CSV is larger than 5 MB.' }),
     fileName: z.string().trim().max(200).default('survey.csv'),
     /** Start of the stabilised soak; omitted = automatic rule. For elapsed-time files, minutes from the start. */
     stabilisedFromMinutes: z.number().min(0).max(100_000).optional(),
@@ -82,7 +89,11 @@ export class SurveyCsvError extends Error {
   }
 }
 
-const TIME_COLUMNS = { iso: ['time', 'timestamp', 'date_time', 'datetime'], s: ['elapsed_s', 'seconds', 'elapsed_seconds', 't_s'], min: ['elapsed_min', 'minutes', 'elapsed_minutes', 't_min'] };
+const TIME_COLUMNS = {
+  iso: ['time', 'timestamp', 'date_time', 'datetime'],
+  s: ['elapsed_s', 'seconds', 'elapsed_seconds', 't_s'],
+  min: ['elapsed_min', 'minutes', 'elapsed_minutes', 't_min'],
+};
 
 /**
  * Parses a survey CSV: first column `time` (ISO 8601 with zone), `elapsed_s` or `elapsed_min`;
@@ -95,9 +106,16 @@ export function parseSurveyCsv(text: string): SurveyTable {
   const header = records[0];
   if (!header) throw new SurveyCsvError([{ line: 1, message: 'the file is empty' }]);
   const first = normaliseHeader(header.cells[0] ?? '');
-  const timeKind = TIME_COLUMNS.iso.includes(first) ? 'iso' : TIME_COLUMNS.s.includes(first) ? 's' : TIME_COLUMNS.min.includes(first) ? 'min' : null;
+  const timeKind = TIME_COLUMNS.iso.includes(first)
+    ? 'iso'
+    : TIME_COLUMNS.s.includes(first)
+      ? 's'
+      : TIME_COLUMNS.min.includes(first)
+        ? 'min'
+        : null;
   const errors: { line: number; message: string }[] = [];
-  if (!timeKind) errors.push({ line: header.line, message: 'the first column must be time (ISO 8601), elapsed_s or elapsed_min' });
+  if (!timeKind)
+    errors.push({ line: header.line, message: 'the first column must be time (ISO 8601), elapsed_s or elapsed_min' });
   const names = header.cells.slice(1).map((n) => n.trim());
   if (names.length === 0) errors.push({ line: header.line, message: 'no sensor columns after the time column' });
   names.forEach((n, i) => {
@@ -111,7 +129,8 @@ export function parseSurveyCsv(text: string): SurveyTable {
   const sensors = names.map((name) => ({ name, readingsC: [] as number[] }));
   for (const r of rows) {
     const rowErrors: string[] = [];
-    if (r.cells.length !== header.cells.length) rowErrors.push(`has ${r.cells.length} fields; the header has ${header.cells.length}`);
+    if (r.cells.length !== header.cells.length)
+      rowErrors.push(`has ${r.cells.length} fields; the header has ${header.cells.length}`);
     const tCell = r.cells[0] ?? '';
     let t = NaN;
     if (timeKind === 'iso') {
@@ -148,11 +167,17 @@ export function parseSurveyCsv(text: string): SurveyTable {
  * sensor (with its correction) reads ≥ setpoint − 2 °C, plus 10 minutes; null when never reached
  * or no row remains after the wait.
  */
-export function autoStabilisedIndex(table: SurveyTable, setpointC: number, corrections: Record<string, number> = {}): number | null {
+export function autoStabilisedIndex(
+  table: SurveyTable,
+  setpointC: number,
+  corrections: Record<string, number> = {},
+): number | null {
   const n = table.minutes.length;
   let reached: number | null = null;
   for (let i = 0; i < n; i++) {
-    if (table.sensors.every((s) => (s.readingsC[i] as number) + (corrections[s.name] ?? 0) >= setpointC - AUTO_STABILISE_BAND_C)) {
+    if (
+      table.sensors.every((s) => (s.readingsC[i] as number) + (corrections[s.name] ?? 0) >= setpointC - AUTO_STABILISE_BAND_C)
+    ) {
       reached = i;
       break;
     }

@@ -108,7 +108,10 @@ export function tickLabel(ms: number, timeZone: string, spanMs: number): string 
   const mon = MONTHS[w.month - 1] ?? '';
   if (spanMs <= 2 * 60_000) return `${pad(w.hour)}:${pad(w.minute)}:${pad(w.second)}`;
   if (spanMs <= 36 * 3_600_000) return `${pad(w.hour)}:${pad(w.minute)}`;
-  if (spanMs <= 10 * 86_400_000) return w.hour === 0 && w.minute === 0 ? `${w.weekday} ${pad(w.day)}` : `${w.weekday} ${pad(w.day)} ${pad(w.hour)}:${pad(w.minute)}`;
+  if (spanMs <= 10 * 86_400_000)
+    return w.hour === 0 && w.minute === 0
+      ? `${w.weekday} ${pad(w.day)}`
+      : `${w.weekday} ${pad(w.day)} ${pad(w.hour)}:${pad(w.minute)}`;
   if (spanMs <= 400 * 86_400_000) return `${pad(w.day)} ${mon}`;
   return `${mon} ${w.year}`;
 }
@@ -184,7 +187,28 @@ const MIN = 60 * SEC;
 const HR = 60 * MIN;
 const DAY = 24 * HR;
 /** Tick steps below a day (ms), then whole days; months beyond. */
-const TICK_STEPS = [SEC, 2 * SEC, 5 * SEC, 10 * SEC, 15 * SEC, 30 * SEC, MIN, 2 * MIN, 5 * MIN, 10 * MIN, 15 * MIN, 30 * MIN, HR, 2 * HR, 3 * HR, 6 * HR, 12 * HR, DAY, 2 * DAY, 7 * DAY];
+const TICK_STEPS = [
+  SEC,
+  2 * SEC,
+  5 * SEC,
+  10 * SEC,
+  15 * SEC,
+  30 * SEC,
+  MIN,
+  2 * MIN,
+  5 * MIN,
+  10 * MIN,
+  15 * MIN,
+  30 * MIN,
+  HR,
+  2 * HR,
+  3 * HR,
+  6 * HR,
+  12 * HR,
+  DAY,
+  2 * DAY,
+  7 * DAY,
+];
 const MONTH_STEPS = [1, 2, 3, 6, 12];
 
 /** Midnight (00:00 wall time) of the site-zone day that holds `ms`. */
@@ -224,12 +248,13 @@ export function timeTicks(fromMs: number, toMs: number, timeZone: string, maxTic
     }
     return out;
   }
-  const months = MONTH_STEPS.find((m) => span / (m * 30.44 * DAY) <= maxTicks) ?? Math.ceil(span / (maxTicks * 365.25 * DAY)) * 12;
+  const months =
+    MONTH_STEPS.find((m) => span / (m * 30.44 * DAY) <= maxTicks) ?? Math.ceil(span / (maxTicks * 365.25 * DAY)) * 12;
   const w0 = wallTime(fromMs, timeZone);
   for (let k = 0, y = w0.year, m = w0.month; k < 2400; k++) {
     const t = fromLocalInput(`${y}-${pad(m)}-01T00:00`, timeZone);
     if (t > toMs) break;
-    if (t >= fromMs && ((y * 12 + m - 1) % months) === 0) out.push(t);
+    if (t >= fromMs && (y * 12 + m - 1) % months === 0) out.push(t);
     m++;
     if (m > 12) {
       m = 1;
@@ -245,7 +270,11 @@ export function timeTicks(fromMs: number, toMs: number, timeZone: string, maxTic
  * 23 or 25 hours (a clock change) is covered exactly. Anything else passes through unchanged
  * for the caller's schema to judge.
  */
-export function siteDayBounds(from: string | undefined, to: string | undefined, timeZone: string): { from: string | undefined; to: string | undefined } {
+export function siteDayBounds(
+  from: string | undefined,
+  to: string | undefined,
+  timeZone: string,
+): { from: string | undefined; to: string | undefined } {
   const midnight = (d: string | undefined, addDays: number): string | undefined => {
     const m = d ? /^(\d{4})-(\d{2})-(\d{2})$/.exec(d) : null;
     if (!m) return d;

@@ -264,7 +264,14 @@ export interface NcItem {
 export interface NcDetail extends NcItem {
   testList: { id: number; jobNumber: string; kind: string; result: string; testedAt: string; summary: string }[];
   holdList: HoldItem[];
-  dispositions: { id: number; disposition: Disposition; jobNumbers: string[]; comment: string; signature: Signature; at: string }[];
+  dispositions: {
+    id: number;
+    disposition: Disposition;
+    jobNumbers: string[];
+    comment: string;
+    signature: Signature;
+    at: string;
+  }[];
   load: { id: number; ovenName: string; openedAt: string; verdict: string | null } | null;
   bathCharge: { id: number; tankCode: string; lotCode: string; chargedAt: string } | null;
 }

@@ -30,4 +30,3 @@ export const AnnotationsQuerySchema = z
     }
     return { from, to };
   });
-

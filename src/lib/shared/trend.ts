@@ -42,7 +42,11 @@ export interface WindowRange {
  */
 export function windowRangeFor(kind: string, limits: ProcessWindowLimits | null | undefined): WindowRange | null {
   if (!limits) return null;
-  const pick = (r: { min: number; max: number; target?: number } | undefined, label: string, lowApplies: WindowRange['lowApplies'] = 'always'): WindowRange | null =>
+  const pick = (
+    r: { min: number; max: number; target?: number } | undefined,
+    label: string,
+    lowApplies: WindowRange['lowApplies'] = 'always',
+  ): WindowRange | null =>
     r ? { min: r.min, max: r.max, ...(r.target !== undefined ? { target: r.target } : {}), lowApplies, label } : null;
   switch (kind) {
     case 'withdrawal-speed':
@@ -56,8 +60,15 @@ export function windowRangeFor(kind: string, limits: ProcessWindowLimits | null 
     case 'setpoint':
       return pick(limits.cureSetpointC, 'Cure setpoint window', 'load');
     case 'air-temperature':
-      return Number.isFinite(limits.minCureTempC) && Number.isFinite(limits.maxPartTempC) && limits.minCureTempC < limits.maxPartTempC
-        ? { min: limits.minCureTempC, max: limits.maxPartTempC, lowApplies: 'soak', label: 'Cure temperature (minimum in soak) to maximum part temperature' }
+      return Number.isFinite(limits.minCureTempC) &&
+        Number.isFinite(limits.maxPartTempC) &&
+        limits.minCureTempC < limits.maxPartTempC
+        ? {
+            min: limits.minCureTempC,
+            max: limits.maxPartTempC,
+            lowApplies: 'soak',
+            label: 'Cure temperature (minimum in soak) to maximum part temperature',
+          }
         : null;
     default:
       return null;
@@ -101,7 +112,8 @@ export function placeOnBand(
     const pad = (range.max - range.min) / 2;
     scaleMin = range.min - pad;
     scaleMax = range.max + pad;
-    const lowCounts = range.lowApplies === 'always' || (range.lowApplies === 'soak' ? !!opts.inSoak : !!(opts.inLoad || opts.inSoak));
+    const lowCounts =
+      range.lowApplies === 'always' || (range.lowApplies === 'soak' ? !!opts.inSoak : !!(opts.inLoad || opts.inSoak));
     state = value > range.max ? 'high' : lowCounts && value < range.min ? 'low' : 'normal';
   } else {
     scaleMin = channel.min;
@@ -250,7 +262,15 @@ export function shapeReadings(resp: ReadingsResponse): ShapedSeries {
     line: series((b) => b.mean),
     min: series((b) => b.min),
     max: series((b) => b.max),
-    rows: bs.map((b, i) => ({ x: xs[i]!, min: b.min, mean: b.mean, max: b.max, n: b.n, bucketStartMs: b.t, bucketEndMs: b.t + w })),
+    rows: bs.map((b, i) => ({
+      x: xs[i]!,
+      min: b.min,
+      mean: b.mean,
+      max: b.max,
+      n: b.n,
+      bucketStartMs: b.t,
+      bucketEndMs: b.t + w,
+    })),
     gapMs,
   };
 }
@@ -459,7 +479,8 @@ export function placeMarkers(events: readonly TrendEvent[], fromMs: number, toMs
     const first = g[0]!;
     const style = EVENT_STYLE[first.kind];
     let priority: Marker['priority'];
-    for (const e of g) if (e.priority && (!priority || PRIORITY_RANK[e.priority] > PRIORITY_RANK[priority])) priority = e.priority;
+    for (const e of g)
+      if (e.priority && (!priority || PRIORITY_RANK[e.priority] > PRIORITY_RANK[priority])) priority = e.priority;
     out.push({
       x: first.tMs,
       lane: style.lane,
@@ -506,7 +527,13 @@ export const TREND_CSV_HEADER = [
 ] as const;
 
 const widthWords = (ms: number) =>
-  ms % DAY_MS === 0 ? `${ms / DAY_MS} d` : ms % HOUR_MS === 0 ? `${ms / HOUR_MS} h` : ms % MINUTE_MS === 0 ? `${ms / MINUTE_MS} min` : `${ms / 1000} s`;
+  ms % DAY_MS === 0
+    ? `${ms / DAY_MS} d`
+    : ms % HOUR_MS === 0
+      ? `${ms / HOUR_MS} h`
+      : ms % MINUTE_MS === 0
+        ? `${ms / MINUTE_MS} min`
+        : `${ms / 1000} s`;
 
 /**
  * CSV of exactly the plotted series (RFC 4180 via csv-table): one row per reading or bucket;
@@ -517,7 +544,8 @@ export function trendCsv(series: readonly CsvSeries[], timeZone: string): string
   const rows: unknown[][] = [];
   const sourceWords = { raw: 'raw readings', minute: 'minute rollup', hour: 'hourly rollup' } as const;
   for (const s of series) {
-    const kind = s.shaped.mode === 'raw' ? 'reading' : `bucket ${widthWords(s.shaped.bucketMs ?? 0)} (${sourceWords[s.shaped.source]})`;
+    const kind =
+      s.shaped.mode === 'raw' ? 'reading' : `bucket ${widthWords(s.shaped.bucketMs ?? 0)} (${sourceWords[s.shaped.source]})`;
     for (const r of s.shaped.rows) {
       rows.push([
         s.name,
@@ -617,7 +645,10 @@ export function maxPointsFor(widthPx: number): number {
  * `?from=&to=` (epoch ms) give a custom view, `?range=<preset>` a preset ending now (default
  * the last hour); `?add=3,7` adds channels. Unreadable values fall back to the defaults.
  */
-export function parseTrendQuery(params: URLSearchParams, nowMs: number): { range: ViewRange; live: boolean; preset: RangePresetKey | null; at: number | null; add: number[] } {
+export function parseTrendQuery(
+  params: URLSearchParams,
+  nowMs: number,
+): { range: ViewRange; live: boolean; preset: RangePresetKey | null; at: number | null; add: number[] } {
   const num = (k: string) => {
     const v = params.get(k);
     if (v === null || v.trim() === '') return null;
@@ -660,5 +691,8 @@ export interface AnnotationsResponse {
 export function initialTrendRequests(ids: readonly number[], r: ViewRange): string[] {
   const from = Math.round(r.fromMs);
   const to = Math.round(r.toMs);
-  return ids.flatMap((id) => [`/api/v1/channels/${id}/readings?from=${from}&to=${to}&maxPoints=${INITIAL_MAX_POINTS}`, `/api/v1/channels/${id}/annotations?from=${from}&to=${to}`]);
+  return ids.flatMap((id) => [
+    `/api/v1/channels/${id}/readings?from=${from}&to=${to}&maxPoints=${INITIAL_MAX_POINTS}`,
+    `/api/v1/channels/${id}/annotations?from=${from}&to=${to}`,
+  ]);
 }

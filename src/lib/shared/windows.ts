@@ -43,9 +43,7 @@ const num = (what: string) => z.number({ error: `${what} must be a number.` }).r
 /** A min–max range (optionally with a target inside it) within physical bounds. */
 function rangeSchema(what: string, lo: number, hi: number, withTarget: boolean) {
   const bounded = (label: string) =>
-    num(label)
-      .min(lo, `${label} must be at least ${lo}.`)
-      .max(hi, `${label} must be at most ${hi}.`);
+    num(label).min(lo, `${label} must be at least ${lo}.`).max(hi, `${label} must be at most ${hi}.`);
   const shape = {
     min: bounded(`${what} low`),
     max: bounded(`${what} high`),
@@ -56,9 +54,14 @@ function rangeSchema(what: string, lo: number, hi: number, withTarget: boolean) 
     .strict()
     .superRefine((r, ctx) => {
       const v = r as { min: number; max: number; target?: number };
-      if (!(v.min < v.max)) ctx.addIssue({ code: 'custom', path: ['max'], message: `${what}: the high limit must be above the low limit.` });
+      if (!(v.min < v.max))
+        ctx.addIssue({ code: 'custom', path: ['max'], message: `${what}: the high limit must be above the low limit.` });
       if (v.target !== undefined && (v.target < v.min || v.target > v.max)) {
-        ctx.addIssue({ code: 'custom', path: ['target'], message: `${what}: the target must lie between the low and high limits.` });
+        ctx.addIssue({
+          code: 'custom',
+          path: ['target'],
+          message: `${what}: the target must lie between the low and high limits.`,
+        });
       }
     });
 }
@@ -91,31 +94,66 @@ export const ProcessWindowLimitsSchema = z
     roomRhPct: rangeSchema('Room humidity (%)', 0, 100, false).optional(),
     flashOffMin: rangeSchema('Flash-off time (min)', 0, 24 * 60, false).optional(),
     cureSetpointC: rangeSchema('Cure setpoint (°C)', 0, 300, true).optional(),
-    minCureTempC: num('Minimum cure temperature (°C)').min(0, 'Minimum cure temperature must be at least 0 °C.').max(300, 'Minimum cure temperature must be at most 300 °C.'),
-    minEquivalentMinutes: num('Minimum equivalent minutes').positive('Minimum equivalent minutes must be above 0.').max(100_000, 'Minimum equivalent minutes must be at most 100 000.'),
-    referenceC: num('Reference temperature (°C)').min(0, 'Reference temperature must be at least 0 °C.').max(300, 'Reference temperature must be at most 300 °C.'),
-    activationEnergyKJMol: num('Activation energy (kJ/mol)').positive('Activation energy must be above 0 kJ/mol.').max(500, 'Activation energy must be at most 500 kJ/mol.'),
-    maxPartTempC: num('Maximum part temperature (°C)').min(0, 'Maximum part temperature must be at least 0 °C.').max(300, 'Maximum part temperature must be at most 300 °C.'),
-    maxRampCPerMin: num('Maximum ramp (°C/min)').positive('Maximum ramp must be above 0 °C/min.').max(100, 'Maximum ramp must be at most 100 °C/min.').optional(),
-    targetDryThicknessUm: num('Target dry thickness (µm)').positive('Target dry thickness must be above 0 µm.').max(100, 'Target dry thickness must be at most 100 µm.').optional(),
-    maxGapSeconds: num('Maximum gap (s)').positive('Maximum gap must be above 0 s.').max(86_400, 'Maximum gap must be at most 86 400 s.').optional(),
+    minCureTempC: num('Minimum cure temperature (°C)')
+      .min(0, 'Minimum cure temperature must be at least 0 °C.')
+      .max(300, 'Minimum cure temperature must be at most 300 °C.'),
+    minEquivalentMinutes: num('Minimum equivalent minutes')
+      .positive('Minimum equivalent minutes must be above 0.')
+      .max(100_000, 'Minimum equivalent minutes must be at most 100 000.'),
+    referenceC: num('Reference temperature (°C)')
+      .min(0, 'Reference temperature must be at least 0 °C.')
+      .max(300, 'Reference temperature must be at most 300 °C.'),
+    activationEnergyKJMol: num('Activation energy (kJ/mol)')
+      .positive('Activation energy must be above 0 kJ/mol.')
+      .max(500, 'Activation energy must be at most 500 kJ/mol.'),
+    maxPartTempC: num('Maximum part temperature (°C)')
+      .min(0, 'Maximum part temperature must be at least 0 °C.')
+      .max(300, 'Maximum part temperature must be at most 300 °C.'),
+    maxRampCPerMin: num('Maximum ramp (°C/min)')
+      .positive('Maximum ramp must be above 0 °C/min.')
+      .max(100, 'Maximum ramp must be at most 100 °C/min.')
+      .optional(),
+    targetDryThicknessUm: num('Target dry thickness (µm)')
+      .positive('Target dry thickness must be above 0 µm.')
+      .max(100, 'Target dry thickness must be at most 100 µm.')
+      .optional(),
+    maxGapSeconds: num('Maximum gap (s)')
+      .positive('Maximum gap must be above 0 s.')
+      .max(86_400, 'Maximum gap must be at most 86 400 s.')
+      .optional(),
   })
   .strict()
   .superRefine((l, ctx) => {
     if (l.minCureTempC >= l.maxPartTempC) {
-      ctx.addIssue({ code: 'custom', path: ['maxPartTempC'], message: 'The maximum part temperature must be above the minimum cure temperature.' });
+      ctx.addIssue({
+        code: 'custom',
+        path: ['maxPartTempC'],
+        message: 'The maximum part temperature must be above the minimum cure temperature.',
+      });
     }
     if (l.cureSetpointC && l.cureSetpointC.max > l.maxPartTempC) {
-      ctx.addIssue({ code: 'custom', path: ['cureSetpointC', 'max'], message: 'The cure setpoint high limit must not exceed the maximum part temperature.' });
+      ctx.addIssue({
+        code: 'custom',
+        path: ['cureSetpointC', 'max'],
+        message: 'The cure setpoint high limit must not exceed the maximum part temperature.',
+      });
     }
     if (l.cureSetpointC && l.cureSetpointC.min < l.minCureTempC) {
-      ctx.addIssue({ code: 'custom', path: ['cureSetpointC', 'min'], message: 'The cure setpoint low limit must not be below the minimum cure temperature.' });
+      ctx.addIssue({
+        code: 'custom',
+        path: ['cureSetpointC', 'min'],
+        message: 'The cure setpoint low limit must not be below the minimum cure temperature.',
+      });
     }
   });
 
 const nameText = z.string().trim().min(1, 'Enter a name.').max(120, 'At most 120 characters.');
 const noteText = z.string().trim().max(2000, 'At most 2000 characters.');
-const id = (what: string) => z.number({ error: `Choose a ${what}.` }).int(`Choose a ${what}.`).positive(`Choose a ${what}.`);
+const id = (what: string) =>
+  z
+    .number({ error: `Choose a ${what}.` })
+    .int(`Choose a ${what}.`)
+    .positive(`Choose a ${what}.`);
 
 /** `POST /api/v1/windows` — a new draft version of a lacquer × substrate window. */
 export const WindowDraftCreateSchema = z
@@ -133,7 +171,10 @@ export type WindowDraftCreate = z.infer<typeof WindowDraftCreateSchema>;
 export const WindowDraftUpdateSchema = z
   .object({ name: nameText.optional(), limits: ProcessWindowLimitsSchema.optional(), note: noteText.optional() })
   .strict()
-  .refine((v) => v.name !== undefined || v.limits !== undefined || v.note !== undefined, { message: 'Nothing to change.', path: ['limits'] });
+  .refine((v) => v.name !== undefined || v.limits !== undefined || v.note !== undefined, {
+    message: 'Nothing to change.',
+    path: ['limits'],
+  });
 export type WindowDraftUpdate = z.infer<typeof WindowDraftUpdateSchema>;
 
 /** An electronic signature: the signer's password again and the meaning of the signature. */
@@ -184,7 +225,10 @@ export function flattenLimits(limits: Partial<ProcessWindowLimits> | null | unde
 }
 
 /** Differences between two versions' limits, in the catalogue's order. */
-export function diffLimits(before: Partial<ProcessWindowLimits> | null | undefined, after: Partial<ProcessWindowLimits> | null | undefined): LimitChange[] {
+export function diffLimits(
+  before: Partial<ProcessWindowLimits> | null | undefined,
+  after: Partial<ProcessWindowLimits> | null | undefined,
+): LimitChange[] {
   const a = flattenLimits(before);
   const b = flattenLimits(after);
   const keys = [...new Set([...a.keys(), ...b.keys()])];
@@ -200,7 +244,10 @@ export function diffLimits(before: Partial<ProcessWindowLimits> | null | undefin
 }
 
 /** Where a value sits against a range: below / inside / above (null when no range). */
-export function againstRange(value: number, range: { min: number; max: number } | undefined | null): 'low' | 'in' | 'high' | null {
+export function againstRange(
+  value: number,
+  range: { min: number; max: number } | undefined | null,
+): 'low' | 'in' | 'high' | null {
   if (!range) return null;
   if (value < range.min) return 'low';
   if (value > range.max) return 'high';

@@ -88,9 +88,7 @@ describe('escalation steps due', () => {
         ],
       }).success,
     ).toBe(false);
-    expect(
-      EscalationRuleSchema.safeParse({ priority: 'high', steps: [{ afterMinutes: 0, notify: 'x' }] }).success,
-    ).toBe(false);
+    expect(EscalationRuleSchema.safeParse({ priority: 'high', steps: [{ afterMinutes: 0, notify: 'x' }] }).success).toBe(false);
     expect(EscalationRuleSchema.safeParse({ priority: 'urgent', steps: [] }).success).toBe(false);
   });
 });

@@ -191,18 +191,7 @@ describe('KPI helpers and guards', () => {
       for (let i = 0; i < k; i++) many.push(entry(`s${String(k).padStart(2, '0')}`, 'low', (k * 100 + i) * MIN));
     }
     const r = alarmKpis(many, { fromMs: 0, toMs: 2000 * MIN, operatorPositions: 1 });
-    expect(r.topSources.map((s) => s.source)).toEqual([
-      's12',
-      's11',
-      's10',
-      's09',
-      's08',
-      's07',
-      's06',
-      's05',
-      's04',
-      's03',
-    ]);
+    expect(r.topSources.map((s) => s.source)).toEqual(['s12', 's11', 's10', 's09', 's08', 's07', 's06', 's05', 's04', 's03']);
     expect(r.topSources[0]!.sharePercent).toBeCloseTo((12 / 78) * 100, 12);
   });
   it('an empty log gives zeros, not NaN', () => {

@@ -164,12 +164,8 @@ describe('alarm state model — refusals in plain words', () => {
       });
     }
     expect(transition(unacked, { type: 'ack', comment: 'x' }, { nowMs: NOW, role: 'operator' }).ok).toBe(true);
-    expect(transition(unacked, { type: 'ack', comment: 'x'.repeat(500) }, { nowMs: NOW, role: 'operator' }).ok).toBe(
-      true,
-    );
-    expect(transition(unacked, { type: 'ack', comment: 'x'.repeat(501) }, { nowMs: NOW, role: 'operator' }).ok).toBe(
-      false,
-    );
+    expect(transition(unacked, { type: 'ack', comment: 'x'.repeat(500) }, { nowMs: NOW, role: 'operator' }).ok).toBe(true);
+    expect(transition(unacked, { type: 'ack', comment: 'x'.repeat(501) }, { nowMs: NOW, role: 'operator' }).ok).toBe(false);
   });
   it('already acknowledged', () => {
     expect(transition({ state: 'acked', active: true }, EVENT.ack, { nowMs: NOW, role: 'engineer' })).toEqual({
@@ -195,9 +191,7 @@ describe('alarm state model — refusals in plain words', () => {
   it('out of service and back need a reason', () => {
     const eng = { nowMs: NOW, role: 'engineer' as const };
     expect(transition(unacked, { type: 'remove-from-service', reason: ' ' }, eng).ok).toBe(false);
-    expect(
-      transition({ state: 'out-of-service', active: false }, { type: 'return-to-service', reason: '' }, eng).ok,
-    ).toBe(false);
+    expect(transition({ state: 'out-of-service', active: false }, { type: 'return-to-service', reason: '' }, eng).ok).toBe(false);
   });
 });
 
@@ -273,9 +267,7 @@ describe('alarm state labels and annunciation', () => {
     expect(STATE_LABELS['rtn-unacked']).toBe('Cleared, not yet acknowledged');
     expect(STATE_LABELS.suppressed).toBe('Suppressed by design');
     expect(STATE_LABELS['out-of-service']).toBe('Out of service');
-    expect(stateLabel({ state: 'shelved', active: true, shelvedUntilMs: 0 }, () => '14:30')).toBe(
-      'Shelved until 14:30',
-    );
+    expect(stateLabel({ state: 'shelved', active: true, shelvedUntilMs: 0 }, () => '14:30')).toBe('Shelved until 14:30');
     expect(stateLabel({ state: 'acked', active: true }, () => 'never')).toBe('Acknowledged, still active');
   });
 });

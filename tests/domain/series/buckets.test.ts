@@ -31,8 +31,7 @@ describe('chooseBucketMs', () => {
     expect(() => chooseBucketMs(H, 0)).toThrow(RangeError);
   });
   it('ladder is increasing', () => {
-    for (let i = 1; i < BUCKET_LADDER_MS.length; i++)
-      expect(BUCKET_LADDER_MS[i]!).toBeGreaterThan(BUCKET_LADDER_MS[i - 1]!);
+    for (let i = 1; i < BUCKET_LADDER_MS.length; i++) expect(BUCKET_LADDER_MS[i]!).toBeGreaterThan(BUCKET_LADDER_MS[i - 1]!);
   });
 });
 

@@ -67,18 +67,15 @@ describe('LTTB — invariants', () => {
     series.push({ x: 1_700_000_000_000 + i * 1000, y });
   }
 
-  it.each([3, 4, 5, 10, 100, 500, 998, 999])(
-    'threshold %i: length, first/last kept, x increasing, input points only',
-    (t) => {
-      const out = lttb(series, t);
-      expect(out).toHaveLength(t);
-      expect(out[0]).toBe(series[0]);
-      expect(out[out.length - 1]).toBe(series[series.length - 1]);
-      for (let i = 1; i < out.length; i++) expect(out[i]!.x).toBeGreaterThan(out[i - 1]!.x);
-      const inputs = new Set(series);
-      for (const p of out) expect(inputs.has(p)).toBe(true);
-    },
-  );
+  it.each([3, 4, 5, 10, 100, 500, 998, 999])('threshold %i: length, first/last kept, x increasing, input points only', (t) => {
+    const out = lttb(series, t);
+    expect(out).toHaveLength(t);
+    expect(out[0]).toBe(series[0]);
+    expect(out[out.length - 1]).toBe(series[series.length - 1]);
+    for (let i = 1; i < out.length; i++) expect(out[i]!.x).toBeGreaterThan(out[i - 1]!.x);
+    const inputs = new Set(series);
+    for (const p of out) expect(inputs.has(p)).toBe(true);
+  });
 
   it('keeps a single spike that plain thinning would lose', () => {
     const flat: XY[] = Array.from({ length: 1000 }, (_, i) => ({ x: i, y: i === 503 ? 100 : 0 }));

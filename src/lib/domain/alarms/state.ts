@@ -103,9 +103,7 @@ export interface TransitionContext {
 }
 
 /** Result of {@link transition}: the next record, or a refusal in plain words. */
-export type TransitionResult<A extends AlarmRecord> =
-  | { ok: true; alarm: A; changed: boolean }
-  | { ok: false; reason: string };
+export type TransitionResult<A extends AlarmRecord> = { ok: true; alarm: A; changed: boolean } | { ok: false; reason: string };
 
 /**
  * Which actors may send each event. Person-driven events take their roles from the project's
@@ -210,11 +208,7 @@ const HELD: readonly AlarmState[] = ['shelved', 'suppressed', 'out-of-service'];
  * Returns `{ok: true, alarm, changed}` with a new object (the input is not modified) or
  * `{ok: false, reason}`.
  */
-export function transition<A extends AlarmRecord>(
-  alarm: A,
-  event: AlarmEvent,
-  ctx: TransitionContext,
-): TransitionResult<A> {
+export function transition<A extends AlarmRecord>(alarm: A, event: AlarmEvent, ctx: TransitionContext): TransitionResult<A> {
   if (!EVENT_ROLES[event.type].includes(ctx.role)) {
     return refuse(`${ACTOR_NOUN[ctx.role]} cannot ${EVENT_VERB[event.type]}`);
   }

@@ -451,7 +451,11 @@ export function evaluateAgainstLimitSet(
  * (Page 1954; NIST/SEMATECH e-Handbook 6.3.2.3): K = k·σ, H = h·σ, FIR head start = hs·σ; also
  * returns k, h and hs as given, for the report.
  */
-function cusumDesign(p: { k?: number | undefined; h?: number | undefined; headStart?: number | undefined }, center: number, sigmaX: number) {
+function cusumDesign(
+  p: { k?: number | undefined; h?: number | undefined; headStart?: number | undefined },
+  center: number,
+  sigmaX: number,
+) {
   const k = p.k ?? DEFAULT_CUSUM.k;
   const h = p.h ?? DEFAULT_CUSUM.h;
   const headStart = p.headStart ?? DEFAULT_CUSUM.headStart;

@@ -27,14 +27,27 @@ import { hashPassword } from '../passwords.ts';
 const iso = (d: Date | string | null | undefined) => (d == null ? null : new Date(d).toISOString());
 
 /** What the audit trail keeps of a user (no password hash). */
-const userSnapshot = (u: User) => ({ username: u.username, displayName: u.displayName, email: u.email, role: u.role, active: u.active });
+const userSnapshot = (u: User) => ({
+  username: u.username,
+  displayName: u.displayName,
+  email: u.email,
+  role: u.role,
+  active: u.active,
+});
 
 // --- users ----------------------------------------------------------------------------
 
 export async function listUsers(): Promise<UserView[]> {
   const rows = await db().query<{
-    id: number; username: string; display_name: string; email: string | null; role: Role; active: boolean;
-    created_at: Date; last_sign_in_at: Date | null; sessions: string;
+    id: number;
+    username: string;
+    display_name: string;
+    email: string | null;
+    role: Role;
+    active: boolean;
+    created_at: Date;
+    last_sign_in_at: Date | null;
+    sessions: string;
   }>(
     `select u.id, u.username, u.display_name, u.email, u.role, u.active, u.created_at,
             (select max(at) from audit_log a where a.action = 'auth.signed-in' and a.entity = 'user' and a.entity_id = u.id::text) as last_sign_in_at,
@@ -43,8 +56,15 @@ export async function listUsers(): Promise<UserView[]> {
     { type: QueryTypes.SELECT },
   );
   return rows.map((r) => ({
-    id: r.id, username: r.username, displayName: r.display_name, email: r.email, role: r.role, active: r.active,
-    createdAt: iso(r.created_at)!, lastSignInAt: iso(r.last_sign_in_at), sessions: Number(r.sessions),
+    id: r.id,
+    username: r.username,
+    displayName: r.display_name,
+    email: r.email,
+    role: r.role,
+    active: r.active,
+    createdAt: iso(r.created_at)!,
+    lastSignInAt: iso(r.last_sign_in_at),
+    sessions: Number(r.sessions),
   }));
 }
 
@@ -66,7 +86,11 @@ export async function createUser(actor: Actor, input: CreateUser, origin: string
         { username: input.username, displayName: input.displayName, email: input.email, role: input.role, passwordHash },
         { transaction },
       );
-      await audit(actor, { action: 'user.created', entity: 'user', entityId: u.id, before: null, after: userSnapshot(u) }, transaction);
+      await audit(
+        actor,
+        { action: 'user.created', entity: 'user', entityId: u.id, before: null, after: userSnapshot(u) },
+        transaction,
+      );
       return u;
     });
   } catch (e) {
@@ -95,13 +119,20 @@ export async function updateUser(actor: Actor, id: number, input: UpdateUser): P
   const u = await findUser(id);
   const before = userSnapshot(u);
   if (actor.id === id && (input.active === false || (input.role && input.role !== u.role))) {
-    throw new HttpProblem(409, 'Not on your own account', 'Ask another administrator to change your own role or to deactivate you.', {
-      errors: [{ path: input.active === false ? 'active' : 'role', message: 'Not on your own account.' }],
-    });
+    throw new HttpProblem(
+      409,
+      'Not on your own account',
+      'Ask another administrator to change your own role or to deactivate you.',
+      {
+        errors: [{ path: input.active === false ? 'active' : 'role', message: 'Not on your own account.' }],
+      },
+    );
   }
   const losesAdmin = u.role === 'admin' && u.active && ((input.role && input.role !== 'admin') || input.active === false);
   if (losesAdmin && (await activeAdmins()) <= 1) {
-    throw new HttpProblem(409, 'Last administrator', 'Keep at least one active administrator.', { errors: [{ path: 'role', message: 'The last active administrator.' }] });
+    throw new HttpProblem(409, 'Last administrator', 'Keep at least one active administrator.', {
+      errors: [{ path: 'role', message: 'The last active administrator.' }],
+    });
   }
   await seq.transaction(async (transaction) => {
     if (input.displayName !== undefined) u.displayName = input.displayName;
@@ -114,10 +145,13 @@ export async function updateUser(actor: Actor, id: number, input: UpdateUser): P
     if (input.active === false) await UserSession.destroy({ where: { userId: id }, transaction });
     const after = userSnapshot(u);
     const action =
-      input.active === false && before.active ? 'user.deactivated'
-      : input.active === true && !before.active ? 'user.reactivated'
-      : input.role && input.role !== before.role ? 'user.role-changed'
-      : 'user.updated';
+      input.active === false && before.active
+        ? 'user.deactivated'
+        : input.active === true && !before.active
+          ? 'user.reactivated'
+          : input.role && input.role !== before.role
+            ? 'user.role-changed'
+            : 'user.updated';
     await audit(actor, { action, entity: 'user', entityId: id, before, after }, transaction);
   });
   return (await listUsers()).find((x) => x.id === id)!;
@@ -134,13 +168,25 @@ function resetLink(origin: string, token: string): string {
  * user, and e-mail it. `kind` 'invite' words the mail for a new account.
  */
 async function issueReset(user: User, actor: Actor, origin: string, kind: 'admin' | 'self' | 'invite'): Promise<void> {
-  if (!user.email) throw new HttpProblem(400, 'No e-mail address', `${user.username} has no e-mail address; add one first.`, { errors: [{ path: 'email', message: 'No e-mail address.' }] });
+  if (!user.email)
+    throw new HttpProblem(400, 'No e-mail address', `${user.username} has no e-mail address; add one first.`, {
+      errors: [{ path: 'email', message: 'No e-mail address.' }],
+    });
   const token = randomBytes(32).toString('base64url');
   const expiresAt = new Date(Date.now() + RESET_LINK_MINUTES * 60_000);
   await db().transaction(async (transaction) => {
     await PasswordReset.update({ usedAt: new Date() }, { where: { userId: user.id, usedAt: null }, transaction });
     const r = await PasswordReset.create({ userId: user.id, tokenHash: sha256(token), expiresAt, usedAt: null }, { transaction });
-    await audit(actor, { action: 'user.password-reset-sent', entity: 'user', entityId: user.id, after: { resetId: r.id, kind, to: user.email, expiresAt: expiresAt.toISOString() } }, transaction);
+    await audit(
+      actor,
+      {
+        action: 'user.password-reset-sent',
+        entity: 'user',
+        entityId: user.id,
+        after: { resetId: r.id, kind, to: user.email, expiresAt: expiresAt.toISOString() },
+      },
+      transaction,
+    );
   });
   const link = resetLink(origin, token);
   const intro =
@@ -157,9 +203,16 @@ async function issueReset(user: User, actor: Actor, origin: string, kind: 'admin
 }
 
 /** Admin: e-mail a user a one-time link to set a new password. */
-export async function adminSendReset(actor: Actor, id: number, origin: string): Promise<{ to: string; expiresInMinutes: number }> {
+export async function adminSendReset(
+  actor: Actor,
+  id: number,
+  origin: string,
+): Promise<{ to: string; expiresInMinutes: number }> {
   const u = await findUser(id);
-  if (!u.active) throw new HttpProblem(409, 'User deactivated', 'Reactivate the user before sending a reset link.', { errors: [{ path: 'active', message: 'Deactivated.' }] });
+  if (!u.active)
+    throw new HttpProblem(409, 'User deactivated', 'Reactivate the user before sending a reset link.', {
+      errors: [{ path: 'active', message: 'Deactivated.' }],
+    });
   await issueReset(u, actor, origin, 'admin');
   return { to: u.email!, expiresInMinutes: RESET_LINK_MINUTES };
 }
@@ -175,7 +228,15 @@ export async function requestReset(login: string, origin: string, address: strin
   const run = async () => {
     const users = await User.findAll({ where: value.includes('@') ? { email: value } : { username: value } });
     const u = users.length === 1 ? users[0]! : null;
-    await audit({ id: u?.id ?? null, label: value.slice(0, 80) || '(blank)', address }, { action: 'auth.reset-requested', entity: 'login', entityId: value.slice(0, 80), after: { matched: !!u && u.active && !!u.email } });
+    await audit(
+      { id: u?.id ?? null, label: value.slice(0, 80) || '(blank)', address },
+      {
+        action: 'auth.reset-requested',
+        entity: 'login',
+        entityId: value.slice(0, 80),
+        after: { matched: !!u && u.active && !!u.email },
+      },
+    );
     if (!u || !u.active || !u.email) return;
     const recent = await PasswordReset.count({ where: { userId: u.id, createdAt: { [Op.gt]: new Date(Date.now() - 120_000) } } });
     if (recent > 0) return;
@@ -220,13 +281,19 @@ export async function completeReset(token: string, password: string, address: st
     await u.save({ transaction });
     await UserSession.destroy({ where: { userId: u.id }, transaction });
     await LoginThrottle.destroy({ where: { key: `user:${u.username}` }, transaction });
-    await audit({ id: u.id, label: u.username, address }, { action: 'user.password-set', entity: 'user', entityId: u.id, after: { resetId: claimed.id, via: 'e-mailed link' } }, transaction);
+    await audit(
+      { id: u.id, label: u.username, address },
+      { action: 'user.password-set', entity: 'user', entityId: u.id, after: { resetId: claimed.id, via: 'e-mailed link' } },
+      transaction,
+    );
     return { username: u.username };
   });
   if (!result) {
     const state = await checkResetToken(token);
     const why = state === 'ok' ? 'unknown' : state;
-    throw new HttpProblem(why === 'unknown' ? 400 : 410, 'Link not usable', RESET_REFUSED[why], { errors: [{ path: 'token', message: RESET_REFUSED[why] }] });
+    throw new HttpProblem(why === 'unknown' ? 400 : 410, 'Link not usable', RESET_REFUSED[why], {
+      errors: [{ path: 'token', message: RESET_REFUSED[why] }],
+    });
   }
   return result;
 }
@@ -238,15 +305,30 @@ export function resetRefusal(state: 'used' | 'expired' | 'unknown'): string {
 // --- API tokens -----------------------------------------------------------------------
 
 export async function listTokens(): Promise<TokenView[]> {
-  const rows = await db().query<{ id: number; name: string; role: Role; prefix: string; created_at: Date; created_by: string; last_used_at: Date | null; revoked_at: Date | null }>(
+  const rows = await db().query<{
+    id: number;
+    name: string;
+    role: Role;
+    prefix: string;
+    created_at: Date;
+    created_by: string;
+    last_used_at: Date | null;
+    revoked_at: Date | null;
+  }>(
     `select t.id, t.name, t.role, t.prefix, t.created_at, coalesce(u.username, '?') as created_by, t.last_used_at, t.revoked_at
        from api_tokens t left join users u on u.id = t.created_by
       order by t.revoked_at is not null, t.created_at desc`,
     { type: QueryTypes.SELECT },
   );
   return rows.map((r) => ({
-    id: r.id, name: r.name, role: r.role, prefix: r.prefix, createdAt: iso(r.created_at)!, createdBy: r.created_by,
-    lastUsedAt: iso(r.last_used_at), revokedAt: iso(r.revoked_at),
+    id: r.id,
+    name: r.name,
+    role: r.role,
+    prefix: r.prefix,
+    createdAt: iso(r.created_at)!,
+    createdBy: r.created_by,
+    lastUsedAt: iso(r.last_used_at),
+    revokedAt: iso(r.revoked_at),
   }));
 }
 
@@ -255,8 +337,21 @@ export async function createToken(actor: Actor, input: { name: string; role: Rol
   if (actor.id == null) throw new HttpProblem(403, 'Not allowed', 'A token needs a person who issues it.');
   const { secret, hash, prefix } = newTokenSecret();
   const t = await db().transaction(async (transaction) => {
-    const row = await ApiToken.create({ name: input.name, role: input.role, tokenHash: hash, prefix, createdBy: actor.id!, lastUsedAt: null, revokedAt: null }, { transaction });
-    await audit(actor, { action: 'token.created', entity: 'api-token', entityId: row.id, before: null, after: { name: row.name, role: row.role, prefix } }, transaction);
+    const row = await ApiToken.create(
+      { name: input.name, role: input.role, tokenHash: hash, prefix, createdBy: actor.id!, lastUsedAt: null, revokedAt: null },
+      { transaction },
+    );
+    await audit(
+      actor,
+      {
+        action: 'token.created',
+        entity: 'api-token',
+        entityId: row.id,
+        before: null,
+        after: { name: row.name, role: row.role, prefix },
+      },
+      transaction,
+    );
     return row;
   });
   const view = (await listTokens()).find((x) => x.id === t.id)!;
@@ -267,11 +362,22 @@ export async function revokeToken(actor: Actor, id: number): Promise<TokenView> 
   db();
   const t = await ApiToken.findByPk(id);
   if (!t) throw new HttpProblem(404, 'Not found', 'No such API token.');
-  if (t.revokedAt) throw new HttpProblem(409, 'Already revoked', `The token “${t.name}” was revoked at ${t.revokedAt.toISOString()}.`);
+  if (t.revokedAt)
+    throw new HttpProblem(409, 'Already revoked', `The token “${t.name}” was revoked at ${t.revokedAt.toISOString()}.`);
   await db().transaction(async (transaction) => {
     t.revokedAt = new Date();
     await t.save({ transaction });
-    await audit(actor, { action: 'token.revoked', entity: 'api-token', entityId: id, before: { name: t.name, role: t.role, revokedAt: null }, after: { name: t.name, role: t.role, revokedAt: t.revokedAt.toISOString() } }, transaction);
+    await audit(
+      actor,
+      {
+        action: 'token.revoked',
+        entity: 'api-token',
+        entityId: id,
+        before: { name: t.name, role: t.role, revokedAt: null },
+        after: { name: t.name, role: t.role, revokedAt: t.revokedAt.toISOString() },
+      },
+      transaction,
+    );
   });
   return (await listTokens()).find((x) => x.id === id)!;
 }
@@ -305,22 +411,46 @@ export async function listLocks(): Promise<LockView[]> {
 export async function unlock(actor: Actor, key: string): Promise<void> {
   db();
   const row = await LoginThrottle.findByPk(key);
-  if (!row) throw new HttpProblem(404, 'Not found', 'There is no lock or failure count for that key.', { errors: [{ path: 'key', message: 'Unknown key.' }] });
+  if (!row)
+    throw new HttpProblem(404, 'Not found', 'There is no lock or failure count for that key.', {
+      errors: [{ path: 'key', message: 'Unknown key.' }],
+    });
   await db().transaction(async (transaction) => {
     await LoginThrottle.destroy({ where: { key }, transaction });
-    await audit(actor, {
-      action: 'auth.unlocked', entity: 'login', entityId: key,
-      before: { failures: row.failures, lockedUntil: iso(row.lockedUntil) }, after: { failures: 0, lockedUntil: null },
-    }, transaction);
+    await audit(
+      actor,
+      {
+        action: 'auth.unlocked',
+        entity: 'login',
+        entityId: key,
+        before: { failures: row.failures, lockedUntil: iso(row.lockedUntil) },
+        after: { failures: 0, lockedUntil: null },
+      },
+      transaction,
+    );
   });
 }
 
 // --- caught e-mail --------------------------------------------------------------------
 
 export async function listCaughtMail(limit = 200): Promise<MailView[]> {
-  const rows = await db().query<{ id: number; caught_at: Date; mail_from: string | null; mail_to: string; subject: string | null; body: string }>(
-    `select id, caught_at, mail_from, mail_to, subject, body from outbox_mail order by id desc limit :limit`,
-    { replacements: { limit }, type: QueryTypes.SELECT },
-  );
-  return rows.map((r) => ({ id: r.id, caughtAt: iso(r.caught_at)!, from: r.mail_from, to: r.mail_to, subject: r.subject, body: r.body }));
+  const rows = await db().query<{
+    id: number;
+    caught_at: Date;
+    mail_from: string | null;
+    mail_to: string;
+    subject: string | null;
+    body: string;
+  }>(`select id, caught_at, mail_from, mail_to, subject, body from outbox_mail order by id desc limit :limit`, {
+    replacements: { limit },
+    type: QueryTypes.SELECT,
+  });
+  return rows.map((r) => ({
+    id: r.id,
+    caughtAt: iso(r.caught_at)!,
+    from: r.mail_from,
+    to: r.mail_to,
+    subject: r.subject,
+    body: r.body,
+  }));
 }

@@ -124,7 +124,13 @@ export async function saveChannelConfig(user: SessionUser, address: string | nul
 export async function removeChannelConfig(user: SessionUser, address: string | null, channelId: number) {
   const before = await deleteChannelAlarmConfig(pgPool(), channelId);
   if (!before) throw new HttpProblem(404, 'Not found', `Channel ${channelId} has no alarm settings of its own.`);
-  await audit(actorOf(user, address), { action: 'alarm.configure', entity: 'alarm_config', entityId: channelId, before, after: null });
+  await audit(actorOf(user, address), {
+    action: 'alarm.configure',
+    entity: 'alarm_config',
+    entityId: channelId,
+    before,
+    after: null,
+  });
 }
 
 export async function saveCharacteristicConfig(
@@ -137,7 +143,13 @@ export async function saveCharacteristicConfig(
     throw new HttpProblem(404, 'Not found', `No characteristic ${characteristicId}.`);
   }
   const { before, after } = await upsertCharacteristicAlarmConfig(pgPool(), characteristicId, input, user.id);
-  await audit(actorOf(user, address), { action: 'alarm.configure', entity: 'alarm_config_characteristic', entityId: characteristicId, before, after });
+  await audit(actorOf(user, address), {
+    action: 'alarm.configure',
+    entity: 'alarm_config_characteristic',
+    entityId: characteristicId,
+    before,
+    after,
+  });
   return after;
 }
 
@@ -145,9 +157,19 @@ export async function escalation(): Promise<EscalationSettings> {
   return escalationSettings(pgPool());
 }
 
-export async function saveEscalation(user: SessionUser, address: string | null, s: EscalationSettings): Promise<EscalationSettings> {
+export async function saveEscalation(
+  user: SessionUser,
+  address: string | null,
+  s: EscalationSettings,
+): Promise<EscalationSettings> {
   const { before, after } = await saveEscalationSettings(pgPool(), s);
-  await audit(actorOf(user, address), { action: 'alarm.escalation', entity: 'site_settings', entityId: 'alarmEscalation', before, after });
+  await audit(actorOf(user, address), {
+    action: 'alarm.escalation',
+    entity: 'site_settings',
+    entityId: 'alarmEscalation',
+    before,
+    after,
+  });
   return after;
 }
 
@@ -225,6 +247,7 @@ export function healthCsv(h: AlarmHealth, zone: string): string {
   for (const c of r.chattering) lines.push(`${q(c.source)},${c.maxIn60s},${c.activations},${iso(c.firstAtMs)}`);
   lines.push('');
   lines.push('stale alarm id,source,priority,activated (UTC),active h');
-  for (const s of r.stale) lines.push(`${s.id},${q(s.source)},${s.priority},${iso(s.activatedAtMs)},${(s.activeForMs / 3_600_000).toFixed(1)}`);
+  for (const s of r.stale)
+    lines.push(`${s.id},${q(s.source)},${s.priority},${iso(s.activatedAtMs)},${(s.activeForMs / 3_600_000).toFixed(1)}`);
   return lines.join('\n') + '\n';
 }

@@ -8,8 +8,17 @@ import { config } from '../config.ts';
 import { pgPool } from '../db.ts';
 
 interface Row {
-  id: string; at: Date; actor_id: number | null; actor_label: string; action: string; entity: string; entity_id: string | null;
-  before: unknown; after: unknown; address: string | null; signature: AuditRowView['signature'];
+  id: string;
+  at: Date;
+  actor_id: number | null;
+  actor_label: string;
+  action: string;
+  entity: string;
+  entity_id: string | null;
+  before: unknown;
+  after: unknown;
+  address: string | null;
+  signature: AuditRowView['signature'];
 }
 
 const DATE_ONLY = /^\d{4}-\d{2}-\d{2}$/;
@@ -58,8 +67,17 @@ function where(q: AuditQuery): { sql: string; params: unknown[] } {
 }
 
 const view = (r: Row): AuditRowView => ({
-  id: Number(r.id), at: new Date(r.at).toISOString(), actorId: r.actor_id, actor: r.actor_label, action: r.action, entity: r.entity,
-  entityId: r.entity_id, before: r.before, after: r.after, address: r.address, signature: r.signature,
+  id: Number(r.id),
+  at: new Date(r.at).toISOString(),
+  actorId: r.actor_id,
+  actor: r.actor_label,
+  action: r.action,
+  entity: r.entity,
+  entityId: r.entity_id,
+  before: r.before,
+  after: r.after,
+  address: r.address,
+  signature: r.signature,
 });
 
 export async function queryAudit(q: AuditQuery): Promise<AuditPage> {
@@ -96,13 +114,41 @@ export async function auditCsv(q: AuditQuery): Promise<string> {
        from audit_log ${w.sql} order by at desc, id desc limit ${AUDIT_CSV_LIMIT}`,
     w.params,
   );
-  const head = ['id', 'at_utc', 'actor', 'actor_id', 'action', 'entity', 'entity_id', 'before', 'after', 'address', 'signed_by', 'signature_meaning', 'signed_at_utc'];
+  const head = [
+    'id',
+    'at_utc',
+    'actor',
+    'actor_id',
+    'action',
+    'entity',
+    'entity_id',
+    'before',
+    'after',
+    'address',
+    'signed_by',
+    'signature_meaning',
+    'signed_at_utc',
+  ];
   const json = (v: unknown) => (v == null ? '' : JSON.stringify(v));
   return toCsv(
     head,
     rows.map((r) => {
       const s = r.signature;
-      return [r.id, new Date(r.at).toISOString(), r.actor_label, r.actor_id, r.action, r.entity, r.entity_id, json(r.before), json(r.after), r.address, s ? `${s.displayName} (${s.username})` : '', s?.meaning ?? '', s?.signedAt ?? ''];
+      return [
+        r.id,
+        new Date(r.at).toISOString(),
+        r.actor_label,
+        r.actor_id,
+        r.action,
+        r.entity,
+        r.entity_id,
+        json(r.before),
+        json(r.after),
+        r.address,
+        s ? `${s.displayName} (${s.username})` : '',
+        s?.meaning ?? '',
+        s?.signedAt ?? '',
+      ];
     }),
   );
 }

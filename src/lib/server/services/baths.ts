@@ -26,7 +26,8 @@ import { windowInForce } from '../stores/window-store.ts';
 import { q } from './windows.ts';
 
 const iso = (d: Date | string | null | undefined): string | null => (d == null ? null : new Date(d).toISOString());
-const bad = (path: string, message: string) => new HttpProblem(400, 'Invalid input', `${path}: ${message}`, { errors: [{ path, message }] });
+const bad = (path: string, message: string) =>
+  new HttpProblem(400, 'Invalid input', `${path}: ${message}`, { errors: [{ path, message }] });
 
 /** Entries may be back-dated up to two days (a check written up at the end of a shift), not post-dated. */
 const MAX_BACKDATE_MS = 48 * 3_600_000;
@@ -103,17 +104,28 @@ const toCharge = (r: ChargeRow & { chargedAt: any }): ChargeRow => ({ ...r, char
 
 /** The charge in the tank at a time (the latest charged at or before it). */
 export async function chargeAt(tankId: number, at: Date, t?: Transaction): Promise<ChargeRow | null> {
-  const [row] = await q<ChargeRow>(`${CHARGE_SELECT} where c.tank_asset_id = $1 and c.charged_at <= $2 order by c.charged_at desc limit 1`, [tankId, at], t);
+  const [row] = await q<ChargeRow>(
+    `${CHARGE_SELECT} where c.tank_asset_id = $1 and c.charged_at <= $2 order by c.charged_at desc limit 1`,
+    [tankId, at],
+    t,
+  );
   return row ? toCharge(row) : null;
 }
 
 export async function listCharges(tankId?: number, limit = 200): Promise<ChargeRow[]> {
-  const rows = await q<ChargeRow>(`${CHARGE_SELECT} where ($1::int is null or c.tank_asset_id = $1) order by c.charged_at desc limit $2`, [tankId ?? null, limit]);
+  const rows = await q<ChargeRow>(
+    `${CHARGE_SELECT} where ($1::int is null or c.tank_asset_id = $1) order by c.charged_at desc limit $2`,
+    [tankId ?? null, limit],
+  );
   return rows.map(toCharge);
 }
 
 /** What a check on this tank at this time is computed against. */
-export async function bathContext(tankId: number, at: Date, t?: Transaction): Promise<{ charge: ChargeRow | null; window: ProcessWindowInForce | null; ctx: BathCheckContext }> {
+export async function bathContext(
+  tankId: number,
+  at: Date,
+  t?: Transaction,
+): Promise<{ charge: ChargeRow | null; window: ProcessWindowInForce | null; ctx: BathCheckContext }> {
   const charge = await chargeAt(tankId, at, t);
   const window = await windowInForce(pgPool(), tankId, at.getTime());
   // Labs keep a bath topped up to its working level, and evaporation and drag-out are not
@@ -158,7 +170,12 @@ const CHECK_SELECT = `
 const withAt = <T extends { at: any }>(r: T): T => ({ ...r, at: iso(r.at)! });
 
 export async function listChecks(tankId?: number, limit = 100): Promise<CheckRow[]> {
-  return (await q<CheckRow>(`${CHECK_SELECT} where ($1::int is null or k.tank_asset_id = $1) order by k.at desc, k.id desc limit $2`, [tankId ?? null, limit])).map(withAt);
+  return (
+    await q<CheckRow>(`${CHECK_SELECT} where ($1::int is null or k.tank_asset_id = $1) order by k.at desc, k.id desc limit $2`, [
+      tankId ?? null,
+      limit,
+    ])
+  ).map(withAt);
 }
 
 export interface RecordedCheck {
@@ -188,13 +205,36 @@ export async function recordCheck(user: SessionUser, input: BathCheckInput, addr
                                 density_g_cm3, dynamic_mpas, bath_temp_c, solids_pct, window_id, note)
        values ($1,$2,$3,$4,$5,$6,$7,$8,$9,$10,$11,$12,$13,$14,$15,$16) returning id`,
       [
-        tank.id, charge?.id ?? null, at, user.id, user.username, input.cup ?? null, input.effluxSeconds ?? null, input.measuredMm2S ?? null,
-        v.kinematicMm2S, v.source, density ?? null, v.dynamicMPaS ?? null, input.bathTempC ?? null, input.solidsPct ?? null, window?.id ?? null, input.note ?? null,
+        tank.id,
+        charge?.id ?? null,
+        at,
+        user.id,
+        user.username,
+        input.cup ?? null,
+        input.effluxSeconds ?? null,
+        input.measuredMm2S ?? null,
+        v.kinematicMm2S,
+        v.source,
+        density ?? null,
+        v.dynamicMPaS ?? null,
+        input.bathTempC ?? null,
+        input.solidsPct ?? null,
+        window?.id ?? null,
+        input.note ?? null,
       ],
       t,
     );
     const [check] = (await q<CheckRow>(`${CHECK_SELECT} where k.id = $1`, [row!.id], t)).map(withAt);
-    await audit(actorOf(user, address), { action: 'bath.check', entity: 'bath_check', entityId: row!.id, after: { ...check, band: computation.band, addition: computation.addition } }, t);
+    await audit(
+      actorOf(user, address),
+      {
+        action: 'bath.check',
+        entity: 'bath_check',
+        entityId: row!.id,
+        after: { ...check, band: computation.band, addition: computation.addition },
+      },
+      t,
+    );
     return { check: check!, computation, window };
   });
 }
@@ -220,7 +260,12 @@ const ADDITION_SELECT = `
     from bath_additions ad join assets a on a.id = ad.tank_asset_id left join lacquer_lots lo on lo.id = ad.lot_id`;
 
 export async function listAdditions(tankId?: number, limit = 100): Promise<AdditionRow[]> {
-  return (await q<AdditionRow>(`${ADDITION_SELECT} where ($1::int is null or ad.tank_asset_id = $1) order by ad.at desc, ad.id desc limit $2`, [tankId ?? null, limit])).map(withAt);
+  return (
+    await q<AdditionRow>(
+      `${ADDITION_SELECT} where ($1::int is null or ad.tank_asset_id = $1) order by ad.at desc, ad.id desc limit $2`,
+      [tankId ?? null, limit],
+    )
+  ).map(withAt);
 }
 
 export async function recordAddition(user: SessionUser, input: BathAdditionEntry, address: string | null): Promise<AdditionRow> {
@@ -243,7 +288,8 @@ export async function recordAddition(user: SessionUser, input: BathAdditionEntry
     }
     let lotId = input.lotId ?? null;
     if (input.kind === 'fresh-lacquer' && lotId === null) lotId = charge?.lotId ?? null;
-    if (input.kind === 'solvent' && input.lotId !== undefined) throw bad('lotId', 'A lacquer lot goes with fresh-lacquer additions only.');
+    if (input.kind === 'solvent' && input.lotId !== undefined)
+      throw bad('lotId', 'A lacquer lot goes with fresh-lacquer additions only.');
     if (lotId !== null) {
       const [lot] = await q<{ id: number }>(`select id from lacquer_lots where id = $1`, [lotId], t);
       if (!lot) throw bad('lotId', 'No such lot.');
@@ -251,7 +297,19 @@ export async function recordAddition(user: SessionUser, input: BathAdditionEntry
     const [row] = await q<{ id: number }>(
       `insert into bath_additions (tank_asset_id, charge_id, at, by_user, by_label, kind, mass_kg, lot_id, check_id, recommendation, note)
        values ($1,$2,$3,$4,$5,$6,$7,$8,$9,$10::jsonb,$11) returning id`,
-      [tank.id, charge?.id ?? null, at, user.id, user.username, input.kind, input.massKg, lotId, input.checkId ?? null, recommendation === null ? null : JSON.stringify(recommendation), input.note ?? null],
+      [
+        tank.id,
+        charge?.id ?? null,
+        at,
+        user.id,
+        user.username,
+        input.kind,
+        input.massKg,
+        lotId,
+        input.checkId ?? null,
+        recommendation === null ? null : JSON.stringify(recommendation),
+        input.note ?? null,
+      ],
       t,
     );
     const [added] = (await q<AdditionRow>(`${ADDITION_SELECT} where ad.id = $1`, [row!.id], t)).map(withAt);
@@ -276,7 +334,12 @@ const FILTER_SELECT = `
     from filter_changes f join assets a on a.id = f.tank_asset_id`;
 
 export async function listFilterChanges(tankId?: number, limit = 100): Promise<FilterRow[]> {
-  return (await q<FilterRow>(`${FILTER_SELECT} where ($1::int is null or f.tank_asset_id = $1) order by f.at desc, f.id desc limit $2`, [tankId ?? null, limit])).map(withAt);
+  return (
+    await q<FilterRow>(
+      `${FILTER_SELECT} where ($1::int is null or f.tank_asset_id = $1) order by f.at desc, f.id desc limit $2`,
+      [tankId ?? null, limit],
+    )
+  ).map(withAt);
 }
 
 export async function recordFilterChange(user: SessionUser, input: FilterChange, address: string | null): Promise<FilterRow> {
@@ -322,8 +385,15 @@ export async function createLot(user: SessionUser, input: LotCreate, address: st
   return db().transaction(async (t) => {
     const [lacquer] = await q<{ id: number }>(`select id from lacquers where id = $1`, [input.lacquerId], t);
     if (!lacquer) throw bad('lacquerId', 'No such lacquer.');
-    const [dup] = await q(`select 1 from lacquer_lots where lacquer_id = $1 and lot_code = $2`, [input.lacquerId, input.lotCode], t);
-    if (dup) throw new HttpProblem(409, 'Already recorded', `Lot ${input.lotCode} of this lacquer is already recorded.`, { errors: [{ path: 'lotCode', message: 'This lot is already recorded.' }] });
+    const [dup] = await q(
+      `select 1 from lacquer_lots where lacquer_id = $1 and lot_code = $2`,
+      [input.lacquerId, input.lotCode],
+      t,
+    );
+    if (dup)
+      throw new HttpProblem(409, 'Already recorded', `Lot ${input.lotCode} of this lacquer is already recorded.`, {
+        errors: [{ path: 'lotCode', message: 'This lot is already recorded.' }],
+      });
     const [row] = await q<{ id: number }>(
       `insert into lacquer_lots (lacquer_id, lot_code, received_on, expires_on, solids_pct, note, created_by) values ($1,$2,$3,$4,$5,$6,$7) returning id`,
       [input.lacquerId, input.lotCode, input.receivedOn, input.expiresOn, input.solidsPct, input.note ?? null, user.id],
@@ -346,9 +416,14 @@ export async function createCharge(user: SessionUser, input: ChargeCreate, addre
   if (at.getTime() > Date.now() + MAX_AHEAD_MS) throw bad('chargedAt', 'The time is in the future.');
   return db().transaction(async (t) => {
     const tank = await tankOrThrow(input.tankAssetId, t);
-    const [lot] = await q<{ id: number; expires: string }>(`select id, to_char(expires_on, 'YYYY-MM-DD') as expires from lacquer_lots where id = $1`, [input.lotId], t);
+    const [lot] = await q<{ id: number; expires: string }>(
+      `select id, to_char(expires_on, 'YYYY-MM-DD') as expires from lacquer_lots where id = $1`,
+      [input.lotId],
+      t,
+    );
     if (!lot) throw bad('lotId', 'No such lot.');
-    if (lot.expires < at.toISOString().slice(0, 10)) throw bad('lotId', `This lot expired on ${lot.expires}; it cannot charge a bath.`);
+    if (lot.expires < at.toISOString().slice(0, 10))
+      throw bad('lotId', `This lot expired on ${lot.expires}; it cannot charge a bath.`);
     const [row] = await q<{ id: number }>(
       `insert into bath_charges (tank_asset_id, lot_id, charged_at, mass_kg, pot_life_days, note, created_by) values ($1,$2,$3,$4,$5,$6,$7) returning id`,
       [tank.id, lot.id, at, input.massKg, input.potLifeDays, input.note ?? null, user.id],
@@ -384,13 +459,24 @@ export async function listBaths(nowMs = Date.now()): Promise<BathState[]> {
   for (const tank of tanks) {
     const { charge, window, ctx } = await bathContext(tank.id, now);
     if (tank.role !== 'hard-coat' && !charge) continue;
-    const [recentChecks, recentAdditions, filters] = await Promise.all([listChecks(tank.id, 12), listAdditions(tank.id, 5), listFilterChanges(tank.id, 1)]);
+    const [recentChecks, recentAdditions, filters] = await Promise.all([
+      listChecks(tank.id, 12),
+      listAdditions(tank.id, 5),
+      listFilterChanges(tank.id, 1),
+    ]);
     const lastCheck = recentChecks[0] ?? null;
     const lastComputation = lastCheck
       ? computeBathCheck(
           lastCheck.cup && lastCheck.effluxSeconds !== null
-            ? { cup: lastCheck.cup as never, effluxSeconds: lastCheck.effluxSeconds, ...(lastCheck.solidsPct !== null ? { solidsPct: lastCheck.solidsPct } : {}) }
-            : { measuredMm2S: lastCheck.kinematicMm2S, ...(lastCheck.solidsPct !== null ? { solidsPct: lastCheck.solidsPct } : {}) },
+            ? {
+                cup: lastCheck.cup as never,
+                effluxSeconds: lastCheck.effluxSeconds,
+                ...(lastCheck.solidsPct !== null ? { solidsPct: lastCheck.solidsPct } : {}),
+              }
+            : {
+                measuredMm2S: lastCheck.kinematicMm2S,
+                ...(lastCheck.solidsPct !== null ? { solidsPct: lastCheck.solidsPct } : {}),
+              },
           ctx,
         )
       : null;

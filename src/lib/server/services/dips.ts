@@ -14,15 +14,14 @@ import { HttpProblem } from '../http.ts';
 import { attachJobsToDipRun, createDipRun, upsertJobs, upsertRack, type DipRunCreated } from '../stores/job-store.ts';
 import type { LineRow, DipRunItem, JobSearchItem } from '../../shared/trace-views.ts';
 
-const bad = (path: string, message: string) => new HttpProblem(400, 'Invalid input', `${path}: ${message}`, { errors: [{ path, message }] });
-
+const bad = (path: string, message: string) =>
+  new HttpProblem(400, 'Invalid input', `${path}: ${message}`, { errors: [{ path, message }] });
 
 /** Every dip line. */
 export async function listLines(): Promise<LineRow[]> {
   const { rows } = await pgPool().query<LineRow>(`select id, code, name from assets where kind = 'line' order by code`);
   return rows;
 }
-
 
 const DIP_SELECT = `
   select d.id, a.code as line_code, a.name as line_name, d.dipped_at, k.code as rack_code,
@@ -80,15 +79,27 @@ const toItem = (r: DipRow): DipRunItem => ({
 });
 
 /** Dip runs, newest first. */
-export async function listDipRuns(f: { line?: string | undefined; job?: string | undefined; from?: string | undefined; to?: string | undefined; limit: number }): Promise<DipRunItem[]> {
+export async function listDipRuns(f: {
+  line?: string | undefined;
+  job?: string | undefined;
+  from?: string | undefined;
+  to?: string | undefined;
+  limit: number;
+}): Promise<DipRunItem[]> {
   const where: string[] = [];
   const args: unknown[] = [];
   const arg = (v: unknown) => `$${args.push(v)}`;
   if (f.line) where.push(`a.code = ${arg(f.line)}`);
   if (f.from) where.push(`d.dipped_at >= ${arg(f.from)}`);
   if (f.to) where.push(`d.dipped_at < ${arg(f.to)}`);
-  if (f.job) where.push(`exists (select 1 from dip_run_jobs dj join jobs j on j.id = dj.job_id where dj.dip_run_id = d.id and j.job_number = ${arg(f.job)})`);
-  const { rows } = await pgPool().query<DipRow>(`${DIP_SELECT} ${where.length ? 'where ' + where.join(' and ') : ''} order by d.dipped_at desc, d.id desc limit ${arg(f.limit)}`, args);
+  if (f.job)
+    where.push(
+      `exists (select 1 from dip_run_jobs dj join jobs j on j.id = dj.job_id where dj.dip_run_id = d.id and j.job_number = ${arg(f.job)})`,
+    );
+  const { rows } = await pgPool().query<DipRow>(
+    `${DIP_SELECT} ${where.length ? 'where ' + where.join(' and ') : ''} order by d.dipped_at desc, d.id desc limit ${arg(f.limit)}`,
+    args,
+  );
   return rows.map(toItem);
 }
 
@@ -98,7 +109,11 @@ export async function getDipRun(id: number): Promise<DipRunItem | null> {
 }
 
 /** Record a rack dipped on a line (operator, engineer). */
-export async function recordDipRun(user: SessionUser, input: DipRunCreate, address: string | null): Promise<DipRunCreated & { item: DipRunItem }> {
+export async function recordDipRun(
+  user: SessionUser,
+  input: DipRunCreate,
+  address: string | null,
+): Promise<DipRunCreated & { item: DipRunItem }> {
   const now = Date.now();
   const atMs = input.dippedAt ? Date.parse(input.dippedAt) : now;
   if (atMs > now + 5 * 60_000) throw bad('dippedAt', 'The dip time is in the future.');
@@ -116,7 +131,15 @@ export async function recordDipRun(user: SessionUser, input: DipRunCreate, addre
     action: 'dip.record',
     entity: 'dip_run',
     entityId: r.id,
-    after: { lineAssetId: r.lineAssetId, dippedAt: r.dippedAt, rackCode: input.rackCode ?? null, jobs: input.jobNumbers, bathChargeId: r.bathChargeId, lastCheckId: r.lastCheckId, withdrawalSpeedMmS: r.withdrawalSpeedMmS },
+    after: {
+      lineAssetId: r.lineAssetId,
+      dippedAt: r.dippedAt,
+      rackCode: input.rackCode ?? null,
+      jobs: input.jobNumbers,
+      bathChargeId: r.bathChargeId,
+      lastCheckId: r.lastCheckId,
+      withdrawalSpeedMmS: r.withdrawalSpeedMmS,
+    },
   });
   return { ...r, item: (await getDipRun(r.id))! };
 }
@@ -128,7 +151,8 @@ function validate(csv: string): JobCsvPreview {
   try {
     return validateJobCsv(csv);
   } catch (e) {
-    if (e instanceof CsvSyntaxError) throw new HttpProblem(400, 'Malformed CSV', e.message, { errors: [{ path: 'csv', message: e.message }] });
+    if (e instanceof CsvSyntaxError)
+      throw new HttpProblem(400, 'Malformed CSV', e.message, { errors: [{ path: 'csv', message: e.message }] });
     throw e;
   }
 }
@@ -142,7 +166,10 @@ export interface JobImportPreview extends JobCsvPreview {
 /** Step 1: check the CSV and say which rows are good, which are bad (with line numbers). Nothing is stored. */
 export async function previewJobCsv(csv: string): Promise<JobImportPreview> {
   const p = validate(csv);
-  const { rows } = await pgPool().query<{ job_number: string }>(`select job_number from jobs where job_number = any($1::text[])`, [p.good.map((g) => g.jobNumber)]);
+  const { rows } = await pgPool().query<{ job_number: string }>(
+    `select job_number from jobs where job_number = any($1::text[])`,
+    [p.good.map((g) => g.jobNumber)],
+  );
   return { ...p, sha256: csvFingerprint(csv), existing: rows.map((r) => r.job_number) };
 }
 
@@ -164,8 +191,14 @@ export async function commitJobCsv(
     const d = await pool.query('select 1 from dip_runs where id = $1', [input.dipRunId]);
     if (!d.rowCount) throw bad('dipRunId', 'No such dip run.');
   }
-  const before = await pool.query<{ n: number }>(`select count(*)::int as n from jobs where job_number = any($1::text[])`, [p.good.map((g) => g.jobNumber)]);
-  const ids = await upsertJobs(pool, p.good.map((g) => g.jobNumber), new Map(p.good.map((g) => [g.jobNumber, { customerRef: g.customerRef, lensMaterial: g.lensMaterial }])));
+  const before = await pool.query<{ n: number }>(`select count(*)::int as n from jobs where job_number = any($1::text[])`, [
+    p.good.map((g) => g.jobNumber),
+  ]);
+  const ids = await upsertJobs(
+    pool,
+    p.good.map((g) => g.jobNumber),
+    new Map(p.good.map((g) => [g.jobNumber, { customerRef: g.customerRef, lensMaterial: g.lensMaterial }])),
+  );
   for (const code of new Set(p.good.map((g) => g.rackCode).filter((c): c is string => !!c))) await upsertRack(pool, code);
   if (input.dipRunId !== undefined) await attachJobsToDipRun(pool, input.dipRunId, [...ids.values()]);
   const result = {
@@ -175,10 +208,14 @@ export async function commitJobCsv(
     attachedTo: input.dipRunId ?? null,
     jobNumbers: p.good.map((g) => g.jobNumber),
   };
-  await audit(actorOf(user, address), { action: 'jobs.import', entity: 'jobs', entityId: input.sha256.slice(0, 16), after: { ...result, jobNumbers: undefined, count: p.good.length } });
+  await audit(actorOf(user, address), {
+    action: 'jobs.import',
+    entity: 'jobs',
+    entityId: input.sha256.slice(0, 16),
+    after: { ...result, jobNumbers: undefined, count: p.good.length },
+  });
   return result;
 }
-
 
 /** Jobs whose number starts with `q` (at most 20), for search boxes. */
 export async function searchJobs(q: string): Promise<JobSearchItem[]> {

@@ -6,7 +6,15 @@
  */
 import { arrheniusFactor } from '../../domain/cure/arrhenius.ts';
 import { ovenLoadPhase } from '../../domain/cure/cure-record.ts';
-import { shortChannelName, type FloorAlarm, type FloorChannel, type FloorDevice, type FloorLoad, type FloorSnapshot, type FloorTile } from '../../shared/floor.ts';
+import {
+  shortChannelName,
+  type FloorAlarm,
+  type FloorChannel,
+  type FloorDevice,
+  type FloorLoad,
+  type FloorSnapshot,
+  type FloorTile,
+} from '../../shared/floor.ts';
 import { windowRangeFor } from '../../shared/trend.ts';
 import type { ProcessWindowInForce } from '../../shared/windows.ts';
 import { pgPool } from '../db.ts';
@@ -49,7 +57,15 @@ export async function floorSnapshot(nowMs = Date.now()): Promise<FloorSnapshot> 
       `select id, name, username, online, (extract(epoch from last_seen_at) * 1000)::float8 as last_seen_ms
          from devices where enabled order by username`,
     ),
-    pool.query<{ id: number; priority: FloorAlarm['priority']; state: string; message: string; raised_ms: number; channel_id: number | null; asset_id: number | null }>(
+    pool.query<{
+      id: number;
+      priority: FloorAlarm['priority'];
+      state: string;
+      message: string;
+      raised_ms: number;
+      channel_id: number | null;
+      asset_id: number | null;
+    }>(
       `select id, priority, state, message, (extract(epoch from last_activated_at) * 1000)::float8 as raised_ms, channel_id, asset_id
          from alarms where state <> 'normal' order by last_activated_at desc limit 1000`,
     ),
@@ -95,7 +111,9 @@ export async function floorSnapshot(nowMs = Date.now()): Promise<FloorSnapshot> 
 
   const channelAlarms = new Map<number, { n: number; top: FloorAlarm['priority'] }>();
   for (const r of alarmsQ.rows) {
-    const tile = tiles.get(topOf(r.asset_id ?? (r.channel_id !== null ? (channelAsset.get(r.channel_id) ?? null) : null))?.id ?? -1);
+    const tile = tiles.get(
+      topOf(r.asset_id ?? (r.channel_id !== null ? (channelAsset.get(r.channel_id) ?? null) : null))?.id ?? -1,
+    );
     if (!tile) continue;
     if (!ANNUNCIATED.has(r.state)) {
       tile.shelvedCount++;
@@ -103,7 +121,14 @@ export async function floorSnapshot(nowMs = Date.now()): Promise<FloorSnapshot> 
     }
     tile.alarmCount++;
     if (tile.alarms.length < 5) {
-      tile.alarms.push({ id: r.id, priority: r.priority, state: r.state, message: r.message, raisedAtMs: r.raised_ms, channelId: r.channel_id });
+      tile.alarms.push({
+        id: r.id,
+        priority: r.priority,
+        state: r.state,
+        message: r.message,
+        raisedAtMs: r.raised_ms,
+        channelId: r.channel_id,
+      });
     }
     if (r.channel_id !== null) {
       const c = channelAlarms.get(r.channel_id);
@@ -149,7 +174,13 @@ export async function floorSnapshot(nowMs = Date.now()): Promise<FloorSnapshot> 
     }),
   );
 
-  const devices: FloorDevice[] = devicesQ.rows.map((d) => ({ id: d.id, name: d.name, username: d.username, online: d.online, lastSeenMs: d.last_seen_ms }));
+  const devices: FloorDevice[] = devicesQ.rows.map((d) => ({
+    id: d.id,
+    name: d.name,
+    username: d.username,
+    online: d.online,
+    lastSeenMs: d.last_seen_ms,
+  }));
   const ordered = [...tiles.values()].sort((a, b) => TILE_ORDER[a.kind] - TILE_ORDER[b.kind] || a.code.localeCompare(b.code));
   return { siteName: site.name, timeZone: site.timeZone, atMs: nowMs, tiles: ordered, devices };
 }
@@ -163,10 +194,22 @@ export async function floorSnapshot(nowMs = Date.now()): Promise<FloorSnapshot> 
 async function loadState(id: number, ovenAssetId: number, openedMs: number, jobs: number, nowMs: number): Promise<FloorLoad> {
   const pool = pgPool();
   const oven = await ovenChannels(pool, ovenAssetId);
-  const base: FloorLoad = { id, openedAtMs: openedMs, phase: 'idle', soakStartMs: null, predictedEndMs: null, setpointC: null, jobs };
+  const base: FloorLoad = {
+    id,
+    openedAtMs: openedMs,
+    phase: 'idle',
+    soakStartMs: null,
+    predictedEndMs: null,
+    setpointC: null,
+    jobs,
+  };
   if (!oven || oven.zones.length === 0) return base;
   const sp = oven.setpointId
-    ? ((await pool.query<{ v: number }>('select value as v from readings where channel_id = $1 order by ts desc limit 1', [oven.setpointId])).rows[0]?.v ?? null)
+    ? ((
+        await pool.query<{ v: number }>('select value as v from readings where channel_id = $1 order by ts desc limit 1', [
+          oven.setpointId,
+        ])
+      ).rows[0]?.v ?? null)
     : null;
   const from = Math.max(openedMs, nowMs - 6 * 3_600_000);
   const [{ rows }, w] = await Promise.all([
@@ -180,10 +223,17 @@ async function loadState(id: number, ovenAssetId: number, openedMs: number, jobs
   ]);
   let soakMinutes = Number.NaN;
   if (w) {
-    const f = sp !== null && sp > 0 ? arrheniusFactor(sp, { activationEnergyKJMol: w.limits.activationEnergyKJMol, referenceC: w.limits.referenceC }) : 1;
+    const f =
+      sp !== null && sp > 0
+        ? arrheniusFactor(sp, { activationEnergyKJMol: w.limits.activationEnergyKJMol, referenceC: w.limits.referenceC })
+        : 1;
     soakMinutes = w.limits.minEquivalentMinutes / f;
   }
-  const ph = ovenLoadPhase({ setpointC: sp, readings: rows.map((r) => ({ tMs: r.t, tempC: r.v })), soakMinutesRequired: Number.isFinite(soakMinutes) ? soakMinutes : 0 });
+  const ph = ovenLoadPhase({
+    setpointC: sp,
+    readings: rows.map((r) => ({ tMs: r.t, tempC: r.v })),
+    soakMinutesRequired: Number.isFinite(soakMinutes) ? soakMinutes : 0,
+  });
   return {
     ...base,
     phase: ph.phase,

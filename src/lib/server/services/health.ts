@@ -7,7 +7,15 @@ export interface HealthReport {
   time: string;
   db: { ok: boolean; latencyMs?: number; error?: string };
   broker: { ok: boolean; error?: string };
-  ingest: { ok: boolean; workers: number; lagMs: number | null; heartbeatAgeMs: number | null; buffered: number; journalBytes: number; error?: string };
+  ingest: {
+    ok: boolean;
+    workers: number;
+    lagMs: number | null;
+    heartbeatAgeMs: number | null;
+    buffered: number;
+    journalBytes: number;
+    error?: string;
+  };
   failing: string[];
 }
 
@@ -18,9 +26,22 @@ export async function healthReport(): Promise<HealthReport> {
   const failing: string[] = [];
   const t0 = performance.now();
   const db: HealthReport['db'] = { ok: false };
-  const ingest: HealthReport['ingest'] = { ok: false, workers: 0, lagMs: null, heartbeatAgeMs: null, buffered: 0, journalBytes: 0 };
+  const ingest: HealthReport['ingest'] = {
+    ok: false,
+    workers: 0,
+    lagMs: null,
+    heartbeatAgeMs: null,
+    buffered: 0,
+    journalBytes: 0,
+  };
   try {
-    const { rows } = await pgPool().query<{ n: number; lag: number | null; age: number | null; buffered: number; journal: number }>(`
+    const { rows } = await pgPool().query<{
+      n: number;
+      lag: number | null;
+      age: number | null;
+      buffered: number;
+      journal: number;
+    }>(`
       select count(*)::int as n,
              max(lag_ms) as lag,
              min(extract(epoch from now() - heartbeat_at) * 1000)::float8 as age,

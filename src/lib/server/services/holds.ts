@@ -24,8 +24,8 @@ import { HttpProblem } from '../http.ts';
 import { siteTimeZone } from '../stores/settings-store.ts';
 import type { HoldItem, NcItem, NcDetail } from '../../shared/trace-views.ts';
 
-const bad = (path: string, message: string) => new HttpProblem(400, 'Invalid input', `${path}: ${message}`, { errors: [{ path, message }] });
-
+const bad = (path: string, message: string) =>
+  new HttpProblem(400, 'Invalid input', `${path}: ${message}`, { errors: [{ path, message }] });
 
 const HOLD_SELECT = `
   select h.id, j.job_number, j.status as job_status, h.reason, h.placed_at, pu.display_name as placed_by, h.status, h.disposition,
@@ -70,14 +70,21 @@ const toHold = (r: HoldRow): HoldItem => ({
 });
 
 /** Holds (active, closed or all), newest first. */
-export async function listHolds(f: { status: 'active' | 'closed' | 'all'; job?: string | undefined; ncId?: number }): Promise<HoldItem[]> {
+export async function listHolds(f: {
+  status: 'active' | 'closed' | 'all';
+  job?: string | undefined;
+  ncId?: number;
+}): Promise<HoldItem[]> {
   const where: string[] = [];
   const args: unknown[] = [];
   const arg = (v: unknown) => `$${args.push(v)}`;
   if (f.status !== 'all') where.push(`h.status = ${arg(f.status)}`);
   if (f.job) where.push(`j.job_number = ${arg(f.job)}`);
   if (f.ncId) where.push(`h.nc_id = ${arg(f.ncId)}`);
-  const { rows } = await pgPool().query<HoldRow>(`${HOLD_SELECT} ${where.length ? 'where ' + where.join(' and ') : ''} order by h.placed_at desc, h.id desc limit 2000`, args);
+  const { rows } = await pgPool().query<HoldRow>(
+    `${HOLD_SELECT} ${where.length ? 'where ' + where.join(' and ') : ''} order by h.placed_at desc, h.id desc limit 2000`,
+    args,
+  );
   return rows.map(toHold);
 }
 
@@ -85,8 +92,34 @@ export async function holdsCsv(items: HoldItem[]): Promise<string> {
   const tz = await siteTimeZone(pgPool());
   const t = (s: string | null) => (s ? new Date(s).toLocaleString('sv-SE', { timeZone: tz }) : '');
   return toCsv(
-    ['hold', 'job', 'status', 'reason', `placed (${tz})`, 'placed by', 'disposition', 'comment', `closed (${tz})`, 'signed by', 'meaning', 'nonconformance'],
-    items.map((h) => [h.id, h.jobNumber, h.status, h.reason, t(h.placedAt), h.placedBy ?? '', h.disposition ? DISPOSITION_LABELS[h.disposition] : '', h.dispositionComment ?? '', t(h.closedAt), h.signature?.displayName ?? '', h.signature?.meaning ?? '', h.ncId ?? '']),
+    [
+      'hold',
+      'job',
+      'status',
+      'reason',
+      `placed (${tz})`,
+      'placed by',
+      'disposition',
+      'comment',
+      `closed (${tz})`,
+      'signed by',
+      'meaning',
+      'nonconformance',
+    ],
+    items.map((h) => [
+      h.id,
+      h.jobNumber,
+      h.status,
+      h.reason,
+      t(h.placedAt),
+      h.placedBy ?? '',
+      h.disposition ? DISPOSITION_LABELS[h.disposition] : '',
+      h.dispositionComment ?? '',
+      t(h.closedAt),
+      h.signature?.displayName ?? '',
+      h.signature?.meaning ?? '',
+      h.ncId ?? '',
+    ]),
   );
 }
 
@@ -94,10 +127,17 @@ export async function holdsCsv(items: HoldItem[]): Promise<string> {
  * Hold jobs (quality). Unknown job numbers refuse the whole request (400, listing them); jobs
  * already on hold are reported and left as they are.
  */
-export async function placeHolds(user: SessionUser, input: HoldPlace, address: string | null): Promise<{ placed: { holdId: number; jobNumber: string }[]; alreadyHeld: string[] }> {
+export async function placeHolds(
+  user: SessionUser,
+  input: HoldPlace,
+  address: string | null,
+): Promise<{ placed: { holdId: number; jobNumber: string }[]; alreadyHeld: string[] }> {
   const pool = pgPool();
   const nums = [...new Set(input.jobNumbers)];
-  const jobs = await pool.query<{ id: number; job_number: string; status: string }>('select id, job_number, status from jobs where job_number = any($1::text[])', [nums]);
+  const jobs = await pool.query<{ id: number; job_number: string; status: string }>(
+    'select id, job_number, status from jobs where job_number = any($1::text[])',
+    [nums],
+  );
   const known = new Map(jobs.rows.map((r) => [r.job_number, r]));
   const unknown = nums.filter((n) => !known.has(n));
   if (unknown.length) throw bad('jobNumbers', `Unknown job number(s): ${unknown.join(', ')}.`);
@@ -135,7 +175,13 @@ export async function placeHolds(user: SessionUser, input: HoldPlace, address: s
   }
   const actor = actorOf(user, address);
   for (const p of placed) {
-    await audit(actor, { action: 'hold.place', entity: 'hold', entityId: p.holdId, before: { jobNumber: p.jobNumber, jobStatus: before.get(p.jobNumber) }, after: { jobNumber: p.jobNumber, jobStatus: 'held', reason: input.reason, ncId: input.ncId ?? null } });
+    await audit(actor, {
+      action: 'hold.place',
+      entity: 'hold',
+      entityId: p.holdId,
+      before: { jobNumber: p.jobNumber, jobStatus: before.get(p.jobNumber) },
+      after: { jobNumber: p.jobNumber, jobStatus: 'held', reason: input.reason, ncId: input.ncId ?? null },
+    });
   }
   return { placed, alreadyHeld };
 }
@@ -155,7 +201,14 @@ async function closeHoldsSigned(
   const changed: { id: number; jobNumber: string; jobStatusBefore: string }[] = [];
   try {
     await c.query('begin');
-    const { rows } = await c.query<{ id: number; job_id: number; status: string; nc_id: number | null; job_number: string; job_status: string }>(
+    const { rows } = await c.query<{
+      id: number;
+      job_id: number;
+      status: string;
+      nc_id: number | null;
+      job_number: string;
+      job_status: string;
+    }>(
       `select h.id, h.job_id, h.status, h.nc_id, j.job_number, j.status as job_status from holds h join jobs j on j.id = h.job_id where h.id = any($1::int[]) for update of h`,
       [ids],
     );
@@ -163,17 +216,26 @@ async function closeHoldsSigned(
     const missing = ids.filter((i) => !found.has(i));
     if (missing.length) throw bad('holdIds', `No such hold(s): ${missing.join(', ')}.`);
     const closed = rows.filter((r) => r.status !== 'active');
-    if (closed.length) throw new HttpProblem(409, 'Hold already closed', `Hold(s) ${closed.map((r) => `${r.id} (${r.job_number})`).join(', ')} are already closed.`);
+    if (closed.length)
+      throw new HttpProblem(
+        409,
+        'Hold already closed',
+        `Hold(s) ${closed.map((r) => `${r.id} (${r.job_number})`).join(', ')} are already closed.`,
+      );
     if (ncId !== null) {
       const other = rows.filter((r) => r.nc_id !== ncId);
-      if (other.length) throw bad('holdIds', `Hold(s) ${other.map((r) => r.id).join(', ')} do not belong to nonconformance ${ncId}.`);
+      if (other.length)
+        throw bad('holdIds', `Hold(s) ${other.map((r) => r.id).join(', ')} do not belong to nonconformance ${ncId}.`);
     }
     for (const r of rows) {
       await c.query(
         `update holds set status = 'closed', disposition = $2, disposition_comment = $3, closed_at = now(), closed_by = $4, signature = $5::jsonb where id = $1`,
         [r.id, disposition, comment || null, user.id, JSON.stringify(signature)],
       );
-      await c.query(`update jobs set status = $2, updated_at = now() where id = $1`, [r.job_id, DISPOSITION_JOB_STATUS[disposition]]);
+      await c.query(`update jobs set status = $2, updated_at = now() where id = $1`, [
+        r.job_id,
+        DISPOSITION_JOB_STATUS[disposition],
+      ]);
       changed.push({ id: r.id, jobNumber: r.job_number, jobStatusBefore: r.job_status });
     }
     await c.query('commit');
@@ -206,7 +268,6 @@ export async function closeHolds(user: SessionUser, input: HoldClose, address: s
 
 // ---------------------------------------------------------------------------------------------
 // Nonconformances
-
 
 const NC_SELECT = `
   select n.id, n.title, n.description, n.suspected_cause, n.suspected_load_id, n.suspected_bath_charge_id, n.status, n.opened_at,
@@ -253,54 +314,105 @@ const toNc = (r: NcRow): NcItem => ({
 });
 
 export async function listNcs(status?: 'open' | 'closed'): Promise<NcItem[]> {
-  const { rows } = await pgPool().query<NcRow>(`${NC_SELECT} ${status ? 'where n.status = $1' : ''} order by n.opened_at desc limit 1000`, status ? [status] : []);
+  const { rows } = await pgPool().query<NcRow>(
+    `${NC_SELECT} ${status ? 'where n.status = $1' : ''} order by n.opened_at desc limit 1000`,
+    status ? [status] : [],
+  );
   return rows.map(toNc);
 }
-
 
 export async function getNc(id: number): Promise<NcDetail | null> {
   const pool = pgPool();
   const { rows } = await pool.query<NcRow>(`${NC_SELECT} where n.id = $1`, [id]);
   const n = rows[0];
   if (!n) return null;
-  const tests = await pool.query<{ id: number; job_number: string; kind: string; result: string; tested_at: Date; computed: Record<string, unknown> }>(
+  const tests = await pool.query<{
+    id: number;
+    job_number: string;
+    kind: string;
+    result: string;
+    tested_at: Date;
+    computed: Record<string, unknown>;
+  }>(
     `select t.id, j.job_number, t.kind, t.result, t.tested_at, t.computed from nc_tests x join quality_tests t on t.id = x.test_id join jobs j on j.id = t.job_id where x.nc_id = $1 order by t.tested_at`,
     [id],
   );
-  const disp = await pool.query<{ id: number; disposition: Disposition; job_numbers: string[]; comment: string; signature: SignatureRecord; at: Date }>(
+  const disp = await pool.query<{
+    id: number;
+    disposition: Disposition;
+    job_numbers: string[];
+    comment: string;
+    signature: SignatureRecord;
+    at: Date;
+  }>(
     `select d.id, d.disposition, array(select j.job_number from jobs j where j.id = any(d.job_ids) order by j.job_number) as job_numbers, d.comment, d.signature, d.at
        from nc_dispositions d where d.nc_id = $1 order by d.at`,
     [id],
   );
   const load = n.suspected_load_id
-    ? (await pool.query<{ id: number; oven_name: string; opened_at: Date; verdict: string | null }>(`select l.id, a.name as oven_name, l.opened_at, l.verdict from oven_loads l join assets a on a.id = l.oven_asset_id where l.id = $1`, [n.suspected_load_id])).rows[0]
+    ? (
+        await pool.query<{ id: number; oven_name: string; opened_at: Date; verdict: string | null }>(
+          `select l.id, a.name as oven_name, l.opened_at, l.verdict from oven_loads l join assets a on a.id = l.oven_asset_id where l.id = $1`,
+          [n.suspected_load_id],
+        )
+      ).rows[0]
     : undefined;
   const charge = n.suspected_bath_charge_id
-    ? (await pool.query<{ id: number; tank_code: string; lot_code: string; charged_at: Date }>(
-        `select c.id, a.code as tank_code, lo.lot_code, c.charged_at from bath_charges c join assets a on a.id = c.tank_asset_id join lacquer_lots lo on lo.id = c.lot_id where c.id = $1`,
-        [n.suspected_bath_charge_id],
-      )).rows[0]
+    ? (
+        await pool.query<{ id: number; tank_code: string; lot_code: string; charged_at: Date }>(
+          `select c.id, a.code as tank_code, lo.lot_code, c.charged_at from bath_charges c join assets a on a.id = c.tank_asset_id join lacquer_lots lo on lo.id = c.lot_id where c.id = $1`,
+          [n.suspected_bath_charge_id],
+        )
+      ).rows[0]
     : undefined;
   return {
     ...toNc(n),
-    testList: tests.rows.map((t) => ({ id: t.id, jobNumber: t.job_number, kind: t.kind, result: t.result, testedAt: t.tested_at.toISOString(), summary: String(t.computed['summary'] ?? '') })),
+    testList: tests.rows.map((t) => ({
+      id: t.id,
+      jobNumber: t.job_number,
+      kind: t.kind,
+      result: t.result,
+      testedAt: t.tested_at.toISOString(),
+      summary: String(t.computed['summary'] ?? ''),
+    })),
     holdList: await listHolds({ status: 'all', ncId: id }),
-    dispositions: disp.rows.map((d) => ({ id: d.id, disposition: d.disposition, jobNumbers: d.job_numbers, comment: d.comment, signature: d.signature, at: d.at.toISOString() })),
+    dispositions: disp.rows.map((d) => ({
+      id: d.id,
+      disposition: d.disposition,
+      jobNumbers: d.job_numbers,
+      comment: d.comment,
+      signature: d.signature,
+      at: d.at.toISOString(),
+    })),
     load: load ? { id: load.id, ovenName: load.oven_name, openedAt: load.opened_at.toISOString(), verdict: load.verdict } : null,
-    bathCharge: charge ? { id: charge.id, tankCode: charge.tank_code, lotCode: charge.lot_code, chargedAt: charge.charged_at.toISOString() } : null,
+    bathCharge: charge
+      ? { id: charge.id, tankCode: charge.tank_code, lotCode: charge.lot_code, chargedAt: charge.charged_at.toISOString() }
+      : null,
   };
 }
 
 /** Write a nonconformance (quality) tying failed test(s), the suspected cause and existing holds together. */
 export async function createNc(user: SessionUser, input: NcCreate, address: string | null): Promise<NcDetail> {
   const pool = pgPool();
-  const tests = await pool.query<{ id: number; result: string }>('select id, result from quality_tests where id = any($1::int[])', [input.testIds]);
+  const tests = await pool.query<{ id: number; result: string }>(
+    'select id, result from quality_tests where id = any($1::int[])',
+    [input.testIds],
+  );
   const missing = input.testIds.filter((t) => !tests.rows.some((r) => r.id === t));
   if (missing.length) throw bad('testIds', `No such test(s): ${missing.join(', ')}.`);
   const passed = tests.rows.filter((r) => r.result !== 'fail');
-  if (passed.length) throw bad('testIds', `Test(s) ${passed.map((r) => r.id).join(', ')} passed; a nonconformance ties failed tests.`);
-  if (input.suspectedLoadId !== undefined && !(await pool.query('select 1 from oven_loads where id = $1', [input.suspectedLoadId])).rowCount) throw bad('suspectedLoadId', 'No such oven load.');
-  if (input.suspectedBathChargeId !== undefined && !(await pool.query('select 1 from bath_charges where id = $1', [input.suspectedBathChargeId])).rowCount) throw bad('suspectedBathChargeId', 'No such bath charge.');
+  if (passed.length)
+    throw bad('testIds', `Test(s) ${passed.map((r) => r.id).join(', ')} passed; a nonconformance ties failed tests.`);
+  if (
+    input.suspectedLoadId !== undefined &&
+    !(await pool.query('select 1 from oven_loads where id = $1', [input.suspectedLoadId])).rowCount
+  )
+    throw bad('suspectedLoadId', 'No such oven load.');
+  if (
+    input.suspectedBathChargeId !== undefined &&
+    !(await pool.query('select 1 from bath_charges where id = $1', [input.suspectedBathChargeId])).rowCount
+  )
+    throw bad('suspectedBathChargeId', 'No such bath charge.');
   const c = await pool.connect();
   let id: number;
   try {
@@ -308,13 +420,24 @@ export async function createNc(user: SessionUser, input: NcCreate, address: stri
     const r = await c.query<{ id: number }>(
       `insert into nonconformances (title, description, suspected_cause, suspected_load_id, suspected_bath_charge_id, opened_by)
        values ($1, $2, $3, $4, $5, $6) returning id`,
-      [input.title, input.description, input.suspectedCause, input.suspectedLoadId ?? null, input.suspectedBathChargeId ?? null, user.id],
+      [
+        input.title,
+        input.description,
+        input.suspectedCause,
+        input.suspectedLoadId ?? null,
+        input.suspectedBathChargeId ?? null,
+        user.id,
+      ],
     );
     id = r.rows[0]!.id;
-    await c.query('insert into nc_tests (nc_id, test_id) select $1, unnest($2::int[]) on conflict do nothing', [id, input.testIds]);
+    await c.query('insert into nc_tests (nc_id, test_id) select $1, unnest($2::int[]) on conflict do nothing', [
+      id,
+      input.testIds,
+    ]);
     if (input.holdIds.length) {
       const h = await c.query(`update holds set nc_id = $1 where id = any($2::int[]) and status = 'active'`, [id, input.holdIds]);
-      if ((h.rowCount ?? 0) !== new Set(input.holdIds).size) throw bad('holdIds', 'Only active holds can be tied to a nonconformance.');
+      if ((h.rowCount ?? 0) !== new Set(input.holdIds).size)
+        throw bad('holdIds', 'Only active holds can be tied to a nonconformance.');
     }
     await c.query('commit');
   } catch (e) {
@@ -328,14 +451,22 @@ export async function createNc(user: SessionUser, input: NcCreate, address: stri
 }
 
 /** Disposition held jobs of a nonconformance (quality, signed). */
-export async function dispositionNc(user: SessionUser, ncId: number, input: NcDisposition, address: string | null): Promise<NcDetail> {
+export async function dispositionNc(
+  user: SessionUser,
+  ncId: number,
+  input: NcDisposition,
+  address: string | null,
+): Promise<NcDetail> {
   const pool = pgPool();
   const nc = await pool.query<{ status: string }>('select status from nonconformances where id = $1', [ncId]);
   if (!nc.rows[0]) throw new HttpProblem(404, 'Not found', 'No such nonconformance.');
-  if (nc.rows[0].status !== 'open') throw new HttpProblem(409, 'Nonconformance closed', 'A closed nonconformance takes no more dispositions.');
+  if (nc.rows[0].status !== 'open')
+    throw new HttpProblem(409, 'Nonconformance closed', 'A closed nonconformance takes no more dispositions.');
   const signature = await signWithPassword(user, input.password, input.meaning, address);
   const holds = await closeHoldsSigned(user, input.holdIds, input.disposition, input.comment, signature, address, ncId);
-  const jobIds = await pool.query<{ id: number }>('select id from jobs where job_number = any($1::text[])', [holds.map((h) => h.jobNumber)]);
+  const jobIds = await pool.query<{ id: number }>('select id from jobs where job_number = any($1::text[])', [
+    holds.map((h) => h.jobNumber),
+  ]);
   const r = await pool.query<{ id: number }>(
     `insert into nc_dispositions (nc_id, disposition, job_ids, comment, signature) values ($1, $2, $3, $4, $5::jsonb) returning id`,
     [ncId, input.disposition, jobIds.rows.map((x) => x.id), input.comment, JSON.stringify(signature)],
@@ -344,14 +475,24 @@ export async function dispositionNc(user: SessionUser, ncId: number, input: NcDi
     action: 'nc.disposition',
     entity: 'nonconformance',
     entityId: ncId,
-    after: { dispositionId: r.rows[0]!.id, disposition: input.disposition, jobs: holds.map((h) => h.jobNumber), comment: input.comment },
+    after: {
+      dispositionId: r.rows[0]!.id,
+      disposition: input.disposition,
+      jobs: holds.map((h) => h.jobNumber),
+      comment: input.comment,
+    },
     signature,
   });
   return (await getNc(ncId))!;
 }
 
 /** Close a nonconformance (quality, signed) once none of its holds is active. */
-export async function closeNc(user: SessionUser, ncId: number, input: { comment: string; password: string; meaning: string }, address: string | null): Promise<NcDetail> {
+export async function closeNc(
+  user: SessionUser,
+  ncId: number,
+  input: { comment: string; password: string; meaning: string },
+  address: string | null,
+): Promise<NcDetail> {
   const pool = pgPool();
   const nc = await pool.query<{ status: string; active: number }>(
     `select n.status, (select count(*)::int from holds h where h.nc_id = n.id and h.status = 'active') as active from nonconformances n where n.id = $1`,
@@ -360,9 +501,24 @@ export async function closeNc(user: SessionUser, ncId: number, input: { comment:
   const row = nc.rows[0];
   if (!row) throw new HttpProblem(404, 'Not found', 'No such nonconformance.');
   if (row.status !== 'open') throw new HttpProblem(409, 'Already closed', 'This nonconformance is already closed.');
-  if (row.active > 0) throw new HttpProblem(409, 'Jobs still on hold', `${row.active} job(s) tied to this nonconformance are still on hold; disposition them first.`);
+  if (row.active > 0)
+    throw new HttpProblem(
+      409,
+      'Jobs still on hold',
+      `${row.active} job(s) tied to this nonconformance are still on hold; disposition them first.`,
+    );
   const signature = await signWithPassword(user, input.password, input.meaning, address);
-  await pool.query(`update nonconformances set status = 'closed', closed_at = now(), closed_by = $2, close_signature = $3::jsonb where id = $1`, [ncId, user.id, JSON.stringify(signature)]);
-  await audit(actorOf(user, address), { action: 'nc.close', entity: 'nonconformance', entityId: ncId, before: { status: 'open' }, after: { status: 'closed', comment: input.comment }, signature });
+  await pool.query(
+    `update nonconformances set status = 'closed', closed_at = now(), closed_by = $2, close_signature = $3::jsonb where id = $1`,
+    [ncId, user.id, JSON.stringify(signature)],
+  );
+  await audit(actorOf(user, address), {
+    action: 'nc.close',
+    entity: 'nonconformance',
+    entityId: ncId,
+    before: { status: 'open' },
+    after: { status: 'closed', comment: input.comment },
+    signature,
+  });
   return (await getNc(ncId))!;
 }

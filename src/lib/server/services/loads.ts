@@ -6,7 +6,14 @@
 import { ovenLoadPhase } from '../../domain/cure/cure-record.ts';
 import { lttb } from '../../domain/series/lttb.ts';
 import { toCsv } from '../../shared/csv-table.ts';
-import { VERDICT_LABELS, type LoadAddJobs, type LoadClose, type LoadListQuery, type LoadOpen, type StoredCureRecord } from '../../shared/jobs.ts';
+import {
+  VERDICT_LABELS,
+  type LoadAddJobs,
+  type LoadClose,
+  type LoadListQuery,
+  type LoadOpen,
+  type StoredCureRecord,
+} from '../../shared/jobs.ts';
 import { audit } from '../audit.ts';
 import type { SessionUser } from '../auth.ts';
 import { publishLive } from '../broker-link.ts';
@@ -19,20 +26,19 @@ import { windowInForce } from '../stores/window-store.ts';
 import type { LoadAlarm, LoadDetail, LoadListItem, OpenLoadPhase, OvenRow, TrendSeries } from '../../shared/trace-views.ts';
 
 const iso = (d: Date | null): string | null => (d ? d.toISOString() : null);
-const bad = (path: string, message: string) => new HttpProblem(400, 'Invalid input', `${path}: ${message}`, { errors: [{ path, message }] });
+const bad = (path: string, message: string) =>
+  new HttpProblem(400, 'Invalid input', `${path}: ${message}`, { errors: [{ path, message }] });
 
 /** Most points per series sent to a chart (product.md §4: ≤ ~2,000). */
 export const TREND_MAX_POINTS = 1500;
 /** Trend margin around a load, minutes. */
 export const TREND_MARGIN_MIN = 30;
 
-
 /** Every oven of the site. */
 export async function listOvens(): Promise<OvenRow[]> {
   const { rows } = await pgPool().query<OvenRow>(`select id, code, name from assets where kind = 'oven' order by code`);
   return rows;
 }
-
 
 interface LoadRow {
   id: number;
@@ -100,7 +106,11 @@ export async function openLoadPhase(ovenAssetId: number, openedAtMs: number): Pr
   const oven = await ovenChannels(pool, ovenAssetId);
   if (!oven) return { phase: 'idle', setpointC: null, coldestC: null };
   const sp = oven.setpointId
-    ? (await pool.query<{ v: number }>(`select value as v from readings where channel_id = $1 order by ts desc limit 1`, [oven.setpointId])).rows[0]?.v ?? null
+    ? ((
+        await pool.query<{ v: number }>(`select value as v from readings where channel_id = $1 order by ts desc limit 1`, [
+          oven.setpointId,
+        ])
+      ).rows[0]?.v ?? null)
     : null;
   const from = Math.max(openedAtMs, Date.now() - 3 * 3_600_000);
   const { rows } = await pool.query<{ t: number; v: number }>(
@@ -110,7 +120,11 @@ export async function openLoadPhase(ovenAssetId: number, openedAtMs: number): Pr
     [oven.zones.map((z) => z.id), from],
   );
   const w = await windowInForce(pool, ovenAssetId, openedAtMs);
-  const ph = ovenLoadPhase({ setpointC: sp, readings: rows.map((r) => ({ tMs: r.t, tempC: r.v })), soakMinutesRequired: w?.limits.minEquivalentMinutes ?? 0 });
+  const ph = ovenLoadPhase({
+    setpointC: sp,
+    readings: rows.map((r) => ({ tMs: r.t, tempC: r.v })),
+    soakMinutesRequired: w?.limits.minEquivalentMinutes ?? 0,
+  });
   return { ...ph, setpointC: sp, coldestC: rows.at(-1)?.v ?? null };
 }
 
@@ -124,7 +138,10 @@ export async function listLoads(q: LoadListQuery): Promise<LoadListItem[]> {
   if (q.verdict) where.push(`l.verdict = ${arg(q.verdict)}`);
   if (q.from) where.push(`l.opened_at >= ${arg(q.from)}`);
   if (q.to) where.push(`l.opened_at < ${arg(q.to)}`);
-  if (q.job) where.push(`exists (select 1 from load_jobs lj join jobs j on j.id = lj.job_id where lj.load_id = l.id and j.job_number = ${arg(q.job)})`);
+  if (q.job)
+    where.push(
+      `exists (select 1 from load_jobs lj join jobs j on j.id = lj.job_id where lj.load_id = l.id and j.job_number = ${arg(q.job)})`,
+    );
   const { rows } = await pgPool().query<LoadRow>(
     `${LOAD_SELECT} ${where.length ? 'where ' + where.join(' and ') : ''} order by l.opened_at desc limit ${arg(q.limit)}`,
     args,
@@ -142,7 +159,24 @@ export async function loadsCsv(items: LoadListItem[]): Promise<string> {
   const tz = await siteTimeZone(pgPool());
   const fmt = (s: string | null) => (s ? new Date(s).toLocaleString('sv-SE', { timeZone: tz }) : '');
   return toCsv(
-    ['load', 'oven', `opened (${tz})`, `closed (${tz})`, 'status', 'phase', 'opened by', 'verdict', 'jobs', 'equivalent min', 'peak °C', 'min at/above minimum', 'door openings', 'data gaps', 'window', 'window version'],
+    [
+      'load',
+      'oven',
+      `opened (${tz})`,
+      `closed (${tz})`,
+      'status',
+      'phase',
+      'opened by',
+      'verdict',
+      'jobs',
+      'equivalent min',
+      'peak °C',
+      'min at/above minimum',
+      'door openings',
+      'data gaps',
+      'window',
+      'window version',
+    ],
     items.map((i) => [
       i.id,
       i.ovenCode,
@@ -164,9 +198,13 @@ export async function loadsCsv(items: LoadListItem[]): Promise<string> {
   );
 }
 
-
 /** Alarms on the oven, its zones or its channels (or on the load itself) raised or re-activated during [from, to]. */
-export async function alarmsDuring(ovenAssetId: number, loadId: number | null, fromMs: number, toMs: number): Promise<LoadAlarm[]> {
+export async function alarmsDuring(
+  ovenAssetId: number,
+  loadId: number | null,
+  fromMs: number,
+  toMs: number,
+): Promise<LoadAlarm[]> {
   const { rows } = await pgPool().query<{
     id: number;
     priority: string;
@@ -200,7 +238,6 @@ export async function alarmsDuring(ovenAssetId: number, loadId: number | null, f
   }));
 }
 
-
 /** The oven's setpoint, zone air temperatures and door over [from, to], each downsampled (LTTB) to ≤ 1500 points. */
 export async function ovenTrend(ovenAssetId: number, fromMs: number, toMs: number): Promise<TrendSeries[]> {
   const pool = pgPool();
@@ -218,13 +255,20 @@ export async function ovenTrend(ovenAssetId: number, fromMs: number, toMs: numbe
       [c.id, fromMs, toMs],
     );
     // The door and the setpoint are steps: keep every change rather than a triangle-picked sample.
-    const points = c.kind === 'zone' ? lttb(rows, TREND_MAX_POINTS) : rows.filter((r, i) => i === 0 || i === rows.length - 1 || r.y !== rows[i - 1]!.y || r.y !== rows[i + 1]!.y);
-    out.push({ key: c.key, label: c.label, unit: c.unit, kind: c.kind, points: points.length > TREND_MAX_POINTS * 2 ? lttb(points, TREND_MAX_POINTS) : points });
+    const points =
+      c.kind === 'zone'
+        ? lttb(rows, TREND_MAX_POINTS)
+        : rows.filter((r, i) => i === 0 || i === rows.length - 1 || r.y !== rows[i - 1]!.y || r.y !== rows[i + 1]!.y);
+    out.push({
+      key: c.key,
+      label: c.label,
+      unit: c.unit,
+      kind: c.kind,
+      points: points.length > TREND_MAX_POINTS * 2 ? lttb(points, TREND_MAX_POINTS) : points,
+    });
   }
   return out;
 }
-
-
 
 /** One load with its record, jobs and the alarms during it; null when unknown. */
 export async function getLoad(id: number): Promise<LoadDetail | null> {
@@ -233,7 +277,15 @@ export async function getLoad(id: number): Promise<LoadDetail | null> {
   const r = rows[0];
   if (!r) return null;
   const openPhase = r.status === 'open' ? await openLoadPhase(r.oven_asset_id, r.opened_at.getTime()) : null;
-  const jobs = await pool.query<{ job_id: number; job_number: string; status: string; rack_code: string | null; added_at: Date; tests: number; failed: number }>(
+  const jobs = await pool.query<{
+    job_id: number;
+    job_number: string;
+    status: string;
+    rack_code: string | null;
+    added_at: Date;
+    tests: number;
+    failed: number;
+  }>(
     `select j.id as job_id, j.job_number, j.status, k.code as rack_code, lj.added_at,
             (select count(*)::int from quality_tests t where t.job_id = j.id) as tests,
             (select count(*)::int from quality_tests t where t.job_id = j.id and t.result = 'fail') as failed
@@ -244,13 +296,13 @@ export async function getLoad(id: number): Promise<LoadDetail | null> {
   const toMs = r.closed_at?.getTime() ?? Date.now();
   const alarms = await alarmsDuring(r.oven_asset_id, r.id, r.opened_at.getTime(), toMs);
   const w = r.window_id
-    ? (
+    ? ((
         await pool.query<{ id: number; name: string; version: number; lacquer: string; substrate: string }>(
           `select pw.id, pw.name, pw.version, l.name as lacquer, m.name as substrate
              from process_windows pw join lacquers l on l.id = pw.lacquer_id join materials m on m.id = pw.material_id where pw.id = $1`,
           [r.window_id],
         )
-      ).rows[0] ?? null
+      ).rows[0] ?? null)
     : null;
   return {
     ...toItem(r, openPhase?.phase ?? null),
@@ -286,16 +338,35 @@ function when(at: string | undefined, what: string): number {
 /** Open a load by hand (operator). */
 export async function openLoadByHand(user: SessionUser, input: LoadOpen, address: string | null): Promise<LoadDetail> {
   const atMs = when(input.openedAt, 'openedAt');
-  const r = await openLoad(pgPool(), { ovenAssetId: input.ovenAssetId, atMs, by: 'user', userId: user.id, note: input.note ?? null }, publishLive);
-  await audit(actorOf(user, address), { action: 'load.open', entity: 'oven_load', entityId: r.id, after: { ovenAssetId: input.ovenAssetId, openedAt: new Date(atMs).toISOString(), windowId: r.windowId } });
+  const r = await openLoad(
+    pgPool(),
+    { ovenAssetId: input.ovenAssetId, atMs, by: 'user', userId: user.id, note: input.note ?? null },
+    publishLive,
+  );
+  await audit(actorOf(user, address), {
+    action: 'load.open',
+    entity: 'oven_load',
+    entityId: r.id,
+    after: { ovenAssetId: input.ovenAssetId, openedAt: new Date(atMs).toISOString(), windowId: r.windowId },
+  });
   return (await getLoad(r.id))!;
 }
 
 /** Close a load by hand; computes the cure record. */
-export async function closeLoadByHand(user: SessionUser, id: number, input: LoadClose, address: string | null): Promise<LoadDetail> {
+export async function closeLoadByHand(
+  user: SessionUser,
+  id: number,
+  input: LoadClose,
+  address: string | null,
+): Promise<LoadDetail> {
   const atMs = when(input.closedAt, 'closedAt');
   const r = await closeLoad(pgPool(), id, { atMs, by: 'user', userId: user.id, note: input.note ?? null }, publishLive);
-  await audit(actorOf(user, address), { action: 'load.close', entity: 'oven_load', entityId: id, after: { closedAt: new Date(atMs).toISOString(), verdict: r.verdict, alarmId: r.alarmId } });
+  await audit(actorOf(user, address), {
+    action: 'load.close',
+    entity: 'oven_load',
+    entityId: id,
+    after: { closedAt: new Date(atMs).toISOString(), verdict: r.verdict, alarmId: r.alarmId },
+  });
   return (await getLoad(id))!;
 }
 
@@ -304,19 +375,33 @@ export async function recompute(user: SessionUser, id: number, address: string |
   const before = await pgPool().query<{ verdict: string | null }>('select verdict from oven_loads where id = $1', [id]);
   if (!before.rows[0]) throw new HttpProblem(404, 'Not found', 'No such oven load.');
   const r = await recomputeLoad(pgPool(), id, publishLive);
-  await audit(actorOf(user, address), { action: 'load.recompute', entity: 'oven_load', entityId: id, before: { verdict: before.rows[0].verdict }, after: { verdict: r.verdict, alarmId: r.alarmId } });
+  await audit(actorOf(user, address), {
+    action: 'load.recompute',
+    entity: 'oven_load',
+    entityId: id,
+    before: { verdict: before.rows[0].verdict },
+    after: { verdict: r.verdict, alarmId: r.alarmId },
+  });
   return r;
 }
 
 /** Scan jobs and racks into an open load. */
 export async function addJobs(user: SessionUser, id: number, input: LoadAddJobs, address: string | null) {
   const r = await addJobsToLoad(pgPool(), id, { jobNumbers: input.jobNumbers, rackCodes: input.rackCodes, userId: user.id });
-  if (r.added.length) await audit(actorOf(user, address), { action: 'load.jobs.add', entity: 'oven_load', entityId: id, after: { added: r.added, racks: Object.keys(r.fromRacks) } });
+  if (r.added.length)
+    await audit(actorOf(user, address), {
+      action: 'load.jobs.add',
+      entity: 'oven_load',
+      entityId: id,
+      after: { added: r.added, racks: Object.keys(r.fromRacks) },
+    });
   return r;
 }
 
 /** The site's name and time zone (for record headers). */
 export async function siteInfo(): Promise<{ name: string; timeZone: string }> {
-  const { rows } = await pgPool().query<{ name: string; time_zone: string }>('select name, time_zone from sites order by id limit 1');
+  const { rows } = await pgPool().query<{ name: string; time_zone: string }>(
+    'select name, time_zone from sites order by id limit 1',
+  );
   return { name: rows[0]?.name ?? 'Coatrail', timeZone: rows[0]?.time_zone ?? 'UTC' };
 }

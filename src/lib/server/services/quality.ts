@@ -7,7 +7,16 @@
 import { evaluateSpc } from '../../domain/spc/evaluate.ts';
 import { toCsv } from '../../shared/csv-table.ts';
 import { isoWeekKey } from '../../shared/site-time.ts';
-import { ADHESION_KINDS, AcceptanceSchema, TEST_KIND_LABELS, type Acceptance, type TestCreate, type TestKind, type TestListItem, type TestListQuery } from '../../shared/quality.ts';
+import {
+  ADHESION_KINDS,
+  AcceptanceSchema,
+  TEST_KIND_LABELS,
+  type Acceptance,
+  type TestCreate,
+  type TestKind,
+  type TestListItem,
+  type TestListQuery,
+} from '../../shared/quality.ts';
 import { SpcEvaluateInputSchema } from '../../shared/spc.ts';
 import { audit } from '../audit.ts';
 import type { SessionUser } from '../auth.ts';
@@ -87,7 +96,20 @@ export async function listTests(q: TestListQuery): Promise<TestListItem[]> {
 export async function testsCsv(items: TestListItem[]): Promise<string> {
   const tz = await siteTimeZone(pgPool());
   return toCsv(
-    ['test', 'job', 'kind', `tested (${tz})`, 'result', 'summary', 'boil cycles', 'tested by', 'load', 'oven', 'job status', 'reasons'],
+    [
+      'test',
+      'job',
+      'kind',
+      `tested (${tz})`,
+      'result',
+      'summary',
+      'boil cycles',
+      'tested by',
+      'load',
+      'oven',
+      'job status',
+      'reasons',
+    ],
     items.map((t) => [
       t.id,
       t.jobNumber,
@@ -105,14 +127,20 @@ export async function testsCsv(items: TestListItem[]): Promise<string> {
   );
 }
 
-
-
 export async function getTest(id: number): Promise<TestDetail | null> {
   const pool = pgPool();
   const { rows } = await pool.query<TestRow>(`${TEST_SELECT} where t.id = $1`, [id]);
   const r = rows[0];
   if (!r) return null;
-  const files = await pool.query<{ id: number; filename: string; mime: string; size_bytes: number; sha256: string; uploaded_at: Date; uploaded_by: string | null }>(
+  const files = await pool.query<{
+    id: number;
+    filename: string;
+    mime: string;
+    size_bytes: number;
+    sha256: string;
+    uploaded_at: Date;
+    uploaded_by: string | null;
+  }>(
     `select f.id, f.filename, f.mime, f.size_bytes, f.sha256, f.uploaded_at, u.display_name as uploaded_by
        from test_files f left join users u on u.id = f.uploaded_by where f.test_id = $1 order by f.id`,
     [id],
@@ -122,7 +150,15 @@ export async function getTest(id: number): Promise<TestDetail | null> {
     inputs: r.inputs,
     note: r.note,
     acceptance: r.acceptance,
-    fileList: files.rows.map((f) => ({ id: f.id, filename: f.filename, mime: f.mime, sizeBytes: f.size_bytes, sha256: f.sha256, uploadedAt: f.uploaded_at.toISOString(), uploadedBy: f.uploaded_by })),
+    fileList: files.rows.map((f) => ({
+      id: f.id,
+      filename: f.filename,
+      mime: f.mime,
+      sizeBytes: f.size_bytes,
+      sha256: f.sha256,
+      uploadedAt: f.uploaded_at.toISOString(),
+      uploadedBy: f.uploaded_by,
+    })),
   };
 }
 
@@ -130,10 +166,18 @@ export async function getTest(id: number): Promise<TestDetail | null> {
 export async function createTest(user: SessionUser, test: TestCreate, address: string | null): Promise<RecordedTest> {
   const now = Date.now();
   const atMs = test.testedAt ? Date.parse(test.testedAt) : now;
-  if (atMs > now + 5 * 60_000) throw new HttpProblem(400, 'Invalid input', 'testedAt: in the future', { errors: [{ path: 'testedAt', message: 'The test time is in the future.' }] });
+  if (atMs > now + 5 * 60_000)
+    throw new HttpProblem(400, 'Invalid input', 'testedAt: in the future', {
+      errors: [{ path: 'testedAt', message: 'The test time is in the future.' }],
+    });
   const r = await recordTest(pgPool(), { test, testedAtMs: atMs, userId: user.id, userLabel: user.displayName });
   const { spectrumCsv: _omit, ...logged } = test as TestCreate & { spectrumCsv?: string };
-  await audit(actorOf(user, address), { action: 'test.record', entity: 'quality_test', entityId: r.id, after: { ...logged, result: r.result, computed: r.computed } });
+  await audit(actorOf(user, address), {
+    action: 'test.record',
+    entity: 'quality_test',
+    entityId: r.id,
+    after: { ...logged, result: r.result, computed: r.computed },
+  });
   return r;
 }
 
@@ -164,11 +208,15 @@ export function getAcceptance(): Promise<Acceptance> {
 export async function putAcceptance(user: SessionUser, value: Acceptance, address: string | null): Promise<Acceptance> {
   const parsed = AcceptanceSchema.parse(value);
   const before = await writeSetting(pgPool(), 'acceptance', parsed);
-  await audit(actorOf(user, address), { action: 'settings.acceptance', entity: 'site_settings', entityId: 'acceptance', before, after: parsed });
+  await audit(actorOf(user, address), {
+    action: 'settings.acceptance',
+    entity: 'site_settings',
+    entityId: 'acceptance',
+    before,
+    after: parsed,
+  });
   return parsed;
 }
-
-
 
 /**
  * Adhesion (cross-cut and boil) failure rate per ISO week in the site's time zone, over the last
@@ -193,7 +241,12 @@ export async function adhesionPChart(weeks = 12): Promise<AdhesionChart> {
   }
   const list = [...byWeek.values()].sort((a, b) => a.startMs - b.startMs).slice(-weeks);
   if (list.length < 2) return { weeks: list, evaluation: null, message: 'A p chart needs adhesion tests in at least two weeks.' };
-  const parsed = SpcEvaluateInputSchema.safeParse({ chart: 'p', counts: list.map((w) => w.failed), sizes: list.map((w) => w.tests), rules: ['we1'] });
+  const parsed = SpcEvaluateInputSchema.safeParse({
+    chart: 'p',
+    counts: list.map((w) => w.failed),
+    sizes: list.map((w) => w.tests),
+    rules: ['we1'],
+  });
   if (!parsed.success) return { weeks: list, evaluation: null, message: parsed.error.issues.map((i) => i.message).join('; ') };
   try {
     return { weeks: list, evaluation: evaluateSpc(parsed.data), message: null };
@@ -201,7 +254,6 @@ export async function adhesionPChart(weeks = 12): Promise<AdhesionChart> {
     return { weeks: list, evaluation: null, message: (e as Error).message };
   }
 }
-
 
 /** Adhesion tests and failures of the last `days` days grouped by the oven that cured the job. */
 export async function failuresByOven(days = 90): Promise<FailureGroup[]> {
@@ -214,12 +266,25 @@ export async function failuresByOven(days = 90): Promise<FailureGroup[]> {
       group by o.code, o.name order by failed desc, o.code nulls last`,
     [ADHESION_KINDS, days],
   );
-  return rows.map((r) => ({ key: r.code ?? '—', label: r.name ?? 'No oven load recorded', tests: r.tests, failed: r.failed, href: r.code ? `/loads?oven=${encodeURIComponent(r.code)}` : null }));
+  return rows.map((r) => ({
+    key: r.code ?? '—',
+    label: r.name ?? 'No oven load recorded',
+    tests: r.tests,
+    failed: r.failed,
+    href: r.code ? `/loads?oven=${encodeURIComponent(r.code)}` : null,
+  }));
 }
 
 /** Adhesion tests and failures of the last `days` days grouped by the bath charge the job was dipped from. */
 export async function failuresByBathCharge(days = 90): Promise<FailureGroup[]> {
-  const { rows } = await pgPool().query<{ charge_id: number | null; tank: string | null; lot_code: string | null; charged_at: Date | null; tests: number; failed: number }>(
+  const { rows } = await pgPool().query<{
+    charge_id: number | null;
+    tank: string | null;
+    lot_code: string | null;
+    charged_at: Date | null;
+    tests: number;
+    failed: number;
+  }>(
     `select ch.id as charge_id, a.code as tank, lo.lot_code, ch.charged_at, count(*)::int as tests, count(*) filter (where t.result = 'fail')::int as failed
        from quality_tests t
        left join lateral (select d.bath_charge_id from dip_run_jobs dj join dip_runs d on d.id = dj.dip_run_id where dj.job_id = t.job_id order by d.dipped_at desc limit 1) dr on true
@@ -233,7 +298,9 @@ export async function failuresByBathCharge(days = 90): Promise<FailureGroup[]> {
   const tz = await siteTimeZone(pgPool());
   return rows.map((r) => ({
     key: r.charge_id ? `charge ${r.charge_id}` : '—',
-    label: r.charge_id ? `${r.tank} · lot ${r.lot_code} · charged ${r.charged_at?.toLocaleDateString('en-GB', { timeZone: tz })}` : 'No bath charge recorded',
+    label: r.charge_id
+      ? `${r.tank} · lot ${r.lot_code} · charged ${r.charged_at?.toLocaleDateString('en-GB', { timeZone: tz })}`
+      : 'No bath charge recorded',
     tests: r.tests,
     failed: r.failed,
     href: r.tank ? `/baths?tank=${encodeURIComponent(r.tank)}` : null,

@@ -17,7 +17,11 @@ export async function signIn(cookies: AstroCookies, url: URL, username: string, 
 export async function signOut(cookies: AstroCookies, url: URL, locals: App.Locals, address: string | null) {
   if (locals.session) {
     await lucia.invalidateSession(locals.session.id);
-    if (locals.user) await audit({ id: locals.user.id, label: locals.user.username, address }, { action: 'auth.signed-out', entity: 'user', entityId: locals.user.id });
+    if (locals.user)
+      await audit(
+        { id: locals.user.id, label: locals.user.username, address },
+        { action: 'auth.signed-out', entity: 'user', entityId: locals.user.id },
+      );
   }
   const c = lucia.createBlankSessionCookie();
   cookies.set(c.name, c.value, { ...c.attributes, secure: secureCookies(url) });

@@ -38,12 +38,21 @@ export function surveySettings(): Promise<SurveySettings> {
   return readSetting(pgPool(), 'ovenSurveys', SurveySettingsSchema, DEFAULT_SURVEY_SETTINGS);
 }
 
-export async function putSurveySettings(user: SessionUser, value: SurveySettings, address: string | null): Promise<SurveySettings> {
+export async function putSurveySettings(
+  user: SessionUser,
+  value: SurveySettings,
+  address: string | null,
+): Promise<SurveySettings> {
   const before = await writeSetting(pgPool(), 'ovenSurveys', value);
-  await audit(actorOf(user, address), { action: 'settings.ovenSurveys', entity: 'site_settings', entityId: 'ovenSurveys', before, after: value });
+  await audit(actorOf(user, address), {
+    action: 'settings.ovenSurveys',
+    entity: 'site_settings',
+    entityId: 'ovenSurveys',
+    before,
+    after: value,
+  });
   return value;
 }
-
 
 /** Parse and compute a survey (nothing stored). 400 with line numbers for a bad file; 422 when the soak never stabilised. */
 export async function computeSurvey(input: SurveyInput): Promise<SurveyComputation> {
@@ -52,27 +61,49 @@ export async function computeSurvey(input: SurveyInput): Promise<SurveyComputati
     table = parseSurveyCsv(input.csv);
   } catch (e) {
     if (e instanceof SurveyCsvError) {
-      throw new HttpProblem(400, 'Malformed survey file', e.message, { errors: e.errors.map((x) => ({ path: 'csv', message: `line ${x.line}: ${x.message}` })) });
+      throw new HttpProblem(400, 'Malformed survey file', e.message, {
+        errors: e.errors.map((x) => ({ path: 'csv', message: `line ${x.line}: ${x.message}` })),
+      });
     }
-    if (e instanceof CsvSyntaxError) throw new HttpProblem(400, 'Malformed CSV', e.message, { errors: [{ path: 'csv', message: e.message }] });
+    if (e instanceof CsvSyntaxError)
+      throw new HttpProblem(400, 'Malformed CSV', e.message, { errors: [{ path: 'csv', message: e.message }] });
     throw e;
   }
   const names = table.sensors.map((s) => s.name);
   const unknown = Object.keys(input.corrections).filter((n) => !names.includes(n));
-  if (unknown.length) throw new HttpProblem(400, 'Invalid input', `corrections: unknown sensor(s) ${unknown.join(', ')}`, { errors: [{ path: 'corrections', message: `Not in the file: ${unknown.join(', ')}.` }] });
+  if (unknown.length)
+    throw new HttpProblem(400, 'Invalid input', `corrections: unknown sensor(s) ${unknown.join(', ')}`, {
+      errors: [{ path: 'corrections', message: `Not in the file: ${unknown.join(', ')}.` }],
+    });
   const oven = await pgPool().query<{ kind: string }>('select kind from assets where id = $1', [input.ovenAssetId]);
-  if (oven.rows[0]?.kind !== 'oven') throw new HttpProblem(400, 'Invalid input', 'ovenAssetId: not an oven', { errors: [{ path: 'ovenAssetId', message: 'Choose an oven.' }] });
+  if (oven.rows[0]?.kind !== 'oven')
+    throw new HttpProblem(400, 'Invalid input', 'ovenAssetId: not an oven', {
+      errors: [{ path: 'ovenAssetId', message: 'Choose an oven.' }],
+    });
   const auto = input.stabilisedFromMinutes === undefined;
-  const idx = auto ? autoStabilisedIndex(table, input.setpointC, input.corrections) : indexAtMinutes(table, input.stabilisedFromMinutes as number);
+  const idx = auto
+    ? autoStabilisedIndex(table, input.setpointC, input.corrections)
+    : indexAtMinutes(table, input.stabilisedFromMinutes as number);
   if (idx === null) {
     const msg = auto
       ? `Not every sensor reached ${input.setpointC - 2} °C (setpoint − 2 °C) with 10 minutes of data after it: choose the start of the soak yourself, or check the setpoint.`
       : 'No readings at or after the chosen start of the soak.';
-    throw new HttpProblem(422, 'No stabilised soak', msg, { errors: [{ path: auto ? 'csv' : 'stabilisedFromMinutes', message: msg }] });
+    throw new HttpProblem(422, 'No stabilised soak', msg, {
+      errors: [{ path: auto ? 'csv' : 'stabilisedFromMinutes', message: msg }],
+    });
   }
   const settings = await surveySettings();
-  const sensors = table.sensors.map((s) => ({ name: s.name, readingsC: s.readingsC, correctionC: input.corrections[s.name] ?? 0 }));
-  const result = uniformitySurvey({ setpointC: input.setpointC, sensors, stabilisedFromIndex: idx, classTable: settings.classTable });
+  const sensors = table.sensors.map((s) => ({
+    name: s.name,
+    readingsC: s.readingsC,
+    correctionC: input.corrections[s.name] ?? 0,
+  }));
+  const result = uniformitySurvey({
+    setpointC: input.setpointC,
+    sensors,
+    stabilisedFromIndex: idx,
+    classTable: settings.classTable,
+  });
   const surveyedAtMs = table.startMs ?? (input.surveyedAt ? Date.parse(input.surveyedAt) : Date.now());
   return {
     result,
@@ -84,16 +115,32 @@ export async function computeSurvey(input: SurveyInput): Promise<SurveyComputati
     durationMinutes: table.minutes.at(-1) as number,
     sensors: sensors.map((s) => {
       const v = s.readingsC.slice(idx).map((x) => x + s.correctionC);
-      return { name: s.name, correctionC: s.correctionC, minC: Math.min(...v), maxC: Math.max(...v), meanC: v.reduce((a, b) => a + b, 0) / v.length };
+      return {
+        name: s.name,
+        correctionC: s.correctionC,
+        minC: Math.min(...v),
+        maxC: Math.max(...v),
+        meanC: v.reduce((a, b) => a + b, 0) / v.length,
+      };
     }),
     classTableName: settings.classTableName,
     classTable: settings.classTable,
-    series: sensors.map((s) => ({ name: s.name, points: lttb(table.minutes.map((m, i) => ({ x: m, y: (s.readingsC[i] as number) + s.correctionC })), 600) })),
+    series: sensors.map((s) => ({
+      name: s.name,
+      points: lttb(
+        table.minutes.map((m, i) => ({ x: m, y: (s.readingsC[i] as number) + s.correctionC })),
+        600,
+      ),
+    })),
   };
 }
 
 /** Store a survey (engineer, quality) with its raw file. */
-export async function recordSurvey(user: SessionUser, input: SurveyInput, address: string | null): Promise<{ id: number } & SurveyComputation> {
+export async function recordSurvey(
+  user: SessionUser,
+  input: SurveyInput,
+  address: string | null,
+): Promise<{ id: number } & SurveyComputation> {
   const c = await computeSurvey(input);
   const pool = pgPool();
   const startMs = c.surveyedAtMs;
@@ -113,28 +160,58 @@ export async function recordSurvey(user: SessionUser, input: SurveyInput, addres
       c.result.uniformityClass,
       c.classTableName,
       JSON.stringify(c.classTable),
-      JSON.stringify({ ...c.result, rows: c.rows, durationMinutes: c.durationMinutes, stabilisedFromMinutes: c.stabilisedFromMinutes }),
+      JSON.stringify({
+        ...c.result,
+        rows: c.rows,
+        durationMinutes: c.durationMinutes,
+        stabilisedFromMinutes: c.stabilisedFromMinutes,
+      }),
       input.note ?? null,
       user.id,
     ],
   );
   const id = rows[0]!.id;
-  await attachFile(pool, { surveyId: id, name: input.fileName || 'survey.csv', bytes: new TextEncoder().encode(input.csv), userId: user.id });
+  await attachFile(pool, {
+    surveyId: id,
+    name: input.fileName || 'survey.csv',
+    bytes: new TextEncoder().encode(input.csv),
+    userId: user.id,
+  });
   await audit(actorOf(user, address), {
     action: 'survey.record',
     entity: 'oven_survey',
     entityId: id,
-    after: { ovenAssetId: input.ovenAssetId, setpointC: input.setpointC, hottestDeviationC: c.result.hottestDeviationC, coldestDeviationC: c.result.coldestDeviationC, uniformityClass: c.result.uniformityClass, classTable: c.classTableName },
+    after: {
+      ovenAssetId: input.ovenAssetId,
+      setpointC: input.setpointC,
+      hottestDeviationC: c.result.hottestDeviationC,
+      coldestDeviationC: c.result.coldestDeviationC,
+      uniformityClass: c.result.uniformityClass,
+      classTable: c.classTableName,
+    },
   });
   return { id, ...c };
 }
 
-
 export async function listSurveys(ovenAssetId?: number, id?: number): Promise<SurveyItem[]> {
   const { rows } = await pgPool().query<{
-    id: number; oven_asset_id: number; oven_code: string; oven_name: string; surveyed_at: Date; setpoint_c: number; hottest_deviation_c: number;
-    coldest_deviation_c: number; uniformity_class: number | null; class_table_name: string; stabilised_auto: boolean; stabilised_from: Date | null;
-    sensors: SurveyComputation['sensors']; result: UniformityResult; note: string | null; recorded_by: string | null; file_id: number | null;
+    id: number;
+    oven_asset_id: number;
+    oven_code: string;
+    oven_name: string;
+    surveyed_at: Date;
+    setpoint_c: number;
+    hottest_deviation_c: number;
+    coldest_deviation_c: number;
+    uniformity_class: number | null;
+    class_table_name: string;
+    stabilised_auto: boolean;
+    stabilised_from: Date | null;
+    sensors: SurveyComputation['sensors'];
+    result: UniformityResult;
+    note: string | null;
+    recorded_by: string | null;
+    file_id: number | null;
   }>(
     `select s.id, s.oven_asset_id, a.code as oven_code, a.name as oven_name, s.surveyed_at, s.setpoint_c, s.hottest_deviation_c, s.coldest_deviation_c,
             s.uniformity_class, s.class_table_name, s.stabilised_auto, s.stabilised_from, s.sensors, s.result, s.note, u.display_name as recorded_by,
@@ -167,11 +244,12 @@ export async function listSurveys(ovenAssetId?: number, id?: number): Promise<Su
   }));
 }
 
-
 /** Each oven's last survey and whether it is overdue (older than the configured interval, or never surveyed). */
 export async function surveyStatus(): Promise<{ intervalDays: number; ovens: OvenSurveyStatus[] }> {
   const settings = await surveySettings();
-  const ovens = await pgPool().query<{ id: number; code: string; name: string }>(`select id, code, name from assets where kind = 'oven' order by code`);
+  const ovens = await pgPool().query<{ id: number; code: string; name: string }>(
+    `select id, code, name from assets where kind = 'oven' order by code`,
+  );
   const all = await listSurveys();
   const now = Date.now();
   return {

@@ -15,12 +15,6 @@ import { readSetting } from '../stores/settings-store.ts';
 import { alarmsDuring } from './loads.ts';
 import type { TraceDipRun, TraceLoad, TraceTest, TraceSibling, TraceResult } from '../../shared/trace-views.ts';
 
-
-
-
-
-
-
 const iso = (d: Date | null) => (d ? d.toISOString() : null);
 
 /** The sibling window in hours (site setting, default 8 h). */
@@ -32,7 +26,17 @@ export async function siblingHours(): Promise<number> {
 export async function traceJob(jobNumber: string, hoursOverride?: number): Promise<TraceResult | null> {
   const pool = pgPool();
   const hours = hoursOverride ?? (await siblingHours());
-  const jr = await pool.query<{ id: number; job_number: string; customer_ref: string | null; lens_material: string | null; status: string; hold_id: number | null; reason: string | null; placed_at: Date | null; placed_by: string | null }>(
+  const jr = await pool.query<{
+    id: number;
+    job_number: string;
+    customer_ref: string | null;
+    lens_material: string | null;
+    status: string;
+    hold_id: number | null;
+    reason: string | null;
+    placed_at: Date | null;
+    placed_by: string | null;
+  }>(
     `select j.id, j.job_number, j.customer_ref, j.lens_material, j.status, h.id as hold_id, h.reason, h.placed_at, u.display_name as placed_by
        from jobs j left join holds h on h.job_id = j.id and h.status = 'active' left join users u on u.id = h.placed_by
       where j.job_number = $1`,
@@ -43,11 +47,38 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
 
   // Dip runs with the bath as it was at the dip.
   const dr = await pool.query<{
-    id: number; dipped_at: Date; line_id: number; line_code: string; line_name: string; tank_id: number | null; tank_code: string | null; tank_name: string | null;
-    rack_code: string | null; speed: number | null; samples: number | null; window_id: number | null; window_name: string | null; window_version: number | null;
-    limits: { withdrawalSpeedMmS?: Range; viscosityMm2S?: Range } | null; charge_id: number | null; charged_at: Date | null; lot_code: string | null; lacquer: string | null;
-    expires_on: string | null; pot_life_days: number | null; check_id: number | null; check_at: Date | null; kinematic_mm2s: number | null; method: string | null;
-    cup: string | null; efflux_seconds: number | null; bath_temp_c: number | null; solids_pct: number | null; check_by: string | null; jobs_in_run: number; sensor_visc: number | null;
+    id: number;
+    dipped_at: Date;
+    line_id: number;
+    line_code: string;
+    line_name: string;
+    tank_id: number | null;
+    tank_code: string | null;
+    tank_name: string | null;
+    rack_code: string | null;
+    speed: number | null;
+    samples: number | null;
+    window_id: number | null;
+    window_name: string | null;
+    window_version: number | null;
+    limits: { withdrawalSpeedMmS?: Range; viscosityMm2S?: Range } | null;
+    charge_id: number | null;
+    charged_at: Date | null;
+    lot_code: string | null;
+    lacquer: string | null;
+    expires_on: string | null;
+    pot_life_days: number | null;
+    check_id: number | null;
+    check_at: Date | null;
+    kinematic_mm2s: number | null;
+    method: string | null;
+    cup: string | null;
+    efflux_seconds: number | null;
+    bath_temp_c: number | null;
+    solids_pct: number | null;
+    check_by: string | null;
+    jobs_in_run: number;
+    sensor_visc: number | null;
   }>(
     `select d.id, d.dipped_at, la.id as line_id, la.code as line_code, la.name as line_name, ta.id as tank_id, ta.code as tank_code, ta.name as tank_name,
             k.code as rack_code, d.withdrawal_speed_mm_s as speed, d.stroke_samples as samples, pw.id as window_id, pw.name as window_name,
@@ -91,7 +122,15 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
       jobsInRun: r.jobs_in_run,
       bath: {
         charge: r.charge_id
-          ? { id: r.charge_id, chargedAt: r.charged_at!.toISOString(), lotCode: r.lot_code!, lacquer: r.lacquer!, lotExpiresOn: r.expires_on!, potLifeDays: r.pot_life_days!, age }
+          ? {
+              id: r.charge_id,
+              chargedAt: r.charged_at!.toISOString(),
+              lotCode: r.lot_code!,
+              lacquer: r.lacquer!,
+              lotExpiresOn: r.expires_on!,
+              potLifeDays: r.pot_life_days!,
+              age,
+            }
           : null,
         lastCheck: r.check_id
           ? {
@@ -115,7 +154,18 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
   });
 
   // Loads with record and alarms.
-  const lr = await pool.query<{ id: number; oven_id: number; oven_code: string; oven_name: string; opened_at: Date; closed_at: Date | null; status: 'open' | 'closed'; verdict: StoredCureRecord['verdict'] | null; record: StoredCureRecord | null; jobs_in_load: number }>(
+  const lr = await pool.query<{
+    id: number;
+    oven_id: number;
+    oven_code: string;
+    oven_name: string;
+    opened_at: Date;
+    closed_at: Date | null;
+    status: 'open' | 'closed';
+    verdict: StoredCureRecord['verdict'] | null;
+    record: StoredCureRecord | null;
+    jobs_in_load: number;
+  }>(
     `select l.id, o.id as oven_id, o.code as oven_code, o.name as oven_name, l.opened_at, l.closed_at, l.status, l.verdict, l.record,
             (select count(*)::int from load_jobs x where x.load_id = l.id) as jobs_in_load
        from load_jobs lj join oven_loads l on l.id = lj.load_id join assets o on o.id = l.oven_asset_id
@@ -137,7 +187,16 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
     });
   }
 
-  const tr = await pool.query<{ id: number; kind: TestKind; result: TestResult; tested_at: Date; tested_by_label: string; computed: Record<string, unknown>; boil_cycles: number | null; files: number }>(
+  const tr = await pool.query<{
+    id: number;
+    kind: TestKind;
+    result: TestResult;
+    tested_at: Date;
+    tested_by_label: string;
+    computed: Record<string, unknown>;
+    boil_cycles: number | null;
+    files: number;
+  }>(
     `select t.id, t.kind, t.result, t.tested_at, t.tested_by_label, t.computed, t.boil_cycles,
             (select count(*)::int from test_files f where f.test_id = t.id) as files
        from quality_tests t where t.job_id = $1 order by t.tested_at`,
@@ -156,8 +215,17 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
 
   // Siblings: same load(s); same tank and bath charge within ± hours of each of the job's dips.
   const sr = await pool.query<{
-    job_id: number; job_number: string; status: string; load_ids: number[] | null; bath_runs: { dipRunId: number; dippedAt: string; hoursApart: number }[] | null;
-    tests: number; failed: number; last_kind: TestKind | null; last_result: TestResult | null; last_at: Date | null; hold_id: number | null;
+    job_id: number;
+    job_number: string;
+    status: string;
+    load_ids: number[] | null;
+    bath_runs: { dipRunId: number; dippedAt: string; hoursApart: number }[] | null;
+    tests: number;
+    failed: number;
+    last_kind: TestKind | null;
+    last_result: TestResult | null;
+    last_at: Date | null;
+    hold_id: number | null;
   }>(
     `with my_loads as (select load_id from load_jobs where job_id = $1),
           my_dips as (select d.id, d.tank_asset_id, d.bath_charge_id, d.dipped_at from dip_run_jobs dj join dip_runs d on d.id = dj.dip_run_id where dj.job_id = $1),
@@ -192,10 +260,15 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
     jobNumber: r.job_number,
     status: r.status,
     sameLoads: r.load_ids ?? [],
-    sameBathRuns: (r.bath_runs ?? []).map((b) => ({ ...b, hoursApart: Number(b.hoursApart) })).sort((a, b) => a.dippedAt.localeCompare(b.dippedAt)),
+    sameBathRuns: (r.bath_runs ?? [])
+      .map((b) => ({ ...b, hoursApart: Number(b.hoursApart) }))
+      .sort((a, b) => a.dippedAt.localeCompare(b.dippedAt)),
     tests: r.tests,
     failed: r.failed,
-    lastTest: r.last_kind && r.last_result && r.last_at ? { kind: r.last_kind, result: r.last_result, testedAt: r.last_at.toISOString() } : null,
+    lastTest:
+      r.last_kind && r.last_result && r.last_at
+        ? { kind: r.last_kind, result: r.last_result, testedAt: r.last_at.toISOString() }
+        : null,
     activeHoldId: r.hold_id,
   }));
 
@@ -206,7 +279,9 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
       customerRef: j.customer_ref,
       lensMaterial: j.lens_material,
       status: j.status,
-      activeHold: j.hold_id ? { id: j.hold_id, reason: j.reason!, placedAt: j.placed_at!.toISOString(), placedBy: j.placed_by } : null,
+      activeHold: j.hold_id
+        ? { id: j.hold_id, reason: j.reason!, placedAt: j.placed_at!.toISOString(), placedBy: j.placed_by }
+        : null,
     },
     dipRuns,
     loads,

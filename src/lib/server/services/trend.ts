@@ -62,7 +62,15 @@ async function windowSegments(assetId: number, from: number, to: number): Promis
   return stepsFromSamples(samples, from, to, (a, b) => (a?.id ?? null) === (b?.id ?? null)).map((s) => ({
     fromMs: s.fromMs,
     toMs: s.toMs,
-    window: s.value ? { id: s.value.id, version: s.value.version, name: s.value.name, limits: s.value.limits, effectiveFrom: s.value.effectiveFrom } : null,
+    window: s.value
+      ? {
+          id: s.value.id,
+          version: s.value.version,
+          name: s.value.name,
+          limits: s.value.limits,
+          effectiveFrom: s.value.effectiveFrom,
+        }
+      : null,
   }));
 }
 
@@ -88,7 +96,9 @@ async function doorOpenings(doorId: number, from: number, to: number): Promise<T
       out.push({
         tMs: r.t,
         kind: 'door-open',
-        label: close ? `Door opened for ${secondsWords((close.t - r.t) / 1000)}` : 'Door opened (still open at the end of the view)',
+        label: close
+          ? `Door opened for ${secondsWords((close.t - r.t) / 1000)}`
+          : 'Door opened (still open at the end of the view)',
       });
     }
     return out;
@@ -101,7 +111,14 @@ async function doorOpenings(doorId: number, from: number, to: number): Promise<T
       group by grp order by 1`,
     [doorId, at(from), at(to)],
   );
-  return rows.map((r) => ({ tMs: r.t, kind: 'door-open', label: r.minutes === 1 ? 'Door open within one minute (minute resolution)' : `Door open in ${r.minutes} consecutive minutes (minute resolution)` }));
+  return rows.map((r) => ({
+    tMs: r.t,
+    kind: 'door-open',
+    label:
+      r.minutes === 1
+        ? 'Door open within one minute (minute resolution)'
+        : `Door open in ${r.minutes} consecutive minutes (minute resolution)`,
+  }));
 }
 
 /** Window stretches and events for a channel's trend over [from, to]; null when the channel does not exist. */
@@ -155,7 +172,13 @@ export async function channelAnnotations(channelId: number, from: number, to: nu
 
   const events: TrendEvent[] = [
     ...alarms.rows.map(
-      (r): TrendEvent => ({ tMs: r.t, kind: 'alarm', label: r.message, detail: `${r.source_label} · ${r.priority} priority · now ${r.state}`, priority: r.priority }),
+      (r): TrendEvent => ({
+        tMs: r.t,
+        kind: 'alarm',
+        label: r.message,
+        detail: `${r.source_label} · ${r.priority} priority · now ${r.state}`,
+        priority: r.priority,
+      }),
     ),
     ...additions.rows.map(
       (r): TrendEvent => ({
@@ -175,7 +198,12 @@ export async function channelAnnotations(channelId: number, from: number, to: nu
     ),
     ...loads.rows.flatMap((r): TrendEvent[] => {
       const out: TrendEvent[] = [];
-      if (r.opened >= from && r.opened <= to) out.push({ tMs: r.opened, kind: 'load-start', label: `Load ${r.id} opened (${r.opened_by === 'auto' ? 'detected from the setpoint' : 'by hand'})` });
+      if (r.opened >= from && r.opened <= to)
+        out.push({
+          tMs: r.opened,
+          kind: 'load-start',
+          label: `Load ${r.id} opened (${r.opened_by === 'auto' ? 'detected from the setpoint' : 'by hand'})`,
+        });
       if (r.closed !== null && r.closed >= from && r.closed <= to) {
         out.push({ tMs: r.closed, kind: 'load-end', label: `Load ${r.id} closed${r.verdict ? ` — cure ${r.verdict}` : ''}` });
       }

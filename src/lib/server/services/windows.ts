@@ -86,17 +86,28 @@ type RawWindow = Omit<WindowRow, 'createdAt' | 'updatedAt' | 'effectiveFrom' | '
 };
 
 function toWindow(r: RawWindow): WindowRow {
-  return { ...r, createdAt: iso(r.createdAt)!, updatedAt: iso(r.updatedAt)!, effectiveFrom: iso(r.effectiveFrom), supersededAt: iso(r.supersededAt) };
+  return {
+    ...r,
+    createdAt: iso(r.createdAt)!,
+    updatedAt: iso(r.updatedAt)!,
+    effectiveFrom: iso(r.effectiveFrom),
+    supersededAt: iso(r.supersededAt),
+  };
 }
 
 export async function listMaterials(): Promise<MaterialRow[]> {
-  return q<MaterialRow>(`select id, code, name, refractive_index as "refractiveIndex", active from materials order by refractive_index, name`);
+  return q<MaterialRow>(
+    `select id, code, name, refractive_index as "refractiveIndex", active from materials order by refractive_index, name`,
+  );
 }
 
 export async function createMaterial(user: SessionUser, input: MaterialCreate, address: string | null): Promise<MaterialRow> {
   return db().transaction(async (t) => {
     const dup = await q(`select 1 from materials where code = $1`, [input.code], t);
-    if (dup.length) throw new HttpProblem(409, 'Already exists', `A substrate with code ${input.code} exists.`, { errors: [{ path: 'code', message: 'This code is taken.' }] });
+    if (dup.length)
+      throw new HttpProblem(409, 'Already exists', `A substrate with code ${input.code} exists.`, {
+        errors: [{ path: 'code', message: 'This code is taken.' }],
+      });
     const [row] = await q<MaterialRow>(
       `insert into materials (code, name, refractive_index) values ($1, $2, $3) returning id, code, name, refractive_index as "refractiveIndex", active`,
       [input.code, input.name, input.refractiveIndex],
@@ -116,7 +127,10 @@ export async function listLacquers(): Promise<LacquerRow[]> {
 export async function createLacquer(user: SessionUser, input: LacquerCreate, address: string | null): Promise<LacquerRow> {
   return db().transaction(async (t) => {
     const dup = await q(`select 1 from lacquers where lower(name) = lower($1)`, [input.name], t);
-    if (dup.length) throw new HttpProblem(409, 'Already exists', `A lacquer named ${input.name} exists.`, { errors: [{ path: 'name', message: 'This name is taken.' }] });
+    if (dup.length)
+      throw new HttpProblem(409, 'Already exists', `A lacquer named ${input.name} exists.`, {
+        errors: [{ path: 'name', message: 'This name is taken.' }],
+      });
     const [row] = await q<LacquerRow>(
       `insert into lacquers (name, maker, solids_pct, density_g_cm3, activation_energy_kj_mol, note) values ($1,$2,$3,$4,$5,$6) returning ${LACQUER_COLS}`,
       [input.name, input.maker, input.solidsPct, input.densityGCm3, input.activationEnergyKJMol, input.note ?? null],
@@ -149,10 +163,15 @@ export interface WindowVersion extends WindowRow {
 }
 
 /** A window with all versions of its lacquer × substrate and each version's diff vs the previous one. */
-export async function windowWithVersions(id: number): Promise<{ window: WindowRow; versions: WindowVersion[]; assignments: AssignmentRow[] }> {
+export async function windowWithVersions(
+  id: number,
+): Promise<{ window: WindowRow; versions: WindowVersion[]; assignments: AssignmentRow[] }> {
   const window = await getWindow(id);
   const rows = (
-    await q<RawWindow>(`${WINDOW_SELECT} where pw.lacquer_id = $1 and pw.material_id = $2 order by pw.version`, [window.lacquerId, window.materialId])
+    await q<RawWindow>(`${WINDOW_SELECT} where pw.lacquer_id = $1 and pw.material_id = $2 order by pw.version`, [
+      window.lacquerId,
+      window.materialId,
+    ])
   ).map(toWindow);
   const versions = rows
     .map((w, i) => {
@@ -172,8 +191,14 @@ export async function createDraft(user: SessionUser, input: WindowDraftCreate, a
       [input.lacquerId, input.materialId],
       t,
     );
-    if (!pair?.lacquer) throw new HttpProblem(400, 'Invalid input', 'No such lacquer.', { errors: [{ path: 'lacquerId', message: 'No such lacquer.' }] });
-    if (!pair.material) throw new HttpProblem(400, 'Invalid input', 'No such active substrate.', { errors: [{ path: 'materialId', message: 'No such active substrate.' }] });
+    if (!pair?.lacquer)
+      throw new HttpProblem(400, 'Invalid input', 'No such lacquer.', {
+        errors: [{ path: 'lacquerId', message: 'No such lacquer.' }],
+      });
+    if (!pair.material)
+      throw new HttpProblem(400, 'Invalid input', 'No such active substrate.', {
+        errors: [{ path: 'materialId', message: 'No such active substrate.' }],
+      });
     // Serialise versions of this lacquer × substrate.
     await q(`select pg_advisory_xact_lock(hashtext('process_windows'), $1)`, [input.lacquerId * 1000 + input.materialId], t);
     const [draft] = await q<{ id: number; version: number }>(
@@ -182,9 +207,18 @@ export async function createDraft(user: SessionUser, input: WindowDraftCreate, a
       t,
     );
     if (draft) {
-      throw new HttpProblem(409, 'A draft exists', `Version ${draft.version} of this window is still a draft: edit or approve it first.`, { draftId: draft.id });
+      throw new HttpProblem(
+        409,
+        'A draft exists',
+        `Version ${draft.version} of this window is still a draft: edit or approve it first.`,
+        { draftId: draft.id },
+      );
     }
-    const [next] = await q<{ v: number }>(`select coalesce(max(version), 0) + 1 as v from process_windows where lacquer_id = $1 and material_id = $2`, [input.lacquerId, input.materialId], t);
+    const [next] = await q<{ v: number }>(
+      `select coalesce(max(version), 0) + 1 as v from process_windows where lacquer_id = $1 and material_id = $2`,
+      [input.lacquerId, input.materialId],
+      t,
+    );
     const [row] = await q<{ id: number }>(
       `insert into process_windows (lacquer_id, material_id, version, name, status, limits, note, created_by)
        values ($1, $2, $3, $4, 'draft', $5::jsonb, $6, $7) returning id`,
@@ -192,16 +226,30 @@ export async function createDraft(user: SessionUser, input: WindowDraftCreate, a
       t,
     );
     const created = await getWindow(row!.id, t);
-    await audit(actorOf(user, address), { action: 'window.draft', entity: 'process_window', entityId: created.id, after: created }, t);
+    await audit(
+      actorOf(user, address),
+      { action: 'window.draft', entity: 'process_window', entityId: created.id, after: created },
+      t,
+    );
     return created;
   });
 }
 
-export async function updateDraft(user: SessionUser, id: number, input: WindowDraftUpdate, address: string | null): Promise<WindowRow> {
+export async function updateDraft(
+  user: SessionUser,
+  id: number,
+  input: WindowDraftUpdate,
+  address: string | null,
+): Promise<WindowRow> {
   return db().transaction(async (t) => {
     const [locked] = await q<{ status: string }>(`select status from process_windows where id = $1 for update`, [id], t);
     if (!locked) throw new HttpProblem(404, 'Not found', 'No such process window.');
-    if (locked.status !== 'draft') throw new HttpProblem(409, 'Not a draft', `This version is ${locked.status}; only drafts can be edited. Create a new draft instead.`);
+    if (locked.status !== 'draft')
+      throw new HttpProblem(
+        409,
+        'Not a draft',
+        `This version is ${locked.status}; only drafts can be edited. Create a new draft instead.`,
+      );
     const before = await getWindow(id, t);
     await q(
       `update process_windows set name = coalesce($2, name), limits = coalesce($3::jsonb, limits), note = coalesce($4, note), updated_at = now() where id = $1 returning id`,
@@ -218,7 +266,12 @@ export async function updateDraft(user: SessionUser, id: number, input: WindowDr
  * Approve a draft with an electronic signature: it becomes effective from now and the
  * previously effective version of the same lacquer × substrate is superseded at that instant.
  */
-export async function approveWindow(user: SessionUser, id: number, input: WindowApprove, address: string | null): Promise<WindowRow> {
+export async function approveWindow(
+  user: SessionUser,
+  id: number,
+  input: WindowApprove,
+  address: string | null,
+): Promise<WindowRow> {
   const current = await getWindow(id);
   if (current.status !== 'draft') throw new HttpProblem(409, 'Not a draft', `This version is already ${current.status}.`);
   const signature = await signWithPassword(user, input.password, input.meaning, address);
@@ -241,9 +294,23 @@ export async function approveWindow(user: SessionUser, id: number, input: Window
     );
     const after = await getWindow(id, t);
     const actor: Actor = actorOf(user, address);
-    await audit(actor, { action: 'window.approve', entity: 'process_window', entityId: id, before: current, after, signature }, t);
+    await audit(
+      actor,
+      { action: 'window.approve', entity: 'process_window', entityId: id, before: current, after, signature },
+      t,
+    );
     for (const s of superseded) {
-      await audit(actor, { action: 'window.supersede', entity: 'process_window', entityId: s.id, before: { status: 'effective' }, after: { status: 'superseded', supersededAt: now.toISOString(), by: id } }, t);
+      await audit(
+        actor,
+        {
+          action: 'window.supersede',
+          entity: 'process_window',
+          entityId: s.id,
+          before: { status: 'effective' },
+          after: { status: 'superseded', supersededAt: now.toISOString(), by: id },
+        },
+        t,
+      );
     }
     return after;
   });
@@ -252,14 +319,25 @@ export async function approveWindow(user: SessionUser, id: number, input: Window
 /** Assign a window (its lacquer × substrate recipe) to a line or an oven from a time on. */
 export async function assignWindow(user: SessionUser, input: WindowAssign, address: string | null): Promise<AssignmentRow> {
   return db().transaction(async (t) => {
-    const [asset] = await q<{ id: number; kind: string; code: string }>(`select id, kind, code from assets where id = $1`, [input.assetId], t);
-    if (!asset) throw new HttpProblem(400, 'Invalid input', 'No such line or oven.', { errors: [{ path: 'assetId', message: 'No such line or oven.' }] });
+    const [asset] = await q<{ id: number; kind: string; code: string }>(
+      `select id, kind, code from assets where id = $1`,
+      [input.assetId],
+      t,
+    );
+    if (!asset)
+      throw new HttpProblem(400, 'Invalid input', 'No such line or oven.', {
+        errors: [{ path: 'assetId', message: 'No such line or oven.' }],
+      });
     if (!['line', 'oven', 'coater'].includes(asset.kind)) {
-      throw new HttpProblem(400, 'Invalid input', 'Windows are assigned to a dip line, an oven or a coater.', { errors: [{ path: 'assetId', message: `A ${asset.kind} cannot run a window; choose its line or oven.` }] });
+      throw new HttpProblem(400, 'Invalid input', 'Windows are assigned to a dip line, an oven or a coater.', {
+        errors: [{ path: 'assetId', message: `A ${asset.kind} cannot run a window; choose its line or oven.` }],
+      });
     }
     const w = await getWindow(input.windowId, t);
     if (w.status === 'draft') {
-      throw new HttpProblem(400, 'Invalid input', 'A draft cannot be assigned; approve it first.', { errors: [{ path: 'windowId', message: 'This version is a draft.' }] });
+      throw new HttpProblem(400, 'Invalid input', 'A draft cannot be assigned; approve it first.', {
+        errors: [{ path: 'windowId', message: 'This version is a draft.' }],
+      });
     }
     const [{ now }] = (await q<{ now: Date }>(`select clock_timestamp() as now`, [], t)) as [{ now: Date }];
     const from = input.from ? new Date(input.from) : now;
@@ -270,9 +348,14 @@ export async function assignWindow(user: SessionUser, input: WindowAssign, addre
       t,
     );
     if (latest && from.getTime() <= latest.valid_from.getTime()) {
-      throw new HttpProblem(409, 'Overlaps the history', `The latest assignment of ${asset.code} starts ${latest.valid_from.toISOString()}; a new one must start after it.`, {
-        errors: [{ path: 'from', message: 'Must be after the start of the current assignment.' }],
-      });
+      throw new HttpProblem(
+        409,
+        'Overlaps the history',
+        `The latest assignment of ${asset.code} starts ${latest.valid_from.toISOString()}; a new one must start after it.`,
+        {
+          errors: [{ path: 'from', message: 'Must be after the start of the current assignment.' }],
+        },
+      );
     }
     if (latest && latest.valid_to === null) {
       await q(`update window_assignments set valid_to = $2 where id = $1 returning id`, [latest.id, from], t);
@@ -289,13 +372,31 @@ export async function assignWindow(user: SessionUser, input: WindowAssign, addre
         entity: 'window_assignment',
         entityId: row!.id,
         before: latest ? { assignmentId: latest.id, windowId: latest.window_id, validTo: from.toISOString() } : null,
-        after: { assetId: asset.id, asset: asset.code, windowId: w.id, window: `${w.name} v${w.version}`, validFrom: from.toISOString(), note: input.note ?? null },
+        after: {
+          assetId: asset.id,
+          asset: asset.code,
+          windowId: w.id,
+          window: `${w.name} v${w.version}`,
+          validFrom: from.toISOString(),
+          note: input.note ?? null,
+        },
       },
       t,
     );
     return {
-      id: row!.id, assetId: asset.id, assetCode: asset.code, assetName: asset.code, windowId: w.id, windowName: w.name, windowVersion: w.version,
-      lacquer: w.lacquer, substrate: w.substrate, validFrom: from.toISOString(), validTo: null, assignedBy: user.username, note: input.note ?? null,
+      id: row!.id,
+      assetId: asset.id,
+      assetCode: asset.code,
+      assetName: asset.code,
+      windowId: w.id,
+      windowName: w.name,
+      windowVersion: w.version,
+      lacquer: w.lacquer,
+      substrate: w.substrate,
+      validFrom: from.toISOString(),
+      validTo: null,
+      assignedBy: user.username,
+      note: input.note ?? null,
     };
   });
 }
@@ -308,8 +409,18 @@ export async function assignableAssets(): Promise<{ id: number; code: string; na
 }
 
 /** What each line/oven runs now (for the windows overview). */
-export async function inForceNow(): Promise<{ assetId: number; code: string; name: string; kind: string; window: Awaited<ReturnType<typeof windowInForce>> }[]> {
+export async function inForceNow(): Promise<
+  { assetId: number; code: string; name: string; kind: string; window: Awaited<ReturnType<typeof windowInForce>> }[]
+> {
   const assets = await assignableAssets();
   const now = Date.now();
-  return Promise.all(assets.map(async (a) => ({ assetId: a.id, code: a.code, name: a.name, kind: a.kind, window: await windowInForce(pgPool(), a.id, now) })));
+  return Promise.all(
+    assets.map(async (a) => ({
+      assetId: a.id,
+      code: a.code,
+      name: a.name,
+      kind: a.kind,
+      window: await windowInForce(pgPool(), a.id, now),
+    })),
+  );
 }

@@ -204,10 +204,9 @@ export const ON_SHIFT_EMAIL_KEY = 'onShiftEngineerEmail';
 
 /** The escalation rules and the on-shift engineer's address, with defaults where unset or unreadable. */
 export async function escalationSettings(pool: Queryable): Promise<EscalationSettings> {
-  const res = await pool.query<{ key: string; value: unknown }>(
-    `select key, value from site_settings where key = any($1)`,
-    [[ESCALATION_KEY, ON_SHIFT_EMAIL_KEY]],
-  );
+  const res = await pool.query<{ key: string; value: unknown }>(`select key, value from site_settings where key = any($1)`, [
+    [ESCALATION_KEY, ON_SHIFT_EMAIL_KEY],
+  ]);
   const byKey = new Map(res.rows.map((r) => [r.key, r.value]));
   let rules: EscalationRule[] = Object.entries(DEFAULT_ESCALATION).map(([priority, steps]) => ({
     priority: priority as AlarmPriority,
@@ -234,7 +233,12 @@ export async function saveEscalationSettings(
   await pool.query(
     `insert into site_settings (key, value, updated_at) values ($1, $2, now()), ($3, $4, now())
      on conflict (key) do update set value = excluded.value, updated_at = now()`,
-    [ESCALATION_KEY, JSON.stringify({ rules: settings.rules }), ON_SHIFT_EMAIL_KEY, JSON.stringify(settings.onShiftEngineerEmail)],
+    [
+      ESCALATION_KEY,
+      JSON.stringify({ rules: settings.rules }),
+      ON_SHIFT_EMAIL_KEY,
+      JSON.stringify(settings.onShiftEngineerEmail),
+    ],
   );
   return { before, after: await escalationSettings(pool) };
 }
@@ -278,12 +282,21 @@ export async function listCharacteristicAlarmConfigs(pool: Queryable): Promise<C
     config:
       r.enabled === null || r.priority === null || r.updated_at === null
         ? null
-        : { enabled: r.enabled, priority: r.priority, note: r.note, updatedAtMs: r.updated_at.getTime(), updatedBy: r.updated_by },
+        : {
+            enabled: r.enabled,
+            priority: r.priority,
+            note: r.note,
+            updatedAtMs: r.updated_at.getTime(),
+            updatedBy: r.updated_by,
+          },
   }));
 }
 
 /** A characteristic's alarm settings, or null when it has none (or the characteristics table is absent). */
-export async function characteristicAlarmConfig(pool: Queryable, characteristicId: number): Promise<CharacteristicAlarmConfig | null> {
+export async function characteristicAlarmConfig(
+  pool: Queryable,
+  characteristicId: number,
+): Promise<CharacteristicAlarmConfig | null> {
   const res = await pool.query<{ enabled: boolean; priority: AlarmPriority; note: string | null }>(
     `select enabled, priority, note from alarm_configs where characteristic_id = $1`,
     [characteristicId],

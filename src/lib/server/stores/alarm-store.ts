@@ -13,13 +13,7 @@
  * The store does not publish live events; callers publish `alarms` with {@link liveAlarmPayload}.
  */
 import type pg from 'pg';
-import {
-  transition,
-  type AlarmEvent,
-  type AlarmRecord,
-  type AlarmActor,
-  type AlarmState,
-} from '../../domain/alarms/state.ts';
+import { transition, type AlarmEvent, type AlarmRecord, type AlarmActor, type AlarmState } from '../../domain/alarms/state.ts';
 import type { AlarmPriority } from '../../shared/alarms.ts';
 import type { AlarmSourceKind, AlarmView, AlarmEventView } from '../../shared/alarm-views.ts';
 import { characteristicAlarmConfig } from './alarm-config-store.ts';
@@ -131,10 +125,7 @@ async function withTx<T>(pool: pg.Pool, fn: (c: pg.PoolClient) => Promise<T>): P
 
 async function selectOne(q: Queryable, where: string, params: unknown[], lock = false): Promise<AlarmRow | null> {
   // FOR UPDATE cannot apply to the nullable side of an outer join: lock the alarm row only.
-  const res = await q.query<AlarmRow>(
-    `select ${COLUMNS} from ${FROM} where ${where} ${lock ? 'for update of a' : ''}`,
-    params,
-  );
+  const res = await q.query<AlarmRow>(`select ${COLUMNS} from ${FROM} where ${where} ${lock ? 'for update of a' : ''}`, params);
   return res.rows[0] ?? null;
 }
 
@@ -254,7 +245,10 @@ export async function raiseAlarmReturning(
   throw new Error(`alarm store: could not raise ${input.sourceKey} (kept changing under us)`);
 }
 
-async function insertNew(pool: pg.Pool, input: RaiseAlarmInput): Promise<{ alarm: AlarmView; created: boolean; activated: boolean }> {
+async function insertNew(
+  pool: pg.Pool,
+  input: RaiseAlarmInput,
+): Promise<{ alarm: AlarmView; created: boolean; activated: boolean }> {
   const t = transition<AlarmRecord>({ state: 'normal', active: false }, { type: 'activate' }, { nowMs: input.atMs, ...SYSTEM });
   if (!t.ok) throw new Error(`alarm store: ${t.reason}`);
   const res = await pool.query<AlarmRow>(
@@ -597,10 +591,10 @@ export async function recordEscalation(
 
 /** Release a claimed escalation step (the e-mail could not be sent; it will be tried again). */
 export async function releaseEscalation(pool: pg.Pool, alarmId: number, stepIndex: number): Promise<void> {
-  await pool.query(
-    `update alarms set escalation_steps_sent = array_remove(escalation_steps_sent, $2) where id = $1`,
-    [alarmId, stepIndex],
-  );
+  await pool.query(`update alarms set escalation_steps_sent = array_remove(escalation_steps_sent, $2) where id = $1`, [
+    alarmId,
+    stepIndex,
+  ]);
   await pool.query(
     `delete from alarm_events where id = (select max(id) from alarm_events where alarm_id = $1 and event = 'escalate')`,
     [alarmId],
@@ -628,7 +622,12 @@ export interface AlarmLogRow {
  * `fromMs − lookbackMs` to `toMs`, with when that activation cleared and was acknowledged.
  * The look-back lets alarms raised before the period count as stale.
  */
-export async function alarmLog(pool: Queryable, fromMs: number, toMs: number, lookbackMs = 7 * 86_400_000): Promise<AlarmLogRow[]> {
+export async function alarmLog(
+  pool: Queryable,
+  fromMs: number,
+  toMs: number,
+  lookbackMs = 7 * 86_400_000,
+): Promise<AlarmLogRow[]> {
   const res = await pool.query<{
     id: number;
     alarm_id: number;

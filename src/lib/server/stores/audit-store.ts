@@ -25,6 +25,16 @@ export async function appendAudit(q: pg.Pool | pg.PoolClient, actor: AuditActor,
   await q.query(
     `insert into audit_log (actor_id, actor_label, action, entity, entity_id, before, after, address, signature)
      values ($1, $2, $3, $4, $5, $6::jsonb, $7::jsonb, $8, $9::jsonb)`,
-    [actor.id, actor.label, rec.action, rec.entity, rec.entityId == null ? null : String(rec.entityId), json(rec.before), json(rec.after), actor.address ?? null, json(rec.signature)],
+    [
+      actor.id,
+      actor.label,
+      rec.action,
+      rec.entity,
+      rec.entityId == null ? null : String(rec.entityId),
+      json(rec.before),
+      json(rec.after),
+      actor.address ?? null,
+      json(rec.signature),
+    ],
   );
 }

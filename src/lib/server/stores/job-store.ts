@@ -28,7 +28,11 @@ export interface JobExtra {
  * Creates the jobs that do not exist yet (status active) and returns every job's id by number.
  * Extra fields fill in blanks of existing jobs and never overwrite what is there.
  */
-export async function upsertJobs(q: Queryable, jobNumbers: readonly string[], extra: ReadonlyMap<string, JobExtra> = new Map()): Promise<Map<string, number>> {
+export async function upsertJobs(
+  q: Queryable,
+  jobNumbers: readonly string[],
+  extra: ReadonlyMap<string, JobExtra> = new Map(),
+): Promise<Map<string, number>> {
   const out = new Map<string, number>();
   if (jobNumbers.length === 0) return out;
   const nums = [...new Set(jobNumbers)];
@@ -67,7 +71,14 @@ export interface LineInfo {
 
 /** A dip line with its hard-coat tank and that tank's withdrawal-speed channel. */
 export async function lineInfo(q: Queryable, lineAssetId: number): Promise<LineInfo | null> {
-  const { rows } = await q.query<{ id: number; code: string; name: string; kind: string; tank_id: number | null; speed_id: number | null }>(
+  const { rows } = await q.query<{
+    id: number;
+    code: string;
+    name: string;
+    kind: string;
+    tank_id: number | null;
+    speed_id: number | null;
+  }>(
     `select a.id, a.code, a.name, a.kind, t.id as tank_id,
             (select c.id from channels c where c.asset_id = t.id and c.kind = 'withdrawal-speed' order by c.id limit 1) as speed_id
        from assets a
@@ -158,7 +169,9 @@ export interface DipRunCreated {
 export async function createDipRun(pool: pg.Pool, input: DipRunInput): Promise<DipRunCreated> {
   const line = await lineInfo(pool, input.lineAssetId);
   if (!line) {
-    throw new HttpProblem(400, 'Invalid input', 'lineAssetId: not a dip line', { errors: [{ path: 'lineAssetId', message: 'Choose a dip line.' }] });
+    throw new HttpProblem(400, 'Invalid input', 'lineAssetId: not a dip line', {
+      errors: [{ path: 'lineAssetId', message: 'Choose a dip line.' }],
+    });
   }
   const t = input.dippedAtMs;
   const window = await windowInForce(pool, line.id, t);
@@ -207,7 +220,10 @@ export async function createDipRun(pool: pg.Pool, input: DipRunInput): Promise<D
     );
     const run = rows[0]!;
     const ids = await upsertJobs(c, input.jobNumbers);
-    await c.query(`insert into dip_run_jobs (dip_run_id, job_id) select $1, unnest($2::int[]) on conflict do nothing`, [run.id, [...ids.values()]]);
+    await c.query(`insert into dip_run_jobs (dip_run_id, job_id) select $1, unnest($2::int[]) on conflict do nothing`, [
+      run.id,
+      [...ids.values()],
+    ]);
     await c.query('commit');
     return {
       id: run.id,
@@ -232,6 +248,9 @@ export async function createDipRun(pool: pg.Pool, input: DipRunInput): Promise<D
 
 /** Attach existing jobs to a dip run (the CSV import's second step). */
 export async function attachJobsToDipRun(q: Queryable, dipRunId: number, jobIds: readonly number[]): Promise<number> {
-  const r = await q.query(`insert into dip_run_jobs (dip_run_id, job_id) select $1, unnest($2::int[]) on conflict do nothing`, [dipRunId, jobIds]);
+  const r = await q.query(`insert into dip_run_jobs (dip_run_id, job_id) select $1, unnest($2::int[]) on conflict do nothing`, [
+    dipRunId,
+    jobIds,
+  ]);
   return r.rowCount ?? 0;
 }

@@ -48,7 +48,10 @@ export interface OvenChannels {
 
 /** The oven's setpoint, door and zone air-temperature channels; null when the asset is not an oven. */
 export async function ovenChannels(q: Queryable, ovenAssetId: number): Promise<OvenChannels | null> {
-  const { rows } = await q.query<{ id: number; code: string; name: string; kind: string }>('select id, code, name, kind from assets where id = $1', [ovenAssetId]);
+  const { rows } = await q.query<{ id: number; code: string; name: string; kind: string }>(
+    'select id, code, name, kind from assets where id = $1',
+    [ovenAssetId],
+  );
   const oven = rows[0];
   if (!oven || oven.kind !== 'oven') return null;
   const ch = await q.query<{ id: number; name: string; kind: string; on_oven: boolean }>(
@@ -133,7 +136,11 @@ export function alignZones(rows: readonly RawReading[], maxHoldMs: number): Oven
 }
 
 /** Door transitions (value ≥ 0.5 = open) from door readings, starting from the state before the load. */
-export function doorEvents(rows: readonly { t: number; v: number }[], before: { t: number; v: number } | null, openedAtMs: number): DoorEvent[] {
+export function doorEvents(
+  rows: readonly { t: number; v: number }[],
+  before: { t: number; v: number } | null,
+  openedAtMs: number,
+): DoorEvent[] {
   const out: DoorEvent[] = [];
   let open = before ? before.v >= 0.5 : false;
   if (open) out.push({ tMs: openedAtMs, open: true });
@@ -212,7 +219,8 @@ export async function computeCureRecord(
     reasons.length = 0;
     reasons.push(`No process window was in force for ${oven.name} when the load started: the cure cannot be judged.`, ...keep);
   }
-  if (endMs < load.closedAtMs) reasons.push(`The load was open longer than ${MAX_LOAD_HOURS} h; the record covers its first ${MAX_LOAD_HOURS} h.`);
+  if (endMs < load.closedAtMs)
+    reasons.push(`The load was open longer than ${MAX_LOAD_HOURS} h; the record covers its first ${MAX_LOAD_HOURS} h.`);
   if (zoneIds.length === 0) reasons.push(`${oven.name} has no zone air-temperature channel set up.`);
   const record: StoredCureRecord = {
     window:
@@ -273,14 +281,21 @@ export interface RecomputeResult {
  * is given.
  */
 export async function recomputeLoad(pool: pg.Pool, loadId: number, publish?: Publish): Promise<RecomputeResult> {
-  const { rows } = await pool.query<{ oven_asset_id: number; opened_at: Date; closed_at: Date | null; status: string; oven_name: string }>(
+  const { rows } = await pool.query<{
+    oven_asset_id: number;
+    opened_at: Date;
+    closed_at: Date | null;
+    status: string;
+    oven_name: string;
+  }>(
     `select l.oven_asset_id, l.opened_at, l.closed_at, l.status, a.name as oven_name
        from oven_loads l join assets a on a.id = l.oven_asset_id where l.id = $1`,
     [loadId],
   );
   const load = rows[0];
   if (!load) throw new HttpProblem(404, 'Not found', 'No such oven load.');
-  if (load.status !== 'closed' || !load.closed_at) throw new HttpProblem(409, 'Load still open', 'The cure record is computed when the load is closed.');
+  if (load.status !== 'closed' || !load.closed_at)
+    throw new HttpProblem(409, 'Load still open', 'The cure record is computed when the load is closed.');
   const { record, windowId } = await computeCureRecord(pool, {
     ovenAssetId: load.oven_asset_id,
     openedAtMs: load.opened_at.getTime(),
@@ -338,9 +353,16 @@ export interface OpenLoadInput {
  * Opens a load on an oven. At most one load is open per oven.
  * @throws HttpProblem 400 when the asset is not an oven, 409 when a load is already open there.
  */
-export async function openLoad(pool: pg.Pool, input: OpenLoadInput, publish?: Publish): Promise<{ id: number; windowId: number | null }> {
+export async function openLoad(
+  pool: pg.Pool,
+  input: OpenLoadInput,
+  publish?: Publish,
+): Promise<{ id: number; windowId: number | null }> {
   const oven = await ovenChannels(pool, input.ovenAssetId);
-  if (!oven) throw new HttpProblem(400, 'Invalid input', 'ovenAssetId: not an oven', { errors: [{ path: 'ovenAssetId', message: 'Choose an oven.' }] });
+  if (!oven)
+    throw new HttpProblem(400, 'Invalid input', 'ovenAssetId: not an oven', {
+      errors: [{ path: 'ovenAssetId', message: 'Choose an oven.' }],
+    });
   const w = await windowInForce(pool, input.ovenAssetId, input.atMs);
   try {
     const { rows } = await pool.query<{ id: number }>(
@@ -353,10 +375,17 @@ export async function openLoad(pool: pg.Pool, input: OpenLoadInput, publish?: Pu
     return { id, windowId: w?.id ?? null };
   } catch (e) {
     if ((e as { code?: string }).code === '23505') {
-      const open = await pool.query<{ id: number }>(`select id from oven_loads where oven_asset_id = $1 and status = 'open'`, [input.ovenAssetId]);
-      throw new HttpProblem(409, 'A load is already open', `${oven.name} already has load ${open.rows[0]?.id ?? '?'} open; close it first.`, {
-        openLoadId: open.rows[0]?.id ?? null,
-      });
+      const open = await pool.query<{ id: number }>(`select id from oven_loads where oven_asset_id = $1 and status = 'open'`, [
+        input.ovenAssetId,
+      ]);
+      throw new HttpProblem(
+        409,
+        'A load is already open',
+        `${oven.name} already has load ${open.rows[0]?.id ?? '?'} open; close it first.`,
+        {
+          openLoadId: open.rows[0]?.id ?? null,
+        },
+      );
     }
     throw e;
   }
@@ -373,8 +402,16 @@ export interface CloseLoadInput {
  * Closes an open load and computes its cure record.
  * @throws HttpProblem 404 unknown, 409 already closed, 400 when the closing time is not after the opening.
  */
-export async function closeLoad(pool: pg.Pool, loadId: number, input: CloseLoadInput, publish?: Publish): Promise<RecomputeResult> {
-  const { rows } = await pool.query<{ status: string; opened_at: Date }>('select status, opened_at from oven_loads where id = $1', [loadId]);
+export async function closeLoad(
+  pool: pg.Pool,
+  loadId: number,
+  input: CloseLoadInput,
+  publish?: Publish,
+): Promise<RecomputeResult> {
+  const { rows } = await pool.query<{ status: string; opened_at: Date }>(
+    'select status, opened_at from oven_loads where id = $1',
+    [loadId],
+  );
   const load = rows[0];
   if (!load) throw new HttpProblem(404, 'Not found', 'No such oven load.');
   if (load.status !== 'open') throw new HttpProblem(409, 'Load already closed', `Load ${loadId} is already closed.`);
@@ -413,7 +450,8 @@ export async function addJobsToLoad(
 ): Promise<AddJobsResult> {
   const { rows } = await pool.query<{ status: string }>('select status from oven_loads where id = $1', [loadId]);
   if (!rows[0]) throw new HttpProblem(404, 'Not found', 'No such oven load.');
-  if (rows[0].status !== 'open' && !input.allowClosed) throw new HttpProblem(409, 'Load closed', `Load ${loadId} is closed; jobs go into an open load.`);
+  if (rows[0].status !== 'open' && !input.allowClosed)
+    throw new HttpProblem(409, 'Load closed', `Load ${loadId} is closed; jobs go into an open load.`);
   const fromRacks: Record<string, string[]> = {};
   const unknownRacks: string[] = [];
   const racks = new Map<string, number>();
@@ -456,12 +494,19 @@ export async function addJobsToLoad(
  */
 export async function recordPastLoad(
   pool: pg.Pool,
-  input: { ovenAssetId: number; openedAtMs: number; closedAtMs: number; by: 'auto' | 'user'; userId?: number | null; note?: string | null },
+  input: {
+    ovenAssetId: number;
+    openedAtMs: number;
+    closedAtMs: number;
+    by: 'auto' | 'user';
+    userId?: number | null;
+    note?: string | null;
+  },
 ): Promise<RecomputeResult> {
-  const found = await pool.query<{ id: number }>(`select id from oven_loads where oven_asset_id = $1 and opened_at = to_timestamp($2 / 1000.0)`, [
-    input.ovenAssetId,
-    input.openedAtMs,
-  ]);
+  const found = await pool.query<{ id: number }>(
+    `select id from oven_loads where oven_asset_id = $1 and opened_at = to_timestamp($2 / 1000.0)`,
+    [input.ovenAssetId, input.openedAtMs],
+  );
   let id = found.rows[0]?.id;
   if (!id) {
     const { rows } = await pool.query<{ id: number }>(

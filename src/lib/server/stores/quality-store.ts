@@ -88,9 +88,14 @@ export interface RecordedTest {
  */
 export async function recordTest(pool: pg.Pool, input: RecordTestInput): Promise<RecordedTest> {
   const t = input.test;
-  const job = await pool.query<{ id: number; job_number: string }>('select id, job_number from jobs where job_number = $1', [t.jobNumber]);
+  const job = await pool.query<{ id: number; job_number: string }>('select id, job_number from jobs where job_number = $1', [
+    t.jobNumber,
+  ]);
   if (!job.rows[0]) {
-    throw bad('jobNumber', `No job ${t.jobNumber} is known: jobs are recorded when their rack is dipped or their CSV is imported.`);
+    throw bad(
+      'jobNumber',
+      `No job ${t.jobNumber} is known: jobs are recorded when their rack is dipped or their CSV is imported.`,
+    );
   }
   const acceptance = await acceptanceSettings(pool);
   let measurement: TestMeasurement;
@@ -117,7 +122,13 @@ export async function recordTest(pool: pg.Pool, input: RecordTestInput): Promise
       } else {
         const spectrum = parseSpectrumCsv(t.spectrumCsv as string);
         const a = findExtrema(spectrum, { refractiveIndex: t.refractiveIndex as number });
-        if (!a.measurable) throw bad('spectrumCsv', `The spectrum gives no thickness: ${a.reason}. Measure the coat another way.`, 422, 'No thickness from this spectrum');
+        if (!a.measurable)
+          throw bad(
+            'spectrumCsv',
+            `The spectrum gives no thickness: ${a.reason}. Measure the coat another way.`,
+            422,
+            'No thickness from this spectrum',
+          );
         measurement = { kind: 'thickness', thicknessUm: a.thicknessNm / 1000 };
         Object.assign(inputs, { method: 'spectrum', refractiveIndex: t.refractiveIndex, spectrumPoints: spectrum.length });
         Object.assign(extra, { fringeEstimates: a.count, fringeSdNm: a.sdNm, fringeContrast: a.contrast });
@@ -154,7 +165,18 @@ export async function recordTest(pool: pg.Pool, input: RecordTestInput): Promise
     );
     const id = rows[0]!.id;
     const fileIds: number[] = [];
-    if (spectrumFile) fileIds.push((await insertFile(c, { testId: id, name: spectrumFile.name, bytes: spectrumFile.bytes, mime: 'text/csv', userId: input.userId })).id);
+    if (spectrumFile)
+      fileIds.push(
+        (
+          await insertFile(c, {
+            testId: id,
+            name: spectrumFile.name,
+            bytes: spectrumFile.bytes,
+            mime: 'text/csv',
+            userId: input.userId,
+          })
+        ).id,
+      );
     await c.query('commit');
     return {
       id,
@@ -177,7 +199,14 @@ export async function recordTest(pool: pg.Pool, input: RecordTestInput): Promise
 
 async function insertFile(
   q: Queryable,
-  f: { testId?: number | null; surveyId?: number | null; name: string; bytes: Uint8Array; mime: UploadMime; userId: number | null },
+  f: {
+    testId?: number | null;
+    surveyId?: number | null;
+    name: string;
+    bytes: Uint8Array;
+    mime: UploadMime;
+    userId: number | null;
+  },
 ): Promise<{ id: number; sha256: string }> {
   const sha256 = createHash('sha256').update(f.bytes).digest('hex');
   const { rows } = await q.query<{ id: number }>(
@@ -194,9 +223,14 @@ async function insertFile(
  */
 export function checkUpload(name: string, bytes: Uint8Array): UploadMime {
   if (bytes.length > MAX_UPLOAD_BYTES) {
-    throw new HttpProblem(413, 'File too large', `${safeFileName(name)} is ${(bytes.length / 1048576).toFixed(1)} MB; the limit is 5 MB.`, {
-      errors: [{ path: 'file', message: 'The limit is 5 MB.' }],
-    });
+    throw new HttpProblem(
+      413,
+      'File too large',
+      `${safeFileName(name)} is ${(bytes.length / 1048576).toFixed(1)} MB; the limit is 5 MB.`,
+      {
+        errors: [{ path: 'file', message: 'The limit is 5 MB.' }],
+      },
+    );
   }
   const s = sniffUpload(bytes, name);
   if (!s.ok) throw new HttpProblem(415, 'Unsupported file type', s.reason, { errors: [{ path: 'file', message: s.reason }] });

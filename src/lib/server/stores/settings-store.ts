@@ -8,7 +8,12 @@ import type { z } from 'zod';
 type Queryable = pg.Pool | pg.PoolClient;
 
 /** The setting under `key`, validated by `schema`; `fallback` when absent or invalid. */
-export async function readSetting<S extends z.ZodType>(q: Queryable, key: string, schema: S, fallback: z.infer<S>): Promise<z.infer<S>> {
+export async function readSetting<S extends z.ZodType>(
+  q: Queryable,
+  key: string,
+  schema: S,
+  fallback: z.infer<S>,
+): Promise<z.infer<S>> {
   const { rows } = await q.query<{ value: unknown }>('select value from site_settings where key = $1', [key]);
   if (!rows[0]) return fallback;
   const parsed = schema.safeParse(rows[0].value);

@@ -43,7 +43,15 @@ const IN_FORCE_SQL = `
   limit 1`;
 
 function toInForce(r: Row): ProcessWindowInForce {
-  return { id: r.id, version: r.version, name: r.name, lacquer: r.lacquer, substrate: r.substrate, limits: r.limits, effectiveFrom: r.effective_from.toISOString() };
+  return {
+    id: r.id,
+    version: r.version,
+    name: r.name,
+    lacquer: r.lacquer,
+    substrate: r.substrate,
+    limits: r.limits,
+    effectiveFrom: r.effective_from.toISOString(),
+  };
 }
 
 /** The window in force for `assetId` (line, tank, oven, zone…) at `atMs`, or null. */
@@ -53,7 +61,11 @@ export async function windowInForce(pool: pg.Pool, assetId: number, atMs: number
 }
 
 /** The windows in force for several assets at one time (a map keyed by asset id; absent = none). */
-export async function windowsInForce(pool: pg.Pool, assetIds: readonly number[], atMs: number): Promise<Map<number, ProcessWindowInForce>> {
+export async function windowsInForce(
+  pool: pg.Pool,
+  assetIds: readonly number[],
+  atMs: number,
+): Promise<Map<number, ProcessWindowInForce>> {
   const out = new Map<number, ProcessWindowInForce>();
   for (const id of new Set(assetIds)) {
     const w = await windowInForce(pool, id, atMs);
@@ -81,8 +93,19 @@ export interface AssignmentRow {
 /** Assignment history, newest first (optionally for one asset). */
 export async function listAssignments(pool: pg.Pool, assetId?: number): Promise<AssignmentRow[]> {
   const { rows } = await pool.query<{
-    id: number; asset_id: number; asset_code: string; asset_name: string; window_id: number; window_name: string; version: number;
-    lacquer: string; substrate: string; valid_from: Date; valid_to: Date | null; assigned_by: string | null; note: string | null;
+    id: number;
+    asset_id: number;
+    asset_code: string;
+    asset_name: string;
+    window_id: number;
+    window_name: string;
+    version: number;
+    lacquer: string;
+    substrate: string;
+    valid_from: Date;
+    valid_to: Date | null;
+    assigned_by: string | null;
+    note: string | null;
   }>(
     `select wa.id, wa.asset_id, a.code as asset_code, a.name as asset_name, wa.window_id, pw.name as window_name, pw.version,
             l.name as lacquer, m.name as substrate, wa.valid_from, wa.valid_to, u.username as assigned_by, wa.note
@@ -97,8 +120,18 @@ export async function listAssignments(pool: pg.Pool, assetId?: number): Promise<
     [assetId ?? null],
   );
   return rows.map((r) => ({
-    id: r.id, assetId: r.asset_id, assetCode: r.asset_code, assetName: r.asset_name, windowId: r.window_id, windowName: r.window_name,
-    windowVersion: r.version, lacquer: r.lacquer, substrate: r.substrate, validFrom: r.valid_from.toISOString(),
-    validTo: r.valid_to ? r.valid_to.toISOString() : null, assignedBy: r.assigned_by, note: r.note,
+    id: r.id,
+    assetId: r.asset_id,
+    assetCode: r.asset_code,
+    assetName: r.asset_name,
+    windowId: r.window_id,
+    windowName: r.window_name,
+    windowVersion: r.version,
+    lacquer: r.lacquer,
+    substrate: r.substrate,
+    validFrom: r.valid_from.toISOString(),
+    validTo: r.valid_to ? r.valid_to.toISOString() : null,
+    assignedBy: r.assigned_by,
+    note: r.note,
   }));
 }

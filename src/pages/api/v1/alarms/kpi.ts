@@ -25,5 +25,8 @@ export const GET: APIRoute = async ({ locals, url }) => {
       },
     });
   }
-  return Response.json({ ...h.report, per10Min: h.per10Min, meanTimeToAckMs: h.meanTimeToAckMs }, { headers: { 'cache-control': 'no-store' } });
+  return Response.json(
+    { ...h.report, per10Min: h.per10Min, meanTimeToAckMs: h.meanTimeToAckMs },
+    { headers: { 'cache-control': 'no-store' } },
+  );
 };

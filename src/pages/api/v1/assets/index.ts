@@ -6,6 +6,13 @@ import type { AssetView } from '../../../../lib/shared/plant.ts';
 /** The plant's assets as a flat list; `parentId` makes the tree (site → line → tank, oven → zone). */
 export const GET: APIRoute = async ({ locals }) => {
   requireRole(locals, 'view');
-  const assets: AssetView[] = (await listAssets()).map(({ id, siteId, parentId, kind, code, name }) => ({ id, siteId, parentId, kind, code, name }));
+  const assets: AssetView[] = (await listAssets()).map(({ id, siteId, parentId, kind, code, name }) => ({
+    id,
+    siteId,
+    parentId,
+    kind,
+    code,
+    name,
+  }));
   return Response.json(assets);
 };

@@ -14,5 +14,8 @@ export const GET: APIRoute = async ({ locals }) => {
 export const POST: APIRoute = async ({ locals, request, clientAddress }) => {
   const user = requireRole(locals, 'admin.devices');
   const { name } = await readJson(request, CreateDeviceSchema);
-  return Response.json(await createDevice(actorOf(user, clientAddress), name), { status: 201, headers: { 'cache-control': 'no-store' } });
+  return Response.json(await createDevice(actorOf(user, clientAddress), name), {
+    status: 201,
+    headers: { 'cache-control': 'no-store' },
+  });
 };

@@ -10,7 +10,9 @@ export const GET: APIRoute = async ({ locals, url }) => {
   const q = readQuery(url, HoldListQuerySchema);
   const items = await listHolds(q);
   if (q.format === 'csv') {
-    return new Response(await holdsCsv(items), { headers: { 'content-type': 'text/csv; charset=utf-8', 'content-disposition': 'attachment; filename="holds.csv"' } });
+    return new Response(await holdsCsv(items), {
+      headers: { 'content-type': 'text/csv; charset=utf-8', 'content-disposition': 'attachment; filename="holds.csv"' },
+    });
   }
   return Response.json(items);
 };

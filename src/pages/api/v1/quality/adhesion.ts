@@ -13,6 +13,10 @@ const Query = z.object({
 export const GET: APIRoute = async ({ locals, url }) => {
   requireRole(locals, 'view');
   const q = readQuery(url, Query);
-  const [chart, byOven, byBathCharge] = await Promise.all([adhesionPChart(q.weeks), failuresByOven(q.days), failuresByBathCharge(q.days)]);
+  const [chart, byOven, byBathCharge] = await Promise.all([
+    adhesionPChart(q.weeks),
+    failuresByOven(q.days),
+    failuresByBathCharge(q.days),
+  ]);
   return Response.json({ chart, byOven, byBathCharge });
 };

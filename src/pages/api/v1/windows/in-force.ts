@@ -15,6 +15,11 @@ export const GET: APIRoute = async ({ locals, url }) => {
   requireRole(locals, 'view');
   const { assetId, at } = readQuery(url, Query);
   const w = await windowInForce(pgPool(), assetId, at ? Date.parse(at) : Date.now());
-  if (!w) throw new HttpProblem(404, 'No window in force', 'No process window is assigned to this asset (or its line/oven) at that time.');
+  if (!w)
+    throw new HttpProblem(
+      404,
+      'No window in force',
+      'No process window is assigned to this asset (or its line/oven) at that time.',
+    );
   return Response.json(w);
 };

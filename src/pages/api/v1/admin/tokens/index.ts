@@ -14,5 +14,8 @@ export const GET: APIRoute = async ({ locals }) => {
 export const POST: APIRoute = async ({ locals, request, clientAddress }) => {
   const user = requireRole(locals, 'admin.tokens');
   const input = await readJson(request, CreateTokenSchema);
-  return Response.json(await createToken(actorOf(user, clientAddress), input), { status: 201, headers: { 'cache-control': 'no-store' } });
+  return Response.json(await createToken(actorOf(user, clientAddress), input), {
+    status: 201,
+    headers: { 'cache-control': 'no-store' },
+  });
 };

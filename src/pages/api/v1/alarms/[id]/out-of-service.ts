@@ -9,5 +9,7 @@ export const POST: APIRoute = async (ctx) => {
   const user = requireRole(ctx.locals, 'alarm.configure');
   const body = await readJson(ctx.request, OutOfServiceSchema);
   const id = idParam(ctx.params['id'], 'alarm');
-  return Response.json(await applyAlarmEvent(user, ctx.clientAddress ?? null, id, { type: 'remove-from-service', reason: body.reason }));
+  return Response.json(
+    await applyAlarmEvent(user, ctx.clientAddress ?? null, id, { type: 'remove-from-service', reason: body.reason }),
+  );
 };

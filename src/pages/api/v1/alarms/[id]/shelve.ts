@@ -9,5 +9,7 @@ export const POST: APIRoute = async (ctx) => {
   const user = requireRole(ctx.locals, 'alarm.shelve');
   const body = await readJson(ctx.request, ShelveAlarmSchema);
   const id = idParam(ctx.params['id'], 'alarm');
-  return Response.json(await applyAlarmEvent(user, ctx.clientAddress ?? null, id, { type: 'shelve', minutes: body.minutes, reason: body.reason }));
+  return Response.json(
+    await applyAlarmEvent(user, ctx.clientAddress ?? null, id, { type: 'shelve', minutes: body.minutes, reason: body.reason }),
+  );
 };

@@ -2,9 +2,15 @@ import type { APIRoute } from 'astro';
 import { findExtrema } from '../../../../../lib/domain/quality/fringes.ts';
 import { requireRole } from '../../../../../lib/server/guard.ts';
 import { HttpProblem, validate } from '../../../../../lib/server/http.ts';
-import { looksLikeText, MAX_SPECTRUM_BYTES, parseSpectrumCsv, SpectrumOptionsSchema } from '../../../../../lib/shared/spectrum.ts';
+import {
+  looksLikeText,
+  MAX_SPECTRUM_BYTES,
+  parseSpectrumCsv,
+  SpectrumOptionsSchema,
+} from '../../../../../lib/shared/spectrum.ts';
 
-const tooLarge = () => new HttpProblem(413, 'Upload too large', `A spectrum file may be at most ${MAX_SPECTRUM_BYTES / 1024 / 1024} MB.`);
+const tooLarge = () =>
+  new HttpProblem(413, 'Upload too large', `A spectrum file may be at most ${MAX_SPECTRUM_BYTES / 1024 / 1024} MB.`);
 
 /** Read the body but stop at the limit (a chunked upload without content-length cannot get past it). */
 async function readCapped(request: Request, max: number): Promise<Uint8Array<ArrayBuffer>> {
@@ -55,7 +61,9 @@ export const POST: APIRoute = async ({ locals, request, url }) => {
     }
     const file = form.get('file');
     if (!(file instanceof Blob)) {
-      throw new HttpProblem(400, 'Invalid input', 'file: attach the spectrum as a file field named "file".', { errors: [{ path: 'file', message: 'Attach the spectrum CSV.' }] });
+      throw new HttpProblem(400, 'Invalid input', 'file: attach the spectrum as a file field named "file".', {
+        errors: [{ path: 'file', message: 'Attach the spectrum CSV.' }],
+      });
     }
     bytes = new Uint8Array(await file.arrayBuffer());
     fields = Object.fromEntries([...form.entries()].filter(([k, v]) => k !== 'file' && typeof v === 'string'));
@@ -63,14 +71,26 @@ export const POST: APIRoute = async ({ locals, request, url }) => {
     bytes = body;
     fields = Object.fromEntries(url.searchParams.entries());
   } else {
-    throw new HttpProblem(415, 'Unsupported media type', 'Send the spectrum as multipart/form-data (field "file") or as a text/csv body.');
+    throw new HttpProblem(
+      415,
+      'Unsupported media type',
+      'Send the spectrum as multipart/form-data (field "file") or as a text/csv body.',
+    );
   }
   if (bytes.byteLength > MAX_SPECTRUM_BYTES) throw tooLarge();
-  if (bytes.byteLength === 0) throw new HttpProblem(400, 'Empty file', 'The spectrum file is empty.', { errors: [{ path: 'file', message: 'The file is empty.' }] });
-  if (!looksLikeText(bytes)) {
-    throw new HttpProblem(415, 'Not a text file', 'The upload is binary; send the spectrum as a CSV text file (wavelength nm, reflectance).', {
-      errors: [{ path: 'file', message: 'Binary content: export the spectrum as CSV text.' }],
+  if (bytes.byteLength === 0)
+    throw new HttpProblem(400, 'Empty file', 'The spectrum file is empty.', {
+      errors: [{ path: 'file', message: 'The file is empty.' }],
     });
+  if (!looksLikeText(bytes)) {
+    throw new HttpProblem(
+      415,
+      'Not a text file',
+      'The upload is binary; send the spectrum as a CSV text file (wavelength nm, reflectance).',
+      {
+        errors: [{ path: 'file', message: 'Binary content: export the spectrum as CSV text.' }],
+      },
+    );
   }
   const options = validate(SpectrumOptionsSchema, fields);
   const parsed = parseSpectrumCsv(new TextDecoder('utf-8').decode(bytes));
@@ -87,7 +107,8 @@ export const POST: APIRoute = async ({ locals, request, url }) => {
       ...(options.minContrast !== undefined ? { minContrast: options.minContrast } : {}),
     });
   } catch (e) {
-    if (e instanceof RangeError) throw new HttpProblem(400, 'Malformed spectrum', e.message, { errors: [{ path: 'file', message: e.message }] });
+    if (e instanceof RangeError)
+      throw new HttpProblem(400, 'Malformed spectrum', e.message, { errors: [{ path: 'file', message: e.message }] });
     throw e;
   }
   if (!analysis.measurable) {

@@ -7,5 +7,7 @@ import { rotateDevicePassword } from '../../../../../lib/server/services/plant-s
 export const POST: APIRoute = async ({ locals, params, clientAddress }) => {
   const user = requireRole(locals, 'admin.devices');
   const id = idParam(params['id'], 'device');
-  return Response.json(await rotateDevicePassword(actorOf(user, clientAddress), id), { headers: { 'cache-control': 'no-store' } });
+  return Response.json(await rotateDevicePassword(actorOf(user, clientAddress), id), {
+    headers: { 'cache-control': 'no-store' },
+  });
 };

@@ -17,22 +17,31 @@ export const POST: APIRoute = async ({ locals, params, request, clientAddress })
   const testId = idParam(params['id'], 'quality test');
   const type = request.headers.get('content-type') ?? '';
   if (!type.startsWith('multipart/form-data')) {
-    throw new HttpProblem(415, 'Unsupported media type', 'Send the file as multipart/form-data with a "file" field.', { errors: [{ path: 'file', message: 'Send multipart/form-data.' }] });
+    throw new HttpProblem(415, 'Unsupported media type', 'Send the file as multipart/form-data with a "file" field.', {
+      errors: [{ path: 'file', message: 'Send multipart/form-data.' }],
+    });
   }
   const length = Number(request.headers.get('content-length') ?? 0);
   if (length > MAX_UPLOAD_BYTES + ENVELOPE_BYTES) {
-    throw new HttpProblem(413, 'File too large', `The upload is ${(length / 1048576).toFixed(1)} MB; the limit is 5 MB.`, { errors: [{ path: 'file', message: 'The limit is 5 MB.' }] });
+    throw new HttpProblem(413, 'File too large', `The upload is ${(length / 1048576).toFixed(1)} MB; the limit is 5 MB.`, {
+      errors: [{ path: 'file', message: 'The limit is 5 MB.' }],
+    });
   }
   let form: FormData;
   try {
     form = await request.formData();
   } catch {
-    throw new HttpProblem(400, 'Malformed upload', 'The multipart body could not be read.', { errors: [{ path: 'file', message: 'Malformed multipart body.' }] });
+    throw new HttpProblem(400, 'Malformed upload', 'The multipart body could not be read.', {
+      errors: [{ path: 'file', message: 'Malformed multipart body.' }],
+    });
   }
   const file = form.get('file');
-  if (!(file instanceof File)) throw new HttpProblem(400, 'Invalid input', 'file: missing', { errors: [{ path: 'file', message: 'Choose a file.' }] });
+  if (!(file instanceof File))
+    throw new HttpProblem(400, 'Invalid input', 'file: missing', { errors: [{ path: 'file', message: 'Choose a file.' }] });
   if (file.size > MAX_UPLOAD_BYTES) {
-    throw new HttpProblem(413, 'File too large', `${file.name} is ${(file.size / 1048576).toFixed(1)} MB; the limit is 5 MB.`, { errors: [{ path: 'file', message: 'The limit is 5 MB.' }] });
+    throw new HttpProblem(413, 'File too large', `${file.name} is ${(file.size / 1048576).toFixed(1)} MB; the limit is 5 MB.`, {
+      errors: [{ path: 'file', message: 'The limit is 5 MB.' }],
+    });
   }
   const bytes = new Uint8Array(await file.arrayBuffer());
   return Response.json(await uploadTestFile(user, testId, file.name || 'upload', bytes, clientAddress), { status: 201 });
