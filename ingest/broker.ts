@@ -10,7 +10,7 @@ import { WebSocketServer, createWebSocketStream } from 'ws';
 import type pg from 'pg';
 import { verifyPassword } from '../src/lib/server/passwords.ts';
 import { memoryPersistence } from './broker-persistence.ts';
-import { LIVE_ROOT, TOPIC_ROOT, isUnder } from './topics.ts';
+import { LIVE_ROOT, TOPIC_ROOT, isUnder } from '../src/lib/shared/topics.ts';
 
 export interface BrokerOptions {
   pool: pg.Pool;

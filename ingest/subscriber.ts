@@ -34,7 +34,7 @@ import { ChannelMap } from './channel-map.ts';
 import type { IngestConfig } from './config.ts';
 import { Journal, segmentTime } from './journal.ts';
 import { commitBatch } from './store.ts';
-import { LIVE_ROOT, TOPIC_ROOT, parseTopic, type ParsedTopic } from './topics.ts';
+import { LIVE_ROOT, TOPIC_ROOT, parseTopic, type ParsedTopic } from '../src/lib/shared/topics.ts';
 
 export interface WorkerOptions {
   config: IngestConfig;

@@ -38,7 +38,7 @@ import {
   topAssetOfChannel,
   approveLimitSetRow,
   type NewSubgroup,
-} from '../src/lib/server/stores/spc-store.ts';
+} from '../src/lib/core/spc-store.ts';
 import { demoOvenCycles } from './plant-model.ts';
 
 /** Length of the Phase I baseline at the start of the history. */

@@ -8,7 +8,7 @@ import { createHmac } from 'node:crypto';
 import type { Sequelize } from 'sequelize';
 import { Asset, Channel, Device, Site, User, initModels } from '../db/models/index.ts';
 import { hashPassword } from '../src/lib/server/passwords.ts';
-import { channelTopic, deviceTopicPrefix } from '../ingest/topics.ts';
+import { channelTopic, deviceTopicPrefix } from '../src/lib/shared/topics.ts';
 
 export const DEMO_SITE = { code: 'fernhollow', name: 'Fernhollow Lens Works', timeZone: 'Europe/London' };
 

@@ -23,7 +23,7 @@
  * Logs one line per minute. Stop with SIGTERM or SIGINT.
  */
 import mqtt, { type MqttClient } from 'mqtt';
-import { deviceTopicPrefix } from '../ingest/topics.ts';
+import { deviceTopicPrefix } from '../src/lib/shared/topics.ts';
 import { DEMO_DEVICES, DEMO_SITE, demoDevicePassword, demoTopic } from './demo-plant.ts';
 import {
   DEMO_OVEN_DYNAMICS,

@@ -18,9 +18,9 @@
 import type pg from 'pg';
 import { judgeTest, type TestMeasurement } from '../src/lib/domain/quality/acceptance.ts';
 import { AMS2750G_CLASSES, uniformitySurvey } from '../src/lib/domain/oven/uniformity.ts';
-import { acceptanceSettings, attachFile } from '../src/lib/server/stores/quality-store.ts';
-import { recordPastLoad } from '../src/lib/server/stores/load-store.ts';
-import { windowInForce } from '../src/lib/server/stores/window-store.ts';
+import { acceptanceSettings, attachFile } from '../src/lib/core/quality-store.ts';
+import { recordPastLoad } from '../src/lib/core/load-store.ts';
+import { windowInForce } from '../src/lib/core/window-store.ts';
 import type { DefectType } from '../src/lib/shared/quality.ts';
 import { autoStabilisedIndex, parseSurveyCsv } from '../src/lib/shared/surveys.ts';
 import {

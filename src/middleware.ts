@@ -1,7 +1,8 @@
 import { defineMiddleware, sequence } from 'astro:middleware';
 import { lucia, secureCookies, userFromBearer } from './lib/server/auth.ts';
 import { config } from './lib/server/config.ts';
-import { HttpProblem, problemResponse } from './lib/server/http.ts';
+import { DomainError } from './lib/core/errors.ts';
+import { HttpProblem, problemFromDomainError, problemResponse } from './lib/server/http.ts';
 
 const STATE_CHANGING = new Set(['POST', 'PUT', 'PATCH', 'DELETE']);
 
@@ -29,7 +30,8 @@ function ownOrigins(ctx: { url: URL; request: Request }): Set<string> {
 const errors = defineMiddleware(async (ctx, next) => {
   try {
     return await next();
-  } catch (e) {
+  } catch (caught) {
+    const e = caught instanceof DomainError ? problemFromDomainError(caught) : caught;
     if (e instanceof HttpProblem) {
       if (ctx.url.pathname.startsWith('/api/')) return problemResponse(e.status, e.title, e.detail, e.extra);
       return new Response(`${e.title}. ${e.detail ?? ''}`, {

@@ -77,14 +77,14 @@ import {
   releaseEscalation,
   type AlarmHint,
   type RaiseAlarmInput,
-} from '../../src/lib/server/stores/alarm-store.ts';
+} from '../../src/lib/core/alarm-store.ts';
 import {
   channelAlarmConfigs,
   escalationSettings,
   rulesByPriority,
   type ChannelAlarmConfig,
-} from '../../src/lib/server/stores/alarm-config-store.ts';
-import { windowInForce } from '../../src/lib/server/stores/window-store.ts';
+} from '../../src/lib/core/alarm-config-store.ts';
+import { windowInForce } from '../../src/lib/core/window-store.ts';
 import type { PostCommitHandler, StoredReading, WorkerContext } from './index.ts';
 
 const CHECK_EVERY_MS = 5_000;

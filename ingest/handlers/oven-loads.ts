@@ -21,8 +21,9 @@
  * readings. Opening is safe to repeat (one open load per oven in the database).
  */
 import { SOAK_BAND_C } from '../../src/lib/domain/cure/cure-record.ts';
-import { closeLoad, openLoad } from '../../src/lib/server/stores/load-store.ts';
+import { closeLoad, openLoad } from '../../src/lib/core/load-store.ts';
 import type { PostCommitHandler, StoredReading, WorkerContext } from './index.ts';
+import { isDomainError } from '../../src/lib/core/errors.ts';
 
 /** Setpoint rise that starts a cycle, and fall that ends it, °C. */
 export const CYCLE_SETPOINT_STEP_C = 50;
@@ -191,8 +192,7 @@ async function close(ctx: WorkerContext, o: OvenState, atMs: number, why: string
     const r = await closeLoad(ctx.pool, id, { atMs, by: 'auto', note: why }, ctx.publishLive);
     ctx.log(`oven-loads: ${o.name} load ${id} closed (${why}); verdict ${r.verdict}`);
   } catch (e) {
-    const status = (e as { status?: number }).status;
-    if (status !== 409 && status !== 404) throw e; // already closed by hand: nothing to do
+    if (!isDomainError(e, 'conflict', 'not-found')) throw e; // already closed by hand: nothing to do
   } finally {
     o.busy = false;
   }

@@ -7,7 +7,7 @@
 import { z } from 'zod';
 import { parseTelemetryPayload, sameUnit, type RejectionReason, type TelemetryPayload } from '../../src/lib/shared/telemetry.ts';
 import type { ChannelMap } from '../channel-map.ts';
-import type { ParsedTopic } from '../topics.ts';
+import type { ParsedTopic } from '../../src/lib/shared/topics.ts';
 
 export type ParsedPayload =
   | { ok: true; payload: TelemetryPayload }

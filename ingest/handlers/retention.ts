@@ -5,7 +5,7 @@
  * messages. The time of the last run and its result are kept in site_settings
  * (`retentionLastRun`), so restarts do not repeat it.
  */
-import { applyRetention } from '../../src/lib/server/stores/readings-store.ts';
+import { applyRetention } from '../../src/lib/core/readings-store.ts';
 import { forgetPartitions } from '../store.ts';
 import type { PostCommitHandler } from './index.ts';
 

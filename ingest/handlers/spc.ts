@@ -15,7 +15,7 @@
  * after the characteristic's last stored point — and points are numbered under a
  * per-characteristic advisory lock, so a restart loses nothing and two workers never clash.
  */
-import { getAlarm, liveAlarmPayload, raiseAlarm, clearAlarmReturning } from '../../src/lib/server/stores/alarm-store.ts';
+import { getAlarm, liveAlarmPayload, raiseAlarm, clearAlarmReturning } from '../../src/lib/core/alarm-store.ts';
 import {
   advanceCharacteristic,
   lastPointOf,
@@ -23,7 +23,7 @@ import {
   pendingLoadSubgroups,
   recordSubgroups,
   type CharacteristicRecord,
-} from '../../src/lib/server/stores/spc-store.ts';
+} from '../../src/lib/core/spc-store.ts';
 import { windowStart } from '../../src/lib/domain/control/subgroups.ts';
 import { CHART_STATISTIC, violationLabel, type ChartPoint, type LivePointEvent } from '../../src/lib/shared/characteristics.ts';
 import type { PostCommitHandler, WorkerContext } from './index.ts';

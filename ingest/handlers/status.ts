@@ -5,7 +5,7 @@
  */
 import { DeviceStatusSchema } from '../../src/lib/shared/telemetry.ts';
 import type { ChannelMap } from '../channel-map.ts';
-import type { ParsedTopic } from '../topics.ts';
+import type { ParsedTopic } from '../../src/lib/shared/topics.ts';
 import { storedPayload, type Batch } from './readings.ts';
 
 function statusOf(text: string): 'online' | 'offline' | null {

@@ -10,7 +10,7 @@
  * shelf expires while the condition is still active). Limits and readings are hand-chosen.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { clearAlarm, raiseAlarm } from '../../src/lib/server/stores/alarm-store.ts';
+import { clearAlarm, raiseAlarm } from '../../src/lib/core/alarm-store.ts';
 import { api, signIn, type Session } from '../support/http.ts';
 import {
   channelIdOf,

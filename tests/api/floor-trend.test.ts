@@ -11,7 +11,7 @@
 import pg from 'pg';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { createPool } from '../../db/connection.ts';
-import { windowInForce } from '../../src/lib/server/stores/window-store.ts';
+import { windowInForce } from '../../src/lib/core/window-store.ts';
 import type { FloorSnapshot } from '../../src/lib/shared/floor.ts';
 import type { AnnotationsResponse } from '../../src/lib/shared/trend.ts';
 import { api, signIn, type Session } from '../support/http.ts';

@@ -11,7 +11,7 @@
 import mqtt from 'mqtt';
 import type pg from 'pg';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { channelTopic } from '../../ingest/topics.ts';
+import { channelTopic } from '../../src/lib/shared/topics.ts';
 import type { StoredCureRecord } from '../../src/lib/shared/jobs.ts';
 import { closeTestPool, testPool } from '../support/accounts.ts';
 import { api, signIn, type Session } from '../support/http.ts';

@@ -6,7 +6,7 @@
 import { randomBytes } from 'node:crypto';
 import pg from 'pg';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { windowInForce } from '../../src/lib/server/stores/window-store.ts';
+import { windowInForce } from '../../src/lib/core/window-store.ts';
 import type { ProcessWindowLimits } from '../../src/lib/shared/windows.ts';
 import { api, signIn, type Session } from '../support/http.ts';
 import { TEST_PASSWORD } from '../support/test-stack.ts';

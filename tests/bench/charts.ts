@@ -29,7 +29,7 @@ import { createPool, createSequelize } from '../../db/connection.ts';
 import { migrateUp } from '../../db/migrate.ts';
 import { freePort, startLocalPostgres, stopLocalPostgres } from '../../db/pg-control.ts';
 import { seedDemoPlant } from '../../seeds/demo-plant.ts';
-import { queryReadings } from '../../src/lib/server/stores/readings-store.ts';
+import { queryReadings } from '../../src/lib/core/readings-store.ts';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
 const CHANNELS = Number(process.env['BENCH_CHANNELS'] ?? 50);

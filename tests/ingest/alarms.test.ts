@@ -9,7 +9,7 @@
  * are hand-chosen; the window's limits are read from the database (seeded example window).
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { windowInForce } from '../../src/lib/server/stores/window-store.ts';
+import { windowInForce } from '../../src/lib/core/window-store.ts';
 import { api, signIn, type Session } from '../support/http.ts';
 import {
   channelIdOf,

@@ -11,7 +11,7 @@
 import pg from 'pg';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { createPool } from '../../db/connection.ts';
-import { rebuildRollups } from '../../src/lib/server/stores/readings-store.ts';
+import { rebuildRollups } from '../../src/lib/core/readings-store.ts';
 import { api, signIn, type Session } from '../support/http.ts';
 import { createTestDevice } from '../support/ingest-harness.ts';
 

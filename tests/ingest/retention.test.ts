@@ -12,7 +12,7 @@ import { createPool, createSequelize } from '../../db/connection.ts';
 import { migrateUp } from '../../db/migrate.ts';
 import { startLocalPostgres, stopLocalPostgres } from '../../db/pg-control.ts';
 import { retentionHandler } from '../../ingest/handlers/retention.ts';
-import { applyRetention } from '../../src/lib/server/stores/readings-store.ts';
+import { applyRetention } from '../../src/lib/core/readings-store.ts';
 import { root } from '../support/test-stack.ts';
 
 const DAY = 86_400_000;

@@ -8,7 +8,7 @@ import mqtt, { type MqttClient } from 'mqtt';
 import pg from 'pg';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { demoDevicePassword } from '../../seeds/demo-plant.ts';
-import { recordLoadSubgroup } from '../../src/lib/server/stores/spc-store.ts';
+import { recordLoadSubgroup } from '../../src/lib/core/spc-store.ts';
 import { waitFor } from '../support/ingest-harness.ts';
 import { api, signIn, type Session } from '../support/http.ts';
 import { TEST_DEVICE_SECRET, TEST_PASSWORD } from '../support/test-stack.ts';

@@ -6,7 +6,7 @@
  */
 import { randomBytes } from 'node:crypto';
 import type pg from 'pg';
-import { deviceTopicPrefix } from '../../ingest/topics.ts';
+import { deviceTopicPrefix } from '../../src/lib/shared/topics.ts';
 import { hashPassword } from '../../src/lib/server/passwords.ts';
 import type { ProcessWindowLimits } from '../../src/lib/shared/windows.ts';
 

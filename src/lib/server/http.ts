@@ -3,11 +3,9 @@
  * validated by a zod schema (a 400 with field paths, never a 500 for bad input).
  */
 import type { z } from 'zod';
+import { DomainError, type DomainErrorKind, type FieldError } from '../core/errors.ts';
 
-export interface FieldError {
-  path: string;
-  message: string;
-}
+export type { FieldError };
 
 /** A failure that the middleware turns into an application/problem+json response. */
 export class HttpProblem extends Error {
@@ -19,6 +17,21 @@ export class HttpProblem extends Error {
   ) {
     super(detail ?? title);
   }
+}
+
+/** The HTTP status of each kind of core error (the core itself knows nothing of HTTP). */
+export const DOMAIN_ERROR_STATUS: Record<DomainErrorKind, number> = {
+  invalid: 400,
+  'not-found': 404,
+  conflict: 409,
+  'too-large': 413,
+  'unsupported-media': 415,
+  unprocessable: 422,
+};
+
+/** A core error as the problem the web layer answers with. */
+export function problemFromDomainError(e: DomainError): HttpProblem {
+  return new HttpProblem(DOMAIN_ERROR_STATUS[e.kind], e.title, e.detail, e.extra);
 }
 
 export function problemResponse(status: number, title: string, detail?: string, extra: Record<string, unknown> = {}): Response {

@@ -38,7 +38,7 @@ export const KIND_UNITS: Record<ChannelKind, string> = {
   other: '',
 };
 
-/** A topic segment: lower-case code [a-z0-9-] (ingest/topics.ts). */
+/** A topic segment: lower-case code [a-z0-9-] (lib/shared/topics.ts). */
 export const CodeSchema = z
   .string()
   .trim()

@@ -1,6 +1,6 @@
 /**
  * The MQTT telemetry payload: one zod schema for every reading a device publishes on
- * `coatrail/v1/{site}/{device}/{asset}/{channel}` (see ingest/topics.ts), plus the reasons a
+ * `coatrail/v1/{site}/{device}/{asset}/{channel}` (see lib/shared/topics.ts), plus the reasons a
  * message can be refused and the query schemas of the readings and rejections endpoints.
  *
  * Accepted payloads (JSON, UTF-8), all normalised to `{u?, samples: [{t, v, q}]}`:

@@ -19,7 +19,7 @@ import {
   transitionAlarm,
   type AlarmLogRow,
   type ListAlarmsFilter,
-} from '../stores/alarm-store.ts';
+} from '../../core/alarm-store.ts';
 import {
   channelExists,
   characteristicExists,
@@ -30,7 +30,7 @@ import {
   listChannelAlarmConfigs,
   saveEscalationSettings,
   upsertChannelAlarmConfig,
-} from '../stores/alarm-config-store.ts';
+} from '../../core/alarm-config-store.ts';
 
 export { listChannelAlarmConfigs, listCharacteristicAlarmConfigs };
 

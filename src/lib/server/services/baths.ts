@@ -22,7 +22,7 @@ import type { SessionUser } from '../auth.ts';
 import { db, pgPool } from '../db.ts';
 import { actorOf } from '../guard.ts';
 import { HttpProblem } from '../http.ts';
-import { windowInForce } from '../stores/window-store.ts';
+import { windowInForce } from '../../core/window-store.ts';
 import { q } from './windows.ts';
 
 const iso = (d: Date | string | null | undefined): string | null => (d == null ? null : new Date(d).toISOString());

@@ -11,7 +11,7 @@ import type { SessionUser } from '../auth.ts';
 import { pgPool } from '../db.ts';
 import { actorOf } from '../guard.ts';
 import { HttpProblem } from '../http.ts';
-import { attachJobsToDipRun, createDipRun, upsertJobs, upsertRack, type DipRunCreated } from '../stores/job-store.ts';
+import { attachJobsToDipRun, createDipRun, upsertJobs, upsertRack, type DipRunCreated } from '../../core/job-store.ts';
 import type { LineRow, DipRunItem, JobSearchItem } from '../../shared/trace-views.ts';
 
 const bad = (path: string, message: string) =>

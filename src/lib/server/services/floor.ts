@@ -18,9 +18,9 @@ import {
 import { windowRangeFor } from '../../shared/trend.ts';
 import type { ProcessWindowInForce } from '../../shared/windows.ts';
 import { pgPool } from '../db.ts';
-import { ovenChannels } from '../stores/load-store.ts';
-import { siteTimeZone } from '../stores/settings-store.ts';
-import { windowInForce } from '../stores/window-store.ts';
+import { ovenChannels } from '../../core/load-store.ts';
+import { siteTimeZone } from '../../core/settings-store.ts';
+import { windowInForce } from '../../core/window-store.ts';
 import { latestReadings, listChannels } from './plant.ts';
 
 const TILE_KINDS = ['line', 'oven', 'coater'] as const;

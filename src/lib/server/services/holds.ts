@@ -21,7 +21,7 @@ import { signWithPassword, type SessionUser } from '../auth.ts';
 import { pgPool } from '../db.ts';
 import { actorOf } from '../guard.ts';
 import { HttpProblem } from '../http.ts';
-import { siteTimeZone } from '../stores/settings-store.ts';
+import { siteTimeZone } from '../../core/settings-store.ts';
 import type { HoldItem, NcItem, NcDetail } from '../../shared/trace-views.ts';
 
 const bad = (path: string, message: string) =>

@@ -20,9 +20,9 @@ import { publishLive } from '../broker-link.ts';
 import { pgPool } from '../db.ts';
 import { actorOf } from '../guard.ts';
 import { HttpProblem } from '../http.ts';
-import { addJobsToLoad, closeLoad, openLoad, ovenChannels, recomputeLoad, type RecomputeResult } from '../stores/load-store.ts';
-import { siteTimeZone } from '../stores/settings-store.ts';
-import { windowInForce } from '../stores/window-store.ts';
+import { addJobsToLoad, closeLoad, openLoad, ovenChannels, recomputeLoad, type RecomputeResult } from '../../core/load-store.ts';
+import { siteTimeZone } from '../../core/settings-store.ts';
+import { windowInForce } from '../../core/window-store.ts';
 import type { LoadAlarm, LoadDetail, LoadListItem, OpenLoadPhase, OvenRow, TrendSeries } from '../../shared/trace-views.ts';
 
 const iso = (d: Date | null): string | null => (d ? d.toISOString() : null);

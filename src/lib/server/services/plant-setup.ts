@@ -5,7 +5,7 @@
  */
 import { randomBytes } from 'node:crypto';
 import type pg from 'pg';
-import { channelTopic, deviceTopicPrefix } from '../../../../ingest/topics.ts';
+import { channelTopic, deviceTopicPrefix } from '../../shared/topics.ts';
 import {
   codeFromName,
   type ApproveUnknownChannel,
@@ -16,7 +16,7 @@ import {
   type UnknownChannelView,
 } from '../../shared/plant.ts';
 import type { Actor } from '../audit.ts';
-import { appendAudit } from '../stores/audit-store.ts';
+import { appendAudit } from '../../core/audit-store.ts';
 import { pgPool } from '../db.ts';
 import { HttpProblem } from '../http.ts';
 import { hashPassword } from '../passwords.ts';

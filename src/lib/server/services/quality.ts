@@ -23,8 +23,8 @@ import type { SessionUser } from '../auth.ts';
 import { pgPool } from '../db.ts';
 import { actorOf } from '../guard.ts';
 import { HttpProblem } from '../http.ts';
-import { acceptanceSettings, attachFile, recordTest, type RecordedTest } from '../stores/quality-store.ts';
-import { siteTimeZone, writeSetting } from '../stores/settings-store.ts';
+import { acceptanceSettings, attachFile, recordTest, type RecordedTest } from '../../core/quality-store.ts';
+import { siteTimeZone, writeSetting } from '../../core/settings-store.ts';
 import type { TestDetail, AdhesionWeek, AdhesionChart, FailureGroup } from '../../shared/trace-views.ts';
 
 interface TestRow {

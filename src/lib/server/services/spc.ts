@@ -43,7 +43,7 @@ import {
   setsInForceOrder,
   topAssetOfChannel,
   type CharacteristicRecord,
-} from '../stores/spc-store.ts';
+} from '../../core/spc-store.ts';
 
 const invalid = (path: string, message: string) =>
   new HttpProblem(400, 'Invalid input', `${path}: ${message}`, { errors: [{ path, message }] });

@@ -24,8 +24,8 @@ import type { SessionUser } from '../auth.ts';
 import { pgPool } from '../db.ts';
 import { actorOf } from '../guard.ts';
 import { HttpProblem } from '../http.ts';
-import { attachFile } from '../stores/quality-store.ts';
-import { readSetting, writeSetting } from '../stores/settings-store.ts';
+import { attachFile } from '../../core/quality-store.ts';
+import { readSetting, writeSetting } from '../../core/settings-store.ts';
 import type { SurveyComputation, SurveyItem, OvenSurveyStatus } from '../../shared/trace-views.ts';
 
 export const DEFAULT_SURVEY_SETTINGS: SurveySettings = {

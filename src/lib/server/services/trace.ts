@@ -11,7 +11,7 @@ import { DEFAULT_TRACE_SETTINGS, TraceSettingsSchema, type TestKind, type TestRe
 import type { StoredCureRecord } from '../../shared/jobs.ts';
 import type { Range } from '../../shared/windows.ts';
 import { pgPool } from '../db.ts';
-import { readSetting } from '../stores/settings-store.ts';
+import { readSetting } from '../../core/settings-store.ts';
 import { alarmsDuring } from './loads.ts';
 import type { TraceDipRun, TraceLoad, TraceTest, TraceSibling, TraceResult } from '../../shared/trace-views.ts';
 

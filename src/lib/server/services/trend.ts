@@ -7,7 +7,7 @@
 import { stepsFromSamples, type AnnotationsResponse, type TrendEvent, type WindowSegment } from '../../shared/trend.ts';
 import type { ProcessWindowInForce } from '../../shared/windows.ts';
 import { pgPool } from '../db.ts';
-import { windowInForce } from '../stores/window-store.ts';
+import { windowInForce } from '../../core/window-store.ts';
 
 /** Most events one answer carries (the earliest are kept; `truncated` says when more exist). */
 export const MAX_EVENTS = 3000;

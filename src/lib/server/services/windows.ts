@@ -20,7 +20,7 @@ import { signWithPassword, type SessionUser } from '../auth.ts';
 import { db, pgPool } from '../db.ts';
 import { actorOf } from '../guard.ts';
 import { HttpProblem } from '../http.ts';
-import { listAssignments, windowInForce, type AssignmentRow } from '../stores/window-store.ts';
+import { listAssignments, windowInForce, type AssignmentRow } from '../../core/window-store.ts';
 
 /** Raw SQL with $n binds, optionally inside a transaction. */
 export async function q<T extends object>(sql: string, bind: unknown[] = [], transaction?: Transaction): Promise<T[]> {

@@ -3,7 +3,7 @@ import { z } from 'zod';
 import { pgPool } from '../../../../lib/server/db.ts';
 import { requireRole } from '../../../../lib/server/guard.ts';
 import { HttpProblem, readQuery } from '../../../../lib/server/http.ts';
-import { windowInForce } from '../../../../lib/server/stores/window-store.ts';
+import { windowInForce } from '../../../../lib/core/window-store.ts';
 
 const Query = z.object({
   assetId: z.coerce.number({ error: 'assetId must be a number.' }).int().positive('assetId must be a positive id.'),

@@ -2,7 +2,7 @@ import type { APIRoute } from 'astro';
 import { pgPool } from '../../../../../lib/server/db.ts';
 import { requireRole } from '../../../../../lib/server/guard.ts';
 import { HttpProblem, idParam, readQuery } from '../../../../../lib/server/http.ts';
-import { channelBrief, queryReadings } from '../../../../../lib/server/stores/readings-store.ts';
+import { channelBrief, queryReadings } from '../../../../../lib/core/readings-store.ts';
 import { ReadingsQuerySchema } from '../../../../../lib/shared/telemetry.ts';
 
 /**

@@ -5,12 +5,12 @@
  */
 import { createHash } from 'node:crypto';
 import type pg from 'pg';
-import { findExtrema, type SpectrumPoint } from '../../domain/quality/fringes.ts';
-import { judgeTest, type TestMeasurement } from '../../domain/quality/acceptance.ts';
-import { CsvSyntaxError, normaliseHeader, parseCsv } from '../../shared/csv-table.ts';
-import { MAX_UPLOAD_BYTES, sniffUpload, safeFileName, type UploadMime } from '../../shared/file-types.ts';
-import { AcceptanceSchema, DEFAULT_ACCEPTANCE, type Acceptance, type TestCreate } from '../../shared/quality.ts';
-import { HttpProblem } from '../http.ts';
+import { findExtrema, type SpectrumPoint } from '../domain/quality/fringes.ts';
+import { judgeTest, type TestMeasurement } from '../domain/quality/acceptance.ts';
+import { CsvSyntaxError, normaliseHeader, parseCsv } from '../shared/csv-table.ts';
+import { MAX_UPLOAD_BYTES, sniffUpload, safeFileName, type UploadMime } from '../shared/file-types.ts';
+import { AcceptanceSchema, DEFAULT_ACCEPTANCE, type Acceptance, type TestCreate } from '../shared/quality.ts';
+import { DomainError, fieldError, type DomainErrorKind } from './errors.ts';
 import { readSetting } from './settings-store.ts';
 
 type Queryable = pg.Pool | pg.PoolClient;
@@ -20,8 +20,8 @@ export function acceptanceSettings(q: Queryable): Promise<Acceptance> {
   return readSetting(q, 'acceptance', AcceptanceSchema, DEFAULT_ACCEPTANCE);
 }
 
-const bad = (path: string, message: string, status = 400, title = 'Invalid input') =>
-  new HttpProblem(status, title, `${path}: ${message}`, { errors: [{ path, message }] });
+const bad = (path: string, message: string, kind: DomainErrorKind = 'invalid', title = 'Invalid input') =>
+  fieldError(path, message, kind, title);
 
 /**
  * Reads a reflectance spectrum CSV: a header naming a wavelength column (wavelength_nm,
@@ -83,7 +83,7 @@ export interface RecordedTest {
 /**
  * Judges and stores one test. A thickness test from a spectrum finds the fringes itself
  * (Macleod's fringe method, lib/domain/quality/fringes.ts) and keeps the spectrum as a file.
- * @throws HttpProblem 400 for an unknown job or a malformed spectrum, 422 when the spectrum
+ * @throws DomainError 400 for an unknown job or a malformed spectrum, 422 when the spectrum
  *   shows no measurable fringes.
  */
 export async function recordTest(pool: pg.Pool, input: RecordTestInput): Promise<RecordedTest> {
@@ -126,7 +126,7 @@ export async function recordTest(pool: pg.Pool, input: RecordTestInput): Promise
           throw bad(
             'spectrumCsv',
             `The spectrum gives no thickness: ${a.reason}. Measure the coat another way.`,
-            422,
+            'unprocessable',
             'No thickness from this spectrum',
           );
         measurement = { kind: 'thickness', thicknessUm: a.thicknessNm / 1000 };
@@ -223,8 +223,8 @@ async function insertFile(
  */
 export function checkUpload(name: string, bytes: Uint8Array): UploadMime {
   if (bytes.length > MAX_UPLOAD_BYTES) {
-    throw new HttpProblem(
-      413,
+    throw new DomainError(
+      'too-large',
       'File too large',
       `${safeFileName(name)} is ${(bytes.length / 1048576).toFixed(1)} MB; the limit is 5 MB.`,
       {
@@ -233,7 +233,10 @@ export function checkUpload(name: string, bytes: Uint8Array): UploadMime {
     );
   }
   const s = sniffUpload(bytes, name);
-  if (!s.ok) throw new HttpProblem(415, 'Unsupported file type', s.reason, { errors: [{ path: 'file', message: s.reason }] });
+  if (!s.ok)
+    throw new DomainError('unsupported-media', 'Unsupported file type', s.reason, {
+      errors: [{ path: 'file', message: s.reason }],
+    });
   if (s.mime === 'text/csv') {
     const text = new TextDecoder().decode(bytes);
     try {
@@ -242,7 +245,7 @@ export function checkUpload(name: string, bytes: Uint8Array): UploadMime {
       const off = records.find((r) => r.cells.length !== width);
       if (off) throw new CsvSyntaxError(off.line, `has ${off.cells.length} fields; the first row has ${width}`);
     } catch (e) {
-      if (e instanceof CsvSyntaxError) throw bad('file', `Malformed CSV: ${e.message}.`, 400, 'Malformed CSV');
+      if (e instanceof CsvSyntaxError) throw bad('file', `Malformed CSV: ${e.message}.`, 'invalid', 'Malformed CSV');
       throw e;
     }
   }

@@ -17,10 +17,10 @@
  *   gaps, door openings and the verdict against the window in force at the load's start.
  */
 import type pg from 'pg';
-import { cureRecord, type CureWindow, type DoorEvent, type OvenReading } from '../../domain/cure/cure-record.ts';
-import { VERDICT_LABELS, type CureVerdictName, type StoredCureRecord } from '../../shared/jobs.ts';
-import type { ProcessWindowInForce } from '../../shared/windows.ts';
-import { HttpProblem } from '../http.ts';
+import { cureRecord, type CureWindow, type DoorEvent, type OvenReading } from '../domain/cure/cure-record.ts';
+import { VERDICT_LABELS, type CureVerdictName, type StoredCureRecord } from '../shared/jobs.ts';
+import type { ProcessWindowInForce } from '../shared/windows.ts';
+import { DomainError } from './errors.ts';
 import { clearAlarmReturning, getAlarm, liveAlarmPayload, raiseAlarm } from './alarm-store.ts';
 import { upsertJobs } from './job-store.ts';
 import { windowInForce } from './window-store.ts';
@@ -293,9 +293,9 @@ export async function recomputeLoad(pool: pg.Pool, loadId: number, publish?: Pub
     [loadId],
   );
   const load = rows[0];
-  if (!load) throw new HttpProblem(404, 'Not found', 'No such oven load.');
+  if (!load) throw new DomainError('not-found', 'Not found', 'No such oven load.');
   if (load.status !== 'closed' || !load.closed_at)
-    throw new HttpProblem(409, 'Load still open', 'The cure record is computed when the load is closed.');
+    throw new DomainError('conflict', 'Load still open', 'The cure record is computed when the load is closed.');
   const { record, windowId } = await computeCureRecord(pool, {
     ovenAssetId: load.oven_asset_id,
     openedAtMs: load.opened_at.getTime(),
@@ -351,7 +351,7 @@ export interface OpenLoadInput {
 
 /**
  * Opens a load on an oven. At most one load is open per oven.
- * @throws HttpProblem 400 when the asset is not an oven, 409 when a load is already open there.
+ * @throws DomainError 400 when the asset is not an oven, 409 when a load is already open there.
  */
 export async function openLoad(
   pool: pg.Pool,
@@ -360,7 +360,7 @@ export async function openLoad(
 ): Promise<{ id: number; windowId: number | null }> {
   const oven = await ovenChannels(pool, input.ovenAssetId);
   if (!oven)
-    throw new HttpProblem(400, 'Invalid input', 'ovenAssetId: not an oven', {
+    throw new DomainError('invalid', 'Invalid input', 'ovenAssetId: not an oven', {
       errors: [{ path: 'ovenAssetId', message: 'Choose an oven.' }],
     });
   const w = await windowInForce(pool, input.ovenAssetId, input.atMs);
@@ -378,8 +378,7 @@ export async function openLoad(
       const open = await pool.query<{ id: number }>(`select id from oven_loads where oven_asset_id = $1 and status = 'open'`, [
         input.ovenAssetId,
       ]);
-      throw new HttpProblem(
-        409,
+      throw new DomainError('conflict',
         'A load is already open',
         `${oven.name} already has load ${open.rows[0]?.id ?? '?'} open; close it first.`,
         {
@@ -400,7 +399,7 @@ export interface CloseLoadInput {
 
 /**
  * Closes an open load and computes its cure record.
- * @throws HttpProblem 404 unknown, 409 already closed, 400 when the closing time is not after the opening.
+ * @throws DomainError 404 unknown, 409 already closed, 400 when the closing time is not after the opening.
  */
 export async function closeLoad(
   pool: pg.Pool,
@@ -413,10 +412,10 @@ export async function closeLoad(
     [loadId],
   );
   const load = rows[0];
-  if (!load) throw new HttpProblem(404, 'Not found', 'No such oven load.');
-  if (load.status !== 'open') throw new HttpProblem(409, 'Load already closed', `Load ${loadId} is already closed.`);
+  if (!load) throw new DomainError('not-found', 'Not found', 'No such oven load.');
+  if (load.status !== 'open') throw new DomainError('conflict', 'Load already closed', `Load ${loadId} is already closed.`);
   if (input.atMs <= load.opened_at.getTime()) {
-    throw new HttpProblem(400, 'Invalid input', 'closedAt: must be after the load was opened', {
+    throw new DomainError('invalid', 'Invalid input', 'closedAt: must be after the load was opened', {
       errors: [{ path: 'closedAt', message: 'The closing time must be after the opening time.' }],
     });
   }
@@ -426,7 +425,7 @@ export async function closeLoad(
       where id = $1 and status = 'open'`,
     [loadId, input.atMs, input.by, input.userId ?? null, input.note ?? null],
   );
-  if (upd.rowCount === 0) throw new HttpProblem(409, 'Load already closed', `Load ${loadId} is already closed.`);
+  if (upd.rowCount === 0) throw new DomainError('conflict', 'Load already closed', `Load ${loadId} is already closed.`);
   return recomputeLoad(pool, loadId, publish);
 }
 
@@ -441,7 +440,7 @@ export interface AddJobsResult {
 /**
  * Puts jobs (and the jobs of scanned racks: those of the rack's latest dip run before now) into
  * a load. Unknown job numbers are created.
- * @throws HttpProblem 404 unknown load, 409 closed load (unless `allowClosed`, for seeds).
+ * @throws DomainError 404 unknown load, 409 closed load (unless `allowClosed`, for seeds).
  */
 export async function addJobsToLoad(
   pool: pg.Pool,
@@ -449,9 +448,9 @@ export async function addJobsToLoad(
   input: { jobNumbers: readonly string[]; rackCodes: readonly string[]; userId?: number | null; allowClosed?: boolean },
 ): Promise<AddJobsResult> {
   const { rows } = await pool.query<{ status: string }>('select status from oven_loads where id = $1', [loadId]);
-  if (!rows[0]) throw new HttpProblem(404, 'Not found', 'No such oven load.');
+  if (!rows[0]) throw new DomainError('not-found', 'Not found', 'No such oven load.');
   if (rows[0].status !== 'open' && !input.allowClosed)
-    throw new HttpProblem(409, 'Load closed', `Load ${loadId} is closed; jobs go into an open load.`);
+    throw new DomainError('conflict', 'Load closed', `Load ${loadId} is closed; jobs go into an open load.`);
   const fromRacks: Record<string, string[]> = {};
   const unknownRacks: string[] = [];
   const racks = new Map<string, number>();

@@ -7,7 +7,7 @@
  * stored readings of the tank's withdrawal-speed channel).
  */
 import type pg from 'pg';
-import { HttpProblem } from '../http.ts';
+import { DomainError } from './errors.ts';
 import { windowInForce } from './window-store.ts';
 
 type Queryable = pg.Pool | pg.PoolClient;
@@ -164,12 +164,12 @@ export interface DipRunCreated {
  * Records a dip run: links the bath charge in the tank at the dip time (latest charged at or
  * before it), the last bath check at or before it, the window in force for the line, and the
  * mean withdrawal speed of the stroke; creates unknown jobs and the rack.
- * @throws HttpProblem 400 when the asset is not a dip line.
+ * @throws DomainError 400 when the asset is not a dip line.
  */
 export async function createDipRun(pool: pg.Pool, input: DipRunInput): Promise<DipRunCreated> {
   const line = await lineInfo(pool, input.lineAssetId);
   if (!line) {
-    throw new HttpProblem(400, 'Invalid input', 'lineAssetId: not a dip line', {
+    throw new DomainError('invalid', 'Invalid input', 'lineAssetId: not a dip line', {
       errors: [{ path: 'lineAssetId', message: 'Choose a dip line.' }],
     });
   }

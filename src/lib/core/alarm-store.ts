@@ -13,9 +13,9 @@
  * The store does not publish live events; callers publish `alarms` with {@link liveAlarmPayload}.
  */
 import type pg from 'pg';
-import { transition, type AlarmEvent, type AlarmRecord, type AlarmActor, type AlarmState } from '../../domain/alarms/state.ts';
-import type { AlarmPriority } from '../../shared/alarms.ts';
-import type { AlarmSourceKind, AlarmView, AlarmEventView } from '../../shared/alarm-views.ts';
+import { transition, type AlarmEvent, type AlarmRecord, type AlarmActor, type AlarmState } from '../domain/alarms/state.ts';
+import type { AlarmPriority } from '../shared/alarms.ts';
+import type { AlarmSourceKind, AlarmView, AlarmEventView } from '../shared/alarm-views.ts';
 import { characteristicAlarmConfig } from './alarm-config-store.ts';
 
 export interface RaiseAlarmInput {

@@ -8,9 +8,9 @@
  * superseded set with `effective_from ≤ t`) — limits are never re-estimated here.
  */
 import type pg from 'pg';
-import { judgeSubgroups, historyNeeded } from '../../domain/control/phase2.ts';
-import { formSubgroups, type FormedSubgroup, type SourceReading } from '../../domain/control/subgroups.ts';
-import { mean, range, sampleSd } from '../../domain/spc/math.ts';
+import { judgeSubgroups, historyNeeded } from '../domain/control/phase2.ts';
+import { formSubgroups, type FormedSubgroup, type SourceReading } from '../domain/control/subgroups.ts';
+import { mean, range, sampleSd } from '../domain/spc/math.ts';
 import {
   CharacteristicInputSchema,
   type ChartParams,
@@ -21,8 +21,8 @@ import {
   type SpecLimits,
   type SpecSource,
   type SubgroupRule,
-} from '../../shared/characteristics.ts';
-import type { SpcLimitSet, SpcRuleId } from '../../shared/spc.ts';
+} from '../shared/characteristics.ts';
+import type { SpcLimitSet, SpcRuleId } from '../shared/spc.ts';
 import { windowInForce } from './window-store.ts';
 
 type Queryable = pg.Pool | pg.PoolClient;

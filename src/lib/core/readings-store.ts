@@ -11,13 +11,13 @@
  * - {@link applyRetention}: the retention policy (README "Retention").
  */
 import type pg from 'pg';
-import { BUCKET_LADDER_MS, chooseBucketMs, chooseSource } from '../../domain/series/buckets.ts';
+import { BUCKET_LADDER_MS, chooseBucketMs, chooseSource } from '../domain/series/buckets.ts';
 import {
   RetentionSettingsSchema,
   type ReadingsQuery,
   type ReadingsResponse,
   type RetentionSettings,
-} from '../../shared/telemetry.ts';
+} from '../shared/telemetry.ts';
 
 const MINUTE_MS = 60_000;
 const HOUR_MS = 3_600_000;

@@ -6,8 +6,8 @@
  * engineer's settings endpoints.
  */
 import type pg from 'pg';
-import type { AlarmPriority, EscalationRule } from '../../shared/alarms.ts';
-import { EscalationRuleSchema } from '../../shared/alarms.ts';
+import type { AlarmPriority, EscalationRule } from '../shared/alarms.ts';
+import { EscalationRuleSchema } from '../shared/alarms.ts';
 import {
   DEFAULT_ESCALATION,
   DEFAULT_ON_SHIFT_ENGINEER_EMAIL,
@@ -17,8 +17,8 @@ import {
   type ChannelAlarmConfigView,
   type EscalationSettings,
   type LimitsMode,
-} from '../../shared/alarm-views.ts';
-import type { EscalationRules } from '../../domain/alarms/escalation.ts';
+} from '../shared/alarm-views.ts';
+import type { EscalationRules } from '../domain/alarms/escalation.ts';
 
 type Queryable = pg.Pool | pg.PoolClient;
 

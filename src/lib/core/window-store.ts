@@ -9,7 +9,7 @@
  * A tank, zone or coater walks up the asset tree to the nearest assigned ancestor.
  */
 import type pg from 'pg';
-import type { ProcessWindowInForce, ProcessWindowLimits } from '../../shared/windows.ts';
+import type { ProcessWindowInForce, ProcessWindowLimits } from '../shared/windows.ts';
 
 interface Row {
   id: number;
