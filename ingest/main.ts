@@ -2,7 +2,8 @@
  * The ingest worker process: `tsx ingest/main.ts`. Connects to PostgreSQL and the broker,
  * subscribes to the plant's topics, stores readings and reports its heartbeat and lag.
  */
-import { createPool } from '../db/connection.ts';
+import { createPool, createSequelize } from '../db/connection.ts';
+import { initModels } from '../db/models/index.ts';
 import { loadConfig } from './config.ts';
 import { startWorker } from './subscriber.ts';
 
@@ -10,11 +11,14 @@ const config = loadConfig();
 // Bounded waits: a database that stops answering must surface as an error (then the worker
 // buffers and journals) rather than as a flush that never returns.
 const pool = createPool({ url: config.DATABASE_URL, max: 6, connectionTimeoutMillis: 5000, queryTimeoutMillis: 60_000 });
-const worker = await startWorker({ config, pool, log: (s) => console.log(`[ingest] ${s}`) });
+const sequelize = createSequelize({ url: config.DATABASE_URL, max: 4 });
+initModels(sequelize);
+const worker = await startWorker({ config, sequelize, pool, log: (s) => console.log(`[ingest] ${s}`) });
 
 const stop = async () => {
   await worker.close();
   await pool.end().catch(() => {});
+  await sequelize.close().catch(() => {});
   process.exit(0);
 };
 process.once('SIGTERM', stop);

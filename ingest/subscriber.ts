@@ -22,6 +22,7 @@
  */
 import mqtt, { type IClientOptions, type MqttClient } from 'mqtt';
 import type pg from 'pg';
+import type { Sequelize } from 'sequelize';
 import {
   postCommitHandlers as defaultHandlers,
   type PostCommitHandler,
@@ -38,6 +39,8 @@ import { LIVE_ROOT, TOPIC_ROOT, parseTopic, type ParsedTopic } from '../src/lib/
 
 export interface WorkerOptions {
   config: IngestConfig;
+  /** The process's one Sequelize instance (models initialised). */
+  sequelize: Sequelize;
   pool: pg.Pool;
   log?: (line: string) => void;
   /** Post-commit handlers (default: ingest/handlers/index.ts). */
@@ -93,6 +96,7 @@ export function subscriptionTopics(sharedGroup?: string): string[] {
 
 export async function startWorker({
   config,
+  sequelize,
   pool,
   log = () => {},
   handlers = defaultHandlers,
@@ -263,7 +267,7 @@ export async function startWorker({
     liveLatest.clear();
     publishLive('readings', out);
   }, LIVE_EVERY_MS);
-  const ctx: WorkerContext = { pool, publishLive, log };
+  const ctx: WorkerContext = { sequelize, pool, publishLive, log };
   const handlerQueue: StoredReading[][] = [];
   let handlersRunning: Promise<void> | null = null;
   const runHandlers = () => {

@@ -5,6 +5,7 @@
  * Handlers live in `ingest/handlers/<name>.ts`; add one line per handler below.
  */
 import type pg from 'pg';
+import type { Sequelize } from 'sequelize';
 import { retentionHandler } from './retention.ts';
 import { alarmsHandler } from './alarms.ts';
 import { ovenLoadsHandler } from './oven-loads.ts';
@@ -18,6 +19,9 @@ export interface StoredReading {
 }
 
 export interface WorkerContext {
+  /** The process's one Sequelize instance (models initialised): records and `sequelize.query`. */
+  sequelize: Sequelize;
+  /** Transitional: the raw pool, until every store takes the Sequelize instance. */
   pool: pg.Pool;
   /** → coatrail/v1/_live/{kind} */
   publishLive(kind: string, payload: unknown): void;

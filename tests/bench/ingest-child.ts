@@ -11,7 +11,8 @@
 import fs from 'node:fs';
 import { Session } from 'node:inspector/promises';
 import mqtt from 'mqtt';
-import { createPool } from '../../db/connection.ts';
+import { createPool, createSequelize } from '../../db/connection.ts';
+import { initModels } from '../../db/models/index.ts';
 import { loadConfig } from '../../ingest/config.ts';
 import { postCommitHandlers, type PostCommitHandler } from '../../ingest/handlers/index.ts';
 import { startWorker } from '../../ingest/subscriber.ts';
@@ -112,7 +113,9 @@ if (mode === 'subscriber') {
   const wanted = process.env['BENCH_HANDLERS'];
   const others =
     wanted === 'none' ? [] : wanted ? postCommitHandlers.filter((h) => wanted.split(',').includes(h.name)) : postCommitHandlers;
-  const worker = await startWorker({ config, pool, handlers: [timer, ...others] });
+  const sequelize = createSequelize({ url: config.DATABASE_URL, max: 4 });
+  initModels(sequelize);
+  const worker = await startWorker({ config, sequelize, pool, handlers: [timer, ...others] });
   const ready = setInterval(() => {
     if (worker.stats().subscribed) {
       clearInterval(ready);

@@ -7,6 +7,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import pg from 'pg';
+import type { Sequelize } from 'sequelize';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createPool, createSequelize } from '../../db/connection.ts';
 import { migrateUp } from '../../db/migrate.ts';
@@ -18,6 +19,7 @@ import { root } from '../support/test-stack.ts';
 const DAY = 86_400_000;
 const dir = path.join(root, 'var', `test-ingest-retention-${process.pid}`);
 let pool: pg.Pool;
+let sequelize: Sequelize;
 const now = Date.now();
 const ch: Record<string, number> = {};
 
@@ -47,7 +49,7 @@ beforeAll(async () => {
   }
   const seq = createSequelize({ url, max: 1 });
   await migrateUp(seq);
-  await seq.close();
+  sequelize = seq;
   pool = createPool({ url, max: 3 });
   const site = (await pool.query<{ id: number }>(`insert into sites(code, name) values ('ret', 'Retention site') returning id`))
     .rows[0]!.id;
@@ -96,6 +98,7 @@ beforeAll(async () => {
 
 afterAll(async () => {
   await pool?.end();
+  await sequelize?.close();
   await stopLocalPostgres(dir).catch(() => {});
   fs.rmSync(dir, { recursive: true, force: true });
 });
@@ -131,7 +134,7 @@ describe('applyRetention with the default policy (migration 20261202-1000)', () 
 
 describe('the daily retention job in the worker', () => {
   it('runs a minute after start, records the run, and not again within the day', async () => {
-    const ctx = { pool, publishLive: () => {}, log: () => {} };
+    const ctx = { sequelize, pool, publishLive: () => {}, log: () => {} };
     await retentionHandler.init!(ctx);
     const t = Date.now();
     await retentionHandler.onTick!(ctx, t + 1_000); // too early after start
