@@ -11,8 +11,17 @@ import { PasswordReset } from './password-reset.ts';
 import { Site } from './site.ts';
 import { User } from './user.ts';
 import { UserSession } from './user-session.ts';
+import { Material } from './material.ts';
+import { Lacquer } from './lacquer.ts';
+import { LacquerLot } from './lacquer-lot.ts';
+import { BathCharge } from './bath-charge.ts';
+import { BathCheck } from './bath-check.ts';
+import { BathAddition } from './bath-addition.ts';
+import { FilterChange } from './filter-change.ts';
+import { OvenSurvey } from './oven-survey.ts';
 
 export { ApiToken, Asset, AuditEntry, Channel, Device, LoginThrottle, OutboxMail, PasswordReset, Site, User, UserSession };
+export { Material, Lacquer, LacquerLot, BathCharge, BathCheck, BathAddition, FilterChange, OvenSurvey };
 export type { RoleName } from './user.ts';
 export type { AssetKind } from './asset.ts';
 export type { SignatureRecord } from './audit-entry.ts';
@@ -34,6 +43,14 @@ export function initModels(sequelize: Sequelize): void {
     Site,
     User,
     UserSession,
+    Material,
+    Lacquer,
+    LacquerLot,
+    BathCharge,
+    BathCheck,
+    BathAddition,
+    FilterChange,
+    OvenSurvey,
   ]) {
     m.initModel(sequelize);
   }
@@ -46,4 +63,18 @@ export function initModels(sequelize: Sequelize): void {
   Device.belongsTo(Site, { foreignKey: 'siteId' });
   UserSession.belongsTo(User, { foreignKey: 'userId' });
   ApiToken.belongsTo(User, { as: 'creator', foreignKey: 'createdBy' });
+  LacquerLot.belongsTo(Lacquer, { foreignKey: 'lacquerId' });
+  LacquerLot.belongsTo(User, { as: 'creator', foreignKey: 'createdBy' });
+  BathCharge.belongsTo(Asset, { as: 'tank', foreignKey: 'tankAssetId' });
+  BathCharge.belongsTo(LacquerLot, { as: 'lot', foreignKey: 'lotId' });
+  BathCharge.belongsTo(User, { as: 'creator', foreignKey: 'createdBy' });
+  BathCheck.belongsTo(Asset, { as: 'tank', foreignKey: 'tankAssetId' });
+  BathCheck.belongsTo(BathCharge, { as: 'charge', foreignKey: 'chargeId' });
+  BathAddition.belongsTo(Asset, { as: 'tank', foreignKey: 'tankAssetId' });
+  BathAddition.belongsTo(BathCharge, { as: 'charge', foreignKey: 'chargeId' });
+  BathAddition.belongsTo(LacquerLot, { as: 'lot', foreignKey: 'lotId' });
+  BathAddition.belongsTo(BathCheck, { as: 'check', foreignKey: 'checkId' });
+  FilterChange.belongsTo(Asset, { as: 'tank', foreignKey: 'tankAssetId' });
+  OvenSurvey.belongsTo(Asset, { as: 'oven', foreignKey: 'ovenAssetId' });
+  OvenSurvey.belongsTo(User, { as: 'recorder', foreignKey: 'recordedBy' });
 }

@@ -4,11 +4,11 @@
  * electronic-signature check (US 21 CFR Part 11 §11.200: re-enter the password).
  */
 import { createHash, randomBytes } from 'node:crypto';
-import { Lucia, TimeSpan, type Adapter, type DatabaseSession, type DatabaseUser } from 'lucia';
-import { Op, QueryTypes } from 'sequelize';
+import { Lucia, TimeSpan, generateIdFromEntropySize, type Adapter, type DatabaseSession, type DatabaseUser } from 'lucia';
+import { Op } from 'sequelize';
 import { ApiToken, LoginThrottle, User, UserSession, type SignatureRecord } from '../../../db/models/index.ts';
+import { recordAuditEvent, recordFailureRecord } from '../core/accounts-store.ts';
 import type { Role } from '../shared/roles.ts';
-import { audit } from './audit.ts';
 import { config } from './config.ts';
 import { db } from './db.ts';
 import { HttpProblem } from './http.ts';
@@ -65,9 +65,11 @@ const adapter: Adapter = {
   },
 };
 
+/** A shift plus margin; lucia extends a session used in its second half (sliding expiry). */
+const SESSION_LIFETIME = new TimeSpan(12, 'h');
+
 export const lucia = new Lucia(adapter, {
-  // A shift plus margin; lucia extends a session used in its second half (sliding expiry).
-  sessionExpiresIn: new TimeSpan(12, 'h'),
+  sessionExpiresIn: SESSION_LIFETIME,
   sessionCookie: { name: 'coatrail_session', attributes: { sameSite: 'lax', secure: false } },
   getUserAttributes: (a) => ({ username: a.username, displayName: a.displayName, role: a.role }),
 });
@@ -78,6 +80,14 @@ declare module 'lucia' {
     UserId: number;
     DatabaseUserAttributes: { username: string; displayName: string; role: Role };
   }
+}
+
+/**
+ * A new session's id and expiry, as lucia makes them (`createSession`), for a sign-in that
+ * stores the session and its audit row in one transaction.
+ */
+export function newSession(userId: number): { id: string; userId: number; expiresAt: Date } {
+  return { id: generateIdFromEntropySize(25), userId, expiresAt: new Date(Date.now() + SESSION_LIFETIME.milliseconds()) };
 }
 
 /**
@@ -150,41 +160,12 @@ async function throttleState(key: string) {
  * is audited as `auth.locked`.
  */
 async function recordFailure(key: string, lockAfter: number, address: string | null): Promise<void> {
-  const rows = await db().query<{ failures: number; locked_until: Date | null; new_lock: boolean }>(
-    `with prev as (select locked_until from login_throttles where key = :key),
-     up as (
-       insert into login_throttles as t (key, failures, last_failure_at, locked_until)
-            values (:key, 1, now(), case when 1 >= :lockAfter then now() + make_interval(mins => :lockMinutes) end)
-       on conflict (key) do update set
-            failures = case when t.last_failure_at < now() - make_interval(mins => :resetAfter) then 1 else t.failures + 1 end,
-            last_failure_at = now(),
-            locked_until = case
-              when (case when t.last_failure_at < now() - make_interval(mins => :resetAfter) then 1 else t.failures + 1 end) >= :lockAfter
-               and (t.locked_until is null or t.locked_until <= now())
-              then now() + make_interval(mins => :lockMinutes)
-              else t.locked_until end
-       returning failures, locked_until)
-     select up.failures, up.locked_until,
-            (up.locked_until is not null and up.locked_until > now()
-             and up.locked_until is distinct from (select locked_until from prev)) as new_lock
-       from up`,
-    {
-      replacements: { key, lockAfter, lockMinutes: THROTTLE.lockMinutes, resetAfter: THROTTLE.resetAfterMinutes },
-      type: QueryTypes.SELECT,
-    },
+  await recordFailureRecord(
+    db(),
+    key,
+    { lockAfter, lockMinutes: THROTTLE.lockMinutes, resetAfterMinutes: THROTTLE.resetAfterMinutes },
+    address,
   );
-  const r = rows[0];
-  if (r?.new_lock && r.locked_until) {
-    await audit(
-      { id: null, label: 'system', address },
-      {
-        action: 'auth.locked',
-        entity: 'login',
-        entityId: key,
-        after: { lockedUntil: new Date(r.locked_until).toISOString(), failures: r.failures },
-      },
-    );
-  }
 }
 
 /** The active lock on any of `keys`, as a 429 problem. */
@@ -235,7 +216,8 @@ export async function checkCredentials(username: string, password: string, addre
   if (!user || !ok || !user.active) {
     await recordFailure(keys[0], THROTTLE.lockAfterUser, address);
     await recordFailure(keys[1], THROTTLE.lockAfterAddress, address);
-    await audit(
+    await recordAuditEvent(
+      db(),
       { id: user?.id ?? null, label: uname || '(blank)', address },
       { action: 'auth.failed', entity: 'login', entityId: uname },
     );
@@ -273,7 +255,8 @@ export async function signWithPassword(
   await refuseIfLocked([key]);
   if (!user || !user.active || !(await verifyPassword(user.passwordHash, password))) {
     await recordFailure(key, THROTTLE.lockAfterUser, address);
-    await audit(
+    await recordAuditEvent(
+      db(),
       { id: actor.id, label: actor.username, address },
       { action: 'signature.failed', entity: 'signature', after: { meaning: what } },
     );

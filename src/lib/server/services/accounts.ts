@@ -4,8 +4,19 @@
  * audited with before → after (secrets and hashes never enter the trail).
  */
 import { randomBytes } from 'node:crypto';
-import { Op, QueryTypes, UniqueConstraintError } from 'sequelize';
-import { ApiToken, LoginThrottle, PasswordReset, User, UserSession } from '../../../../db/models/index.ts';
+import { Op, col, fn, literal } from 'sequelize';
+import { ApiToken, AuditEntry, LoginThrottle, OutboxMail, PasswordReset, User, UserSession } from '../../../../db/models/index.ts';
+import type { AuditActor as Actor } from '../../../../db/transaction.ts';
+import {
+  completeResetRecord,
+  createTokenRecord,
+  createUserRecord,
+  issueResetRecord,
+  recordAuditEvent,
+  revokeTokenRecord,
+  unlockRecord,
+  updateUserRecord,
+} from '../../core/accounts-store.ts';
 import {
   RESET_LINK_MINUTES,
   type CreateUser,
@@ -16,7 +27,6 @@ import {
   type UserView,
 } from '../../shared/admin.ts';
 import { ROLE_LABELS, type Role } from '../../shared/roles.ts';
-import { audit, type Actor } from '../audit.ts';
 import { newTokenSecret, sha256 } from '../auth.ts';
 import { config } from '../config.ts';
 import { db } from '../db.ts';
@@ -26,45 +36,37 @@ import { hashPassword } from '../passwords.ts';
 
 const iso = (d: Date | string | null | undefined) => (d == null ? null : new Date(d).toISOString());
 
-/** What the audit trail keeps of a user (no password hash). */
-const userSnapshot = (u: User) => ({
-  username: u.username,
-  displayName: u.displayName,
-  email: u.email,
-  role: u.role,
-  active: u.active,
-});
-
 // --- users ----------------------------------------------------------------------------
 
 export async function listUsers(): Promise<UserView[]> {
-  const rows = await db().query<{
-    id: number;
-    username: string;
-    display_name: string;
-    email: string | null;
-    role: Role;
-    active: boolean;
-    created_at: Date;
-    last_sign_in_at: Date | null;
-    sessions: string;
-  }>(
-    `select u.id, u.username, u.display_name, u.email, u.role, u.active, u.created_at,
-            (select max(at) from audit_log a where a.action = 'auth.signed-in' and a.entity = 'user' and a.entity_id = u.id::text) as last_sign_in_at,
-            (select count(*) from user_sessions s where s.user_id = u.id and s.expires_at > now()) as sessions
-       from users u order by u.active desc, u.username`,
-    { type: QueryTypes.SELECT },
-  );
-  return rows.map((r) => ({
-    id: r.id,
-    username: r.username,
-    displayName: r.display_name,
-    email: r.email,
-    role: r.role,
-    active: r.active,
-    createdAt: iso(r.created_at)!,
-    lastSignInAt: iso(r.last_sign_in_at),
-    sessions: Number(r.sessions),
+  db();
+  const [users, sessions, signIns] = await Promise.all([
+    User.findAll({ order: [['active', 'DESC'], ['username', 'ASC']] }),
+    UserSession.findAll({
+      attributes: ['userId', [fn('count', col('id')), 'n']],
+      where: { expiresAt: { [Op.gt]: new Date() } },
+      group: ['userId'],
+      raw: true,
+    }) as unknown as Promise<Array<{ userId: number; n: number | string }>>,
+    AuditEntry.findAll({
+      attributes: ['entityId', [fn('max', col('at')), 'at']],
+      where: { action: 'auth.signed-in', entity: 'user' },
+      group: ['entityId'],
+      raw: true,
+    }) as unknown as Promise<Array<{ entityId: string; at: Date }>>,
+  ]);
+  const sessionCount = new Map(sessions.map((r) => [r.userId, Number(r.n)]));
+  const lastSignIn = new Map(signIns.map((r) => [r.entityId, r.at]));
+  return users.map((u) => ({
+    id: u.id,
+    username: u.username,
+    displayName: u.displayName,
+    email: u.email,
+    role: u.role,
+    active: u.active,
+    createdAt: iso(u.createdAt)!,
+    lastSignInAt: iso(lastSignIn.get(String(u.id))),
+    sessions: sessionCount.get(u.id) ?? 0,
   }));
 }
 
@@ -76,31 +78,15 @@ async function findUser(id: number): Promise<User> {
 }
 
 export async function createUser(actor: Actor, input: CreateUser, origin: string): Promise<{ user: UserView; invited: boolean }> {
-  const seq = db();
   // Without an initial password the account gets an unusable random one and an e-mailed link.
   const passwordHash = await hashPassword(input.password ?? randomBytes(32).toString('base64url'));
-  let user: User;
-  try {
-    user = await seq.transaction(async (transaction) => {
-      const u = await User.create(
-        { username: input.username, displayName: input.displayName, email: input.email, role: input.role, passwordHash },
-        { transaction },
-      );
-      await audit(
-        actor,
-        { action: 'user.created', entity: 'user', entityId: u.id, before: null, after: userSnapshot(u) },
-        transaction,
-      );
-      return u;
-    });
-  } catch (e) {
-    if (e instanceof UniqueConstraintError) {
-      throw new HttpProblem(409, 'Username taken', `There is already a user “${input.username}”.`, {
-        errors: [{ path: 'username', message: 'This username is taken (also by deactivated users).' }],
-      });
-    }
-    throw e;
-  }
+  const user = await createUserRecord(db(), actor, {
+    username: input.username,
+    displayName: input.displayName,
+    email: input.email,
+    role: input.role,
+    passwordHash,
+  });
   let invited = false;
   if (!input.password) {
     await issueReset(user, actor, origin, 'invite');
@@ -110,50 +96,8 @@ export async function createUser(actor: Actor, input: CreateUser, origin: string
   return { user: view, invited };
 }
 
-async function activeAdmins(): Promise<number> {
-  return User.count({ where: { role: 'admin', active: true } });
-}
-
 export async function updateUser(actor: Actor, id: number, input: UpdateUser): Promise<UserView> {
-  const seq = db();
-  const u = await findUser(id);
-  const before = userSnapshot(u);
-  if (actor.id === id && (input.active === false || (input.role && input.role !== u.role))) {
-    throw new HttpProblem(
-      409,
-      'Not on your own account',
-      'Ask another administrator to change your own role or to deactivate you.',
-      {
-        errors: [{ path: input.active === false ? 'active' : 'role', message: 'Not on your own account.' }],
-      },
-    );
-  }
-  const losesAdmin = u.role === 'admin' && u.active && ((input.role && input.role !== 'admin') || input.active === false);
-  if (losesAdmin && (await activeAdmins()) <= 1) {
-    throw new HttpProblem(409, 'Last administrator', 'Keep at least one active administrator.', {
-      errors: [{ path: 'role', message: 'The last active administrator.' }],
-    });
-  }
-  await seq.transaction(async (transaction) => {
-    if (input.displayName !== undefined) u.displayName = input.displayName;
-    if (input.email !== undefined) u.email = input.email;
-    if (input.role !== undefined) u.role = input.role;
-    if (input.active !== undefined) u.active = input.active;
-    u.updatedAt = new Date();
-    await u.save({ transaction });
-    // Deactivation ends every session at once (records keep the user as their author).
-    if (input.active === false) await UserSession.destroy({ where: { userId: id }, transaction });
-    const after = userSnapshot(u);
-    const action =
-      input.active === false && before.active
-        ? 'user.deactivated'
-        : input.active === true && !before.active
-          ? 'user.reactivated'
-          : input.role && input.role !== before.role
-            ? 'user.role-changed'
-            : 'user.updated';
-    await audit(actor, { action, entity: 'user', entityId: id, before, after }, transaction);
-  });
+  await updateUserRecord(db(), actor, id, input);
   return (await listUsers()).find((x) => x.id === id)!;
 }
 
@@ -174,20 +118,7 @@ async function issueReset(user: User, actor: Actor, origin: string, kind: 'admin
     });
   const token = randomBytes(32).toString('base64url');
   const expiresAt = new Date(Date.now() + RESET_LINK_MINUTES * 60_000);
-  await db().transaction(async (transaction) => {
-    await PasswordReset.update({ usedAt: new Date() }, { where: { userId: user.id, usedAt: null }, transaction });
-    const r = await PasswordReset.create({ userId: user.id, tokenHash: sha256(token), expiresAt, usedAt: null }, { transaction });
-    await audit(
-      actor,
-      {
-        action: 'user.password-reset-sent',
-        entity: 'user',
-        entityId: user.id,
-        after: { resetId: r.id, kind, to: user.email, expiresAt: expiresAt.toISOString() },
-      },
-      transaction,
-    );
-  });
+  await issueResetRecord(db(), actor, { userId: user.id, tokenHash: sha256(token), expiresAt, kind, to: user.email });
   const link = resetLink(origin, token);
   const intro =
     kind === 'invite'
@@ -228,7 +159,8 @@ export async function requestReset(login: string, origin: string, address: strin
   const run = async () => {
     const users = await User.findAll({ where: value.includes('@') ? { email: value } : { username: value } });
     const u = users.length === 1 ? users[0]! : null;
-    await audit(
+    await recordAuditEvent(
+      db(),
       { id: u?.id ?? null, label: value.slice(0, 80) || '(blank)', address },
       {
         action: 'auth.reset-requested',
@@ -263,31 +195,8 @@ const RESET_REFUSED: Record<'used' | 'expired' | 'unknown', string> = {
 
 /** Set a new password through a one-time link: single use, expiring; ends the user's sessions. */
 export async function completeReset(token: string, password: string, address: string | null): Promise<{ username: string }> {
-  const seq = db();
   const passwordHash = await hashPassword(password);
-  const result = await seq.transaction(async (transaction) => {
-    // Claim the link in one statement, so two concurrent uses cannot both succeed.
-    const [claimed] = await seq.query<{ id: number; user_id: number }>(
-      `update password_resets set used_at = now()
-        where token_hash = :h and used_at is null and expires_at > now()
-        returning id, user_id`,
-      { replacements: { h: sha256(token) }, type: QueryTypes.SELECT, transaction },
-    );
-    if (!claimed) return null;
-    const u = await User.findByPk(claimed.user_id, { transaction });
-    if (!u || !u.active) return null;
-    u.passwordHash = passwordHash;
-    u.updatedAt = new Date();
-    await u.save({ transaction });
-    await UserSession.destroy({ where: { userId: u.id }, transaction });
-    await LoginThrottle.destroy({ where: { key: `user:${u.username}` }, transaction });
-    await audit(
-      { id: u.id, label: u.username, address },
-      { action: 'user.password-set', entity: 'user', entityId: u.id, after: { resetId: claimed.id, via: 'e-mailed link' } },
-      transaction,
-    );
-    return { username: u.username };
-  });
+  const result = await completeResetRecord(db(), { tokenHash: sha256(token), passwordHash, address });
   if (!result) {
     const state = await checkResetToken(token);
     const why = state === 'ok' ? 'unknown' : state;
@@ -305,30 +214,23 @@ export function resetRefusal(state: 'used' | 'expired' | 'unknown'): string {
 // --- API tokens -----------------------------------------------------------------------
 
 export async function listTokens(): Promise<TokenView[]> {
-  const rows = await db().query<{
-    id: number;
-    name: string;
-    role: Role;
-    prefix: string;
-    created_at: Date;
-    created_by: string;
-    last_used_at: Date | null;
-    revoked_at: Date | null;
-  }>(
-    `select t.id, t.name, t.role, t.prefix, t.created_at, coalesce(u.username, '?') as created_by, t.last_used_at, t.revoked_at
-       from api_tokens t left join users u on u.id = t.created_by
-      order by t.revoked_at is not null, t.created_at desc`,
-    { type: QueryTypes.SELECT },
-  );
-  return rows.map((r) => ({
-    id: r.id,
-    name: r.name,
-    role: r.role,
-    prefix: r.prefix,
-    createdAt: iso(r.created_at)!,
-    createdBy: r.created_by,
-    lastUsedAt: iso(r.last_used_at),
-    revokedAt: iso(r.revoked_at),
+  db();
+  const rows = await ApiToken.findAll({
+    include: [{ model: User, as: 'creator', attributes: ['username'] }],
+    order: [
+      [literal('revoked_at is not null'), 'ASC'],
+      ['createdAt', 'DESC'],
+    ],
+  });
+  return rows.map((t) => ({
+    id: t.id,
+    name: t.name,
+    role: t.role,
+    prefix: t.prefix,
+    createdAt: iso(t.createdAt)!,
+    createdBy: (t as ApiToken & { creator?: User | null }).creator?.username ?? '?',
+    lastUsedAt: iso(t.lastUsedAt),
+    revokedAt: iso(t.revokedAt),
   }));
 }
 
@@ -336,49 +238,13 @@ export async function listTokens(): Promise<TokenView[]> {
 export async function createToken(actor: Actor, input: { name: string; role: Role }): Promise<TokenView & { secret: string }> {
   if (actor.id == null) throw new HttpProblem(403, 'Not allowed', 'A token needs a person who issues it.');
   const { secret, hash, prefix } = newTokenSecret();
-  const t = await db().transaction(async (transaction) => {
-    const row = await ApiToken.create(
-      { name: input.name, role: input.role, tokenHash: hash, prefix, createdBy: actor.id!, lastUsedAt: null, revokedAt: null },
-      { transaction },
-    );
-    await audit(
-      actor,
-      {
-        action: 'token.created',
-        entity: 'api-token',
-        entityId: row.id,
-        before: null,
-        after: { name: row.name, role: row.role, prefix },
-      },
-      transaction,
-    );
-    return row;
-  });
+  const t = await createTokenRecord(db(), actor, { name: input.name, role: input.role, tokenHash: hash, prefix });
   const view = (await listTokens()).find((x) => x.id === t.id)!;
   return { ...view, secret };
 }
 
 export async function revokeToken(actor: Actor, id: number): Promise<TokenView> {
-  db();
-  const t = await ApiToken.findByPk(id);
-  if (!t) throw new HttpProblem(404, 'Not found', 'No such API token.');
-  if (t.revokedAt)
-    throw new HttpProblem(409, 'Already revoked', `The token “${t.name}” was revoked at ${t.revokedAt.toISOString()}.`);
-  await db().transaction(async (transaction) => {
-    t.revokedAt = new Date();
-    await t.save({ transaction });
-    await audit(
-      actor,
-      {
-        action: 'token.revoked',
-        entity: 'api-token',
-        entityId: id,
-        before: { name: t.name, role: t.role, revokedAt: null },
-        after: { name: t.name, role: t.role, revokedAt: t.revokedAt.toISOString() },
-      },
-      transaction,
-    );
-  });
+  await revokeTokenRecord(db(), actor, id);
   return (await listTokens()).find((x) => x.id === id)!;
 }
 
@@ -386,22 +252,27 @@ export async function revokeToken(actor: Actor, id: number): Promise<TokenView> 
 
 /** Sign-in throttles with failures in the last day or an active lock. */
 export async function listLocks(): Promise<LockView[]> {
-  const rows = await db().query<{ key: string; failures: number; last_failure_at: Date | null; locked_until: Date | null }>(
-    `select key, failures, last_failure_at, locked_until from login_throttles
-      where (locked_until is not null and locked_until > now()) or last_failure_at > now() - interval '1 day'
-      order by (locked_until is not null and locked_until > now()) desc, last_failure_at desc nulls last`,
-    { type: QueryTypes.SELECT },
-  );
+  db();
+  const now = Date.now();
+  const rows = await LoginThrottle.findAll({
+    where: {
+      [Op.or]: [{ lockedUntil: { [Op.gt]: new Date(now) } }, { lastFailureAt: { [Op.gt]: new Date(now - 86_400_000) } }],
+    },
+    order: [
+      [literal('(locked_until is not null and locked_until > now())'), 'DESC'],
+      [literal('last_failure_at'), 'DESC NULLS LAST'],
+    ],
+  });
   return rows.map((r) => {
-    const locked = !!r.locked_until && new Date(r.locked_until).getTime() > Date.now();
+    const locked = !!r.lockedUntil && r.lockedUntil.getTime() > now;
     const [kind, ...rest] = r.key.split(':');
     return {
       key: r.key,
       kind: kind === 'ip' ? 'address' : 'user',
       subject: rest.join(':'),
       failures: r.failures,
-      lastFailureAt: iso(r.last_failure_at),
-      lockedUntil: locked ? iso(r.locked_until) : null,
+      lastFailureAt: iso(r.lastFailureAt),
+      lockedUntil: locked ? iso(r.lockedUntil) : null,
       locked,
     };
   });
@@ -409,47 +280,19 @@ export async function listLocks(): Promise<LockView[]> {
 
 /** Lift a lock (and forget the failures behind it). */
 export async function unlock(actor: Actor, key: string): Promise<void> {
-  db();
-  const row = await LoginThrottle.findByPk(key);
-  if (!row)
-    throw new HttpProblem(404, 'Not found', 'There is no lock or failure count for that key.', {
-      errors: [{ path: 'key', message: 'Unknown key.' }],
-    });
-  await db().transaction(async (transaction) => {
-    await LoginThrottle.destroy({ where: { key }, transaction });
-    await audit(
-      actor,
-      {
-        action: 'auth.unlocked',
-        entity: 'login',
-        entityId: key,
-        before: { failures: row.failures, lockedUntil: iso(row.lockedUntil) },
-        after: { failures: 0, lockedUntil: null },
-      },
-      transaction,
-    );
-  });
+  await unlockRecord(db(), actor, key);
 }
 
 // --- caught e-mail --------------------------------------------------------------------
 
 export async function listCaughtMail(limit = 200): Promise<MailView[]> {
-  const rows = await db().query<{
-    id: number;
-    caught_at: Date;
-    mail_from: string | null;
-    mail_to: string;
-    subject: string | null;
-    body: string;
-  }>(`select id, caught_at, mail_from, mail_to, subject, body from outbox_mail order by id desc limit :limit`, {
-    replacements: { limit },
-    type: QueryTypes.SELECT,
-  });
+  db();
+  const rows = await OutboxMail.findAll({ order: [['id', 'DESC']], limit });
   return rows.map((r) => ({
     id: r.id,
-    caughtAt: iso(r.caught_at)!,
-    from: r.mail_from,
-    to: r.mail_to,
+    caughtAt: iso(r.caughtAt)!,
+    from: r.mailFrom,
+    to: r.mailTo,
     subject: r.subject,
     body: r.body,
   }));

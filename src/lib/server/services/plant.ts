@@ -1,47 +1,72 @@
-/** The plant model: assets, devices and channels (with the topic each channel arrives on). */
-import { QueryTypes } from 'sequelize';
-import { db, pgPool } from '../db.ts';
+/** The plant model: the site, assets, devices and channels (with the topic each channel arrives on). */
+import { QueryTypes, literal } from 'sequelize';
+import { Asset, Channel, Device } from '../../../../db/models/index.ts';
+import { siteInfo as siteRow, siteTimeZone as siteZone, type SiteInfo } from '../../core/plant-store.ts';
+import type { AssetView, ChannelView } from '../../shared/plant.ts';
+import { channelTopic } from '../../shared/topics.ts';
+import { db } from '../db.ts';
 
-export interface AssetRow {
-  id: number;
-  siteId: number;
-  parentId: number | null;
-  kind: string;
-  code: string;
-  name: string;
+export interface AssetRow extends AssetView {
   details: Record<string, unknown>;
 }
 
-export interface ChannelRow {
-  id: number;
-  name: string;
-  key: string;
-  kind: string;
-  unit: string;
-  min: number;
-  max: number;
-  topic: string;
-  deviceId: number;
-  assetId: number;
-  assetCode: string;
-  assetName: string;
+export type ChannelRow = ChannelView;
+
+/**
+ * The site's IANA time zone, read from the `sites` row on every call (never baked into the
+ * build): a page or endpoint that shows site times asks for it and passes it on to islands.
+ */
+export function siteTimeZone(): Promise<string> {
+  return siteZone(db());
+}
+
+/** The site row (name, code, time zone); null before the seed has run. */
+export function site(): Promise<SiteInfo | null> {
+  return siteRow(db());
 }
 
 export async function listAssets(): Promise<AssetRow[]> {
-  return db().query<AssetRow>(
-    `select id, site_id as "siteId", parent_id as "parentId", kind, code, name, details from assets order by coalesce(parent_id, id), parent_id nulls first, code`,
-    { type: QueryTypes.SELECT },
-  );
+  db();
+  const rows = await Asset.findAll({
+    order: [literal('coalesce(parent_id, id)'), literal('parent_id nulls first'), ['code', 'ASC']],
+  });
+  return rows.map((a) => ({
+    id: a.id,
+    siteId: a.siteId,
+    parentId: a.parentId,
+    kind: a.kind,
+    code: a.code,
+    name: a.name,
+    details: a.details,
+  }));
 }
 
 export async function listChannels(): Promise<ChannelRow[]> {
-  const { rows } = await pgPool().query<ChannelRow>(`
-    select c.id, c.name, c.key, c.kind, c.unit, c.min, c.max,
-           d.topic_prefix || '/' || a.code || '/' || c.key as topic,
-           c.device_id as "deviceId", c.asset_id as "assetId", a.code as "assetCode", a.name as "assetName"
-      from channels c join assets a on a.id = c.asset_id join devices d on d.id = c.device_id
-     order by a.code, c.key`);
-  return rows;
+  db();
+  const rows = (await Channel.findAll({
+    include: [
+      { model: Asset, attributes: ['code', 'name'], required: true },
+      { model: Device, attributes: ['topicPrefix'], required: true },
+    ],
+    order: [
+      [Asset, 'code', 'ASC'],
+      ['key', 'ASC'],
+    ],
+  })) as Array<Channel & { Asset: Asset; Device: Device }>;
+  return rows.map((c) => ({
+    id: c.id,
+    name: c.name,
+    key: c.key,
+    kind: c.kind,
+    unit: c.unit,
+    min: c.min,
+    max: c.max,
+    topic: channelTopic(c.Device.topicPrefix, c.Asset.code, c.key),
+    deviceId: c.deviceId,
+    assetId: c.assetId,
+    assetCode: c.Asset.code,
+    assetName: c.Asset.name,
+  }));
 }
 
 export interface LatestReading {
@@ -50,13 +75,15 @@ export interface LatestReading {
   value: number;
 }
 
-/** The newest reading of every channel (one index probe per channel). */
+/** The newest reading of every channel (one index probe per channel; telemetry, so plain SQL). */
 export async function latestReadings(): Promise<Map<number, LatestReading>> {
-  const { rows } = await pgPool().query<LatestReading>(`
-    select c.id as "channelId", r.t_ms as "tMs", r.value
-      from channels c
-      cross join lateral (
-        select (extract(epoch from ts) * 1000)::float8 as t_ms, value
-          from readings where channel_id = c.id order by ts desc limit 1) r`);
+  const rows = await db().query<LatestReading>(
+    `select c.id as "channelId", r.t_ms as "tMs", r.value
+       from channels c
+       cross join lateral (
+         select (extract(epoch from ts) * 1000)::float8 as t_ms, value
+           from readings where channel_id = c.id order by ts desc limit 1) r`,
+    { type: QueryTypes.SELECT },
+  );
   return new Map(rows.map((r) => [r.channelId, r]));
 }

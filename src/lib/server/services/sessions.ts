@@ -1,27 +1,30 @@
-/** Sign-in and sign-out shared by the JSON API and the sign-in page. */
+/** Sign-in and sign-out shared by the JSON API and the sign-in page (the session and its audit row commit together). */
 import type { AstroCookies } from 'astro';
-import { lucia, checkCredentials, secureCookies } from '../auth.ts';
-import { audit } from '../audit.ts';
+import { createSessionRecord, endSessionRecord } from '../../core/accounts-store.ts';
+import { lucia, checkCredentials, newSession, secureCookies } from '../auth.ts';
+import { db } from '../db.ts';
 
 export async function signIn(cookies: AstroCookies, url: URL, username: string, password: string, address: string | null) {
   const user = await checkCredentials(username, password, address);
-  const session = await lucia.createSession(user.id, {});
+  const session = newSession(user.id);
+  await createSessionRecord(db(), { id: user.id, label: user.username, address }, session);
   // Housekeeping: drop sessions that ran out (cheap; the table holds one row per live sign-in).
   void lucia.deleteExpiredSessions().catch(() => {});
   const c = lucia.createSessionCookie(session.id);
   cookies.set(c.name, c.value, { ...c.attributes, secure: secureCookies(url) });
-  await audit({ id: user.id, label: user.username, address }, { action: 'auth.signed-in', entity: 'user', entityId: user.id });
   return user;
 }
 
 export async function signOut(cookies: AstroCookies, url: URL, locals: App.Locals, address: string | null) {
   if (locals.session) {
-    await lucia.invalidateSession(locals.session.id);
     if (locals.user)
-      await audit(
+      await endSessionRecord(
+        db(),
         { id: locals.user.id, label: locals.user.username, address },
-        { action: 'auth.signed-out', entity: 'user', entityId: locals.user.id },
+        locals.session.id,
+        locals.user.id,
       );
+    else await lucia.invalidateSession(locals.session.id);
   }
   const c = lucia.createBlankSessionCookie();
   cookies.set(c.name, c.value, { ...c.attributes, secure: secureCookies(url) });
