@@ -12,20 +12,19 @@ import { CsvSyntaxError } from '../../shared/csv-table.ts';
 import {
   DEFAULT_SURVEY_INTERVAL_DAYS,
   SurveyCsvError,
-  SurveySettingsSchema,
   autoStabilisedIndex,
   indexAtMinutes,
   parseSurveyCsv,
   type SurveyInput,
   type SurveySettings,
 } from '../../shared/surveys.ts';
-import { audit } from '../audit.ts';
+import { QueryTypes } from 'sequelize';
+import { Asset, OvenSurvey, User } from '../../../../db/models/index.ts';
+import { readSurveySettings, recordSurveyRecord, writeSurveySettings } from '../../core/survey-store.ts';
 import type { SessionUser } from '../auth.ts';
-import { pgPool } from '../db.ts';
+import { db } from '../db.ts';
 import { actorOf } from '../guard.ts';
 import { HttpProblem } from '../http.ts';
-import { attachFile } from '../../core/quality-store.ts';
-import { readSetting, writeSetting } from '../../core/settings-store.ts';
 import type { SurveyComputation, SurveyItem, OvenSurveyStatus } from '../../shared/trace-views.ts';
 
 export const DEFAULT_SURVEY_SETTINGS: SurveySettings = {
@@ -35,7 +34,7 @@ export const DEFAULT_SURVEY_SETTINGS: SurveySettings = {
 };
 
 export function surveySettings(): Promise<SurveySettings> {
-  return readSetting(pgPool(), 'ovenSurveys', SurveySettingsSchema, DEFAULT_SURVEY_SETTINGS);
+  return readSurveySettings(db(), DEFAULT_SURVEY_SETTINGS);
 }
 
 export async function putSurveySettings(
@@ -43,14 +42,7 @@ export async function putSurveySettings(
   value: SurveySettings,
   address: string | null,
 ): Promise<SurveySettings> {
-  const before = await writeSetting(pgPool(), 'ovenSurveys', value);
-  await audit(actorOf(user, address), {
-    action: 'settings.ovenSurveys',
-    entity: 'site_settings',
-    entityId: 'ovenSurveys',
-    before,
-    after: value,
-  });
+  await writeSurveySettings(db(), actorOf(user, address), value);
   return value;
 }
 
@@ -75,8 +67,9 @@ export async function computeSurvey(input: SurveyInput): Promise<SurveyComputati
     throw new HttpProblem(400, 'Invalid input', `corrections: unknown sensor(s) ${unknown.join(', ')}`, {
       errors: [{ path: 'corrections', message: `Not in the file: ${unknown.join(', ')}.` }],
     });
-  const oven = await pgPool().query<{ kind: string }>('select kind from assets where id = $1', [input.ovenAssetId]);
-  if (oven.rows[0]?.kind !== 'oven')
+  db();
+  const oven = await Asset.findByPk(input.ovenAssetId, { attributes: ['kind'] });
+  if (oven?.kind !== 'oven')
     throw new HttpProblem(400, 'Invalid input', 'ovenAssetId: not an oven', {
       errors: [{ path: 'ovenAssetId', message: 'Choose an oven.' }],
     });
@@ -142,119 +135,83 @@ export async function recordSurvey(
   address: string | null,
 ): Promise<{ id: number } & SurveyComputation> {
   const c = await computeSurvey(input);
-  const pool = pgPool();
-  const startMs = c.surveyedAtMs;
-  const { rows } = await pool.query<{ id: number }>(
-    `insert into oven_surveys (oven_asset_id, surveyed_at, setpoint_c, sensors, stabilised_from, stabilised_auto, hottest_deviation_c, coldest_deviation_c,
-        uniformity_class, class_table_name, class_table, result, note, recorded_by)
-     values ($1, to_timestamp($2 / 1000.0), $3, $4::jsonb, to_timestamp($5 / 1000.0), $6, $7, $8, $9, $10, $11::jsonb, $12::jsonb, $13, $14) returning id`,
-    [
-      input.ovenAssetId,
-      startMs,
-      input.setpointC,
-      JSON.stringify(c.sensors),
-      startMs + c.stabilisedFromMinutes * 60_000,
-      c.stabilisedAuto,
-      c.result.hottestDeviationC,
-      c.result.coldestDeviationC,
-      c.result.uniformityClass,
-      c.classTableName,
-      JSON.stringify(c.classTable),
-      JSON.stringify({
-        ...c.result,
-        rows: c.rows,
-        durationMinutes: c.durationMinutes,
-        stabilisedFromMinutes: c.stabilisedFromMinutes,
-      }),
-      input.note ?? null,
-      user.id,
-    ],
-  );
-  const id = rows[0]!.id;
-  await attachFile(pool, {
-    surveyId: id,
-    name: input.fileName || 'survey.csv',
-    bytes: new TextEncoder().encode(input.csv),
-    userId: user.id,
-  });
-  await audit(actorOf(user, address), {
-    action: 'survey.record',
-    entity: 'oven_survey',
-    entityId: id,
-    after: {
+  const id = await recordSurveyRecord(
+    db(),
+    actorOf(user, address),
+    {
       ovenAssetId: input.ovenAssetId,
       setpointC: input.setpointC,
-      hottestDeviationC: c.result.hottestDeviationC,
-      coldestDeviationC: c.result.coldestDeviationC,
-      uniformityClass: c.result.uniformityClass,
-      classTable: c.classTableName,
+      note: input.note ?? null,
+      userId: user.id,
+      fileName: input.fileName || 'survey.csv',
+      csv: input.csv,
     },
-  });
+    c,
+  );
   return { id, ...c };
 }
 
 export async function listSurveys(ovenAssetId?: number, id?: number): Promise<SurveyItem[]> {
-  const { rows } = await pgPool().query<{
-    id: number;
-    oven_asset_id: number;
-    oven_code: string;
-    oven_name: string;
-    surveyed_at: Date;
-    setpoint_c: number;
-    hottest_deviation_c: number;
-    coldest_deviation_c: number;
-    uniformity_class: number | null;
-    class_table_name: string;
-    stabilised_auto: boolean;
-    stabilised_from: Date | null;
-    sensors: SurveyComputation['sensors'];
-    result: UniformityResult;
-    note: string | null;
-    recorded_by: string | null;
-    file_id: number | null;
-  }>(
-    `select s.id, s.oven_asset_id, a.code as oven_code, a.name as oven_name, s.surveyed_at, s.setpoint_c, s.hottest_deviation_c, s.coldest_deviation_c,
-            s.uniformity_class, s.class_table_name, s.stabilised_auto, s.stabilised_from, s.sensors, s.result, s.note, u.display_name as recorded_by,
-            (select f.id from test_files f where f.survey_id = s.id order by f.id limit 1) as file_id
-       from oven_surveys s join assets a on a.id = s.oven_asset_id left join users u on u.id = s.recorded_by
-      where ($1::int is null or s.oven_asset_id = $1) and ($2::int is null or s.id = $2)
-      order by s.surveyed_at desc, s.id desc limit 500`,
-    [ovenAssetId ?? null, id ?? null],
-  );
-  return rows.map((r) => ({
-    id: r.id,
-    ovenAssetId: r.oven_asset_id,
-    ovenCode: r.oven_code,
-    ovenName: r.oven_name,
-    surveyedAt: r.surveyed_at.toISOString(),
-    setpointC: r.setpoint_c,
-    hottestDeviationC: r.hottest_deviation_c,
-    coldestDeviationC: r.coldest_deviation_c,
-    hottestSensor: r.result.hottestSensor ?? null,
-    coldestSensor: r.result.coldestSensor ?? null,
-    uniformityClass: r.uniformity_class,
-    classToleranceC: r.result.classToleranceC ?? null,
-    classTableName: r.class_table_name,
-    stabilisedAuto: r.stabilised_auto,
-    stabilisedFrom: r.stabilised_from?.toISOString() ?? null,
-    sensors: r.sensors,
-    note: r.note,
-    recordedBy: r.recorded_by,
-    fileId: r.file_id,
-  }));
+  const seq = db();
+  const where: Record<string, number> = {};
+  if (ovenAssetId !== undefined) where['ovenAssetId'] = ovenAssetId;
+  if (id !== undefined) where['id'] = id;
+  const rows = (await OvenSurvey.findAll({
+    where,
+    include: [
+      { model: Asset, as: 'oven', attributes: ['code', 'name'], required: true },
+      { model: User, as: 'recorder', attributes: ['displayName'] },
+    ],
+    order: [
+      ['surveyedAt', 'DESC'],
+      ['id', 'DESC'],
+    ],
+    limit: 500,
+  })) as Array<OvenSurvey & { oven: Asset; recorder: User | null }>;
+  // test_files is the quality records' table (no model in this area): the first file of each survey.
+  const files = rows.length
+    ? await seq.query<{ survey_id: number; id: number }>(
+        `select survey_id, min(id) as id from test_files where survey_id = any($1::int[]) group by survey_id`,
+        { bind: [rows.map((r) => r.id)], type: QueryTypes.SELECT },
+      )
+    : [];
+  const fileOf = new Map(files.map((f) => [f.survey_id, f.id]));
+  return rows.map((r) => {
+    const result = r.result as UniformityResult;
+    return {
+      id: r.id,
+      ovenAssetId: r.ovenAssetId,
+      ovenCode: r.oven.code,
+      ovenName: r.oven.name,
+      surveyedAt: r.surveyedAt.toISOString(),
+      setpointC: r.setpointC,
+      hottestDeviationC: r.hottestDeviationC,
+      coldestDeviationC: r.coldestDeviationC,
+      hottestSensor: result.hottestSensor ?? null,
+      coldestSensor: result.coldestSensor ?? null,
+      uniformityClass: r.uniformityClass,
+      classToleranceC: result.classToleranceC ?? null,
+      classTableName: r.classTableName,
+      stabilisedAuto: r.stabilisedAuto,
+      stabilisedFrom: r.stabilisedFrom?.toISOString() ?? null,
+      sensors: r.sensors as SurveyComputation['sensors'],
+      note: r.note,
+      recordedBy: r.recorder?.displayName ?? null,
+      fileId: fileOf.get(r.id) ?? null,
+    };
+  });
 }
 
 /** Each oven's last survey and whether it is overdue (older than the configured interval, or never surveyed). */
 export async function surveyStatus(): Promise<{ intervalDays: number; ovens: OvenSurveyStatus[] }> {
   const settings = await surveySettings();
-  const ovens = await pgPool().query<{ id: number; code: string; name: string }>(
-    `select id, code, name from assets where kind = 'oven' order by code`,
-  );
+  db();
+  const ovens = await Asset.findAll({ attributes: ['id', 'code', 'name'], where: { kind: 'oven' }, order: [['code', 'ASC']] });
   const all = await listSurveys();
   const now = Date.now();
   return {
     intervalDays: settings.intervalDays,
-    ovens: ovens.rows.map((o) => {
+    ovens: ovens.map((o) => {
       const last = all.find((s) => s.ovenAssetId === o.id) ?? null;
       const lastMs = last ? Date.parse(last.surveyedAt) : null;
       const dueMs = lastMs !== null ? lastMs + settings.intervalDays * 86_400_000 : null;
