@@ -30,7 +30,6 @@ export default defineConfig({
       MQTT_SERVICE_PASSWORD: envField.string({ context: 'server', access: 'secret', optional: true }),
       SMTP_URL: envField.string({ context: 'server', access: 'secret', optional: true }),
       PUBLIC_ORIGIN: envField.string({ context: 'server', access: 'public', optional: true }),
-      SITE_TIME_ZONE: envField.string({ context: 'server', access: 'public', default: 'Europe/London' }),
     },
   },
 });

@@ -1,119 +1,100 @@
 /**
  * Reading the audit trail: filters (actor, action, entity, entity id, date range in the
- * site's time zone), paging, and CSV export. The trail itself is append-only in the database.
+ * site's time zone, read from the site row at the time of the query), paging, and CSV export.
+ * The trail itself is append-only in the database.
  */
+import { Op, QueryTypes, type WhereOptions } from 'sequelize';
+import { AuditEntry } from '../../../../db/models/index.ts';
 import type { AuditPage, AuditQuery, AuditRowView } from '../../shared/admin.ts';
 import { toCsv } from '../../shared/csv-table.ts';
-import { config } from '../config.ts';
-import { pgPool } from '../db.ts';
-
-interface Row {
-  id: string;
-  at: Date;
-  actor_id: number | null;
-  actor_label: string;
-  action: string;
-  entity: string;
-  entity_id: string | null;
-  before: unknown;
-  after: unknown;
-  address: string | null;
-  signature: AuditRowView['signature'];
-}
+import { db } from '../db.ts';
+import { siteTimeZone } from './plant.ts';
 
 const DATE_ONLY = /^\d{4}-\d{2}-\d{2}$/;
 const HAS_ZONE = /(Z|[+-]\d{2}:?\d{2})$/i;
 
-/** A bound as SQL: a date or a zone-less date-time is read in the site's time zone. */
-function bound(value: string, params: unknown[], end: boolean): string {
-  const tz = config.siteTimeZone;
-  if (DATE_ONLY.test(value)) {
-    params.push(value, tz);
-    const d = `$${params.length - 1}::date${end ? " + interval '1 day'" : ''}`;
-    return `((${d})::timestamp at time zone $${params.length})`;
-  }
-  if (HAS_ZONE.test(value)) {
-    params.push(value);
-    return `$${params.length}::timestamptz`;
-  }
-  params.push(value, tz);
-  return `($${params.length - 1}::timestamp at time zone $${params.length})`;
+/** The instant of a bound: a date (its start, or the next day's for an inclusive end) or a zone-less date-time is read in `tz`. */
+async function bound(value: string, end: boolean, tz: string): Promise<Date> {
+  const sql = DATE_ONLY.test(value)
+    ? `select (($1::date${end ? " + interval '1 day'" : ''})::timestamp at time zone $2) as t`
+    : HAS_ZONE.test(value)
+      ? 'select $1::timestamptz as t'
+      : 'select ($1::timestamp at time zone $2) as t';
+  const [row] = await db().query<{ t: Date }>(sql, {
+    bind: HAS_ZONE.test(value) && !DATE_ONLY.test(value) ? [value] : [value, tz],
+    type: QueryTypes.SELECT,
+  });
+  return new Date(row!.t);
 }
 
-function where(q: AuditQuery): { sql: string; params: unknown[] } {
-  const conds: string[] = [];
-  const params: unknown[] = [];
+async function where(q: AuditQuery): Promise<WhereOptions<AuditEntry>> {
   const like = (s: string) => `%${s.replace(/[\\%_]/g, (c) => '\\' + c)}%`;
-  if (q.actor) {
-    params.push(like(q.actor));
-    conds.push(`actor_label ilike $${params.length}`);
+  const w: Record<string | symbol, unknown> = {};
+  if (q.actor) w['actorLabel'] = { [Op.iLike]: like(q.actor) };
+  if (q.action) w['action'] = { [Op.iLike]: like(q.action) };
+  if (q.entity) w['entity'] = q.entity;
+  if (q.entityId) w['entityId'] = q.entityId;
+  if (q.from || q.to) {
+    const tz = await siteTimeZone();
+    // "to" is inclusive for a date (the whole day), exclusive for a date-time.
+    const at: Record<symbol, Date> = {};
+    if (q.from) at[Op.gte] = await bound(q.from, false, tz);
+    if (q.to) at[Op.lt] = await bound(q.to, true, tz);
+    w['at'] = at;
   }
-  if (q.action) {
-    params.push(like(q.action));
-    conds.push(`action ilike $${params.length}`);
-  }
-  if (q.entity) {
-    params.push(q.entity);
-    conds.push(`entity = $${params.length}`);
-  }
-  if (q.entityId) {
-    params.push(q.entityId);
-    conds.push(`entity_id = $${params.length}`);
-  }
-  // "to" is inclusive for a date (the whole day), exclusive for a date-time.
-  if (q.from) conds.push(`at >= ${bound(q.from, params, false)}`);
-  if (q.to) conds.push(`at < ${bound(q.to, params, true)}`);
-  return { sql: conds.length ? `where ${conds.join(' and ')}` : '', params };
+  return w as WhereOptions<AuditEntry>;
 }
 
-const view = (r: Row): AuditRowView => ({
+const view = (r: AuditEntry): AuditRowView => ({
   id: Number(r.id),
   at: new Date(r.at).toISOString(),
-  actorId: r.actor_id,
-  actor: r.actor_label,
+  actorId: r.actorId,
+  actor: r.actorLabel,
   action: r.action,
   entity: r.entity,
-  entityId: r.entity_id,
+  entityId: r.entityId,
   before: r.before,
   after: r.after,
   address: r.address,
   signature: r.signature,
 });
 
+const NEWEST_FIRST: Array<[string, string]> = [
+  ['at', 'DESC'],
+  ['id', 'DESC'],
+];
+
 export async function queryAudit(q: AuditQuery): Promise<AuditPage> {
-  const w = where(q);
-  const pool = pgPool();
-  const [{ rows: count }, { rows }] = await Promise.all([
-    pool.query<{ n: string }>(`select count(*) as n from audit_log ${w.sql}`, w.params),
-    pool.query<Row>(
-      `select id, at, actor_id, actor_label, action, entity, entity_id, before, after, address, signature
-         from audit_log ${w.sql} order by at desc, id desc limit ${q.pageSize} offset ${(q.page - 1) * q.pageSize}`,
-      w.params,
-    ),
+  db();
+  const w = await where(q);
+  const [total, rows] = await Promise.all([
+    AuditEntry.count({ where: w }),
+    AuditEntry.findAll({ where: w, order: NEWEST_FIRST, limit: q.pageSize, offset: (q.page - 1) * q.pageSize }),
   ]);
-  return { rows: rows.map(view), total: Number(count[0]?.n ?? 0), page: q.page, pageSize: q.pageSize };
+  return { rows: rows.map(view), total, page: q.page, pageSize: q.pageSize };
 }
 
 /** Distinct entities and action names, for the filter's suggestions. */
 export async function auditVocabulary(): Promise<{ entities: string[]; actions: string[] }> {
-  const pool = pgPool();
+  db();
   const [e, a] = await Promise.all([
-    pool.query<{ v: string }>('select distinct entity as v from audit_log order by 1 limit 200'),
-    pool.query<{ v: string }>('select distinct action as v from audit_log order by 1 limit 500'),
+    AuditEntry.findAll({ attributes: ['entity'], group: ['entity'], order: [['entity', 'ASC']], limit: 200, raw: true }),
+    AuditEntry.findAll({ attributes: ['action'], group: ['action'], order: [['action', 'ASC']], limit: 500, raw: true }),
   ]);
-  return { entities: e.rows.map((r) => r.v), actions: a.rows.map((r) => r.v) };
+  return { entities: e.map((r) => r.entity), actions: a.map((r) => r.action) };
 }
 
 export const AUDIT_CSV_LIMIT = 100_000;
 
 /** The whole filtered trail (newest first, at most AUDIT_CSV_LIMIT rows) as CSV. */
 export async function auditCsv(q: AuditQuery): Promise<string> {
-  const w = where(q);
-  const { rows } = await pgPool().query<Row>(
-    `select id, at, actor_id, actor_label, action, entity, entity_id, before, after, address, signature
-       from audit_log ${w.sql} order by at desc, id desc limit ${AUDIT_CSV_LIMIT}`,
-    w.params,
-  );
+  db();
+  const rows = (await AuditEntry.findAll({
+    where: await where(q),
+    order: NEWEST_FIRST,
+    limit: AUDIT_CSV_LIMIT,
+    raw: true,
+  })) as unknown as AuditEntry[];
   const head = [
     'id',
     'at_utc',
@@ -137,11 +118,11 @@ export async function auditCsv(q: AuditQuery): Promise<string> {
       return [
         r.id,
         new Date(r.at).toISOString(),
-        r.actor_label,
-        r.actor_id,
+        r.actorLabel,
+        r.actorId,
         r.action,
         r.entity,
-        r.entity_id,
+        r.entityId,
         json(r.before),
         json(r.after),
         r.address,

@@ -1,6 +1,7 @@
 /** What `/api/health` reports: database, broker and ingest lag. */
 import { brokerLink } from '../broker-link.ts';
-import { pgPool } from '../db.ts';
+import { QueryTypes } from 'sequelize';
+import { db as database } from '../db.ts';
 
 export interface HealthReport {
   status: 'ok' | 'degraded';
@@ -35,20 +36,24 @@ export async function healthReport(): Promise<HealthReport> {
     journalBytes: 0,
   };
   try {
-    const { rows } = await pgPool().query<{
+    // ingest_status is the worker's heartbeat record: one aggregate over it.
+    const rows = await database().query<{
       n: number;
       lag: number | null;
       age: number | null;
       buffered: number;
       journal: number;
-    }>(`
+    }>(
+      `
       select count(*)::int as n,
              max(lag_ms) as lag,
              min(extract(epoch from now() - heartbeat_at) * 1000)::float8 as age,
              coalesce(sum(buffered), 0)::int as buffered,
              coalesce(sum(journal_bytes), 0)::float8 as journal
         from ingest_status
-       where heartbeat_at > now() - interval '1 hour'`);
+       where heartbeat_at > now() - interval '1 hour'`,
+      { type: QueryTypes.SELECT },
+    );
     db.ok = true;
     db.latencyMs = Math.round((performance.now() - t0) * 10) / 10;
     const r = rows[0]!;

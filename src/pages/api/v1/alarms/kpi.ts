@@ -1,5 +1,5 @@
 import type { APIRoute } from 'astro';
-import { config } from '../../../../lib/server/config.ts';
+import { siteTimeZone } from '../../../../lib/server/services/plant.ts';
 import { requireRole } from '../../../../lib/server/guard.ts';
 import { readQuery } from '../../../../lib/server/http.ts';
 import { alarmHealth, healthCsv } from '../../../../lib/server/services/alarms.ts';
@@ -17,7 +17,7 @@ export const GET: APIRoute = async ({ locals, url }) => {
   const fromMs = q.fromMs ?? toMs - 86_400_000;
   const h = await alarmHealth(fromMs, toMs, q.positions);
   if (q.format === 'csv') {
-    return new Response(healthCsv(h, config.siteTimeZone), {
+    return new Response(healthCsv(h, await siteTimeZone()), {
       headers: {
         'content-type': 'text/csv; charset=utf-8',
         'content-disposition': `attachment; filename="alarm-health-${new Date(fromMs).toISOString().slice(0, 10)}.csv"`,
