@@ -128,7 +128,12 @@ export async function createSessionRecord(
 }
 
 /** End a session and audit the sign-out in one transaction. */
-export async function endSessionRecord(sequelize: Sequelize, actor: AuditActor, sessionId: string, userId: number): Promise<void> {
+export async function endSessionRecord(
+  sequelize: Sequelize,
+  actor: AuditActor,
+  sessionId: string,
+  userId: number,
+): Promise<void> {
   await withTransaction(sequelize, async (t) => {
     await UserSession.destroy({ where: { id: sessionId }, transaction: t });
     await auditIn(t, actor, { action: 'auth.signed-out', entity: 'user', entityId: userId });
@@ -206,7 +211,15 @@ export async function createTokenRecord(
   const createdBy = actor.id;
   return withTransaction(sequelize, async (t) => {
     const row = await ApiToken.create(
-      { name: input.name, role: input.role, tokenHash: input.tokenHash, prefix: input.prefix, createdBy, lastUsedAt: null, revokedAt: null },
+      {
+        name: input.name,
+        role: input.role,
+        tokenHash: input.tokenHash,
+        prefix: input.prefix,
+        createdBy,
+        lastUsedAt: null,
+        revokedAt: null,
+      },
       { transaction: t },
     );
     await auditIn(t, actor, {
@@ -225,7 +238,11 @@ export async function revokeTokenRecord(sequelize: Sequelize, actor: AuditActor,
     const tok = await ApiToken.findByPk(id, { transaction: t, lock: t.LOCK.UPDATE });
     if (!tok) throw new DomainError('not-found', 'Not found', 'No such API token.');
     if (tok.revokedAt)
-      throw new DomainError('conflict', 'Already revoked', `The token “${tok.name}” was revoked at ${tok.revokedAt.toISOString()}.`);
+      throw new DomainError(
+        'conflict',
+        'Already revoked',
+        `The token “${tok.name}” was revoked at ${tok.revokedAt.toISOString()}.`,
+      );
     tok.revokedAt = new Date();
     await tok.save({ transaction: t });
     await auditIn(t, actor, {

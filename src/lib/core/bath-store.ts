@@ -248,7 +248,12 @@ async function tankOrThrow(id: number, t: Transaction): Promise<TankRow> {
 }
 
 /** The charge in the tank at a time (the latest charged at or before it). */
-export async function chargeAt(sequelize: Sequelize, tankId: number, at: Date, t?: Transaction | null): Promise<ChargeRow | null> {
+export async function chargeAt(
+  sequelize: Sequelize,
+  tankId: number,
+  at: Date,
+  t?: Transaction | null,
+): Promise<ChargeRow | null> {
   initModels(sequelize);
   const c = await BathCharge.findOne({
     where: { tankAssetId: tankId, chargedAt: { [Op.lte]: at } },

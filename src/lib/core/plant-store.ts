@@ -171,10 +171,13 @@ async function insertChannel(
   if (dup) throw fieldError('key', `Channel ${dup.id} already publishes on ${topic}.`, 'conflict', 'Channel exists');
   const c = await Channel.create(input, { transaction: t });
   // unknown_channels belongs to the ingest worker's records (no model here yet).
-  await sequelize.query(`update unknown_channels set resolved_at = now(), resolution = $2 where topic = $1 and resolved_at is null`, {
-    bind: [topic, `${resolution} as channel ${c.id}`],
-    transaction: t,
-  });
+  await sequelize.query(
+    `update unknown_channels set resolved_at = now(), resolution = $2 where topic = $1 and resolved_at is null`,
+    {
+      bind: [topic, `${resolution} as channel ${c.id}`],
+      transaction: t,
+    },
+  );
   return { id: c.id, topic };
 }
 
@@ -224,9 +227,7 @@ export async function approveUnknownChannelRecord(
         `This topic was resolved at ${new Date(u.resolved_at).toISOString()} (${u.resolution ?? 'no note'}).`,
       );
     const device = await Device.findByPk(u.device_id, { transaction: t });
-    const asset = device
-      ? await Asset.findOne({ where: { siteId: device.siteId, code: u.asset_code }, transaction: t })
-      : null;
+    const asset = device ? await Asset.findOne({ where: { siteId: device.siteId, code: u.asset_code }, transaction: t }) : null;
     if (!asset) {
       throw new DomainError(
         'conflict',

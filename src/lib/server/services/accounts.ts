@@ -5,7 +5,15 @@
  */
 import { randomBytes } from 'node:crypto';
 import { Op, col, fn, literal } from 'sequelize';
-import { ApiToken, AuditEntry, LoginThrottle, OutboxMail, PasswordReset, User, UserSession } from '../../../../db/models/index.ts';
+import {
+  ApiToken,
+  AuditEntry,
+  LoginThrottle,
+  OutboxMail,
+  PasswordReset,
+  User,
+  UserSession,
+} from '../../../../db/models/index.ts';
 import type { AuditActor as Actor } from '../../../../db/transaction.ts';
 import {
   completeResetRecord,
@@ -41,7 +49,12 @@ const iso = (d: Date | string | null | undefined) => (d == null ? null : new Dat
 export async function listUsers(): Promise<UserView[]> {
   db();
   const [users, sessions, signIns] = await Promise.all([
-    User.findAll({ order: [['active', 'DESC'], ['username', 'ASC']] }),
+    User.findAll({
+      order: [
+        ['active', 'DESC'],
+        ['username', 'ASC'],
+      ],
+    }),
     UserSession.findAll({
       attributes: ['userId', [fn('count', col('id')), 'n']],
       where: { expiresAt: { [Op.gt]: new Date() } },
