@@ -10,7 +10,7 @@
  * CLI: `tsx db/pg-control.ts start|stop|status [dataFolder]`.
  */
 import { execFile, execFileSync } from 'node:child_process';
-import { randomBytes } from 'node:crypto';
+import { createHash, randomBytes } from 'node:crypto';
 import fs from 'node:fs';
 import net from 'node:net';
 import path from 'node:path';
@@ -129,7 +129,50 @@ export function freePort(): Promise<number> {
   });
 }
 
-function paths(baseDir: string) {
+/** Whether `uid`/`gid` may enter `dir` and every folder above it (the execute bit on each). */
+export function reachableBy(dir: string, uid: number, gid: number): boolean {
+  let d = path.resolve(dir);
+  for (;;) {
+    let st: fs.Stats;
+    try {
+      st = fs.statSync(d);
+    } catch {
+      // Not created yet: what counts is the folders above it.
+      const up = path.dirname(d);
+      if (up === d) return true;
+      d = up;
+      continue;
+    }
+    const bits = st.uid === uid ? (st.mode >> 6) & 7 : st.gid === gid ? (st.mode >> 3) & 7 : st.mode & 7;
+    if (uid !== 0 && (bits & 1) === 0) return false;
+    const up = path.dirname(d);
+    if (up === d) return true;
+    d = up;
+  }
+}
+
+/** Where clusters go when the project folder is closed to the server's account (root in a 0700 home). */
+export function relocatedRoot(): string {
+  return process.env['COATRAIL_PG_ROOT'] ?? '/var/lib/coatrail/pg';
+}
+
+/**
+ * The folder that really holds the cluster of `baseDir`: `baseDir` itself when the server's
+ * account can reach it, else a folder under relocatedRoot() named after the project path (so the
+ * same project always finds its own cluster; COATRAIL_PG_ROOT overrides the root). Root running from a 0700 home folder lands here:
+ * PostgreSQL refuses to run as root, and the `postgres` account cannot enter that home.
+ */
+export function clusterDir(baseDir: string): string {
+  const abs = path.resolve(baseDir);
+  if (!isRoot()) return abs;
+  const user = serverUser();
+  if (reachableBy(abs, user.uid, user.gid)) return abs;
+  const digest = createHash('sha256').update(abs).digest('hex').slice(0, 16);
+  return path.join(relocatedRoot(), digest);
+}
+
+function paths(dir: string) {
+  const baseDir = clusterDir(dir);
   return {
     data: path.join(baseDir, 'data'),
     run: path.join(baseDir, 'run'),
@@ -172,13 +215,28 @@ export async function startLocalPostgres(opts: LocalPgOptions): Promise<LocalPg>
   }
   const bin = await ensurePgBin(log);
   const user = serverUser();
-  const p = paths(path.resolve(opts.baseDir));
+  const p = paths(opts.baseDir);
+  const relocated = path.dirname(p.data) !== path.resolve(opts.baseDir);
+  if (relocated) {
+    // The folders above it must be enterable by the server's account.
+    fs.mkdirSync(path.dirname(path.dirname(p.data)), { recursive: true, mode: 0o755 });
+    fs.mkdirSync(path.resolve(opts.baseDir), { recursive: true });
+    fs.writeFileSync(
+      path.join(path.resolve(opts.baseDir), 'CLUSTER-IS-ELSEWHERE.txt'),
+      `The PostgreSQL account cannot enter this project folder, so this project's cluster lives in\n${path.dirname(p.data)}\n`,
+    );
+  }
   for (const dir of [path.dirname(p.data), p.run]) fs.mkdirSync(dir, { recursive: true });
   if (user.name) {
     fs.chownSync(path.dirname(p.data), user.uid, user.gid);
     fs.chownSync(p.run, user.uid, user.gid);
   }
-  // The server user must be able to reach the folder through its parents.
+  if (user.name && !reachableBy(p.run, user.uid, user.gid)) {
+    throw new PgControlError(
+      `The ${user.name} account cannot reach ${path.dirname(p.data)}; make its parent folders enterable (chmod o+x) or set DATABASE_URL.`,
+    );
+  }
+  if (relocated) log(`The project folder is closed to the ${user.name} account; the cluster lives in ${path.dirname(p.data)}.`);
   let password: string;
   if (!fs.existsSync(path.join(p.data, 'PG_VERSION'))) {
     password = randomBytes(18).toString('base64url');

@@ -13,6 +13,7 @@ const broker = await startBroker({
   wsPort: config.MQTT_WS_PORT,
   servicePassword: config.MQTT_SERVICE_PASSWORD,
   log,
+  ...(process.env['BROKER_STATE_DIR'] ? { stateDir: process.env['BROKER_STATE_DIR'] } : {}),
 }).catch((e: NodeJS.ErrnoException) => {
   console.error(
     e.code === 'EADDRINUSE'

@@ -3,6 +3,7 @@
  * service accounts for the worker and the web server, publish/subscribe authorisation,
  * and device online/offline recorded from connection events and last wills.
  */
+import fs from 'node:fs';
 import { createServer, type Server } from 'node:net';
 import http from 'node:http';
 import { Aedes, type Client } from 'aedes';
@@ -19,6 +20,12 @@ export interface BrokerOptions {
   wsPort?: number;
   servicePassword: string;
   log?: (line: string) => void;
+  /**
+   * A folder for durable broker state (sessions, their queued QoS 1 deliveries, retained
+   * messages) in LevelDB: a broker that is killed and restarted still hands the worker every
+   * reading it acknowledged to a device. Without it the state is in memory (tests, benchmarks).
+   */
+  stateDir?: string;
 }
 
 interface Identity {
@@ -33,13 +40,24 @@ export interface RunningBroker {
   close(): Promise<void>;
 }
 
+/** aedes-persistence-level over a ClassicLevel database in `dir` (created when absent). */
+async function levelPersistence(dir: string): Promise<unknown> {
+  fs.mkdirSync(dir, { recursive: true, mode: 0o700 });
+  const { ClassicLevel } = await import('classic-level');
+  // @ts-expect-error -- the package ships no type declarations; its export is (db) => persistence.
+  const mod = (await import('aedes-persistence-level')) as { default: (db: unknown) => unknown };
+  return mod.default(new ClassicLevel(dir));
+}
+
 /** Password checks are argon2 (≈ 100 ms): remember recent successes for reconnect storms. */
 const verified = new Map<string, number>();
 
 export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
   const log = opts.log ?? (() => {});
-  // In-memory sessions with O(1) look-ups for the worker's many unacknowledged deliveries (broker-persistence.ts).
-  const aedes = await Aedes.createBroker({ heartbeatInterval: 30_000, persistence: memoryPersistence() });
+  // Durable sessions on disk when a state folder is given (npm start); otherwise in-memory
+  // sessions with O(1) look-ups for the worker's many unacknowledged deliveries (broker-persistence.ts).
+  const persistence = opts.stateDir ? await levelPersistence(opts.stateDir) : memoryPersistence();
+  const aedes = await Aedes.createBroker({ heartbeatInterval: 30_000, persistence: persistence as never });
   const ids = new WeakMap<Client, Identity>();
 
   const deviceEvent = async (deviceId: number, kind: 'online' | 'offline', reason: string) => {

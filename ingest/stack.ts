@@ -5,21 +5,29 @@
  * the demo-plant simulator, prints where to go, and on Ctrl-C / SIGTERM stops every process
  * it started and the database, leaving nothing behind.
  */
-import { spawn, type ChildProcess } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { createPool, createSequelize } from '../db/connection.ts';
 import { migrateUp } from '../db/migrate.ts';
-import { PgControlError, portInUse, startLocalPostgres, stopLocalPostgresSync, type LocalPg } from '../db/pg-control.ts';
+import {
+  PgControlError,
+  isLocalPostgresRunning,
+  portInUse,
+  startLocalPostgres,
+  stopLocalPostgresSync,
+  type LocalPg,
+} from '../db/pg-control.ts';
 import { seedAll } from '../seeds/index.ts';
 import { DEMO_USERS } from '../seeds/demo-plant.ts';
 import { buildIfNeeded } from './build.ts';
 import { startFakeSmtp, type FakeSmtp } from './fake-smtp.ts';
+import { Supervisor } from './supervisor.ts';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
-const varDir = path.join(root, 'var');
+// COATRAIL_VAR_DIR: another state folder (the supervision test runs a whole second product).
+const varDir = path.resolve(process.env['COATRAIL_VAR_DIR'] ?? path.join(root, 'var'));
 const DEFAULT_DEMO_PASSWORD = 'fernhollow-demo';
 
 const env = process.env;
@@ -30,7 +38,8 @@ const demoPassword = env['DEMO_PASSWORD'] ?? DEFAULT_DEMO_PASSWORD;
 const simulate = !['0', 'false', 'no'].includes((env['SIMULATOR'] ?? '1').toLowerCase());
 
 const say = (s: string) => console.log(`[coatrail] ${s}`);
-const children: { name: string; proc: ChildProcess }[] = [];
+const statusFile = path.join(varDir, 'run', 'supervisor.json');
+let supervisor: Supervisor | null = null;
 let pgHandle: LocalPg | null = null;
 let smtp: FakeSmtp | null = null;
 let stopping = false;
@@ -47,15 +56,24 @@ function localSecrets(): { deviceSecret: string } {
   return s;
 }
 
-function startChild(name: string, args: string[], childEnv: NodeJS.ProcessEnv): ChildProcess {
-  const proc = spawn(process.execPath, args, { cwd: root, env: childEnv, stdio: ['ignore', 'inherit', 'inherit'] });
-  children.push({ name, proc });
-  proc.on('exit', (code, signal) => {
-    if (stopping) return;
-    say(`${name} stopped (${signal ?? `exit ${code}`}); shutting everything down.`);
-    void shutdown(1);
-  });
-  return proc;
+/** When this demo plant was first started: the simulator lays its oven schedules from it (var/simulator.json). */
+function plantEpochMs(): number {
+  const file = path.join(varDir, 'simulator.json');
+  try {
+    const v = (JSON.parse(fs.readFileSync(file, 'utf8')) as { epochMs?: number }).epochMs;
+    if (typeof v === 'number' && Number.isFinite(v)) return v;
+  } catch {
+    /* first start */
+  }
+  const epochMs = Date.now();
+  fs.mkdirSync(varDir, { recursive: true });
+  fs.writeFileSync(file, JSON.stringify({ epochMs }));
+  return epochMs;
+}
+
+function startChild(name: string, args: string[], childEnv: NodeJS.ProcessEnv): void {
+  supervisor ??= new Supervisor({ cwd: root, statusFile, log: say });
+  supervisor.start({ name, args, env: childEnv });
 }
 
 async function waitForHttp(url: string, timeoutMs: number): Promise<void> {
@@ -76,13 +94,7 @@ async function shutdown(code: number): Promise<never> {
   if (stopping) return new Promise<never>(() => {});
   stopping = true;
   say('Stopping…');
-  for (const { proc } of [...children].reverse()) if (proc.exitCode === null) proc.kill('SIGTERM');
-  const deadline = Date.now() + 8000;
-  for (const { proc } of children) {
-    while (proc.exitCode === null && proc.signalCode === null && Date.now() < deadline)
-      await new Promise((r) => setTimeout(r, 100));
-    if (proc.exitCode === null && proc.signalCode === null) proc.kill('SIGKILL');
-  }
+  await supervisor?.stopAll();
   await smtp?.close().catch(() => {});
   if (pgHandle?.owned) stopLocalPostgresSync(path.join(varDir, 'pg'));
   say('Stopped.');
@@ -118,6 +130,18 @@ async function main(): Promise<void> {
       ? 'Using the PostgreSQL server in DATABASE_URL.'
       : `PostgreSQL on 127.0.0.1:${pgHandle.port} (data in var/pg).`,
   );
+  supervisor = new Supervisor({ cwd: root, statusFile, log: say });
+  if (pgHandle.owned) {
+    const pgPort = pgHandle.port;
+    supervisor.watch({
+      name: 'PostgreSQL',
+      isUp: () => isLocalPostgresRunning(path.join(varDir, 'pg')),
+      // Same port: every child's DATABASE_URL names it, and each reconnects by itself.
+      restart: async () => {
+        await startLocalPostgres({ baseDir: path.join(varDir, 'pg'), database: 'coatrail', port: pgPort, log: say });
+      },
+    });
+  }
   const sequelize = createSequelize({ url: pgHandle.url, max: 2 });
   try {
     const applied = await migrateUp(sequelize);
@@ -126,7 +150,8 @@ async function main(): Promise<void> {
     throw new StartError(`A database migration failed: ${(e as Error).message}`);
   }
   const { deviceSecret } = localSecrets();
-  await seedAll(sequelize, { demoPassword, deviceSecret, log: say });
+  const historyDays = env['COATRAIL_HISTORY_DAYS'] ? Number(env['COATRAIL_HISTORY_DAYS']) : undefined;
+  await seedAll(sequelize, { demoPassword, deviceSecret, log: say, ...(historyDays ? { history: { days: historyDays } } : {}) });
   await sequelize.close();
 
   const pool = createPool({ url: pgHandle.url, max: 2 });
@@ -148,6 +173,11 @@ async function main(): Promise<void> {
     PORT: String(PORT),
     ASTRO_TELEMETRY_DISABLED: '1',
     PUBLIC_ORIGIN: env['PUBLIC_ORIGIN'] ?? `http://${HOST}:${PORT}`,
+    COATRAIL_SUPERVISOR_STATUS: statusFile,
+    // A stable client id: a restarted worker resumes its persistent session (and the readings
+    // queued in it) instead of opening a new one named after its new pid.
+    INGEST_WORKER_ID: env['INGEST_WORKER_ID'] ?? 'main',
+    BROKER_STATE_DIR: env['BROKER_STATE_DIR'] ?? path.join(varDir, 'broker'),
   };
   const tsx = ['--import', 'tsx'];
   if (!env['MQTT_URL']) startChild('broker', [...tsx, 'ingest/broker-main.ts'], childEnv);
@@ -155,7 +185,7 @@ async function main(): Promise<void> {
   startChild('web server', ['dist/server/entry.mjs'], childEnv);
   const origin = `http://${HOST}:${PORT}`;
   await waitForHttp(`${origin}/api/health`, 30_000);
-  if (simulate) startChild('simulator', [...tsx, 'seeds/simulator.ts'], childEnv);
+  if (simulate) startChild('simulator', [...tsx, 'seeds/simulator.ts'], { ...childEnv, SIM_EPOCH_MS: String(plantEpochMs()) });
   console.log('');
   say(`Coatrail is running at ${origin}`);
   say(
@@ -164,7 +194,7 @@ async function main(): Promise<void> {
   say(
     `MQTT broker on ${env['MQTT_URL'] ?? `mqtt://127.0.0.1:${MQTT_PORT}`}; caught e-mail: ${origin}/admin/mail${simulate ? '; the demo-plant simulator is publishing' : ''}.`,
   );
-  say('Press Ctrl-C to stop everything.');
+  say('Every process is supervised: one that stops is restarted (see /api/health). Press Ctrl-C to stop everything.');
 }
 
 main().catch(async (e) => {

@@ -74,7 +74,15 @@ const realTimeOvens = !['1', 'true', 'yes'].includes((process.env['SIM_FAST_OVEN
 const say = (s: string) => console.log(`[simulator] ${s}`);
 
 const startMs = Math.ceil(Date.now() / 1000) * 1000;
-const model = buildPlantModel(startMs);
+/**
+ * The plant's own clock: when this demo plant was first started (SIM_EPOCH_MS, kept by
+ * `npm start` in var/). Oven schedules are laid from it, so a restart of the software finds
+ * each oven where it would be on the wall clock instead of starting every oven cold (which
+ * looked like an aborted cure per oven and restart). The opening story plays only on a fresh plant.
+ */
+const epochMs = Math.min(startMs, Number(process.env['SIM_EPOCH_MS'] ?? '') || startMs);
+const freshPlant = startMs - epochMs < 10 * MINUTE_MS;
+const model = buildPlantModel(epochMs);
 const rng = rngFrom(seedOf('simulator', startMs));
 /** What happened since the last minute line; repeats are counted, not repeated. */
 const events = new Map<string, number>();
@@ -163,14 +171,24 @@ interface OvenSim {
   track: OvenTrack;
   gateway: Gateway;
   n: number;
+  /** This oven's own random stream, seeded by the plant epoch: the same schedule after any restart. */
+  rng: ReturnType<typeof rngFrom>;
 }
 
 const ovenDyn = realTimeOvens ? HISTORY_OVEN_DYNAMICS : { ...DEMO_OVEN_DYNAMICS, doorOpenTauS: 150 };
 const ovens = new Map<OvenCode, OvenSim>(
   OVENS.map((o) => {
-    const s = ovenSampleAt(model.ovens[o], startMs);
+    const s = ovenSampleAt(model.ovens[o], epochMs);
     const initialC: [number, number] = [s.zonesC[0] ?? 24, s.zonesC[1] ?? 24];
-    return [o, { track: { oven: o, dyn: ovenDyn, cycles: [], initialMs: startMs, initialC }, gateway: gw(`gw-${o}`), n: 0 }];
+    return [
+      o,
+      {
+        track: { oven: o, dyn: ovenDyn, cycles: [], initialMs: epochMs, initialC },
+        gateway: gw(`gw-${o}`),
+        n: 0,
+        rng: rngFrom(seedOf(`simulator-${o}`, epochMs)),
+      },
+    ];
   }),
 );
 
@@ -179,15 +197,15 @@ function addCycle(sim: OvenSim, loadStartMs: number, kind: OvenCycleKind): OvenC
   const c = planCycle(sim.track, `${sim.track.oven}-live-${sim.n}`, {
     kind,
     loadStartMs,
-    loadInS: realTimeOvens ? rng.range(90, 180) : 40,
+    loadInS: realTimeOvens ? sim.rng.range(90, 180) : 40,
     soakMinutes: realTimeOvens ? SOAK_MINUTES : 13,
-    rampCPerMin: realTimeOvens ? rng.range(2.8, 3.2) : rng.range(18, 20),
-    unloadDelayMin: realTimeOvens ? rng.range(0, 10) : 0.3,
-    unloadS: realTimeOvens ? rng.range(120, 240) : 40,
+    rampCPerMin: realTimeOvens ? sim.rng.range(2.8, 3.2) : sim.rng.range(18, 20),
+    unloadDelayMin: realTimeOvens ? sim.rng.range(0, 10) : 0.3,
+    unloadS: realTimeOvens ? sim.rng.range(120, 240) : 40,
     ...(kind === 'door-opened'
       ? {
           midSoakDoor: {
-            afterSoakMin: realTimeOvens ? rng.range(30, 120) : rng.range(0.8, 6),
+            afterSoakMin: realTimeOvens ? sim.rng.range(30, 120) : sim.rng.range(0.8, 6),
             durationS: realTimeOvens ? 150 : 45,
           },
         }
@@ -195,9 +213,9 @@ function addCycle(sim: OvenSim, loadStartMs: number, kind: OvenCycleKind): OvenC
     ...(kind === 'tc-dropout'
       ? {
           dropout: {
-            zone: rng() < 0.5 ? 1 : 2,
-            afterSoakMin: realTimeOvens ? rng.range(20, 120) : rng.range(1, 8),
-            durationMin: realTimeOvens ? rng.range(20, 40) : 2,
+            zone: sim.rng() < 0.5 ? 1 : 2,
+            afterSoakMin: realTimeOvens ? sim.rng.range(20, 120) : sim.rng.range(1, 8),
+            durationMin: realTimeOvens ? sim.rng.range(20, 40) : 2,
           },
         }
       : {}),
@@ -209,18 +227,30 @@ function addCycle(sim: OvenSim, loadStartMs: number, kind: OvenCycleKind): OvenC
 // The opening trickle: oven A's door mid-soak, oven B's zone 2 thermocouple out for 2 minutes.
 {
   const a = ovens.get('oven-a')!;
-  const first = addCycle(a, startMs + 15_000, 'normal');
+  const first = addCycle(a, epochMs + 15_000, 'normal');
   first.kind = 'door-opened';
   // Real-length cycles: the door opens in the first minutes while the oven heats (still a cure in progress).
-  const doorAt = realTimeOvens ? startMs + 5 * MINUTE_MS : first.soakStartMs + 0.8 * MINUTE_MS;
+  const doorAt = realTimeOvens ? epochMs + 5 * MINUTE_MS : first.soakStartMs + 0.8 * MINUTE_MS;
   first.doorOpenings.push({ startMs: doorAt, endMs: doorAt + (realTimeOvens ? 150_000 : 45_000), reason: 'mid-soak' });
   first.doorOpenings.sort((x, y) => x.startMs - y.startMs);
   const b = ovens.get('oven-b')!;
-  const second = addCycle(b, startMs + 60_000, 'normal');
+  const second = addCycle(b, epochMs + 60_000, 'normal');
   second.kind = 'tc-dropout';
-  second.dropouts.push({ zone: 'oven-b-z2', startMs: startMs + 3 * MINUTE_MS, endMs: startMs + 5 * MINUTE_MS });
-  addCycle(ovens.get('oven-c')!, startMs + 8 * MINUTE_MS, 'normal');
+  second.dropouts.push({ zone: 'oven-b-z2', startMs: epochMs + 3 * MINUTE_MS, endMs: epochMs + 5 * MINUTE_MS });
+  addCycle(ovens.get('oven-c')!, epochMs + 8 * MINUTE_MS, 'normal');
 }
+
+/** Plan this oven's next cycles until one is still running (or not yet begun) at `t`. */
+function extendCycles(sim: OvenSim, t: number): void {
+  let last = sim.track.cycles.at(-1);
+  while (last && t >= last.loadEndMs) {
+    const u = sim.rng();
+    const kind: OvenCycleKind = u < 0.15 ? 'door-opened' : u < 0.27 ? 'tc-dropout' : 'normal';
+    last = addCycle(sim, last.loadEndMs + sim.rng.range(realTimeOvens ? 10 : 1, realTimeOvens ? 40 : 3) * MINUTE_MS, kind);
+  }
+}
+// A restart: lay the schedule from the epoch up to now, so each oven resumes mid-cycle.
+for (const sim of ovens.values()) extendCycles(sim, startMs);
 
 function phaseOf(c: OvenCycle | undefined, t: number): string {
   if (!c || t >= c.loadEndMs || t < c.loadStartMs) return 'idle';
@@ -233,12 +263,7 @@ function phaseOf(c: OvenCycle | undefined, t: number): string {
 const lastEvent = new Map<string, string>();
 function ovenTick(t: number): void {
   for (const [code, sim] of ovens) {
-    let last = sim.track.cycles.at(-1);
-    if (last && t >= last.loadEndMs) {
-      const u = rng();
-      const kind: OvenCycleKind = u < 0.15 ? 'door-opened' : u < 0.27 ? 'tc-dropout' : 'normal';
-      last = addCycle(sim, last.loadEndMs + rng.range(realTimeOvens ? 10 : 1, realTimeOvens ? 40 : 3) * MINUTE_MS, kind);
-    }
+    extendCycles(sim, t);
     const s = ovenSampleAt(sim.track, t);
     const g = sim.gateway;
     g.publish(code, 'setpoint', t, s.setpointC);
@@ -277,7 +302,7 @@ interface LineSim {
 const lines = new Map<DipLineCode, LineSim>(
   DIP_LINES.map((line) => {
     const bath = bathStateAt(model.baths[line], startMs);
-    const story = line === 'dip-1';
+    const story = freshPlant && line === 'dip-1';
     const driftTo = Math.max(bath.solids, solidsForViscosity(13.1));
     return [
       line,
@@ -292,7 +317,7 @@ const lines = new Map<DipLineCode, LineSim>(
         topUpAtMs: story ? startMs + 8 * MINUTE_MS : null,
         nextStrokeMs: startMs + rng.range(5, 20) * 1000,
         drift:
-          line === 'dip-2'
+          freshPlant && line === 'dip-2'
             ? { startMs: startMs + 20 * MINUTE_MS, rampMs: 10 * MINUTE_MS, holdMs: 5 * MINUTE_MS, amplitude: 0.08 }
             : null,
       },

@@ -1,9 +1,17 @@
 import fs from 'node:fs';
+import os from 'node:os';
 import net from 'node:net';
 import path from 'node:path';
 import pg from 'pg';
 import { afterAll, describe, expect, it } from 'vitest';
-import { freePort, isLocalPostgresRunning, PgControlError, startLocalPostgres, stopLocalPostgres } from '../../db/pg-control.ts';
+import {
+  clusterDir,
+  freePort,
+  isLocalPostgresRunning,
+  PgControlError,
+  startLocalPostgres,
+  stopLocalPostgres,
+} from '../../db/pg-control.ts';
 import { root } from '../support/test-stack.ts';
 
 const base = path.join(root, 'var', `pgctl-test-${process.pid}`);
@@ -37,6 +45,39 @@ describe('db/pg-control.ts (local PostgreSQL control)', () => {
     const noPw = new pg.Client({ connectionString: again.url.replace(/:[^:@/]+@/, '@') });
     await expect(noPw.connect()).rejects.toThrow();
     await again.stop();
+  });
+
+  it('a project in a 0700 home folder gets a working cluster on its first start (root: kept where postgres can reach it)', async () => {
+    delete process.env['DATABASE_URL'];
+    const home = fs.mkdtempSync(path.join(os.tmpdir(), 'ct-home-'));
+    fs.chmodSync(home, 0o700); // as root's home is on Debian
+    const relocRoot = fs.mkdtempSync(path.join(os.tmpdir(), 'ct-reloc-'));
+    fs.chmodSync(relocRoot, 0o755);
+    const savedRoot = process.env['COATRAIL_PG_ROOT'];
+    process.env['COATRAIL_PG_ROOT'] = relocRoot;
+    const projectPg = path.join(home, 'coatrail', 'var', 'pg');
+    try {
+      const h = await startLocalPostgres({ baseDir: projectPg, database: 'home' });
+      const c = new pg.Client({ connectionString: h.url });
+      await c.connect();
+      expect((await c.query('select 1 as one')).rows).toEqual([{ one: 1 }]);
+      await c.end();
+      const isRoot = process.getuid?.() === 0;
+      expect(clusterDir(projectPg) !== path.resolve(projectPg)).toBe(isRoot);
+      if (isRoot) {
+        expect(clusterDir(projectPg).startsWith(relocRoot)).toBe(true);
+        expect(fs.readFileSync(path.join(projectPg, 'CLUSTER-IS-ELSEWHERE.txt'), 'utf8')).toContain(clusterDir(projectPg));
+      }
+      expect(isLocalPostgresRunning(projectPg)).toBe(true);
+      await h.stop();
+      expect(isLocalPostgresRunning(projectPg)).toBe(false);
+    } finally {
+      await stopLocalPostgres(projectPg).catch(() => {});
+      if (savedRoot === undefined) delete process.env['COATRAIL_PG_ROOT'];
+      else process.env['COATRAIL_PG_ROOT'] = savedRoot;
+      fs.rmSync(home, { recursive: true, force: true });
+      fs.rmSync(relocRoot, { recursive: true, force: true });
+    }
   });
 
   it('reports a taken port with a plain message', async () => {

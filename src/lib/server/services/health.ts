@@ -1,4 +1,5 @@
 /** What `/api/health` reports: database, broker and ingest lag. */
+import { readSupervisorStatus, type ProcessStatus } from '../../core/supervision-status.ts';
 import { brokerLink } from '../broker-link.ts';
 import { QueryTypes } from 'sequelize';
 import { db as database } from '../db.ts';
@@ -17,6 +18,8 @@ export interface HealthReport {
     journalBytes: number;
     error?: string;
   };
+  /** Present under `npm start`: each supervised process, its state and restarts. */
+  supervisor?: { processes: ProcessStatus[] };
   failing: string[];
 }
 
@@ -76,5 +79,16 @@ export async function healthReport(): Promise<HealthReport> {
   if (!db.ok) failing.push('db');
   if (!broker.ok) failing.push('broker');
   if (!ingest.ok) failing.push('ingest');
-  return { status: failing.length ? 'degraded' : 'ok', time: new Date().toISOString(), db, broker, ingest, failing };
+  const statusFile = process.env['COATRAIL_SUPERVISOR_STATUS'];
+  const sup = statusFile ? readSupervisorStatus(statusFile) : null;
+  if (sup) for (const p of sup.processes) if (p.state !== 'running') failing.push(`process:${p.name}`);
+  return {
+    status: failing.length ? 'degraded' : 'ok',
+    time: new Date().toISOString(),
+    db,
+    broker,
+    ingest,
+    ...(sup ? { supervisor: { processes: sup.processes } } : {}),
+    failing,
+  };
 }
