@@ -426,9 +426,11 @@ export function StackReflectanceCalc() {
               <option value="p">p</option>
             </select>
           </div>
-          <div className="flex items-end gap-2">
-            <input id={`${id}-both`} type="checkbox" checked={bothFaces} onChange={(e) => setBothFaces(e.target.checked)} />
-            <label htmlFor={`${id}-both`}>Both faces coated with this stack</label>
+          <div className="flex items-end">
+            <label htmlFor={`${id}-both`} className="flex items-center gap-2 pb-2 font-normal">
+              <input id={`${id}-both`} type="checkbox" checked={bothFaces} onChange={(e) => setBothFaces(e.target.checked)} />
+              Both faces coated with this stack
+            </label>
           </div>
           <fieldset className="sm:col-span-2">
             <legend>

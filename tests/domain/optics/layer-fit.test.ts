@@ -82,6 +82,37 @@ describe('fitLayerErrors — per-layer thickness factors by Levenberg–Marquard
     expect((fit.scales[3]! + fit.scales[4]!) / 2).toBeCloseTo(1.04, 2);
   });
 
+  it('seven layers with a 5 nm ITO between two ZrO₂ layers: the spectrum cannot separate them (named); fitting the determinable layers finds the drift', () => {
+    const seven: StackSpec = {
+      layers: [
+        { index: { material: 'sio2' }, thicknessNm: 20 },
+        { index: { material: 'zro2' }, thicknessNm: 16 },
+        { index: { material: 'sio2' }, thicknessNm: 30 },
+        { index: { material: 'zro2' }, thicknessNm: 60 },
+        { index: { material: 'ito' }, thicknessNm: 5 },
+        { index: { material: 'zro2' }, thicknessNm: 52 },
+        { index: { material: 'sio2' }, thicknessNm: 90 },
+      ],
+      substrate: { material: 'hi-160' },
+    };
+    const measured = synthesise(seven, [1, 1, 1, 1.06, 1, 1, 1]);
+    const all = fitLayerErrors({ design: resolveStack(seven, wl), measuredReflectancePct: measured });
+    expect(all.identifiable).toBe(false);
+    expect(all.notIdentifiable).toMatch(/layer 5 only to ±/);
+    expect(all.drifted).toEqual([]);
+    // ZrO₂ 60 nm / ITO 5 nm (n ≈ 1.95) / ZrO₂ 52 nm act almost as one high-index layer, and the
+    // 20 nm SiO₂ adhesion layer on a 1.60 lens barely shows: fit layers 2, 3, 4 and 7 only.
+    const withoutIto = fitLayerErrors({
+      design: resolveStack(seven, wl),
+      measuredReflectancePct: measured,
+      fitLayers: [1, 2, 3, 6],
+    });
+    expect(withoutIto.identifiable).toBe(true);
+    expect(withoutIto.scales[4]).toBe(1);
+    expect(Math.abs(withoutIto.scales[3]! - 1.06)).toBeLessThan(0.01);
+    expect(withoutIto.drifted[0]?.layer).toBe(3);
+  });
+
   it('refuses mismatched lengths and unknown layers', () => {
     const rs = resolveStack(design, wl);
     expect(() => fitLayerErrors({ design: rs, measuredReflectancePct: [1, 2] })).toThrow(RangeError);

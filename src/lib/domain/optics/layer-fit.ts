@@ -14,8 +14,11 @@
  * A rank below the number of fitted layers, or κ above `maxCondition`, means that some
  * combination of thickness errors leaves the spectrum (almost) unchanged: the data cannot say
  * which layer drifted, and the result says so plainly, naming the layers in that combination
- * (the right singular vector of σ_min). Standard errors: s²·(JᵀJ)⁻¹ with s² = SSR/(m − n)
- * (the usual linearised least-squares covariance).
+ * (the right singular vector of σ_min). Standard errors: σ²·(JᵀJ)⁻¹ (the usual linearised
+ * least-squares covariance) with σ the larger of the residual spread √(SSR/(m − n)) and the
+ * instrument's noise `noisePct`; a layer whose standard error exceeds `maxStandardError` is not
+ * determined by the data either (a 5 nm anti-static layer hardly shows in a reflectance
+ * spectrum), and the result says so.
  *
  * Tooling-factor correction (common practice for quartz-crystal monitoring): the controller
  * ends a layer when the crystal reading times the tooling factor reaches the target, so a
@@ -39,8 +42,12 @@ export interface LayerFitInput {
   toolingFactorsPct?: (number | undefined)[];
   /** A layer counts as drifted beyond this fraction (default 0.02 = 2 %, a setting, from memory). */
   driftThreshold?: number;
-  /** Above this condition number of J the fit is called not identifiable (default 1e4, a setting). */
+  /** Above this condition number of J the fit is called not identifiable (default 1e8, a setting). */
   maxCondition?: number;
+  /** Reflectance noise of the measurement, %R (default 0.05, a typical repeatability from memory; a setting). */
+  noisePct?: number;
+  /** Largest standard error of a factor for the fit to count as identifiable (default 0.02 = ±2 %, a setting). */
+  maxStandardError?: number;
   /** Iteration cap (default 100). */
   maxIterations?: number;
 }
@@ -186,7 +193,9 @@ export function fitLayerErrors(input: LayerFitInput): LayerFitResult {
   const n = fit.length;
   if (m <= n) throw new RangeError(`${n} layers need more than ${n} measured points`);
   const [lo, hi] = input.bounds ?? [0.7, 1.3];
-  const maxCondition = input.maxCondition ?? 1e4;
+  const maxCondition = input.maxCondition ?? 1e8;
+  const noisePct = input.noisePct ?? 0.05;
+  const maxSe = input.maxStandardError ?? 0.02;
   const threshold = input.driftThreshold ?? 0.02;
   const maxIter = input.maxIterations ?? 100;
 
@@ -295,22 +304,24 @@ export function fitLayerErrors(input: LayerFitInput): LayerFitResult {
   for (let i = 1; i < n; i++) if (eig.values[i]! < eig.values[minIdx]!) minIdx = i;
   const sMin = sigmas[minIdx]!;
   const conditionNumber = rank < n || sMin === 0 ? Number.POSITIVE_INFINITY : sMax / sMin;
-  const identifiable = rank === n && conditionNumber <= maxCondition;
+  const wellConditioned = rank === n && conditionNumber <= maxCondition;
 
-  const s2 = cost / (m - n);
+  const sigma = Math.max(noisePct, Math.sqrt(cost / (m - n)));
   const standardErrors: (number | null)[] = new Array(L).fill(null);
   if (rank === n) {
     // (JᵀJ)⁻¹ = V Λ⁻¹ Vᵀ
     for (let c = 0; c < n; c++) {
       let vsum = 0;
       for (let e = 0; e < n; e++) vsum += eig.vectors[c * n + e]! ** 2 / eig.values[e]!;
-      standardErrors[fit[c]!] = Math.sqrt(s2 * vsum);
+      standardErrors[fit[c]!] = sigma * Math.sqrt(vsum);
     }
   }
+  const vague = wellConditioned ? fit.filter((j) => standardErrors[j]! > maxSe) : [];
+  const identifiable = wellConditioned && vague.length === 0;
 
   const atBound = fit.filter((j) => scales[j]! <= lo + 1e-9 || scales[j]! >= hi - 1e-9);
   let notIdentifiable: string | undefined;
-  if (!identifiable) {
+  if (!wellConditioned) {
     const parts = fit.map((j, c) => ({ layer: j, w: eig.vectors[c * n + minIdx]! })).filter((x) => Math.abs(x.w) >= 0.3);
     const names = (xs: typeof parts) => xs.map((x) => `layer ${x.layer + 1}`).join(' and ');
     const up = parts.filter((x) => x.w > 0);
@@ -323,6 +334,12 @@ export function fitLayerErrors(input: LayerFitInput): LayerFitResult {
       `The fit is not identifiable: the spectrum hardly changes when ${how} ` +
       `(Jacobian rank ${rank} of ${n}, condition number ${Number.isFinite(conditionNumber) ? conditionNumber.toExponential(2) : '∞'} > ${maxCondition.toExponential(0)}). ` +
       'The data cannot tell which of these layers drifted; fit fewer layers, or measure over a wider range or at another angle.';
+  } else if (vague.length) {
+    notIdentifiable =
+      `The fit is not identifiable: at a measurement noise of ${sigma.toPrecision(2)} %R the data determine ` +
+      vague.map((j) => `layer ${j + 1} only to ±${(standardErrors[j]! * 100).toPrecision(2)} %`).join(', ') +
+      ` (more than ±${(maxSe * 100).toPrecision(2)} %; condition number ${conditionNumber.toExponential(2)}). ` +
+      'Leave such layers out of the fit (fitLayers), or measure over a wider range or at another angle.';
   }
   const drifted: DriftedLayer[] = identifiable
     ? fit
