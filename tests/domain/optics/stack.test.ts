@@ -110,6 +110,13 @@ describe('stack reflectance — closed forms (Macleod, Thin-Film Optical Filters
     expect(r.reflectance[0]! + r.transmittance[0]!).toBeGreaterThan(0.98);
   });
 
+  it('an opaque absorbing layer acts as the substrate: R = |(1 − N)/(1 + N)|² = 0.68 for N = 2 − 4i, T = 0 (Macleod, thick absorbing film)', () => {
+    // hand-computed: (1 − N)/(1 + N) = (−1 + 4i)/(3 − 4i), |…|² = 17/25
+    const r = computeStack({ layers: [layer(2, 10_000, 4)], substrate: { n: 1.5 } }, [100]);
+    expect(r.reflectance[0]).toBeCloseTo(0.68, 12);
+    expect(r.transmittance[0]).toBe(0);
+  });
+
   it('s = p at normal incidence', () => {
     const layers = [layer(2.0, 15), layer(1.46, 30), layer(2.0, 120), layer(1.46, 90)];
     const wls = [400, 450, 500, 550, 600, 650, 700];

@@ -187,7 +187,9 @@ function surface(
   const c0 = Math.sqrt(n0 * n0 - s2);
   const eta0 = p ? (n0 * n0) / c0 : c0;
   // Exit medium: q = √(N² − s²) with Im q ≤ 0.
-  let [qr, qi] = csqrtDecaying(nE * nE - kE * kE - s2, -2 * nE * kE);
+  csqrtDecaying(nE * nE - kE * kE - s2, -2 * nE * kE);
+  let qr = sqRe;
+  let qi = sqIm;
   let etaR: number;
   let etaI: number;
   if (p) {
@@ -209,6 +211,7 @@ function surface(
   let Ci = etaI;
   const L = layers.length;
   const k2pi = (2 * Math.PI) / wl;
+  let logScale = 0;
   for (let step = 0; step < L; step++) {
     // Deposition order runs from the exit medium outwards; a reversed traversal starts at the
     // incident medium's side, i.e. the exit side is the last-deposited layer.
@@ -217,7 +220,9 @@ function surface(
     const n = layer.n[i]!;
     const k = layer.k[i]!;
     const d = layer.thicknessNm * (scales ? scales[j]! : 1);
-    [qr, qi] = csqrtDecaying(n * n - k * k - s2, -2 * n * k);
+    csqrtDecaying(n * n - k * k - s2, -2 * n * k);
+    qr = sqRe;
+    qi = sqIm;
     if (p) {
       const Nr = n * n - k * k;
       const Ni = -2 * n * k;
@@ -231,8 +236,13 @@ function surface(
     // δ = 2π q d / λ = a + ib
     const a = k2pi * qr * d;
     const b = k2pi * qi * d;
-    const ch = Math.cosh(b);
-    const sh = Math.sinh(b);
+    // cosh b and sinh b divided by e^|b| (the factor is carried in logScale), so that an opaque
+    // layer cannot overflow: R is a ratio and does not see the factor; T is divided by its square.
+    const ab = Math.abs(b);
+    const e2 = Math.exp(-2 * ab);
+    const ch = (1 + e2) / 2;
+    const sh = (b < 0 ? -(1 - e2) : 1 - e2) / 2;
+    logScale += ab;
     const ca = Math.cos(a);
     const sa = Math.sin(a);
     // cos δ = cos a cosh b − i sin a sinh b ; sin δ = sin a cosh b + i cos a sinh b
@@ -265,17 +275,22 @@ function surface(
   const denI = eta0 * Bi + Ci;
   const den2 = denR * denR + denI * denI;
   out.R = (numR * numR + numI * numI) / den2;
-  out.T = (4 * eta0 * etaSubR) / den2;
+  out.T = logScale > 0 ? ((4 * eta0 * etaSubR) / den2) * Math.exp(-2 * logScale) : (4 * eta0 * etaSubR) / den2;
 }
 
-/** √(re + i·im), the root with Im ≤ 0 (a decaying wave for N = n − ik; Macleod's choice). */
-function csqrtDecaying(re: number, im: number): [number, number] {
+/** Result registers of csqrtDecaying (synchronous scratch: no allocation on the hot path). */
+let sqRe = 0;
+let sqIm = 0;
+
+/** √(re + i·im) into (sqRe, sqIm): the root with Im ≤ 0 (a decaying wave for N = n − ik; Macleod's choice). */
+function csqrtDecaying(re: number, im: number): void {
   const m = Math.hypot(re, im);
   const r = Math.sqrt(Math.max(0, (m + re) / 2));
   const i = Math.sqrt(Math.max(0, (m - re) / 2));
   // The two roots are ±(r + i·sgn(im)·i); keep the one with Im ≤ 0. An evanescent wave in a
   // lossless medium (im = 0, re < 0) gets the decaying branch −i·√|re|.
-  return im > 0 ? [-r, -i] : [r, -i];
+  sqRe = im > 0 ? -r : r;
+  sqIm = -i;
 }
 
 /**
