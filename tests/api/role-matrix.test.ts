@@ -156,6 +156,10 @@ const ROUTES: Record<string, Action | 'public'> = {
   'GET /api/v1/surveys/[id]': 'view',
   'GET /api/v1/surveys/settings': 'view',
   'PUT /api/v1/surveys/settings': 'plant.configure',
+  // AR coating calculators (issue 16)
+  'POST /api/v1/calc/stack-reflectance': 'calc.use',
+  'POST /api/v1/calc/spectrum-colour': 'calc.use',
+  'POST /api/v1/calc/colour-difference': 'calc.use',
 };
 
 /**

@@ -116,6 +116,37 @@ export const CALCULATORS: CalculatorInfo[] = [
     validity:
       'Readings should cover the stabilised soak and carry each sensor’s calibration correction; the class table is a template, configurable per site.',
   },
+  {
+    slug: 'stack-reflectance',
+    title: 'AR stack reflectance and colour',
+    summary:
+      'Edit a layer stack and see its modelled reflectance curve, residual colour (L*, a*, b*, C*, h°) and luminous reflectance, at any angle and polarisation, one or both lens faces.',
+    endpoint: '/api/v1/calc/stack-reflectance',
+    sources: [
+      'H. A. Macleod, Thin-Film Optical Filters (characteristic-matrix method)',
+      'I. H. Malitson, J. Opt. Soc. Am. 55 (1965) 1205 (fused silica); other indices marked “from memory”',
+      'CIE 015:2004 Colorimetry (1931 2° observer, D65); ISO 13666 (luminous reflectance)',
+    ],
+    validity:
+      'Homogeneous, isotropic, flat layers with sharp interfaces; the lens faces add incoherently and the lens’s own absorption is neglected. The colour is a model of the design, not of a coated lens: film indices in a real chamber differ from the table’s.',
+  },
+  {
+    slug: 'spectrum-colour',
+    title: 'Colour of a reflectance spectrum',
+    summary: 'A measured or modelled spectrum → XYZ, x y, CIELAB L* a* b*, chroma, hue angle and luminous reflectance.',
+    endpoint: '/api/v1/calc/spectrum-colour',
+    sources: ['CIE 015:2004 Colorimetry (1931 2° observer, D65, 5 nm tables)', 'ISO 13666 (luminous reflectance, D65 × V(λ))'],
+    validity:
+      'The spectrum is interpolated linearly onto 380–780 nm at 5 nm and must cover at least 400–700 nm; outside its range the end values are held, with a warning. The swatch is for display only.',
+  },
+  {
+    slug: 'colour-difference',
+    title: 'Colour difference ΔE',
+    summary: 'ΔE00 (CIEDE2000) and ΔE*ab (1976) between two CIELAB colours, for example the two lenses of a pair.',
+    endpoint: '/api/v1/calc/colour-difference',
+    sources: ['CIE 142-2001 / ISO/CIE 11664-6 (CIEDE2000)', 'G. Sharma, W. Wu & E. N. Dalal, Color Res. Appl. 30 (2005) 21–30'],
+    validity: 'Reference viewing conditions (kL = kC = kH = 1). What ΔE a pair may differ by is the lab’s own setting.',
+  },
 ];
 
 export function calculator(slug: string): CalculatorInfo {

@@ -73,6 +73,14 @@ import { SurveyInputSchema, SurveySettingsSchema } from '../shared/surveys.ts';
 import { ApproveLimitSetSchema, CharacteristicInputSchema, StudyInputSchema } from '../shared/characteristics.ts';
 import { SpectrumOptionsSchema } from '../shared/spectrum.ts';
 import {
+  ColourDifferenceInputSchema,
+  ColourDifferenceOutputSchema,
+  SpectrumColourInputSchema,
+  SpectrumColourOutputSchema,
+  StackReflectanceInputSchema,
+  StackReflectanceOutputSchema,
+} from '../shared/optics.ts';
+import {
   WindowApproveSchema,
   WindowAssignSchema,
   WindowDraftCreateSchema,
@@ -967,6 +975,34 @@ export const OPERATIONS: Operation[] = [
     access: 'calc.use',
     tag: 'calculators',
     body: AbrasionInputSchema,
+  },
+  // AR coating calculators (issue 16)
+  {
+    method: 'POST',
+    path: '/api/v1/calc/stack-reflectance',
+    summary: 'Thin-film stack reflectance and transmittance (characteristic matrix; ≤ 50 layers, ≤ 2,001 wavelengths)',
+    access: 'calc.use',
+    tag: 'calculators',
+    body: StackReflectanceInputSchema,
+    response: StackReflectanceOutputSchema,
+  },
+  {
+    method: 'POST',
+    path: '/api/v1/calc/spectrum-colour',
+    summary: 'Colour and luminous reflectance of a reflectance spectrum (CIE 1931 2°, D65; ≤ 2,001 points)',
+    access: 'calc.use',
+    tag: 'calculators',
+    body: SpectrumColourInputSchema,
+    response: SpectrumColourOutputSchema,
+  },
+  {
+    method: 'POST',
+    path: '/api/v1/calc/colour-difference',
+    summary: 'ΔE76 and CIEDE2000 between two CIELAB colours',
+    access: 'calc.use',
+    tag: 'calculators',
+    body: ColourDifferenceInputSchema,
+    response: ColourDifferenceOutputSchema,
   },
 ];
 
