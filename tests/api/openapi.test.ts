@@ -344,17 +344,13 @@ async function realPathValues(session: Session): Promise<Record<string, Record<s
     const v = pick(r.body);
     return v === undefined || v === null ? undefined : String(v);
   };
-  const list = (b: any) => (Array.isArray(b) ? b : (b?.items ?? b?.surveys ?? b?.rows ?? []));
+  const list = (b: any) => (Array.isArray(b) ? b : (b?.items ?? b?.surveys ?? b?.rows ?? b?.points ?? []));
   const id = (b: any) => list(b)[0]?.id;
   const out: Record<string, Record<string, string>> = {};
   const put = (prefix: string, values: Record<string, string | undefined>) => {
     if (Object.values(values).every((v) => v !== undefined)) out[prefix] = values as Record<string, string>;
   };
-  const channel = await first('/api/v1/channels', id);
   const characteristic = await first('/api/v1/characteristics', id);
-  put('/api/v1/channels/{id}', { id: channel });
-  put('/api/v1/alarm-configs/{channelId}', { channelId: channel });
-  put('/api/v1/characteristics/{id}', { id: characteristic });
   if (characteristic) {
     put('/api/v1/characteristics/{id}/limit-sets/{setId}', {
       id: characteristic,
@@ -364,9 +360,6 @@ async function realPathValues(session: Session): Promise<Record<string, Record<s
       id: characteristic,
       pointId: await first(`/api/v1/characteristics/${characteristic}/points?last=5`, (b) => b?.points?.[0]?.id),
     });
-  }
-  for (const res of ['alarms', 'loads', 'dip-runs', 'quality/tests', 'nonconformances', 'surveys', 'windows']) {
-    put(`/api/v1/${res}/{id}`, { id: await first(`/api/v1/${res}`, id) });
   }
   // Records the demo plant may lack are made through their documented operations.
   if (!(await first('/api/v1/nonconformances', id))) {
@@ -386,6 +379,13 @@ async function realPathValues(session: Session): Promise<Record<string, Record<s
   const uploaded = await call('POST', `/api/v1/quality/tests/${testId}/files`, { session: sessions.get('quality')!, body: form });
   expect(uploaded.status, JSON.stringify(uploaded.body)).toBe(201);
   put('/api/v1/quality/files/{id}', { id: uploaded.body?.id });
+  // Any other `<list>/{param}`: the first record of the documented list (its `param` or `id`).
+  for (const [, p] of operations()) {
+    const m = p.match(/^(.*?)\/\{([^}]+)\}/);
+    if (!m || out[`${m[1]}/{${m[2]}}`] || m[1] === '/api/v1/trace/jobs') continue;
+    const name = m[2]!;
+    put(`${m[1]}/{${name}}`, { [name]: await first(m[1]!, (b) => list(b)[0]?.[name] ?? list(b)[0]?.id) });
+  }
   put('/api/v1/trace/jobs/{jobNumber}', { jobNumber: await first('/api/v1/quality/tests', (b) => list(b)[0]?.jobNumber) });
   return out;
 }
