@@ -12,7 +12,6 @@ export const contract = {
     action: 'public',
     body: ForgotPasswordSchema,
     responses: { 202: MessageSchema },
-    problems: [429],
   }),
 };
 

@@ -13,6 +13,7 @@ export const contract = {
     action: 'hold.release',
     body: HoldCloseSchema,
     responses: { 200: HoldListSchema },
+    problems: [429],
   }),
 };
 

@@ -13,7 +13,7 @@ export const contract = {
     action: 'nc.write',
     body: NcCloseSchema,
     responses: { 200: NcClosedSchema },
-    problems: [409],
+    problems: [409, 429],
   }),
 };
 

@@ -13,7 +13,7 @@ export const contract = {
     action: 'hold.release',
     body: NcDispositionSchema,
     responses: { 201: NcDispositionedSchema },
-    problems: [409],
+    problems: [409, 429],
   }),
 };
 

@@ -13,7 +13,7 @@ export const contract = {
     action: 'window.approve',
     body: WindowApproveSchema,
     responses: { 200: ApprovedWindowSchema },
-    problems: [409],
+    problems: [409, 429],
   }),
 };
 

@@ -13,7 +13,7 @@ export const contract = {
     action: 'limits.approve',
     body: ApproveLimitSetSchema,
     responses: { 200: ApprovedLimitSetSchema },
-    problems: [409],
+    problems: [409, 429],
   }),
 };
 
