@@ -9,6 +9,8 @@ import { AlarmListSchema } from '../../../../lib/shared/api/alarms.ts';
 export const contract = {
   GET: operation({
     summary: 'Alarms (?state=ISA state names or open, ?priority=, ?limit=)',
+    description:
+      '`?state=` comma-separated states (normal, unacked, acked, rtn-unacked, shelved, suppressed, out-of-service) or `open`; `?priority=`; `?channel=`; `?limit=` (1–500, default 200). Waiting for acknowledgement first, then priority, then newest.',
     tag: 'alarms',
     action: 'view',
     query: AlarmListQuerySchema,

@@ -9,6 +9,7 @@ import { ChannelListSchema, ChannelViewSchema } from '../../../../lib/shared/api
 export const contract = {
   GET: operation({
     summary: 'Channels with unit, range and MQTT topic',
+    description: 'Each channel with its unit, valid range and the MQTT topic its device publishes on.',
     tag: 'plant',
     action: 'view',
     responses: { 200: ChannelListSchema },

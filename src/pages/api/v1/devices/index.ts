@@ -15,6 +15,7 @@ export const contract = {
   }),
   POST: operation({
     summary: 'Add a device (its password is shown once)',
+    description: '`{name}` → `{id, username, password, topicPrefix}`; the password is shown this once.',
     tag: 'plant',
     action: 'admin.devices',
     body: CreateDeviceSchema,

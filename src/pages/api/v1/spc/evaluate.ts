@@ -9,6 +9,8 @@ import { SpcEvaluateOutputSchema } from '../../../../lib/shared/api/spc.ts';
 export const contract = {
   POST: operation({
     summary: 'Stateless SPC on posted data (product.md §6)',
+    description:
+      "Stateless SPC on posted data: limits, dispersion, per-point rule violations and (with `spec`) capability. Every bad input is a 400 with the offending field's path.",
     tag: 'spc',
     action: 'spc.evaluate',
     body: SpcEvaluateInputSchema,

@@ -10,6 +10,8 @@ import { ReadingsSchema } from '../../../../../lib/shared/api/plant.ts';
 export const contract = {
   GET: operation({
     summary: 'Readings of a channel, raw or downsampled (?from&to&maxPoints)',
+    description:
+      'Raw `{t, v}` points when the range holds at most `maxPoints` samples, otherwise `{t, min, max, mean, n}` buckets from the right rollup, never more than `maxPoints`. Defaults: the last hour and 1 000 points (at most 5 000). Times are epoch milliseconds.',
     tag: 'plant',
     action: 'view',
     query: ReadingsQuerySchema,

@@ -9,6 +9,7 @@ import { RecordedTestSchema, TestListSchema } from '../../../../../lib/shared/ap
 export const contract = {
   GET: operation({
     summary: 'Quality tests (?result=fail…)',
+    description: 'Failed first, then newest (`?result=pass|fail&kind&job&from&to&limit`); `?format=csv` for a spreadsheet.',
     tag: 'quality',
     action: 'view',
     query: TestListQuerySchema,

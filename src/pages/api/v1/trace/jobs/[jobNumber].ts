@@ -11,6 +11,8 @@ import { TraceSchema } from '../../../../../lib/shared/api/quality.ts';
 export const contract = {
   GET: operation({
     summary: 'Trace a job: dip runs with the bath at dip time, cure loads, alarms, tests, siblings',
+    description:
+      "The job's dip runs with the bath at dip time, its cure load(s) with record, verdict and the alarms during the load, its tests, and its siblings (same load; same bath charge within ± `hours`) with their test status.",
     tag: 'quality',
     action: 'view',
     params: z.object({ jobNumber: JobNumberSchema }),
