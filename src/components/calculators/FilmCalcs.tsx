@@ -42,7 +42,11 @@ export function DipThicknessCalc() {
             <Out label="Capillary length ℓc = √(γ/ρg)" value={sig(r.capillaryLengthMm)} unit="mm" />
             <Out
               label="Regime"
-              value={r.regime === 'landau-levich' ? 'Landau–Levich (Ca ≤ 10⁻²)' : 'gravity–viscous (outside Landau–Levich)'}
+              value={
+                r.regime === 'landau-levich'
+                  ? 'Landau–Levich range (Ca ≤ 10⁻²)'
+                  : 'drainage-limited (above the Landau–Levich range)'
+              }
             />
           </dl>
           <Warnings items={r.warnings} />
@@ -103,8 +107,8 @@ export function SpeedAdvisorCalc() {
                 r.model === 'calibrated'
                   ? 'the lab’s calibrated constant'
                   : r.model === 'landau-levich'
-                    ? 'Landau–Levich theory'
-                    : 'gravity–viscous estimate'
+                    ? 'drag-out model, Landau–Levich range'
+                    : 'drag-out model, drainage-limited range'
               }
             />
             {r.capillaryNumber !== undefined && <Out label="Capillary number at that speed" value={sig(r.capillaryNumber, 3)} />}

@@ -16,21 +16,26 @@ export const CALCULATORS: CalculatorInfo[] = [
     slug: 'dip-thickness',
     title: 'Dip-coat film thickness',
     summary:
-      'Wet and dry film thickness from viscosity and withdrawal speed (Landau–Levich), with the capillary number and regime.',
+      'Wet and dry film thickness from viscosity and withdrawal speed (Landau–Levich drag-out with its gravity-drainage limit, one continuous model), with the capillary number and regime.',
     endpoint: '/api/v1/calc/dip-thickness',
     sources: [
       'L. Landau & B. Levich, Acta Physicochimica URSS 17 (1942) 42–54',
+      'B. V. Derjaguin, Acta Physicochimica URSS 20 (1943) 349–352 (gravity–viscous limit)',
+      'D. A. White & J. A. Tallmadge, Chem. Eng. Sci. 20 (1965) 33–37; Spiers, Subbaraman & Wilkinson, Chem. Eng. Sci. 29 (1974) 389–396 (one equation for both regimes)',
       'C. J. Brinker & G. W. Scherer, Sol-Gel Science (1990), ch. 13',
     ],
     validity:
-      'Newtonian liquid, a lens the lacquer wets, steady withdrawal, and capillary number Ca = ηU/γ ≤ 10⁻² (a common-practice bound); above it the gravity–viscous estimate is shown with a warning. Dry thickness = wet × solids volume fraction ignores shrinkage beyond solvent loss.',
+      'Newtonian liquid, a lens the lacquer wets, steady withdrawal, and capillary number Ca = ηU/γ ≤ 10⁻² (a common-practice bound) for the Landau–Levich limit; above it the same model’s drainage-limited branch is shown with a warning. At hard-coat conditions (Ca 10⁻⁴–10⁻³) the model is 3–6 % below the pure Landau–Levich formula; a calibrated constant from the lab’s own films is the better guide. Dry thickness = wet × solids volume fraction ignores shrinkage beyond solvent loss.',
   },
   {
     slug: 'speed-advisor',
     title: 'Withdrawal-speed advisor',
     summary: 'The withdrawal speed that gives the target thickness at the bath’s current viscosity.',
     endpoint: '/api/v1/calc/speed-advisor',
-    sources: ['Landau & Levich 1942 (inverted)', 'Brinker & Scherer 1990, ch. 13'],
+    sources: [
+      'The dip-thickness model inverted by bisection (Landau & Levich 1942; Derjaguin 1943; White & Tallmadge 1965)',
+      'Brinker & Scherer 1990, ch. 13',
+    ],
     validity:
       'Inverts the same film law as the dip-thickness calculator; with a calibrated constant the lab’s own fit replaces the theory and holds only over the speeds and viscosities it was fitted on.',
   },
