@@ -78,6 +78,19 @@ export const CALCULATORS: CalculatorInfo[] = [
       'The activation energy must come from the lacquer maker or the lab’s validation; the sum assumes one rate-limiting reaction over the profile’s temperatures.',
   },
   {
+    slug: 'cure-verdict',
+    title: 'Cure verdict of a profile',
+    summary:
+      'Judge a planned or exported oven profile against a cure window before running it: the verdict an oven-load record would give (complete, under-cured, over-temperature, unverifiable), its reasons, equivalent minutes, time at or above the minimum and the peak.',
+    endpoint: '/api/v1/calc/cure-verdict',
+    sources: [
+      'ASTM C1074 equivalent-age function (interval mean temperature), counted only at or above the minimum cure temperature (the datum-temperature idea of the maturity method)',
+      'Arrhenius law; R = 8.314462618 J/(mol·K)',
+    ],
+    validity:
+      'The same code as the oven-load record, on the coldest thermocouple’s profile (minute 0 is the load’s start). The window comes from the lacquer maker’s data and the lab’s validation; the verdict is advisory, and a profile judged here still needs the oven’s own records. Ovens and racks are hot.',
+  },
+  {
     slug: 'activation-energy',
     title: 'Activation energy from two schedules',
     summary: 'The activation energy that makes two isothermal cure schedules equivalent.',
@@ -117,7 +130,7 @@ export const CALCULATORS: CalculatorInfo[] = [
     title: 'Oven uniformity survey',
     summary: 'Hottest and coldest deviation from setpoint over a multi-sensor survey and the uniformity class.',
     endpoint: '/api/v1/calc/uniformity',
-    sources: ['SAE AMS2750G furnace classes (used as a published template)'],
+    sources: ['SAE AMS2750F Table 11 furnace classes (used as a published template)'],
     validity:
       'Readings should cover the stabilised soak and carry each sensor’s calibration correction; the class table is a template, configurable per site.',
   },

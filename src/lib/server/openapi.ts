@@ -25,6 +25,8 @@ import {
   CrosscutOutputSchema,
   CureEquivalentInputSchema,
   CureEquivalentOutputSchema,
+  CureVerdictInputSchema,
+  CureVerdictOutputSchema,
   DipThicknessInputSchema,
   DipThicknessOutputSchema,
   FringeThicknessInputSchema,
@@ -967,6 +969,15 @@ export const OPERATIONS: Operation[] = [
     access: 'calc.use',
     tag: 'calculators',
     body: AbrasionInputSchema,
+  },
+  {
+    method: 'POST',
+    path: '/api/v1/calc/cure-verdict',
+    summary: 'Cure verdict of a profile against a cure window (the oven-load record’s code; at most 100 000 readings)',
+    access: 'calc.use',
+    tag: 'calculators',
+    body: CureVerdictInputSchema,
+    response: CureVerdictOutputSchema,
   },
 ];
 

@@ -335,6 +335,38 @@ export function cureRecord(input: CureRecordInput): CureRecord {
   };
 }
 
+/** Inputs of `POST /api/v1/calc/cure-verdict`: a profile (elapsed minutes, °C) and the cure window. */
+export interface CureVerdictInput {
+  readings: readonly { minutes: number; tempC: number }[];
+  window: CureWindow;
+}
+
+/** Output of `POST /api/v1/calc/cure-verdict` (product.md §6). */
+export interface CureVerdictResult {
+  verdict: CureVerdict;
+  reasons: string[];
+  equivalentMinutes: number;
+  minutesAtOrAbove: number;
+  peakC: number | null;
+}
+
+/**
+ * The cure-verdict calculator: the oven-load record's own {@link cureRecord} on a planned or
+ * exported profile, minute 0 as the load's start, no door events, the profile's ends as the
+ * load's ends. Linear in the number of readings (they arrive in time order).
+ */
+export function cureVerdict(input: CureVerdictInput): CureVerdictResult {
+  const readings: OvenReading[] = input.readings.map((r) => ({ tMs: r.minutes * 60000, tempC: r.tempC }));
+  const rec = cureRecord({ readings, window: input.window });
+  return {
+    verdict: rec.verdict,
+    reasons: rec.reasons,
+    equivalentMinutes: rec.equivalentMinutes,
+    minutesAtOrAbove: rec.minutesAtOrAboveMin,
+    peakC: rec.peakC,
+  };
+}
+
 function doorSummary(
   events: readonly DoorEvent[],
   recordEndMs: number,
