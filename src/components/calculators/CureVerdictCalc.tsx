@@ -82,6 +82,28 @@ export function parseProfile(text: string): ProfileParse {
   return { readings, problems };
 }
 
+/**
+ * A plan given as corner points → readings every `stepMinutes` along the straight lines between
+ * them (the corners kept), so that a plan is not judged as data gaps.
+ */
+export function fillPlan(corners: readonly { minutes: number; tempC: number }[], stepMinutes: number) {
+  const out: { minutes: number; tempC: number }[] = [];
+  corners.forEach((c, i) => {
+    const next = corners[i + 1];
+    out.push(c);
+    if (!next) return;
+    const span = next.minutes - c.minutes;
+    const n = Math.ceil(span / stepMinutes);
+    for (let k = 1; k < n; k++) {
+      const f = k / n;
+      out.push({ minutes: c.minutes + f * span, tempC: c.tempC + f * (next.tempC - c.tempC) });
+    }
+  });
+  return out;
+}
+
+const fmt = (v: number) => (v === 0 ? '0' : sig(v));
+
 function ProfileChart({
   readings,
   minTempC,
@@ -180,12 +202,14 @@ export function CureVerdictCalc() {
   const [problem, setProblem] = useState<string | null>(null);
   const [busy, setBusy] = useState(false);
   const [fileNote, setFileNote] = useState<string | null>(null);
+  const [isPlan, setIsPlan] = useState(true);
 
   async function importFile(e: ChangeEvent<HTMLInputElement>) {
     const file = e.target.files?.[0];
     if (!file) return;
     const text = await file.text();
     setProfile(text);
+    setIsPlan(false);
     setFileNote(`${file.name}: ${parseProfile(text).readings.length.toLocaleString('en-GB')} readings read.`);
   }
 
@@ -204,23 +228,28 @@ export function CureVerdictCalc() {
       setProblem('Some profile lines could not be read.');
       return;
     }
-    if (parsed.readings.length > CURE_VERDICT_MAX_READINGS) {
-      setResult(null);
-      setErrors({
-        readings: `at most ${CURE_VERDICT_MAX_READINGS.toLocaleString('en-GB')} readings (this profile has ${parsed.readings.length.toLocaleString('en-GB')})`,
-      });
-      setProblem('The profile is too long for the calculator.');
-      return;
-    }
     const window: Record<string, number> = {};
     for (const f of WINDOW_FIELDS) {
       const v = num(win[f.name]);
       if (v !== undefined) window[f.name] = v;
     }
+    const gapS = window['maxGapSeconds'];
+    const readings =
+      isPlan && gapS !== undefined && gapS > 0 && parsed.readings.every((r, i, a) => i === 0 || r.minutes >= a[i - 1]!.minutes)
+        ? fillPlan(parsed.readings, Math.min(0.5, gapS / 120))
+        : parsed.readings;
+    if (readings.length > CURE_VERDICT_MAX_READINGS) {
+      setResult(null);
+      setErrors({
+        readings: `at most ${CURE_VERDICT_MAX_READINGS.toLocaleString('en-GB')} readings (this profile has ${readings.length.toLocaleString('en-GB')})`,
+      });
+      setProblem('The profile is too long for the calculator.');
+      return;
+    }
     setBusy(true);
     try {
-      const r = await apiFetch<CureVerdictOutput>('/api/v1/calc/cure-verdict', { body: { readings: parsed.readings, window } });
-      setResult({ r, readings: parsed.readings });
+      const r = await apiFetch<CureVerdictOutput>('/api/v1/calc/cure-verdict', { body: { readings, window } });
+      setResult({ r, readings });
     } catch (err) {
       setResult(null);
       if (err instanceof ApiError) {
@@ -274,6 +303,11 @@ export function CureVerdictCalc() {
             </p>
           )}
           {err('readings', `${id}-profile`)}
+          <label className="mt-2 flex items-center gap-2 text-sm font-normal">
+            <input type="checkbox" checked={isPlan} onChange={(e) => setIsPlan(e.target.checked)} />
+            These are the corner points of a plan: fill in a reading every 30 s along the straight lines between them (leave
+            unticked for recorded readings, whose spacing is checked for data gaps)
+          </label>
           <label htmlFor={`${id}-file`} className="mt-2 block text-sm">
             Import a CSV file
           </label>
@@ -334,12 +368,12 @@ export function CureVerdictCalc() {
             <dl>
               <Out
                 label={`Equivalent minutes at ${win['referenceC']} °C`}
-                value={sig(result.r.equivalentMinutes)}
+                value={fmt(result.r.equivalentMinutes)}
                 unit="min"
                 strong
               />
-              <Out label={`Time at or above ${win['minTempC']} °C`} value={sig(result.r.minutesAtOrAbove)} unit="min" />
-              <Out label="Peak" value={result.r.peakC === null ? '—' : sig(result.r.peakC)} unit="°C" />
+              <Out label={`Time at or above ${win['minTempC']} °C`} value={fmt(result.r.minutesAtOrAbove)} unit="min" />
+              <Out label="Peak" value={result.r.peakC === null ? '—' : fmt(result.r.peakC)} unit="°C" />
             </dl>
             <ProfileChart readings={result.readings} minTempC={num(win['minTempC'])} maxPartTempC={num(win['maxPartTempC'])} />
           </div>
