@@ -84,7 +84,7 @@ export interface UniformityResult {
  * Uniformity survey: hottest = max(reading + correction) − setpoint, coldest =
  * min(reading + correction) − setpoint over readings from `stabilisedFromIndex`; class = the
  * smallest-tolerance row with |hottest| ≤ tol and |coldest| ≤ tol (inclusive).
- * Source: SAE AMS2750G furnace classes (template; configurable). Units °C.
+ * Source: SAE AMS2750F Table 11 furnace classes (template; configurable). Units °C.
  * @throws RangeError on no sensors, a sensor without stabilised readings, or non-finite values.
  */
 export function uniformitySurvey(input: UniformityInput): UniformityResult {
