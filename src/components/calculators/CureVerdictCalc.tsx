@@ -171,10 +171,10 @@ function ProfileChart({
           {y0} °C
         </text>
         <text x={pad.l} y={H - 6} fontSize="10" fill="currentColor">
-          {sig(x0, 3)} min
+          {fmt(x0)} min
         </text>
         <text x={W - pad.r} y={H - 6} textAnchor="end" fontSize="10" fill="currentColor">
-          {sig(x1, 4)} min
+          {fmt(x1)} min
         </text>
         {minTempC !== undefined && line(minTempC, `minimum ${minTempC} °C`, '4 3')}
         {maxPartTempC !== undefined && line(maxPartTempC, `maximum ${maxPartTempC} °C`, '1 3')}
