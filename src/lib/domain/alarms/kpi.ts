@@ -2,7 +2,9 @@
  * Alarm-system performance figures on an alarm log, compared with the benchmark values of
  * ANSI/ISA-18.2-2016 and IEC 62682:2014 (monitoring and assessment / alarm system performance
  * metrics). The benchmark values are common practice benchmarks quoted by the standard, not
- * requirements; the figures below are from memory and are configurable defaults.
+ * requirements; the figures below are from memory (they agree with public summaries of the
+ * standard but were not checked against its text) and are defaults: the flood thresholds are
+ * options of {@link floodPeriods}.
  *
  * Conventions used throughout:
  * - Each log entry is one annunciated alarm (one activation that reached the operator;
