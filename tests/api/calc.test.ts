@@ -24,7 +24,7 @@ function expectProblem(r: { status: number; headers: Headers; body: any }, statu
 }
 
 describe('POST /api/v1/calc/dip-thickness', () => {
-  it('Landau–Levich (1942) h = 0.94·ℓc·Ca^(2/3)', async () => {
+  it('continuous drag-out model (Landau–Levich limit at this Ca)', async () => {
     const r = await post('dip-thickness', {
       viscosityMPaS: 10,
       speedMmS: 2,
@@ -37,9 +37,10 @@ describe('POST /api/v1/calc/dip-thickness', () => {
     expect(r.body.capillaryNumber).toBeCloseTo(8.0e-4, 10);
     // hand-computed: ℓc = √(γ/(ρg)) = √(0.025/(950·9.80665)) = 1.63813 mm
     expect(r.body.capillaryLengthMm).toBeCloseTo(1.63813, 4);
-    // hand-computed: h = 0.94·1.63813e-3 m·(8e-4)^(2/3) = 13.2699 µm; dry = 0.3·h = 3.9810 µm (Brinker & Scherer ch. 13)
-    expect(r.body.wetThicknessUm).toBeCloseTo(13.2699, 3);
-    expect(r.body.dryThicknessUm).toBeCloseTo(3.981, 3);
+    // N/(1 − N²)^(2/3) = 0.94·Ca^(1/6), h = N·√(ηU/(ρg)) solved by bisection in Python: 12.6067 µm
+    // (pure Landau–Levich 0.94·ℓc·Ca^(2/3) = 13.2699 µm); dry = 0.3·h = 3.7820 µm (Brinker & Scherer ch. 13)
+    expect(r.body.wetThicknessUm).toBeCloseTo(12.6067, 3);
+    expect(r.body.dryThicknessUm).toBeCloseTo(3.782, 3);
     expect(r.body.regime).toBe('landau-levich');
   });
 
@@ -74,6 +75,17 @@ describe('POST /api/v1/calc/viscosity-cup', () => {
 
   it('an unknown cup → 400', async () => {
     expectProblem(await post('viscosity-cup', { cup: 'zahn-9', seconds: 30 }), 400, 'cup');
+  });
+  it('takes the lab’s own cup constants (A·t − B/t) in place of the table’s', async () => {
+    // hand-computed: 1.40·50 − 210/50 = 65.8 mm²/s
+    const r = await post('viscosity-cup', { cup: 'iso-4mm', seconds: 50, equation: { kind: 'a-b/t', a: 1.4, b: 210 } });
+    expect(r.status).toBe(200);
+    expect(r.body.kinematicMm2S).toBeCloseTo(65.8, 10);
+    expectProblem(
+      await post('viscosity-cup', { cup: 'iso-4mm', seconds: 50, equation: { kind: 'a-b/t', a: -1, b: 210 } }),
+      400,
+      'equation.a',
+    );
   });
 });
 

@@ -39,6 +39,7 @@ function c1074EquivalentAge(
   profile: { minutes: number; tempC: number }[],
   activationEnergyJMol: number,
   referenceC: number,
+  datumC = -273.15,
 ): number {
   const Q = activationEnergyJMol / 8.314462618;
   const Ts = referenceC + 273.15;
@@ -46,8 +47,15 @@ function c1074EquivalentAge(
   for (let i = 1; i < profile.length; i++) {
     const a = profile[i - 1]!;
     const b = profile[i]!;
-    const Ta = (a.tempC + b.tempC) / 2 + 273.15;
-    te += Math.exp(-Q * (1 / Ta - 1 / Ts)) * (b.minutes - a.minutes);
+    // Datum temperature (the window's minimum cure temperature): only the part of an interval at
+    // or above it counts, at the mean of its temperatures there (crossing interpolated linearly).
+    const hi = Math.max(a.tempC, b.tempC);
+    const lo = Math.min(a.tempC, b.tempC);
+    if (hi <= datumC && !(lo >= datumC)) continue;
+    const from = Math.max(lo, datumC);
+    const share = hi === lo ? 1 : (hi - from) / (hi - lo);
+    const Ta = (from + hi) / 2 + 273.15;
+    te += Math.exp(-Q * (1 / Ta - 1 / Ts)) * (b.minutes - a.minutes) * share;
   }
   return te;
 }
@@ -156,12 +164,13 @@ describe('cure record from stored readings', () => {
     expect(record.door.openingsDuringSoak).toBe(1);
     expect(record.gaps).toEqual([]);
     // ASTM C1074 equivalent-age form over the coldest zone, Ea 75 kJ/mol, T_s = 110 °C.
-    const te = c1074EquivalentAge(b.profile, 75_000, 110);
+    const te = c1074EquivalentAge(b.profile, 75_000, 110, 100);
     expect(record.equivalentMinutes).toBeCloseTo(te, 9);
-    // Hand-computed value of the same sum: 150 min at exactly 110 °C count 150, plus the ten
-    // 1-minute ramp intervals up (interval means 91, 93 … 109 °C) and ten down, each side
-    // Σ exp(−(75000/8.314462618)(1/T̄ − 1/383.15)) = 5.663268 → 161.32654 min.
-    expect(record.equivalentMinutes).toBeCloseTo(161.32653626, 6);
+    // Hand-computed value of the same sum: 150 min at exactly 110 °C count 150, plus the five
+    // 1-minute ramp intervals up at or above the 100 °C minimum (interval means 101, 103 … 109 °C;
+    // the ramp below 100 °C counts nothing) and five down, each side
+    // Σ exp(−(75000/8.314462618)(1/T̄ − 1/383.15)) = 3.716065 → 157.43213 min.
+    expect(record.equivalentMinutes).toBeCloseTo(157.43212941, 6);
     // One such factor by hand: the interval at 100 °C counts exp(−9020.4302·(1/373.15 − 1/383.15)) = 0.532102 of a minute.
     expect(
       c1074EquivalentAge(
@@ -186,10 +195,10 @@ describe('cure record from stored readings', () => {
     const b = await build(minuteDaysAgo(3.5), 60);
     const { id, record, verdict } = await runLoad(b);
     expect(verdict).toBe('under-cured');
-    // Hand-computed: 60 min at 110 °C + 2 × 5.663268 for the ramps = 71.32654 < 150.
-    expect(record.equivalentMinutes).toBeCloseTo(71.32653626, 6);
-    expect(record.equivalentMinutes).toBeCloseTo(c1074EquivalentAge(b.profile, 75_000, 110), 9);
-    expect(record.reasons[0]).toContain('71.3 equivalent minutes');
+    // Hand-computed: 60 min at 110 °C + 2 × 3.716065 for the ramps above 100 °C = 67.43213 < 150.
+    expect(record.equivalentMinutes).toBeCloseTo(67.43212941, 6);
+    expect(record.equivalentMinutes).toBeCloseTo(c1074EquivalentAge(b.profile, 75_000, 110, 100), 9);
+    expect(record.reasons[0]).toContain('67.4 equivalent minutes');
     const alarms = await cureAlarm(id);
     expect(alarms).toHaveLength(1);
     expect(alarms[0]).toMatchObject({ source_kind: 'cure', priority: 'high', state: 'unacked', load_id: id });
@@ -234,7 +243,7 @@ describe('cure record from stored readings', () => {
     // intervals 62…79 then run at 112 °C instead of 110 °C, and the two at the edges (61–62 and
     // 79–80) at a mean of 111 °C.
     const f = (c: number) => Math.exp(-(75_000 / 8.314462618) * (1 / (c + 273.15) - 1 / 383.15));
-    expect(record.equivalentMinutes).toBeCloseTo(161.32653626 + 17 * (f(112) - 1) + 2 * (f(111) - 1), 6);
+    expect(record.equivalentMinutes).toBeCloseTo(157.43212941 + 17 * (f(112) - 1) + 2 * (f(111) - 1), 6);
   });
 
   it('a load cannot be closed before it opened, nor twice; a second open load on the same oven is refused', async () => {

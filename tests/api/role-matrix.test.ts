@@ -156,10 +156,11 @@ const ROUTES: Record<string, Action | 'public'> = {
   'GET /api/v1/surveys/[id]': 'view',
   'GET /api/v1/surveys/settings': 'view',
   'PUT /api/v1/surveys/settings': 'plant.configure',
-  // AR coating calculators (issue 16)
+  // AR coating calculators
   'POST /api/v1/calc/stack-reflectance': 'calc.use',
   'POST /api/v1/calc/spectrum-colour': 'calc.use',
   'POST /api/v1/calc/colour-difference': 'calc.use',
+  'POST /api/v1/calc/cure-verdict': 'calc.use',
 };
 
 /**

@@ -42,7 +42,11 @@ export function DipThicknessCalc() {
             <Out label="Capillary length ℓc = √(γ/ρg)" value={sig(r.capillaryLengthMm)} unit="mm" />
             <Out
               label="Regime"
-              value={r.regime === 'landau-levich' ? 'Landau–Levich (Ca ≤ 10⁻²)' : 'gravity–viscous (outside Landau–Levich)'}
+              value={
+                r.regime === 'landau-levich'
+                  ? 'Landau–Levich range (Ca ≤ 10⁻²)'
+                  : 'drainage-limited (above the Landau–Levich range)'
+              }
             />
           </dl>
           <Warnings items={r.warnings} />
@@ -103,8 +107,8 @@ export function SpeedAdvisorCalc() {
                 r.model === 'calibrated'
                   ? 'the lab’s calibrated constant'
                   : r.model === 'landau-levich'
-                    ? 'Landau–Levich theory'
-                    : 'gravity–viscous estimate'
+                    ? 'drag-out model, Landau–Levich range'
+                    : 'drag-out model, drainage-limited range'
               }
             />
             {r.capillaryNumber !== undefined && <Out label="Capillary number at that speed" value={sig(r.capillaryNumber, 3)} />}
@@ -198,15 +202,41 @@ export function ViscosityCupCalc() {
         },
         { name: 'seconds', label: 'Efflux time', unit: 's', initial: '38' },
         { name: 'densityGCm3', label: 'Density (optional)', unit: 'g/cm³', hint: 'Gives the dynamic viscosity η = ν·ρ.' },
+        {
+          name: 'own1',
+          label: 'Your cup’s constants (optional): A, or k',
+          hint: 'From the cup’s calibration certificate: A and B of ν = A·t − B/t for ISO 2431 and DIN cups, k and c of ν = k(t − c) for the others. Recommended where the table’s constants are marked from memory.',
+        },
+        { name: 'own2', label: 'Your cup’s constants (optional): B, or c' },
       ]}
-      build={(v) => ({ cup: v['cup'], ...opt('seconds', num(v['seconds'])), ...opt('densityGCm3', num(v['densityGCm3'])) })}
+      build={(v) => {
+        const cup = v['cup'] ?? '';
+        const first = num(v['own1']);
+        const second = num(v['own2']);
+        const ab = cup.startsWith('iso-') || cup.startsWith('din-');
+        const equation =
+          first === undefined || second === undefined
+            ? undefined
+            : ab
+              ? { kind: 'a-b/t', a: first, b: second }
+              : { kind: 'linear', k: first, c: second };
+        return {
+          cup,
+          ...opt('seconds', num(v['seconds'])),
+          ...opt('densityGCm3', num(v['densityGCm3'])),
+          ...opt('equation', equation),
+        };
+      }}
       render={(r) =>
         r.inRange ? (
           <dl>
             <Out label="Kinematic viscosity ν" value={sig(r.kinematicMm2S ?? 0)} unit="mm²/s" strong />
             {r.dynamicMPaS !== undefined && <Out label="Dynamic viscosity η" value={sig(r.dynamicMPaS)} unit="mPa·s" />}
             <Out label="Cup window" value={`${r.validSeconds.min}–${r.validSeconds.max}`} unit="s" />
-            <Out label="Source" value={`${r.source}${r.provenance === 'from memory' ? ' (constants from memory)' : ''}`} />
+            <Out
+              label="Source"
+              value={`${r.source}${r.provenance === 'from memory' ? ' (constants from memory: enter your cup certificate’s constants to replace them)' : ''}`}
+            />
           </dl>
         ) : (
           <p role="alert" className="rounded border-l-4 border-alert-high bg-alert-bg p-2 font-bold">

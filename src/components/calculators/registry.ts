@@ -16,21 +16,26 @@ export const CALCULATORS: CalculatorInfo[] = [
     slug: 'dip-thickness',
     title: 'Dip-coat film thickness',
     summary:
-      'Wet and dry film thickness from viscosity and withdrawal speed (Landau–Levich), with the capillary number and regime.',
+      'Wet and dry film thickness from viscosity and withdrawal speed (Landau–Levich drag-out with its gravity-drainage limit, one continuous model), with the capillary number and regime.',
     endpoint: '/api/v1/calc/dip-thickness',
     sources: [
       'L. Landau & B. Levich, Acta Physicochimica URSS 17 (1942) 42–54',
+      'B. V. Derjaguin, Acta Physicochimica URSS 20 (1943) 349–352 (gravity–viscous limit)',
+      'D. A. White & J. A. Tallmadge, Chem. Eng. Sci. 20 (1965) 33–37; Spiers, Subbaraman & Wilkinson, Chem. Eng. Sci. 29 (1974) 389–396 (one equation for both regimes)',
       'C. J. Brinker & G. W. Scherer, Sol-Gel Science (1990), ch. 13',
     ],
     validity:
-      'Newtonian liquid, a lens the lacquer wets, steady withdrawal, and capillary number Ca = ηU/γ ≤ 10⁻² (a common-practice bound); above it the gravity–viscous estimate is shown with a warning. Dry thickness = wet × solids volume fraction ignores shrinkage beyond solvent loss.',
+      'Newtonian liquid, a lens the lacquer wets, steady withdrawal, and capillary number Ca = ηU/γ ≤ 10⁻² (a common-practice bound) for the Landau–Levich limit; above it the same model’s drainage-limited branch is shown with a warning. At hard-coat conditions (Ca 10⁻⁴–10⁻³) the model is 3–6 % below the pure Landau–Levich formula; a calibrated constant from the lab’s own films is the better guide. Dry thickness = wet × solids volume fraction ignores shrinkage beyond solvent loss.',
   },
   {
     slug: 'speed-advisor',
     title: 'Withdrawal-speed advisor',
     summary: 'The withdrawal speed that gives the target thickness at the bath’s current viscosity.',
     endpoint: '/api/v1/calc/speed-advisor',
-    sources: ['Landau & Levich 1942 (inverted)', 'Brinker & Scherer 1990, ch. 13'],
+    sources: [
+      'The dip-thickness model inverted by bisection (Landau & Levich 1942; Derjaguin 1943; White & Tallmadge 1965)',
+      'Brinker & Scherer 1990, ch. 13',
+    ],
     validity:
       'Inverts the same film law as the dip-thickness calculator; with a calibrated constant the lab’s own fit replaces the theory and holds only over the speeds and viscosities it was fitted on.',
   },
@@ -51,7 +56,7 @@ export const CALCULATORS: CalculatorInfo[] = [
     endpoint: '/api/v1/calc/viscosity-cup',
     sources: ['ASTM D4212 (Zahn, Shell)', 'ASTM D1200 (Ford)', 'ISO 2431', 'DIN 53211 (withdrawn)'],
     validity:
-      'Each cup only inside its valid efflux window; outside it the answer is “out of range — use another cup”, never an extrapolation. Some constants are marked “from memory” where they could not be checked against the standard’s text.',
+      'Each cup only inside its valid efflux window; outside it the answer is “out of range — use another cup”, never an extrapolation. The ISO 2431 and DIN constants are marked “from memory” (they could not be checked against the standards’ text): enter your cup certificate’s constants to replace them. The Zahn, Shell and Ford equations agree within 4 % with the drain times of certified viscosity standards.',
   },
   {
     slug: 'bath-addition',
@@ -71,6 +76,19 @@ export const CALCULATORS: CalculatorInfo[] = [
     sources: ['ASTM C1074 equivalent-age function (interval mean temperature)', 'Arrhenius law; R = 8.314462618 J/(mol·K)'],
     validity:
       'The activation energy must come from the lacquer maker or the lab’s validation; the sum assumes one rate-limiting reaction over the profile’s temperatures.',
+  },
+  {
+    slug: 'cure-verdict',
+    title: 'Cure verdict of a profile',
+    summary:
+      'Judge a planned or exported oven profile against a cure window before running it: the verdict an oven-load record would give (complete, under-cured, over-temperature, unverifiable), its reasons, equivalent minutes, time at or above the minimum and the peak.',
+    endpoint: '/api/v1/calc/cure-verdict',
+    sources: [
+      'ASTM C1074 equivalent-age function (interval mean temperature), counted only at or above the minimum cure temperature (the datum-temperature idea of the maturity method)',
+      'Arrhenius law; R = 8.314462618 J/(mol·K)',
+    ],
+    validity:
+      'The same code as the oven-load record, on the coldest thermocouple’s profile (minute 0 is the load’s start). The window comes from the lacquer maker’s data and the lab’s validation; the verdict is advisory, and a profile judged here still needs the oven’s own records. Ovens and racks are hot.',
   },
   {
     slug: 'activation-energy',
@@ -112,7 +130,7 @@ export const CALCULATORS: CalculatorInfo[] = [
     title: 'Oven uniformity survey',
     summary: 'Hottest and coldest deviation from setpoint over a multi-sensor survey and the uniformity class.',
     endpoint: '/api/v1/calc/uniformity',
-    sources: ['SAE AMS2750G furnace classes (used as a published template)'],
+    sources: ['SAE AMS2750F Table 11 furnace classes (used as a published template)'],
     validity:
       'Readings should cover the stabilised soak and carry each sensor’s calibration correction; the class table is a template, configurable per site.',
   },

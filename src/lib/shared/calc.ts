@@ -112,6 +112,13 @@ export const ViscosityCupInputSchema = z.object({
   cup: z.enum(CUP_ID_VALUES, { error: `cup must be one of ${CUP_ID_VALUES.join(', ')}` }),
   seconds: positive('seconds', 's', 3600),
   densityGCm3: positive('densityGCm3', 'g/cm³', 30).optional(),
+  /** The lab's own cup constants (calibration certificate): ν = k(t − c) or ν = A·t − B/t. */
+  equation: z
+    .discriminatedUnion('kind', [
+      z.object({ kind: z.literal('linear'), k: positive('equation.k', 'mm²/s²', 1e4), c: num('equation.c').min(-1e4).max(1e4) }),
+      z.object({ kind: z.literal('a-b/t'), a: positive('equation.a', 'mm²/s²', 1e4), b: num('equation.b').min(-1e6).max(1e6) }),
+    ])
+    .optional(),
 });
 /** Parsed viscosity-cup body. */
 export type ViscosityCupInput = z.infer<typeof ViscosityCupInputSchema>;
@@ -188,6 +195,67 @@ export const CureEquivalentOutputSchema = z.object({
 });
 /** Cure-equivalent answer. */
 export type CureEquivalentOutput = z.infer<typeof CureEquivalentOutputSchema>;
+
+/** Most readings the cure-verdict calculator takes: 100 000 (about 28 h at 1 s, 69 days at 1 min). */
+export const CURE_VERDICT_MAX_READINGS = 100_000;
+
+/** The cure window of `POST /api/v1/calc/cure-verdict` (°C, minutes, kJ/mol, °C/min, s). */
+export const CureVerdictWindowSchema = z
+  .object({
+    minTempC: celsius('window.minTempC'),
+    minEquivalentMinutes: num('window.minEquivalentMinutes')
+      .min(0, { error: 'window.minEquivalentMinutes must be at least 0 min' })
+      .max(100_000, { error: 'window.minEquivalentMinutes must be at most 100 000 min' }),
+    referenceC: celsius('window.referenceC'),
+    activationEnergyKJMol: positive('window.activationEnergyKJMol', 'kJ/mol', 500),
+    maxPartTempC: celsius('window.maxPartTempC'),
+    maxRampCPerMin: positive('window.maxRampCPerMin', '°C/min', 1000),
+    maxGapSeconds: positive('window.maxGapSeconds', 's', 86_400),
+    minSoakMinutes: num('window.minSoakMinutes')
+      .min(0, { error: 'window.minSoakMinutes must be at least 0 min' })
+      .max(100_000, { error: 'window.minSoakMinutes must be at most 100 000 min' })
+      .optional(),
+  })
+  .refine((w) => w.maxPartTempC > w.minTempC, {
+    error: 'window.maxPartTempC must be above window.minTempC',
+    path: ['maxPartTempC'],
+  });
+
+/**
+ * `POST /api/v1/calc/cure-verdict` body: readings (elapsed minutes non-decreasing, °C; 2 to
+ * 100 000 of them) and the cure window. Checked in one pass (linear).
+ */
+export const CureVerdictInputSchema = z
+  .object({
+    readings: z
+      .array(ProfilePointSchema)
+      .min(2, { error: 'a profile needs at least 2 readings' })
+      .max(CURE_VERDICT_MAX_READINGS, { error: `at most ${CURE_VERDICT_MAX_READINGS} readings` }),
+    window: CureVerdictWindowSchema,
+  })
+  .superRefine((v, ctx) => {
+    for (let i = 1; i < v.readings.length; i++) {
+      const prev = v.readings[i - 1];
+      const cur = v.readings[i];
+      if (prev && cur && cur.minutes < prev.minutes) {
+        ctx.addIssue({ code: 'custom', message: 'reading minutes must not decrease', path: ['readings', i, 'minutes'] });
+        return;
+      }
+    }
+  });
+/** Parsed cure-verdict body. */
+export type CureVerdictInput = z.infer<typeof CureVerdictInputSchema>;
+
+/** Cure-verdict answer (the oven-load record's verdict). */
+export const CureVerdictOutputSchema = z.object({
+  verdict: z.enum(['complete', 'under-cured', 'over-temperature', 'unverifiable']),
+  reasons: z.array(z.string()),
+  equivalentMinutes: z.number(),
+  minutesAtOrAbove: z.number(),
+  peakC: z.number().nullable(),
+});
+/** Cure-verdict answer. */
+export type CureVerdictOutput = z.infer<typeof CureVerdictOutputSchema>;
 
 const IsothermalScheduleSchema = z.object({
   minutes: positive('minutes', 'min', 100_000),

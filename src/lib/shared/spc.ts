@@ -338,6 +338,10 @@ export interface SpcCapability {
   cpm: number | null;
   cpInterval: SpcInterval | null;
   cpkInterval: SpcInterval | null;
+  /** Chan–Cheng–Spiring / Boyles χ² interval for Cpm (from the overall s; null without both limits). */
+  cpmInterval?: SpcInterval | null;
+  /** How σ_within was estimated and the (effective) degrees of freedom the Cp/Cpk intervals used. */
+  sigmaBasis?: { method: 'sample-sd' | 'rbar' | 'sbar' | 'mrbar' | 'given'; degreesOfFreedom: number };
   ppmWithin: SpcPpm | null;
   ppmOverall: SpcPpm | null;
   normality: SpcNormality | null;

@@ -291,12 +291,15 @@ describe('cureRecord', () => {
     expect(r.maxHeatUpCPerMin).toBeCloseTo(95 / 40, 6);
     expect(r.maxCoolDownCPerMin).toBeCloseTo(80 / 40, 6);
     expect(r.rampExceeded).toBe(false);
-    // The soak alone contributes 60 equivalent minutes at the 120 °C reference; ramps add some more.
+    // The soak alone contributes 60 equivalent minutes at the 120 °C reference; the ramps add
+    // only their part at or above the 110 °C minimum (datum temperature).
     expect(r.equivalentMinutes).toBeGreaterThan(60);
     expect(r.equivalentMinutes).toBeCloseTo(
       equivalentMinutes(
         sample(GOOD).map((x) => ({ minutes: (x.tMs - T0) / MIN, tempC: x.tempC as number })),
         WINDOW,
+        undefined,
+        WINDOW.minTempC,
       ),
       9,
     );

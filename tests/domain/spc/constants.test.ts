@@ -84,6 +84,9 @@ describe('control-chart constants from their definitions vs the published table 
     });
   });
 
+  it('d3(3) = √(2 + (3√3 − 9)/π) = 0.888368004 (review: exact from Var W = 2(Var X₍₃₎ − Cov(X₍₁₎, X₍₃₎)), E X₍₃₎² = 1 + √3/(2π))', () => {
+    expect(chartConstants(3).d3).toBeCloseTo(0.888368004, 9);
+  });
   it('closed forms for n = 2: d2 = 2/√π, d3 = √(2 − 4/π), c4 = √(2/π)', () => {
     const k = chartConstants(2);
     expect(k.d2).toBeCloseTo(2 / Math.sqrt(Math.PI), 9);

@@ -2,7 +2,9 @@
  * Alarm-system performance figures on an alarm log, compared with the benchmark values of
  * ANSI/ISA-18.2-2016 and IEC 62682:2014 (monitoring and assessment / alarm system performance
  * metrics). The benchmark values are common practice benchmarks quoted by the standard, not
- * requirements; the figures below are from memory and are configurable defaults.
+ * requirements; the figures below are from memory (they agree with public summaries of the
+ * standard but were not checked against its text) and are defaults: the flood thresholds are
+ * options of {@link floodPeriods}.
  *
  * Conventions used throughout:
  * - Each log entry is one annunciated alarm (one activation that reached the operator;
@@ -13,8 +15,9 @@
  *   `[a, a + 10 min)`, clipped to the analysis window. The busiest 10-minute window of any
  *   placement always starts at some alarm, so anchoring at each alarm finds the true peak
  *   (rather than fixed clock buckets, which can split a burst in two and under-count it).
- * - Rates are divided by the number of operator positions; flood, chattering and the peak
- *   count are on the log as supplied (pass one position's alarms for per-position figures).
+ * - Rates and the flood thresholds are per operator position: the log's counts are divided by
+ *   the number of positions (the alarms are taken as spread evenly over them); chattering and
+ *   the peak count are on the log as supplied.
  */
 import type { AlarmPriority } from '../../shared/alarms';
 
@@ -47,8 +50,8 @@ export interface KpiWindow {
  * Benchmark values of ANSI/ISA-18.2 (common practice benchmark per ISA-18.2; values from
  * memory, to be checked against the standard's performance-metrics table):
  * average annunciated alarms per operator position ≈ 150/day, 6/h, 1/10 min "very likely
- * acceptable"; ≈ 300/day, 12/h, 2/10 min "maximum manageable"; a flood is more than 10 alarms
- * in 10 minutes; time in flood below about 1 %; stale = active more than 24 h; chattering =
+ * acceptable"; ≈ 300/day, 12/h, 2/10 min "maximum manageable"; a flood starts at more than 10
+ * alarms in 10 minutes per operator and ends when the rate drops below 5 in 10 minutes; time in flood below about 1 %; stale = active more than 24 h; chattering =
  * 3 or more activations of one source within 60 s (chattering target: none); priority
  * distribution roughly 80 % low, 15 % medium, 5 % high.
  */
@@ -61,6 +64,8 @@ export const ISA_18_2_BENCHMARKS = {
   acceptablePerDay: 150,
   maxManageablePerDay: 300,
   floodMoreThan: 10,
+  /** A flood ends when the rate per position drops below 5 alarms in 10 minutes. */
+  floodEndsBelow: 5,
   floodWindowMs: TEN_MIN_MS,
   timeInFloodPercentBelow: 1,
   staleAfterMs: DAY_MS,
@@ -173,30 +178,65 @@ export function slidingCounts(times: readonly number[], widthMs: number, endMs =
   return counts;
 }
 
+/** Thresholds of {@link floodPeriods}; defaults are the ISA-18.2 values per operator position. */
+export interface FloodOptions {
+  /** Operator positions the alarms are spread over (integer ≥ 1); default 1. */
+  operatorPositions?: number;
+  /** A flood starts when the 10-minute count per position exceeds this; default 10. */
+  startMoreThan?: number;
+  /** A flood ends when the 10-minute count per position drops below this; default 5. */
+  endBelow?: number;
+  widthMs?: number;
+}
+
 /**
- * Flood periods: every alarm anchors a 10-minute window `[a, a + 10 min)` (clipped to
- * `toMs`); a window with more than 10 alarms is a flood window (ANSI/ISA-18.2 flood: more than
- * 10 alarms in 10 minutes per operator). Flood windows that overlap or touch are merged into
- * one period `[first window start, last window end)`, and its count is the number of alarms
- * activated in that period. `times` must be sorted ascending.
+ * Flood periods by the ANSI/ISA-18.2 definition: a flood starts when more than 10 alarms per
+ * operator position are annunciated within 10 minutes, and ends when the rate drops below 5 per
+ * position in 10 minutes. The rate at an instant t is the count in the trailing window
+ * `(t − 10 min, t]`, divided by the positions.
+ * - Start: the first alarm of the trailing window at the arrival that takes the count above
+ *   10·positions (the burst belongs to the flood).
+ * - End: the first instant after that at which the count falls below 5·positions (an alarm
+ *   leaving the window), clipped to `toMs`; a new flood that would start before the previous
+ *   one ended is merged into it.
+ * - Count: alarms activated in `[start, end)`.
+ * One sweep over arrivals and departures (`times` sorted ascending): O(n).
  */
-export function floodPeriods(
-  times: readonly number[],
-  toMs: number,
-  threshold: number = ISA_18_2_BENCHMARKS.floodMoreThan,
-  widthMs: number = ISA_18_2_BENCHMARKS.floodWindowMs,
-): FloodPeriod[] {
-  const counts = slidingCounts(times, widthMs, toMs);
-  const merged: { startMs: number; endMs: number }[] = [];
-  for (let i = 0; i < times.length; i++) {
-    if (counts[i]! <= threshold) continue;
-    const start = times[i]!;
-    const end = Math.min(start + widthMs, toMs);
-    const last = merged[merged.length - 1];
-    if (last && start <= last.endMs) last.endMs = Math.max(last.endMs, end);
-    else merged.push({ startMs: start, endMs: end });
+export function floodPeriods(times: readonly number[], toMs: number, options: FloodOptions = {}): FloodPeriod[] {
+  const positions = options.operatorPositions ?? 1;
+  const startAbove = (options.startMoreThan ?? ISA_18_2_BENCHMARKS.floodMoreThan) * positions;
+  const endBelow = (options.endBelow ?? ISA_18_2_BENCHMARKS.floodEndsBelow) * positions;
+  const widthMs = options.widthMs ?? ISA_18_2_BENCHMARKS.floodWindowMs;
+  const periods: { startMs: number; endMs: number }[] = [];
+  let arrived = 0;
+  let departed = 0;
+  let openStart: number | null = null;
+  while (arrived < times.length || departed < arrived) {
+    const nextArrival = arrived < times.length ? times[arrived]! : Number.POSITIVE_INFINITY;
+    const nextDeparture = departed < arrived ? times[departed]! + widthMs : Number.POSITIVE_INFINITY;
+    if (nextDeparture <= nextArrival) {
+      // (t − W, t]: an alarm at a leaves the window at exactly a + W, before any arrival at that instant.
+      if (nextDeparture >= toMs) break;
+      departed += 1;
+      if (openStart !== null && arrived - departed < endBelow) {
+        periods.push({ startMs: openStart, endMs: nextDeparture });
+        openStart = null;
+      }
+    } else {
+      if (nextArrival >= toMs) break;
+      arrived += 1;
+      if (openStart === null && arrived - departed > startAbove) {
+        const start = times[departed]!;
+        const last = periods[periods.length - 1];
+        if (last && start <= last.endMs) {
+          periods.pop();
+          openStart = last.startMs;
+        } else openStart = start;
+      }
+    }
   }
-  return merged.map((p) => ({ ...p, count: countIn(times, p.startMs, p.endMs) }));
+  if (openStart !== null) periods.push({ startMs: openStart, endMs: toMs });
+  return periods.map((p) => ({ ...p, count: countIn(times, p.startMs, p.endMs) }));
 }
 
 /**
@@ -205,7 +245,7 @@ export function floodPeriods(
  * - average annunciated alarms per operator position per 10 min, per hour and per day
  *   (`total / positions / (duration / period)`), with the benchmark band;
  * - peak count in any 10-minute sliding window (anchored at each alarm);
- * - flood periods (see {@link floodPeriods}) and time in flood as % of the window;
+ * - flood periods per operator position (see {@link floodPeriods}) and time in flood as % of the window;
  * - stale alarms: not cleared at `toMs` (no `clearedAtMs`, or one after `toMs`) and active
  *   for more than 24 h (`toMs − activatedAtMs > 24 h`); alarms raised before `fromMs` count;
  * - chattering sources: 3 or more activations in some `[a, a + 60 s)`;
@@ -241,7 +281,7 @@ export function alarmKpis(log: readonly AlarmLogEntry[], window: KpiWindow): Ala
   }
 
   // Floods
-  const periods = floodPeriods(times, toMs);
+  const periods = floodPeriods(times, toMs, { operatorPositions });
   const timeInFloodMs = periods.reduce((s, p) => s + (p.endMs - p.startMs), 0);
 
   // Stale
@@ -315,9 +355,19 @@ export function alarmKpis(log: readonly AlarmLogEntry[], window: KpiWindow): Ala
 }
 
 function countIn(sorted: readonly number[], startMs: number, endMs: number): number {
-  let n = 0;
-  for (const t of sorted) if (t >= startMs && t < endMs) n++;
-  return n;
+  return lowerBound(sorted, endMs) - lowerBound(sorted, startMs);
+}
+
+/** First index whose value is ≥ x (binary search on an ascending list). */
+function lowerBound(sorted: readonly number[], x: number): number {
+  let lo = 0;
+  let hi = sorted.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >>> 1;
+    if (sorted[mid]! < x) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
 }
 
 function cmp(a: string, b: string): number {

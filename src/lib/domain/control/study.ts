@@ -14,7 +14,7 @@
  */
 import { capabilityStudy } from '../spc/capability.ts';
 import { sampleSd } from '../spc/math.ts';
-import { evaluateAgainstLimitSet, evaluateSpc, limitSetFromEvaluation } from '../spc/evaluate.ts';
+import { evaluateAgainstLimitSet, evaluateSpc, limitSetFromEvaluation, sigmaBasisOf } from '../spc/evaluate.ts';
 import { suggestExclusions } from '../spc/phase1.ts';
 import {
   estimateShewhartLimits,
@@ -174,7 +174,10 @@ export function runStudy(
   let capability: SpcCapability | null = null;
   if (spec) {
     const observations = included.flatMap((i) => [...(subgroups[i] ?? [])]);
-    capability = capabilityStudy(observations, est.sigma, spec, { series: included.map((i) => stats[i]!.value) });
+    capability = capabilityStudy(observations, est.sigma, spec, {
+      series: included.map((i) => stats[i]!.value),
+      sigmaBasis: sigmaBasisOf(underlying, included.length, n, false, observations.length),
+    });
   }
   const notes: string[] = [...extraNotes];
   if (included.length < STUDY_RECOMMENDED_POINTS) {

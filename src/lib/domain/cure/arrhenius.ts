@@ -69,16 +69,26 @@ export function arrheniusFactor(tempC: number, params: ArrheniusParams): number 
  * t_eq = Σ Δt_i·exp(−(Ea/R)·(1/T̄_i − 1/T_ref)), T̄_i = mean of the interval's two endpoint
  * temperatures (in K), Δt in minutes, Ea in J/mol (input kJ/mol), R = 8.314462618 J/(mol·K).
  * Source: ASTM C1074 equivalent age (the average temperature over each interval).
+ *
+ * With a datum temperature (the idea of the maturity method's datum temperature T₀ below which
+ * no curing is counted, ASTM C1074 §3 / the Nurse–Saul function), nothing accrues below the
+ * datum: an interval wholly below counts 0; one that crosses it counts only its part at or above
+ * the datum (linear interpolation of the crossing), at the mean of the datum and its upper end.
+ * The cure record passes the window's minimum cure temperature as the datum: a lacquer's
+ * minimum temperature (deblocking, Tg) is a requirement Arrhenius cannot trade away.
  * @param include optional filter: only intervals for which it returns true are counted (the
  *   cure record uses it to leave data gaps out).
+ * @param datumC optional datum temperature, °C (none: every interval counts).
  */
 export function equivalentMinutes(
   profile: readonly ProfilePoint[],
   params: ArrheniusParams,
   include?: (index: number, a: ProfilePoint, b: ProfilePoint) => boolean,
+  datumC?: number,
 ): number {
   checkProfile(profile);
   checkParams(params);
+  if (datumC !== undefined && !Number.isFinite(datumC)) throw new RangeError('datumC must be finite');
   let sum = 0;
   for (let i = 1; i < profile.length; i++) {
     const a = profile[i - 1] as ProfilePoint;
@@ -86,7 +96,15 @@ export function equivalentMinutes(
     if (include && !include(i - 1, a, b)) continue;
     const dt = b.minutes - a.minutes;
     if (dt === 0) continue;
-    sum += dt * arrheniusFactor((a.tempC + b.tempC) / 2, params);
+    if (datumC === undefined || (a.tempC >= datumC && b.tempC >= datumC)) {
+      sum += dt * arrheniusFactor((a.tempC + b.tempC) / 2, params);
+      continue;
+    }
+    const hi = Math.max(a.tempC, b.tempC);
+    const lo = Math.min(a.tempC, b.tempC);
+    if (hi <= datumC) continue;
+    const above = ((hi - datumC) / (hi - lo)) * dt;
+    sum += above * arrheniusFactor((datumC + hi) / 2, params);
   }
   return sum;
 }

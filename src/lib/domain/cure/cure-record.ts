@@ -43,7 +43,24 @@ export interface CureWindow {
   maxRampCPerMin: number;
   /** A spacing between readings longer than this is a data gap, s. */
   maxGapSeconds: number;
+  /**
+   * Minutes the part must spend at or above minTempC, whatever the equivalent minutes say
+   * (optional; without it only "never reached the minimum" and the equivalent minutes apply).
+   */
+  minSoakMinutes?: number | undefined;
 }
+
+/**
+ * The verdict rule in plain words, for the cure record page, the calculator and the README.
+ * Keep in step with {@link cureRecord}.
+ */
+export const CURE_VERDICT_RULE: readonly string[] = [
+  'Equivalent minutes accrue only while the coldest thermocouple is at or above the window’s minimum cure temperature (the datum-temperature idea of the maturity method); time below it counts nothing, however long.',
+  'Unverifiable: data are missing during the soak, or the minimum is never seen while data are missing.',
+  'Over-temperature: the hottest thermocouple went above the maximum part temperature.',
+  'Under-cured: the coldest thermocouple never reached the minimum cure temperature, or spent less than the window’s soak minutes at or above it, or the equivalent minutes fall short of the window’s minimum.',
+  'Complete: none of the above. Ramp-rate excursions and door openings are reported beside the verdict; they do not change it.',
+];
 
 /** Inputs of the cure record. */
 export interface CureRecordInput {
@@ -89,7 +106,7 @@ export interface CureRecord {
   maxCoolDownCPerMin: number | null;
   /** True when either ramp rate exceeds the window's maxRampCPerMin. */
   rampExceeded: boolean;
-  /** Arrhenius equivalent minutes of the coldest thermocouple at referenceC (gaps excluded). */
+  /** Arrhenius equivalent minutes of the coldest thermocouple at referenceC, accrued only at or above minTempC (gaps excluded). */
   equivalentMinutes: number;
   gaps: DataGap[];
   /** Soak span: first to last instant the coldest thermocouple is at/above minTempC. */
@@ -135,9 +152,13 @@ function fmtMin(ms: number, t0: number): string {
  * - Time at or above minTempC: linear interpolation of crossings, gaps excluded.
  * - Ramp rates: (T̄(t+span) − T̄(t))/span over the zone mean, spans that cross a gap skipped.
  * - Data gaps: reading spacing > maxGapSeconds (and missing data at the load's start/end).
- * - Verdict, first that applies: 'unverifiable' if any gap overlaps the soak (or no soak is
- *   seen while data is missing); 'over-temperature' if peak > maxPartTempC; 'under-cured' if
- *   equivalent minutes < minEquivalentMinutes; else 'complete'.
+ *   Equivalent minutes accrue only at or above minTempC (datum temperature; see
+ *   `equivalentMinutes` in arrhenius.ts).
+ * - Verdict, first that applies ({@link CURE_VERDICT_RULE}): 'unverifiable' if any gap overlaps
+ *   the soak (or no soak is seen while data is missing); 'over-temperature' if peak >
+ *   maxPartTempC; 'under-cured' if the coldest thermocouple never reaches minTempC, spends less
+ *   than minSoakMinutes at or above it, or equivalent minutes < minEquivalentMinutes; else
+ *   'complete'.
  * Units: epoch ms, °C, minutes, seconds as named.
  */
 export function cureRecord(input: CureRecordInput): CureRecord {
@@ -198,6 +219,7 @@ export function cureRecord(input: CureRecordInput): CureRecord {
     coldProfile,
     { activationEnergyKJMol: w.activationEnergyKJMol, referenceC: w.referenceC },
     notGap,
+    w.minTempC,
   );
   const minutesAtOrAboveMin = minutesAtOrAboveOf(coldProfile, w.minTempC, notGap);
 
@@ -260,18 +282,33 @@ export function cureRecord(input: CureRecordInput): CureRecord {
     reasons.push(
       `Peak ${peak.hot.toFixed(1)} °C at ${fmtMin(peak.tMs, t0)} is above the ${w.maxPartTempC} °C limit for the parts.`,
     );
-  } else if (equivalentMinutes < w.minEquivalentMinutes) {
+  } else if (
+    !soak ||
+    (w.minSoakMinutes !== undefined && minutesAtOrAboveMin < w.minSoakMinutes) ||
+    equivalentMinutes < w.minEquivalentMinutes
+  ) {
     verdict = 'under-cured';
-    reasons.push(
-      `The load got ${equivalentMinutes.toFixed(1)} equivalent minutes at ${w.referenceC} °C; the recipe needs ${w.minEquivalentMinutes}.`,
-    );
+    if (!soak) {
+      reasons.push(
+        `The coldest thermocouple never reached the minimum ${w.minTempC} °C: under-cured, however long the load stayed below it (equivalent minutes count only at or above the minimum).`,
+      );
+    } else if (w.minSoakMinutes !== undefined && minutesAtOrAboveMin < w.minSoakMinutes) {
+      reasons.push(
+        `The coldest thermocouple spent ${minutesAtOrAboveMin.toFixed(1)} min at or above ${w.minTempC} °C; the recipe needs ${w.minSoakMinutes}.`,
+      );
+    }
+    if (equivalentMinutes < w.minEquivalentMinutes) {
+      reasons.push(
+        `The load got ${equivalentMinutes.toFixed(1)} equivalent minutes at ${w.referenceC} °C (counted only at or above ${w.minTempC} °C); the recipe needs ${w.minEquivalentMinutes}.`,
+      );
+    }
   } else {
     verdict = 'complete';
     reasons.push(
-      `${equivalentMinutes.toFixed(1)} equivalent minutes at ${w.referenceC} °C (needed ${w.minEquivalentMinutes}), peak ${peak.hot.toFixed(1)} °C within ${w.maxPartTempC} °C, no data missing during the soak.`,
+      `${equivalentMinutes.toFixed(1)} equivalent minutes at ${w.referenceC} °C (needed ${w.minEquivalentMinutes}, counted only at or above ${w.minTempC} °C), ${minutesAtOrAboveMin.toFixed(1)} min at or above ${w.minTempC} °C, peak ${peak.hot.toFixed(1)} °C within ${w.maxPartTempC} °C, no data missing during the soak.`,
     );
   }
-  if (!soak) reasons.push(`The coldest thermocouple never reached the minimum ${w.minTempC} °C.`);
+  if (!soak && verdict !== 'under-cured') reasons.push(`The coldest thermocouple never reached the minimum ${w.minTempC} °C.`);
   if (verdict !== 'unverifiable' && gaps.length > 0) {
     reasons.push(`${gaps.length} data gap(s) outside the soak; they do not count toward equivalent minutes.`);
   }
@@ -295,6 +332,38 @@ export function cureRecord(input: CureRecordInput): CureRecord {
     door: { ...door, openingsDuringSoak },
     verdict,
     reasons,
+  };
+}
+
+/** Inputs of `POST /api/v1/calc/cure-verdict`: a profile (elapsed minutes, °C) and the cure window. */
+export interface CureVerdictInput {
+  readings: readonly { minutes: number; tempC: number }[];
+  window: CureWindow;
+}
+
+/** Output of `POST /api/v1/calc/cure-verdict` (product.md §6). */
+export interface CureVerdictResult {
+  verdict: CureVerdict;
+  reasons: string[];
+  equivalentMinutes: number;
+  minutesAtOrAbove: number;
+  peakC: number | null;
+}
+
+/**
+ * The cure-verdict calculator: the oven-load record's own {@link cureRecord} on a planned or
+ * exported profile, minute 0 as the load's start, no door events, the profile's ends as the
+ * load's ends. Linear in the number of readings (they arrive in time order).
+ */
+export function cureVerdict(input: CureVerdictInput): CureVerdictResult {
+  const readings: OvenReading[] = input.readings.map((r) => ({ tMs: r.minutes * 60000, tempC: r.tempC }));
+  const rec = cureRecord({ readings, window: input.window });
+  return {
+    verdict: rec.verdict,
+    reasons: rec.reasons,
+    equivalentMinutes: rec.equivalentMinutes,
+    minutesAtOrAbove: rec.minutesAtOrAboveMin,
+    peakC: rec.peakC,
   };
 }
 

@@ -3,8 +3,19 @@
  * calibration of the thickness constant from measured films.
  *
  * Sources: L. Landau & B. Levich, "Dragging of a liquid by a moving plate", Acta
- * Physicochimica URSS 17 (1942) 42–54; C. J. Brinker & G. W. Scherer, *Sol-Gel Science*
- * (Academic Press, 1990), ch. 13 (film formation by dip coating).
+ * Physicochimica URSS 17 (1942) 42–54; B. V. Derjaguin, Acta Physicochimica URSS 20 (1943)
+ * 349–352 (the gravity–viscous limit h = √(ηU/(ρg))); D. A. White & J. A. Tallmadge, Chem. Eng.
+ * Sci. 20 (1965) 33–37 and R. P. Spiers, C. V. Subbaraman & W. L. Wilkinson, Chem. Eng. Sci. 29
+ * (1974) 389–396 (one equation across both regimes, in the form N/(1 − N²)^(2/3) = 0.944·Ca^(1/6),
+ * N = h·√(ρg/(ηU)), as W. M. Deen, *Analysis of Transport Phenomena*, quotes it);
+ * C. J. Brinker & G. W. Scherer, *Sol-Gel Science* (Academic Press, 1990), ch. 13.
+ *
+ * One continuous model (the Landau–Levich–Derjaguin drag-out with its drainage limit):
+ *   N/(1 − N²)^(2/3) = 0.94·Ca^(1/6),  h = N·√(ηU/(ρg)),  Ca = ηU/γ.
+ * As Ca → 0, N → 0.94·Ca^(1/6) and h → 0.94·ℓc·Ca^(2/3) (Landau–Levich); as Ca → ∞, N → 1 and
+ * h → √(ηU/(ρg)) (Derjaguin). The prefactor is Landau–Levich's 0.94 (0.944 in the quoted
+ * form), so the low-Ca limit is exactly the Landau–Levich formula. h rises smoothly and strictly
+ * with U and η; the speed advisor inverts this same function, so the two always agree.
  *
  * The model is an estimate inside its stated validity (Newtonian liquid, wetting substrate,
  * steady withdrawal, Ca ≪ 1). The lacquer maker's data and the lab's own calibration govern.
@@ -27,12 +38,36 @@ export const LANDAU_LEVICH_PREFACTOR = 0.94;
 export const LANDAU_LEVICH_MAX_CAPILLARY = 1e-2;
 
 /**
- * Prefactor of the gravity–viscous drainage form h ≈ 0.8·√(ηU/(ρg)) used above the
- * Landau–Levich bound (Brinker & Scherer 1990, ch. 13).
+ * Limit of h/√(ηU/(ρg)) as Ca → ∞ in the continuous model: 1 (Derjaguin 1943). Brinker &
+ * Scherer's working value 0.8 is what the model gives near Ca ≈ 1–10.
  */
-export const GRAVITY_VISCOUS_PREFACTOR = 0.8;
+export const GRAVITY_DRAINAGE_LIMIT = 1;
 
-/** Film-formation regime: where the Landau–Levich form holds, or the high-Ca drainage form. */
+/**
+ * N of the continuous model: the root in [0, 1) of N/(1 − N²)^(2/3) = 0.94·Ca^(1/6), i.e. of
+ * g(N) = N − c·(1 − N²)^(2/3) (strictly increasing, g(0) = −c, g(1) = 1), by bisection to
+ * machine precision. Dimensionless.
+ */
+export function drainageNumber(capillary: number): number {
+  if (!(capillary > 0) || !Number.isFinite(capillary)) throw new RangeError('capillary number must be finite and > 0');
+  const c = LANDAU_LEVICH_PREFACTOR * Math.pow(capillary, 1 / 6);
+  let lo = 0;
+  let hi = Math.min(1, c);
+  for (let i = 0; i < 200 && hi - lo > 1e-16 * hi; i++) {
+    const mid = (lo + hi) / 2;
+    if (mid - c * Math.pow(1 - mid * mid, 2 / 3) < 0) lo = mid;
+    else hi = mid;
+  }
+  return (lo + hi) / 2;
+}
+
+/** Wet thickness of the continuous model in metres from SI inputs (Pa·s, m/s, N/m, kg/m³). */
+function wetThicknessM(etaPaS: number, uMs: number, gammaNm: number, rho: number): number {
+  const ca = (etaPaS * uMs) / gammaNm;
+  return drainageNumber(ca) * Math.sqrt((etaPaS * uMs) / (rho * STANDARD_GRAVITY_M_S2));
+}
+
+/** Film-formation regime: Ca ≤ 10⁻² (the Landau–Levich limit holds) or above (drainage-limited branch). */
 export type DipRegime = 'landau-levich' | 'gravity-viscous';
 
 /** Inputs of the dip-thickness calculation, in the API's units. */
@@ -59,7 +94,7 @@ export interface DipThicknessResult {
   capillaryNumber: number;
   /** Capillary length ℓc = √(γ/(ρg)), mm. */
   capillaryLengthMm: number;
-  /** Which form was used: Landau–Levich when Ca ≤ 10⁻², otherwise gravity–viscous. */
+  /** 'landau-levich' when Ca ≤ 10⁻² (the Landau–Levich limit holds), otherwise 'gravity-viscous' (same model, drainage-limited). */
   regime: DipRegime;
   /** Plain-words cautions (e.g. outside the Landau–Levich range). */
   warnings: string[];
@@ -107,10 +142,11 @@ export function capillaryLengthMm(surfaceTensionMNm: number, densityKgM3: number
  * Wet (and dry) film thickness for dip coating — the `POST /api/v1/calc/dip-thickness`
  * calculation.
  *
- * - Landau–Levich (1942): h = 0.94·(ηU)^(2/3) / (γ^(1/6)·(ρg)^(1/2)) = 0.94·ℓc·Ca^(2/3),
- *   used when Ca = ηU/γ ≤ 10⁻² (the bound is common practice).
- * - Above the bound: gravity–viscous drainage h ≈ 0.8·√(ηU/(ρg)) (Brinker & Scherer 1990,
- *   ch. 13), with a warning.
+ * - One continuous model (module note): N/(1 − N²)^(2/3) = 0.94·Ca^(1/6), h = N·√(ηU/(ρg));
+ *   it is the Landau–Levich form 0.94·ℓc·Ca^(2/3) as Ca → 0 and Derjaguin's √(ηU/(ρg)) as
+ *   Ca → ∞, with no jump anywhere.
+ * - The regime says whether the Landau–Levich limit holds (Ca ≤ 10⁻², common practice); above
+ *   it a warning says that gravity drainage shapes the film.
  * - Dry thickness ≈ wet × volume fraction of solids (Brinker & Scherer 1990, ch. 13).
  *
  * Units: η mPa·s, U mm/s, γ mN/m, ρ kg/m³ in; thickness µm, ℓc mm out.
@@ -123,20 +159,14 @@ export function dipThickness(input: DipThicknessInput): DipThicknessResult {
   const ca = capillaryNumber(viscosityMPaS, speedMmS, surfaceTensionMNm);
   const lcMm = capillaryLengthMm(surfaceTensionMNm, densityKgM3);
   const warnings: string[] = [];
-  let regime: DipRegime;
-  let wetM: number;
-  if (ca <= LANDAU_LEVICH_MAX_CAPILLARY) {
-    regime = 'landau-levich';
-    wetM = LANDAU_LEVICH_PREFACTOR * (lcMm * 1e-3) * Math.pow(ca, 2 / 3);
-  } else {
-    regime = 'gravity-viscous';
-    const etaU = viscosityMPaS * 1e-3 * (speedMmS * 1e-3);
-    wetM = GRAVITY_VISCOUS_PREFACTOR * Math.sqrt(etaU / (densityKgM3 * STANDARD_GRAVITY_M_S2));
+  const regime: DipRegime = ca <= LANDAU_LEVICH_MAX_CAPILLARY ? 'landau-levich' : 'gravity-viscous';
+  if (regime === 'gravity-viscous') {
     warnings.push(
-      `Capillary number ${ca.toPrecision(3)} is above 1e-2: Landau–Levich does not hold; ` +
-        'the gravity–viscous estimate h ≈ 0.8·√(ηU/(ρg)) is shown instead.',
+      `Capillary number ${ca.toPrecision(3)} is above 1e-2: the Landau–Levich limit no longer holds and gravity drainage ` +
+        'shapes the film; the thickness comes from the continuous drag-out model (tending to √(ηU/(ρg)) at high Ca).',
     );
   }
+  const wetM = wetThicknessM(viscosityMPaS * 1e-3, speedMmS * 1e-3, surfaceTensionMNm * 1e-3, densityKgM3);
   const wetThicknessUm = wetM * 1e6;
   const result: DipThicknessResult = {
     wetThicknessUm,
@@ -156,7 +186,9 @@ export function dipThickness(input: DipThicknessInput): DipThicknessResult {
  * calibration units µm / (mPa·s · mm/s)^(2/3):
  * C = 0.94 / (γ^(1/6)·(ρg)^(1/2)) in SI, × 100 for the unit change
  * (h µm = 10⁶ h m; (ηU)^(2/3) SI = 10⁻⁴·(ηU)^(2/3) in mPa·s·mm/s).
- * Useful to compare a calibrated constant with theory. Source: Landau & Levich 1942.
+ * This is the low-Ca limit of the continuous model (at Ca 10⁻⁴–10⁻³ the model gives 3–6 %
+ * less, from drainage). Useful to compare a calibrated constant with theory. Source: Landau &
+ * Levich 1942.
  */
 export function theoreticalThicknessConstant(surfaceTensionMNm: number, densityKgM3: number): number {
   requirePositive('surfaceTensionMNm', surfaceTensionMNm);
@@ -205,11 +237,11 @@ export interface SpeedAdvice {
  * by inverting the film-thickness law.
  *
  * - Calibrated: h = C·(ηU)^(2/3) ⇒ U = (h/C)^(3/2) / η (h µm, η mPa·s, U mm/s).
- * - Theory: Landau–Levich h = 0.94·ℓc·Ca^(2/3) ⇒ Ca = (h/(0.94·ℓc))^(3/2), U = Ca·γ/η; if
- *   that Ca exceeds 10⁻² (common-practice bound) the gravity–viscous form
- *   h = 0.8·√(ηU/(ρg)) ⇒ U = (h/0.8)²·ρg/η is used, with a warning.
+ * - Theory: the continuous model of {@link dipThickness} inverted by bisection on ln U (h is
+ *   strictly increasing in U), so the advised speed always gives the target in the forward model;
+ *   a warning when the speed lies above Ca = 10⁻².
  * - A dry target becomes a wet target h_wet = h_dry/φ (theory only).
- * Sources: Landau & Levich 1942; Brinker & Scherer 1990, ch. 13.
+ * Sources: Landau & Levich 1942; Derjaguin 1943; White & Tallmadge 1965; Brinker & Scherer 1990.
  * @throws RangeError when the target is missing/ambiguous or a needed property is absent.
  */
 export function withdrawalSpeedForThickness(input: SpeedAdvisorInput): SpeedAdvice {
@@ -240,6 +272,8 @@ export function withdrawalSpeedForThickness(input: SpeedAdvisorInput): SpeedAdvi
   if (surfaceTensionMNm === undefined || densityKgM3 === undefined) {
     throw new RangeError('surfaceTensionMNm and densityKgM3 are needed without a calibrated thicknessConstant');
   }
+  requirePositive('surfaceTensionMNm', surfaceTensionMNm);
+  requirePositive('densityKgM3', densityKgM3);
   let wetUm: number;
   if (hasDry) {
     requirePositive('targetDryThicknessUm', targetDryThicknessUm as number);
@@ -252,24 +286,27 @@ export function withdrawalSpeedForThickness(input: SpeedAdvisorInput): SpeedAdvi
     requirePositive('targetWetThicknessUm', targetWetThicknessUm as number);
     wetUm = targetWetThicknessUm as number;
   }
-  const lcM = capillaryLengthMm(surfaceTensionMNm, densityKgM3) * 1e-3;
-  const hM = wetUm * 1e-6;
-  const ca = Math.pow(hM / (LANDAU_LEVICH_PREFACTOR * lcM), 1.5);
-  if (ca <= LANDAU_LEVICH_MAX_CAPILLARY) {
-    const speedMmS = ((ca * surfaceTensionMNm * 1e-3) / (viscosityMPaS * 1e-3)) * 1e3;
-    return { speedMmS, model: 'landau-levich', capillaryNumber: ca, warnings };
+  const eta = viscosityMPaS * 1e-3;
+  const gamma = surfaceTensionMNm * 1e-3;
+  const target = wetUm * 1e-6;
+  const h = (lnU: number): number => wetThicknessM(eta, Math.exp(lnU), gamma, densityKgM3);
+  // Bracket in ln(U m/s), then bisect: h(U) is continuous and strictly increasing.
+  let lo = Math.log(1e-15);
+  let hi = Math.log(1e3);
+  while (h(lo) > target && lo > -700) lo -= 10;
+  while (h(hi) < target && hi < 700) hi += 10;
+  for (let i = 0; i < 300 && hi - lo > 1e-15; i++) {
+    const mid = (lo + hi) / 2;
+    if (h(mid) < target) lo = mid;
+    else hi = mid;
   }
-  const speedMs = (Math.pow(hM / GRAVITY_VISCOUS_PREFACTOR, 2) * densityKgM3 * STANDARD_GRAVITY_M_S2) / (viscosityMPaS * 1e-3);
-  const speedMmS = speedMs * 1e3;
+  const speedMmS = Math.exp((lo + hi) / 2) * 1e3;
+  const ca = capillaryNumber(viscosityMPaS, speedMmS, surfaceTensionMNm);
+  if (ca <= LANDAU_LEVICH_MAX_CAPILLARY) return { speedMmS, model: 'landau-levich', capillaryNumber: ca, warnings };
   warnings.push(
-    'The target needs Ca above 1e-2: Landau–Levich does not hold; the speed comes from the gravity–viscous estimate.',
+    'The target needs Ca above 1e-2: the Landau–Levich limit does not hold there; the speed comes from the same continuous drag-out model, where gravity drainage shapes the film.',
   );
-  return {
-    speedMmS,
-    model: 'gravity-viscous',
-    capillaryNumber: capillaryNumber(viscosityMPaS, speedMmS, surfaceTensionMNm),
-    warnings,
-  };
+  return { speedMmS, model: 'gravity-viscous', capillaryNumber: ca, warnings };
 }
 
 /** One calibration measurement: the withdrawal conditions and the measured thickness. */

@@ -2,9 +2,12 @@
  * Oven temperature-uniformity survey: hottest and coldest (corrected) reading minus setpoint
  * over the stabilised soak, and the uniformity class from a configurable class table.
  *
- * The default table is the furnace-class table of SAE AMS2750 revision G (Pyrometry), used here
- * as a published template for a lens-lab cure oven: class 1 ±3 °C, 2 ±6, 3 ±8, 4 ±10, 5 ±14,
- * 6 ±28. Revision F differs in class 2 (±5 °C) and class 3 (±7 °C).
+ * The default table is the furnace-class table of SAE AMS2750 (Pyrometry), revision F, Table 11
+ * ("Furnace class uniformity tolerances"), used here as a published template for a lens-lab cure
+ * oven: class 1 ±3.0 °C, 2 ±6.0, 3 ±8.0, 4 ±10.0, 5 ±14.0, 6 ±28.0 (±5, 10, 15, 20, 25, 50 °F).
+ * A note to that table says some design authorities require ±5.0 °C for class 2 and ±7.0 °C for
+ * class 3: {@link AMS2750_TIGHTER_C_CLASSES}. (Checked against public summaries of Table 11; the
+ * purchased standard governs.)
  */
 
 /** One row of a uniformity class table: the class and its ±tolerance in °C. */
@@ -13,8 +16,8 @@ export interface UniformityClass {
   toleranceC: number;
 }
 
-/** AMS2750G furnace classes (°C): 1 ±3, 2 ±6, 3 ±8, 4 ±10, 5 ±14, 6 ±28. */
-export const AMS2750G_CLASSES: readonly UniformityClass[] = [
+/** AMS2750F Table 11 furnace classes (°C): 1 ±3, 2 ±6, 3 ±8, 4 ±10, 5 ±14, 6 ±28. */
+export const AMS2750_CLASSES: readonly UniformityClass[] = [
   { class: 1, toleranceC: 3 },
   { class: 2, toleranceC: 6 },
   { class: 3, toleranceC: 8 },
@@ -23,8 +26,17 @@ export const AMS2750G_CLASSES: readonly UniformityClass[] = [
   { class: 6, toleranceC: 28 },
 ];
 
-/** AMS2750F furnace classes (°C): 1 ±3, 2 ±5, 3 ±7, 4 ±10, 5 ±14, 6 ±28. */
-export const AMS2750F_CLASSES: readonly UniformityClass[] = [
+/**
+ * The same table under its earlier name. The values are those of AMS2750F Table 11; whether
+ * revision G keeps them was not checked. @deprecated use {@link AMS2750_CLASSES}.
+ */
+export const AMS2750G_CLASSES: readonly UniformityClass[] = AMS2750_CLASSES;
+
+/**
+ * The tighter °C variant named in the note to AMS2750F Table 11 (some design authorities):
+ * 1 ±3, 2 ±5, 3 ±7, 4 ±10, 5 ±14, 6 ±28. Not a different revision's table.
+ */
+export const AMS2750_TIGHTER_C_CLASSES: readonly UniformityClass[] = [
   { class: 1, toleranceC: 3 },
   { class: 2, toleranceC: 5 },
   { class: 3, toleranceC: 7 },
@@ -48,7 +60,7 @@ export interface UniformityInput {
   sensors: readonly SurveySensor[];
   /** First reading index of the stabilised soak (earlier readings are ignored); default 0. */
   stabilisedFromIndex?: number | undefined;
-  /** Class table; default {@link AMS2750G_CLASSES}. */
+  /** Class table; default {@link AMS2750_CLASSES}. */
   classTable?: readonly UniformityClass[] | undefined;
 }
 
@@ -72,13 +84,13 @@ export interface UniformityResult {
  * Uniformity survey: hottest = max(reading + correction) − setpoint, coldest =
  * min(reading + correction) − setpoint over readings from `stabilisedFromIndex`; class = the
  * smallest-tolerance row with |hottest| ≤ tol and |coldest| ≤ tol (inclusive).
- * Source: SAE AMS2750G furnace classes (template; configurable). Units °C.
+ * Source: SAE AMS2750F Table 11 furnace classes (template; configurable). Units °C.
  * @throws RangeError on no sensors, a sensor without stabilised readings, or non-finite values.
  */
 export function uniformitySurvey(input: UniformityInput): UniformityResult {
   const { setpointC, sensors } = input;
   const from = input.stabilisedFromIndex ?? 0;
-  const table = [...(input.classTable ?? AMS2750G_CLASSES)].sort((a, b) => a.toleranceC - b.toleranceC);
+  const table = [...(input.classTable ?? AMS2750_CLASSES)].sort((a, b) => a.toleranceC - b.toleranceC);
   if (!Number.isFinite(setpointC)) throw new RangeError('setpointC must be finite');
   if (sensors.length === 0) throw new RangeError('a survey needs at least one sensor');
   if (!Number.isInteger(from) || from < 0) throw new RangeError('stabilisedFromIndex must be a whole number ≥ 0');

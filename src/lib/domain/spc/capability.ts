@@ -14,14 +14,18 @@
  *   Ĉp·√(χ²(α/2; n−1)/(n−1)) ≤ Cp ≤ Ĉp·√(χ²(1−α/2; n−1)/(n−1)) (Montgomery §8.3.5).
  * - Confidence interval for Cpk by Bissell's normal approximation (A. F. Bissell, Applied
  *   Statistics 39(3), 1990): Ĉpk ± z(1−α/2)·√(1/(9n) + Ĉpk²/(2(n−1))).
- *   Both intervals assume σ is estimated by a sample standard deviation from n observations; when
- *   σ_within comes from R̄/d2 or MR̄/d2 the effective degrees of freedom differ and the intervals
- *   are approximate.
+ *   Both intervals take the degrees of freedom of the σ estimate: n − 1 for a sample standard
+ *   deviation, and for R̄/d2, S̄/c4 or MR̄/d2 the effective degrees of freedom ν = 1/(2·CV²) of
+ *   the estimator (the χ² variable with the same relative variance; Patnaik, Biometrika 37, 1950),
+ *   see {@link effectiveDegreesOfFreedom}. Bissell's 1/(9n) term (the mean) keeps n.
+ * - Confidence interval for Cpm (Chan, Cheng & Spiring 1988; Boyles, JQT 23(1), 1991): with
+ *   δ = (x̄ − T)/s and ν = n(1 + δ²)²/(1 + 2δ²), Ĉpm·√(χ²(α/2; ν)/ν) ≤ Cpm ≤ Ĉpm·√(χ²(1−α/2; ν)/ν).
  * - Expected nonconforming, ppm: 10⁶·Φ((LSL − μ)/σ) below and 10⁶·(1 − Φ((USL − μ)/σ)) above,
  *   with σ_within ("within") or s ("overall"); normal model.
  * Units: indices dimensionless; ppm parts per million; μ, σ, limits in data units.
  */
 import type { SpcAutocorrelation, SpcCapability, SpcInterval, SpcNormality, SpcPpm } from '../../shared/spc.ts';
+import { chartConstants } from './constants.ts';
 import { chiSquareQuantile, mean, normalCdf, normalQuantile, sampleSd } from './math.ts';
 
 /** Specification limits (data units); at least one of lsl/usl. */
@@ -78,14 +82,85 @@ export function capabilityIndices(m: CapabilityMoments, spec: SpecLimits): Capab
   return { cp: w.p, cpu: w.u, cpl: w.l, cpk: w.k, pp: o.p, ppu: o.u, ppl: o.l, ppk: o.k, cpm };
 }
 
+/** How σ_within was estimated: the input of {@link effectiveDegreesOfFreedom}. */
+export type SigmaBasis =
+  | { method: 'sample-sd'; n: number }
+  | { method: 'rbar'; subgroups: number; size: number }
+  | { method: 'sbar'; subgroups: number; size: number }
+  | { method: 'mrbar'; observations: number }
+  | { method: 'given'; degreesOfFreedom: number };
+
+/**
+ * Effective degrees of freedom ν of a σ estimate: the ν for which σ·√(χ²_ν/ν) has the same
+ * relative variance as the estimator, ν = 1/(2·CV²) (Patnaik's χ² approximation to the range,
+ * Biometrika 37, 1950):
+ * - sample SD of n: n − 1 (exact);
+ * - R̄/d2 over k subgroups of n: CV² = d3²/(k·d2²) ⇒ ν = k·d2²/(2·d3²) (≈ 0.9·k·(n − 1));
+ * - S̄/c4 over k subgroups of n: CV² = (1 − c4²)/(k·c4²) ⇒ ν = k·c4²/(2(1 − c4²));
+ * - MR̄/d2 over m individuals (m − 1 moving ranges of two): Var |Xᵢ − Xᵢ₊₁| = 2σ²(1 − 2/π),
+ *   neighbouring ranges share a point (correlation of the differences −½), Cov = (4σ²/π)·
+ *   (√3/2 + (π/6)/2 − 1); Var(MR̄) = [(m − 1)·V + 2(m − 2)·C]/(m − 1)² and CV² = Var(MR̄)/(E MR)²,
+ *   E MR = 2σ/√π. For large m, ν ≈ 0.605·(m − 1).
+ */
+export function effectiveDegreesOfFreedom(basis: SigmaBasis): number {
+  switch (basis.method) {
+    case 'sample-sd':
+      return basis.n - 1;
+    case 'given':
+      return basis.degreesOfFreedom;
+    case 'rbar': {
+      const k = chartConstants(basis.size);
+      return (basis.subgroups * k.d2 * k.d2) / (2 * k.d3 * k.d3);
+    }
+    case 'sbar': {
+      const c4 = chartConstants(basis.size).c4;
+      return (basis.subgroups * c4 * c4) / (2 * (1 - c4 * c4));
+    }
+    case 'mrbar': {
+      const m = basis.observations;
+      if (m < 2) return 0;
+      const v = 2 * (1 - 2 / Math.PI);
+      const c = (4 / Math.PI) * (Math.sqrt(3) / 2 + Math.PI / 12 - 1);
+      const varMr = ((m - 1) * v + 2 * Math.max(0, m - 2) * c) / ((m - 1) * (m - 1));
+      const cv2 = varMr / (4 / Math.PI);
+      return 1 / (2 * cv2);
+    }
+  }
+}
+
+/**
+ * Two-sided confidence interval for Cpm (Chan, Cheng & Spiring 1988; Boyles 1991):
+ * ν = n(1 + δ²)²/(1 + 2δ²), δ = (x̄ − T)/s; [Ĉpm·√(χ²(α/2; ν)/ν), Ĉpm·√(χ²(1−α/2; ν)/ν)].
+ * Null without a finite Ĉpm, n < 2 or s ≤ 0.
+ */
+export function cpmConfidenceInterval(
+  cpmHat: number,
+  n: number,
+  mean: number,
+  sd: number,
+  target: number,
+  confidence = 0.95,
+): SpcInterval | null {
+  if (!(n >= 2) || !Number.isFinite(cpmHat) || !(sd > 0)) return null;
+  const d2 = ((mean - target) / sd) ** 2;
+  const nu = (n * (1 + d2) ** 2) / (1 + 2 * d2);
+  const alpha = 1 - confidence;
+  return {
+    lower: cpmHat * Math.sqrt(chiSquareQuantile(alpha / 2, nu) / nu),
+    upper: cpmHat * Math.sqrt(chiSquareQuantile(1 - alpha / 2, nu) / nu),
+    confidence,
+  };
+}
+
 /**
  * Two-sided confidence interval for Cp from the χ² quantiles with n − 1 degrees of freedom:
- * [Ĉp·√(χ²(α/2; n−1)/(n−1)), Ĉp·√(χ²(1−α/2; n−1)/(n−1))], α = 1 − confidence (Montgomery §8.3.5).
+ * [Ĉp·√(χ²(α/2; n−1)/(n−1)), Ĉp·√(χ²(1−α/2; n−1)/(n−1))], α = 1 − confidence (Montgomery §8.3.5);
+ * with σ from R̄, S̄ or MR̄ pass the effective degrees of freedom instead of n − 1.
  */
-export function cpConfidenceInterval(cpHat: number, n: number, confidence = 0.95): SpcInterval | null {
-  if (!(n >= 2) || !Number.isFinite(cpHat)) return null;
+export function cpConfidenceInterval(cpHat: number, n: number, confidence = 0.95, degreesOfFreedom = n - 1): SpcInterval | null {
+  if (!(n >= 2) || !Number.isFinite(cpHat) || !(degreesOfFreedom > 0)) return null;
   const alpha = 1 - confidence;
-  const df = n - 1;
+  const df = degreesOfFreedom;
   return {
     lower: cpHat * Math.sqrt(chiSquareQuantile(alpha / 2, df) / df),
     upper: cpHat * Math.sqrt(chiSquareQuantile(1 - alpha / 2, df) / df),
@@ -95,13 +170,19 @@ export function cpConfidenceInterval(cpHat: number, n: number, confidence = 0.95
 
 /**
  * Two-sided confidence interval for Cpk (or a one-sided Cpu/Cpl) by Bissell (1990):
- * Ĉpk ± z(1−α/2)·√(1/(9n) + Ĉpk²/(2(n−1))).
+ * Ĉpk ± z(1−α/2)·√(1/(9n) + Ĉpk²/(2(n−1))); n − 1 becomes the σ estimate's effective
+ * degrees of freedom when σ comes from R̄, S̄ or MR̄.
  * Published check (Quality Digest, May 2000, "The Last Word"): n = 45, Ĉpk = 1.15 → 0.89 … 1.41.
  */
-export function cpkConfidenceInterval(cpkHat: number, n: number, confidence = 0.95): SpcInterval | null {
-  if (!(n >= 2) || !Number.isFinite(cpkHat)) return null;
+export function cpkConfidenceInterval(
+  cpkHat: number,
+  n: number,
+  confidence = 0.95,
+  degreesOfFreedom = n - 1,
+): SpcInterval | null {
+  if (!(n >= 2) || !Number.isFinite(cpkHat) || !(degreesOfFreedom > 0)) return null;
   const z = normalQuantile(1 - (1 - confidence) / 2);
-  const half = z * Math.sqrt(1 / (9 * n) + (cpkHat * cpkHat) / (2 * (n - 1)));
+  const half = z * Math.sqrt(1 / (9 * n) + (cpkHat * cpkHat) / (2 * degreesOfFreedom));
   return { lower: cpkHat - half, upper: cpkHat + half, confidence };
 }
 
@@ -145,14 +226,22 @@ export function andersonDarling(xs: readonly number[]): SpcNormality | null {
   return { method: 'anderson-darling', n, a2, a2Adjusted: a, pValue: p, normalAt5Percent: p >= 0.05 };
 }
 
+/** Largest A*² for which the D'Agostino–Stephens fit is used; above it the p-value is 0 (p < 4e-24). */
+export const ANDERSON_DARLING_FIT_MAX = 10;
+
 /**
  * p-value of the adjusted Anderson–Darling statistic A*² for a normal sample with estimated mean
  * and variance (D'Agostino & Stephens 1986, Table 4.9; piecewise formulas in the comment of
- * `andersonDarling`), clamped to [0, 1].
+ * `andersonDarling`), clamped to [0, 1]; 0 above A*² = 10, where the fit no longer applies (it
+ * would rise back to 1 past A*² ≈ 307 and call grossly non-normal data normal).
  */
 export function andersonDarlingPValue(a: number): number {
   let p: number;
-  if (a >= 0.6) p = Math.exp(1.2937 - 5.709 * a + 0.0186 * a * a);
+  // The A*² ≥ 0.6 fit is a quadratic in A*² with its minimum near 153; it is fitted to moderate
+  // values only (D'Agostino & Stephens' table stops near 1.2, the fit is used to about 10), and
+  // beyond ~307 it climbs back above 1. Above 10 the true p is below the fit's 4e-24: report 0.
+  if (a > ANDERSON_DARLING_FIT_MAX) p = 0;
+  else if (a >= 0.6) p = Math.exp(1.2937 - 5.709 * a + 0.0186 * a * a);
   else if (a >= 0.34) p = Math.exp(0.9177 - 4.279 * a - 1.38 * a * a);
   else if (a >= 0.2) p = 1 - Math.exp(-8.318 + 42.796 * a - 59.938 * a * a);
   else p = 1 - Math.exp(-13.436 + 101.14 * a - 223.73 * a * a);
@@ -203,7 +292,8 @@ export function lag1Autocorrelation(series: readonly number[]): SpcAutocorrelati
 
 /**
  * Full capability study of individual observations against a specification: indices from the mean
- * and the given σ_within, overall s from the data, intervals (n = number of observations),
+ * and the given σ_within, overall s from the data, intervals (degrees of freedom from
+ * `sigmaBasis`, default a sample SD of all observations: n − 1),
  * expected ppm, Anderson–Darling normality and, when `series` is given, lag-1 autocorrelation of
  * the plotted series in time order.
  */
@@ -211,13 +301,16 @@ export function capabilityStudy(
   observations: readonly number[],
   sigmaWithin: number,
   spec: SpecLimits,
-  options: { confidence?: number; series?: readonly number[] } = {},
+  options: { confidence?: number; series?: readonly number[]; sigmaBasis?: SigmaBasis } = {},
 ): SpcCapability {
   const n = observations.length;
   const mu = mean(observations);
   const sOverall = n >= 2 ? sampleSd(observations) : 0;
   const confidence = options.confidence ?? 0.95;
   const ix = capabilityIndices({ n, mean: mu, sigmaWithin, sigmaOverall: sOverall }, spec);
+  const basis = options.sigmaBasis ?? { method: 'sample-sd', n };
+  const df = effectiveDegreesOfFreedom(basis);
+  const target = spec.target ?? (spec.lsl !== undefined && spec.usl !== undefined ? (spec.lsl + spec.usl) / 2 : null);
   return {
     lsl: spec.lsl ?? null,
     usl: spec.usl ?? null,
@@ -235,8 +328,10 @@ export function capabilityStudy(
     ppu: ix.ppu,
     ppl: ix.ppl,
     cpm: ix.cpm,
-    cpInterval: ix.cp === null ? null : cpConfidenceInterval(ix.cp, n, confidence),
-    cpkInterval: ix.cpk === null ? null : cpkConfidenceInterval(ix.cpk, n, confidence),
+    cpInterval: ix.cp === null ? null : cpConfidenceInterval(ix.cp, n, confidence, df),
+    cpkInterval: ix.cpk === null ? null : cpkConfidenceInterval(ix.cpk, n, confidence, df),
+    cpmInterval: ix.cpm === null || target === null ? null : cpmConfidenceInterval(ix.cpm, n, mu, sOverall, target, confidence),
+    sigmaBasis: { method: basis.method, degreesOfFreedom: df },
     ppmWithin: expectedPpm(mu, sigmaWithin, spec),
     ppmOverall: expectedPpm(mu, sOverall, spec),
     normality: andersonDarling(observations),

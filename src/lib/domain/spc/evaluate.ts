@@ -32,7 +32,7 @@ import type {
   SpcSuggestedExclusion,
   SpcViolationId,
 } from '../../shared/spc.ts';
-import { capabilityStudy } from './capability.ts';
+import { capabilityStudy, type SigmaBasis } from './capability.ts';
 import { cusumSeries } from './cusum.ts';
 import { ewmaAsymptoticLimits, ewmaSeries } from './ewma.ts';
 import { rangeIndexes, suggestExclusions } from './phase1.ts';
@@ -156,12 +156,32 @@ function sequentialBasis(input: SpcEvaluateInput, phase: readonly number[]): Seq
   };
 }
 
+/**
+ * How σ_within of a variables chart was estimated from `points` plotted points, for the
+ * capability intervals' effective degrees of freedom: R̄/d2 (X̄-R, and EWMA/CUSUM on subgroups),
+ * S̄/c4 (X̄-S), MR̄/d2 (individuals); a given σ keeps the sample-SD default.
+ */
+export function sigmaBasisOf(
+  chart: SpcChart,
+  points: number,
+  subgroupSize: number,
+  sigmaGiven: boolean,
+  observations: number,
+): SigmaBasis {
+  if (sigmaGiven) return { method: 'sample-sd', n: observations };
+  if (chart === 'xbar-s') return { method: 'sbar', subgroups: points, size: subgroupSize };
+  if (subgroupSize >= 2) return { method: 'rbar', subgroups: points, size: subgroupSize };
+  return { method: 'mrbar', observations: points };
+}
+
 function capabilityFor(input: SpcEvaluateInput, phase: readonly number[], sigmaWithin: number, series: readonly number[]) {
   if (!input.spec) return null;
   const obs = observationsIn(input, phase);
+  const size = input.subgroups ? (input.subgroups[0]?.length ?? 1) : 1;
   return capabilityStudy(obs, sigmaWithin, input.spec, {
     confidence: input.confidence ?? 0.95,
     series: phase.map((i) => series[i]).filter((v): v is number => v !== undefined),
+    sigmaBasis: sigmaBasisOf(input.chart, phase.length, size, input.sigma !== undefined, obs.length),
   });
 }
 

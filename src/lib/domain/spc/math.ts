@@ -196,14 +196,16 @@ export function chiSquareQuantile(p: number, df: number): number {
   let hi = Math.max(10 * df, 100);
   while (chiSquareCdf(hi, df) < p) hi *= 2;
   if (!(x > lo && x < hi)) x = (lo + hi) / 2;
-  for (let iter = 0; iter < 200; iter += 1) {
+  for (let iter = 0; iter < 2000; iter += 1) {
     const f = chiSquareCdf(x, df) - p;
     if (f > 0) hi = x;
     else lo = x;
     const dens = chiSquarePdf(x, df);
     let next = dens > 0 ? x - f / dens : Number.NaN;
     if (!(next > lo && next < hi)) next = (lo + hi) / 2;
-    if (Math.abs(next - x) <= 1e-12 * Math.max(1, x)) return next;
+    // Relative test: for df = 1 and tiny p the quantile is ~1e-12 or smaller, far below any
+    // absolute tolerance (χ²(1e-6; 1) = 1.57e-12).
+    if (Math.abs(next - x) <= 1e-13 * x || hi - lo <= 1e-13 * hi) return next;
     x = next;
   }
   return x;

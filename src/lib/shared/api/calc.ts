@@ -105,7 +105,7 @@ export const ViscosityCupResultSchema = z.object({
     'din-4mm',
   ]),
   source: z.string(),
-  provenance: z.enum(['published', 'from memory']),
+  provenance: z.enum(['published', 'from memory', 'lab']),
   message: z.string().optional(),
   suggestedCup: z
     .enum([
