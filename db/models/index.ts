@@ -11,8 +11,13 @@ import { PasswordReset } from './password-reset.ts';
 import { Site } from './site.ts';
 import { User } from './user.ts';
 import { UserSession } from './user-session.ts';
+import { IngestRejection } from './ingest-rejection.ts';
+import { UnknownChannel } from './unknown-channel.ts';
+import { IngestStatus } from './ingest-status.ts';
+import { DeviceEvent } from './device-event.ts';
 
 export { ApiToken, Asset, AuditEntry, Channel, Device, LoginThrottle, OutboxMail, PasswordReset, Site, User, UserSession };
+export { IngestRejection, UnknownChannel, IngestStatus, DeviceEvent };
 export type { RoleName } from './user.ts';
 export type { AssetKind } from './asset.ts';
 export type { SignatureRecord } from './audit-entry.ts';
@@ -34,6 +39,10 @@ export function initModels(sequelize: Sequelize): void {
     Site,
     User,
     UserSession,
+    IngestRejection,
+    UnknownChannel,
+    IngestStatus,
+    DeviceEvent,
   ]) {
     m.initModel(sequelize);
   }
@@ -46,4 +55,6 @@ export function initModels(sequelize: Sequelize): void {
   Device.belongsTo(Site, { foreignKey: 'siteId' });
   UserSession.belongsTo(User, { foreignKey: 'userId' });
   ApiToken.belongsTo(User, { as: 'creator', foreignKey: 'createdBy' });
+  UnknownChannel.belongsTo(Device, { foreignKey: 'deviceId' });
+  DeviceEvent.belongsTo(Device, { foreignKey: 'deviceId' });
 }
