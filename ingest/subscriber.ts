@@ -88,7 +88,7 @@ export async function startWorker({
   let lastCommitAt: number | null = null;
   let closing = false;
 
-  // ---- MQTT ----
+  // ---- MQTT (every listener is in place before the first await: a resumed session delivers at once) ----
   const options: IClientOptions = {
     username: 'svc-ingest',
     password: config.MQTT_SERVICE_PASSWORD,
@@ -122,7 +122,6 @@ export async function startWorker({
   const live = new LivePublisher(publishLive);
   const ctx: WorkerContext = { sequelize, pool, publishLive, log };
   const queue = new HandlerQueue(handlers, ctx);
-  await queue.init();
 
   // ---- arrival → flush → commit ----
   const buffer = new ArrivalBuffer();
@@ -203,6 +202,9 @@ export async function startWorker({
     onListening: (on) => (map.listening = on),
     log,
   });
+
+  // Messages that arrive meanwhile (a resumed session delivers at once) wait in the buffer.
+  await queue.init();
   await listener.start();
 
   loop.start();
