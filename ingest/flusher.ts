@@ -29,6 +29,7 @@ export function unsettledTopics(map: ChannelMap, entries: readonly Entry[]): str
   for (const e of entries) {
     const r = e.route;
     if (r.kind === 'invalid' || out.has(e.topic)) continue;
+    if (r.kind === 'sample' && map.channel(e.topic)) continue; // the hot path: a known channel
     const known = map.device(deviceTopicPrefix(r.site, r.device)) && (r.kind === 'status' || map.channel(e.topic));
     if (!known && !map.settled(e.topic, e.rxMs)) out.add(e.topic);
   }
