@@ -13,19 +13,32 @@ export interface DbOptions {
   /** Pool size for this process. */
   max?: number;
   logging?: boolean;
-  /** pg.Pool only: give up connecting after this long (default: wait indefinitely). */
+  /** Give up connecting after this long (default: wait indefinitely). */
   connectionTimeoutMillis?: number;
-  /** pg.Pool only: give up waiting for a query's answer after this long. */
+  /** Give up waiting for a query's answer after this long. */
   queryTimeoutMillis?: number;
 }
 
-/** A Sequelize instance over pg for records (not for the telemetry hot path). */
-export function createSequelize({ url, max = 8, logging = false }: DbOptions): Sequelize {
+/**
+ * The process's Sequelize instance over pg: records through the models, and the measured hot
+ * paths through `sequelize.query` or a connection borrowed from its pool.
+ */
+export function createSequelize({
+  url,
+  max = 8,
+  logging = false,
+  connectionTimeoutMillis,
+  queryTimeoutMillis,
+}: DbOptions): Sequelize {
   return new Sequelize(url, {
     dialect: 'postgres',
     dialectModule: pg,
     logging: logging ? console.log : false,
     pool: { max, min: 0, idle: 10_000, acquire: 20_000 },
+    dialectOptions: {
+      ...(connectionTimeoutMillis ? { connectionTimeoutMillis } : {}),
+      ...(queryTimeoutMillis ? { query_timeout: queryTimeoutMillis } : {}),
+    },
     define: { underscored: true, timestamps: false },
   });
 }

@@ -1,13 +1,15 @@
 /** The broker process: `tsx ingest/broker-main.ts` (started by `npm start`). */
-import { createPool } from '../db/connection.ts';
+import { createSequelize } from '../db/connection.ts';
+import { initModels } from '../db/models/index.ts';
 import { startBroker } from './broker.ts';
 import { loadConfig } from './config.ts';
 
 const config = loadConfig();
-const pool = createPool({ url: config.DATABASE_URL, max: 3 });
+const sequelize = createSequelize({ url: config.DATABASE_URL, max: 3 });
+initModels(sequelize);
 const log = (s: string) => console.log(`[broker] ${s}`);
 const broker = await startBroker({
-  pool,
+  sequelize,
   host: config.MQTT_HOST,
   port: config.MQTT_PORT,
   wsPort: config.MQTT_WS_PORT,
@@ -25,7 +27,7 @@ const broker = await startBroker({
 
 const stop = async () => {
   await broker.close();
-  await pool.end();
+  await sequelize.close();
   process.exit(0);
 };
 process.once('SIGTERM', stop);

@@ -8,13 +8,15 @@ import { createServer, type Server } from 'node:net';
 import http from 'node:http';
 import { Aedes, type Client } from 'aedes';
 import { WebSocketServer, createWebSocketStream } from 'ws';
-import type pg from 'pg';
+import type { Sequelize } from 'sequelize';
+import { Device, DeviceEvent } from '../db/models/index.ts';
 import { verifyPassword } from '../src/lib/server/passwords.ts';
 import { memoryPersistence } from './broker-persistence.ts';
 import { LIVE_ROOT, TOPIC_ROOT, isUnder } from '../src/lib/shared/topics.ts';
 
 export interface BrokerOptions {
-  pool: pg.Pool;
+  /** The process's Sequelize instance (models initialised): device look-ups and device events. */
+  sequelize: Sequelize;
   host: string;
   port: number;
   wsPort?: number;
@@ -62,11 +64,13 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
 
   const deviceEvent = async (deviceId: number, kind: 'online' | 'offline', reason: string) => {
     try {
-      await opts.pool.query(
-        `with e as (insert into device_events(device_id, kind, reason) values ($1, $2, $3))
-         update devices set online = $4, last_seen_at = now() where id = $1`,
-        [deviceId, kind, reason, kind === 'online'],
-      );
+      await opts.sequelize.transaction(async (transaction) => {
+        await DeviceEvent.create({ deviceId, kind, reason }, { transaction });
+        await Device.update(
+          { online: kind === 'online', lastSeenAt: opts.sequelize.fn('now') as unknown as Date },
+          { where: { id: deviceId }, transaction },
+        );
+      });
     } catch (e) {
       log(`could not record device ${kind}: ${(e as Error).message}`);
     }
@@ -84,19 +88,14 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
       ids.set(client, { kind: username });
       return done(null, true);
     }
-    opts.pool
-      .query<{ id: number; password_hash: string; topic_prefix: string; enabled: boolean }>(
-        'select id, password_hash, topic_prefix, enabled from devices where username = $1',
-        [username],
-      )
-      .then(async ({ rows }) => {
-        const d = rows[0];
+    Device.findOne({ attributes: ['id', 'passwordHash', 'topicPrefix', 'enabled'], where: { username }, raw: true })
+      .then(async (d) => {
         if (!d || !d.enabled) return fail();
-        const cacheKey = `${username}\0${pw}\0${d.password_hash}`;
-        const ok = (verified.get(cacheKey) ?? 0) > Date.now() || (await verifyPassword(d.password_hash, pw));
+        const cacheKey = `${username}\0${pw}\0${d.passwordHash}`;
+        const ok = (verified.get(cacheKey) ?? 0) > Date.now() || (await verifyPassword(d.passwordHash, pw));
         if (!ok) return fail();
         verified.set(cacheKey, Date.now() + 10 * 60_000);
-        ids.set(client, { kind: 'device', deviceId: d.id, prefix: d.topic_prefix });
+        ids.set(client, { kind: 'device', deviceId: d.id, prefix: d.topicPrefix });
         done(null, true);
       })
       .catch((e: Error) => {

@@ -10,9 +10,12 @@ import { startWorker } from './subscriber.ts';
 const config = loadConfig();
 // Bounded waits: a database that stops answering must surface as an error (then the worker
 // buffers and journals) rather than as a flush that never returns.
-const pool = createPool({ url: config.DATABASE_URL, max: 6, connectionTimeoutMillis: 5000, queryTimeoutMillis: 60_000 });
-const sequelize = createSequelize({ url: config.DATABASE_URL, max: 4 });
+const timeouts = { connectionTimeoutMillis: 5000, queryTimeoutMillis: 60_000 };
+// The one pool of the process: the telemetry path, records and the handlers' queries.
+const sequelize = createSequelize({ url: config.DATABASE_URL, max: 6, ...timeouts });
 initModels(sequelize);
+// Transitional: for the post-commit handlers that still take a pg pool (WorkerContext.pool).
+const pool = createPool({ url: config.DATABASE_URL, max: 4, ...timeouts });
 const worker = await startWorker({ config, sequelize, pool, log: (s) => console.log(`[ingest] ${s}`) });
 
 const stop = async () => {

@@ -22,6 +22,12 @@ import { OvenSurvey } from './oven-survey.ts';
 
 export { ApiToken, Asset, AuditEntry, Channel, Device, LoginThrottle, OutboxMail, PasswordReset, Site, User, UserSession };
 export { Material, Lacquer, LacquerLot, BathCharge, BathCheck, BathAddition, FilterChange, OvenSurvey };
+import { IngestRejection } from './ingest-rejection.ts';
+import { UnknownChannel } from './unknown-channel.ts';
+import { IngestStatus } from './ingest-status.ts';
+import { DeviceEvent } from './device-event.ts';
+
+export { IngestRejection, UnknownChannel, IngestStatus, DeviceEvent };
 export type { RoleName } from './user.ts';
 export type { AssetKind } from './asset.ts';
 export type { SignatureRecord } from './audit-entry.ts';
@@ -51,6 +57,10 @@ export function initModels(sequelize: Sequelize): void {
     BathAddition,
     FilterChange,
     OvenSurvey,
+    IngestRejection,
+    UnknownChannel,
+    IngestStatus,
+    DeviceEvent,
   ]) {
     m.initModel(sequelize);
   }
@@ -77,4 +87,6 @@ export function initModels(sequelize: Sequelize): void {
   FilterChange.belongsTo(Asset, { as: 'tank', foreignKey: 'tankAssetId' });
   OvenSurvey.belongsTo(Asset, { as: 'oven', foreignKey: 'ovenAssetId' });
   OvenSurvey.belongsTo(User, { as: 'recorder', foreignKey: 'recordedBy' });
+  UnknownChannel.belongsTo(Device, { foreignKey: 'deviceId' });
+  DeviceEvent.belongsTo(Device, { foreignKey: 'deviceId' });
 }

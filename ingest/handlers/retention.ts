@@ -5,9 +5,10 @@
  * messages. The time of the last run and its result are kept in site_settings
  * (`retentionLastRun`), so restarts do not repeat it.
  */
+import type pg from 'pg';
 import { applyRetention } from '../../src/lib/core/readings-store.ts';
-import { forgetPartitions } from '../store.ts';
-import type { PostCommitHandler } from './index.ts';
+import { forgetPartitions } from '../partitions.ts';
+import type { PostCommitHandler } from './types.ts';
 
 const DAY_MS = 86_400_000;
 /** Let the worker settle before the first check. */
@@ -29,10 +30,12 @@ export const retentionHandler: PostCommitHandler = {
     if (running || nowMs < nextCheckAt) return;
     running = true;
     nextCheckAt = nowMs + 10 * 60_000;
-    const client = await ctx.pool.connect().catch((e: Error) => {
+    // A session-level advisory lock: taken and released on one connection borrowed from the process's pool.
+    const manager = ctx.sequelize.connectionManager;
+    const client = (await manager.getConnection({ type: 'write' }).catch((e: Error) => {
       running = false;
       throw e;
-    });
+    })) as pg.ClientBase;
     try {
       const { rows } = await client.query<{ at: number | null }>(
         `select (value->>'atMs')::float8 as at from site_settings where key = 'retentionLastRun'`,
@@ -42,7 +45,7 @@ export const retentionHandler: PostCommitHandler = {
       const lock = await client.query<{ ok: boolean }>('select pg_try_advisory_lock($1) as ok', [LOCK_KEY]);
       if (!lock.rows[0]?.ok) return;
       try {
-        const result = await applyRetention(ctx.pool, nowMs);
+        const result = await applyRetention(ctx.sequelize, nowMs);
         if (result.droppedPartitions.length) forgetPartitions();
         await client.query(
           `insert into site_settings(key, value) values ('retentionLastRun', $1::jsonb)
@@ -57,7 +60,7 @@ export const retentionHandler: PostCommitHandler = {
         await client.query('select pg_advisory_unlock($1)', [LOCK_KEY]);
       }
     } finally {
-      client.release();
+      manager.releaseConnection(client as never);
       running = false;
     }
   },

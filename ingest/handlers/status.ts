@@ -5,8 +5,8 @@
  */
 import { DeviceStatusSchema } from '../../src/lib/shared/telemetry.ts';
 import type { ChannelMap } from '../channel-map.ts';
-import type { ParsedTopic } from '../../src/lib/shared/topics.ts';
-import { storedPayload, type Batch } from './readings.ts';
+import { deviceTopicPrefix, type ParsedTopic } from '../../src/lib/shared/topics.ts';
+import { storedPayload, type Batch } from '../batch.ts';
 
 function statusOf(text: string): 'online' | 'offline' | null {
   let v: unknown = text.trim();
@@ -26,7 +26,7 @@ export function processStatus(
   msg: { topic: string; payload: string; rxMs: number },
   topic: Extract<ParsedTopic, { kind: 'status' }>,
 ): void {
-  const prefix = `coatrail/v1/${topic.site}/${topic.device}`;
+  const prefix = deviceTopicPrefix(topic.site, topic.device);
   const device = map.device(prefix);
   const reject = (reason: 'unknown-device' | 'schema', detail: string): void => {
     batch.rejections.push({

@@ -194,9 +194,10 @@ async function main() {
 
     // ---- the store function (the endpoint's query path) for one channel over the whole range.
     const brief = { id: queried, unit: '°C' };
+    const readSeq = createSequelize({ url: pgh.url, max: 2 });
     let shape = '';
     const store = await timeRuns(RUNS, async () => {
-      const r = await queryReadings(pool!, brief, { from: start, to: end, maxPoints: MAX_POINTS });
+      const r = await queryReadings(readSeq, brief, { from: start, to: end, maxPoints: MAX_POINTS });
       shape =
         r.mode === 'raw'
           ? `raw, ${r.points.length} points`
@@ -209,9 +210,10 @@ async function main() {
     ]);
     let shape2 = '';
     const store2 = await timeRuns(RUNS, async () => {
-      const r = await queryReadings(pool!, brief, { from: start, to: end, maxPoints: 2000 });
+      const r = await queryReadings(readSeq, brief, { from: start, to: end, maxPoints: 2000 });
       shape2 = r.mode === 'raw' ? 'raw' : `${r.buckets.length} buckets of ${r.bucketMs / 60_000} min from the ${r.source} source`;
     });
+    await readSeq.close();
     rows.push([
       `Store queryReadings, ${DAYS} d, maxPoints 2000`,
       `p50 ${f1(pct(store2.times, 50))} · p95 ${f1(pct(store2.times, 95))}`,

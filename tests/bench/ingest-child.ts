@@ -100,7 +100,8 @@ if (mode === 'subscriber') {
   process.once('SIGTERM', () => client.unsubscribe('coatrail/v1/+/+/+/+', () => client.end(false, {}, () => process.exit(0))));
 } else {
   const config = loadConfig();
-  const pool = createPool({ url: config.DATABASE_URL, max: 6, connectionTimeoutMillis: 5000 });
+  // Transitional: the post-commit handlers that still take a pg pool.
+  const pool = createPool({ url: config.DATABASE_URL, max: 4, connectionTimeoutMillis: 5000 });
   const timer: PostCommitHandler = {
     name: 'bench-timer',
     async onReadings(_ctx, rows) {
@@ -113,7 +114,7 @@ if (mode === 'subscriber') {
   const wanted = process.env['BENCH_HANDLERS'];
   const others =
     wanted === 'none' ? [] : wanted ? postCommitHandlers.filter((h) => wanted.split(',').includes(h.name)) : postCommitHandlers;
-  const sequelize = createSequelize({ url: config.DATABASE_URL, max: 4 });
+  const sequelize = createSequelize({ url: config.DATABASE_URL, max: 6, connectionTimeoutMillis: 5000 });
   initModels(sequelize);
   const worker = await startWorker({ config, sequelize, pool, handlers: [timer, ...others] });
   const ready = setInterval(() => {
@@ -125,6 +126,7 @@ if (mode === 'subscriber') {
   process.once('SIGTERM', async () => {
     await worker.close();
     await pool.end();
+    await sequelize.close();
     process.exit(0);
   });
 }

@@ -30,7 +30,7 @@ import { from as copyFrom } from 'pg-copy-streams';
 import { createPool, createSequelize } from '../../db/connection.ts';
 import { migrateUp } from '../../db/migrate.ts';
 import { freePort, startLocalPostgres, stopLocalPostgres } from '../../db/pg-control.ts';
-import { Batch } from '../../ingest/handlers/readings.ts';
+import { Batch } from '../../ingest/batch.ts';
 import { copyBinary } from '../../ingest/store.ts';
 import { hashPassword } from '../../src/lib/server/passwords.ts';
 

@@ -10,19 +10,24 @@
  */
 import pg from 'pg';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { createPool } from '../../db/connection.ts';
+import type { Sequelize } from 'sequelize';
+import { createPool, createSequelize } from '../../db/connection.ts';
+import { initModels } from '../../db/models/index.ts';
 import { rebuildRollups } from '../../src/lib/core/readings-store.ts';
 import { api, signIn, type Session } from '../support/http.ts';
 import { createTestDevice } from '../support/ingest-harness.ts';
 
 const DAY = 86_400_000;
 let pool: pg.Pool;
+let sequelize: Sequelize;
 let channelId: number;
 let day0: number;
 let viewer: Session;
 
 beforeAll(async () => {
   pool = createPool({ url: inject('stack').databaseUrl, max: 2 });
+  sequelize = createSequelize({ url: inject('stack').databaseUrl, max: 2 });
+  initModels(sequelize);
   const dev = await createTestDevice(pool, [{ key: 'saw', unit: 'mm/s', min: 0, max: 100 }], 'rep');
   channelId = dev.channels['saw']!.id;
   day0 = Math.floor(Date.now() / DAY) * DAY - 3 * DAY; // a whole UTC day, three days ago
@@ -36,12 +41,13 @@ beforeAll(async () => {
        from generate_series(to_timestamp($2::float8 / 1000), to_timestamp($3::float8 / 1000) - interval '1 second', interval '1 second') ts`,
     [channelId, day0, day0 + DAY],
   );
-  await rebuildRollups(pool, channelId, day0, day0 + DAY);
+  await rebuildRollups(sequelize, channelId, day0, day0 + DAY);
   viewer = await signIn('viewer');
 });
 
 afterAll(async () => {
   await pool?.end();
+  await sequelize?.close();
 });
 
 const get = (qs: string, session: Session | null = viewer) => api(`/api/v1/channels/${channelId}/readings?${qs}`, { session });
@@ -55,7 +61,7 @@ describe('rebuildRollups', () => {
     );
     expect(rows[0]).toEqual({ m: 1440, mn: 86_400, h: 24, hn: 86_400 });
     // Idempotent.
-    await rebuildRollups(pool, channelId, day0, day0 + DAY);
+    await rebuildRollups(sequelize, channelId, day0, day0 + DAY);
     const again = await pool.query<{ n: number }>('select sum(n)::int as n from readings_1m where channel_id = $1', [channelId]);
     expect(again.rows[0]!.n).toBe(86_400);
   });

@@ -14,6 +14,7 @@ import { migrateUp } from '../../db/migrate.ts';
 import { startLocalPostgres, stopLocalPostgres } from '../../db/pg-control.ts';
 import { retentionHandler } from '../../ingest/handlers/retention.ts';
 import { applyRetention } from '../../src/lib/core/readings-store.ts';
+import { initModels } from '../../db/models/index.ts';
 import { root } from '../support/test-stack.ts';
 
 const DAY = 86_400_000;
@@ -47,8 +48,10 @@ beforeAll(async () => {
   } finally {
     if (saved) process.env['DATABASE_URL'] = saved;
   }
-  const seq = createSequelize({ url, max: 1 });
+  // Two connections at least: the retention job holds one for its advisory lock while it deletes on another.
+  const seq = createSequelize({ url, max: 3 });
   await migrateUp(seq);
+  initModels(seq);
   sequelize = seq;
   pool = createPool({ url, max: 3 });
   const site = (await pool.query<{ id: number }>(`insert into sites(code, name) values ('ret', 'Retention site') returning id`))
@@ -110,7 +113,7 @@ describe('applyRetention with the default policy (migration 20261202-1000)', () 
         `select count(*)::int as n from pg_inherits i join pg_class p on p.oid = i.inhparent where p.relname = 'readings'`,
       )
     ).rows[0].n;
-    const r = await applyRetention(pool, now);
+    const r = await applyRetention(sequelize, now);
     // The longest raw retention is 400 days: the partition holding the 450-day-old rows is dropped whole.
     expect(r.droppedPartitions.length).toBeGreaterThan(0);
     const partsAfter = (

@@ -1,5 +1,7 @@
 /**
- * Reading the time series back (worker-safe: takes a pg.Pool, imports nothing from Astro).
+ * Reading the time series back (worker-safe: takes the process's Sequelize instance, imports
+ * nothing from Astro). The bucketed reads are the measured hot path (`npm run bench:charts`):
+ * raw SQL through `sequelize.query` with bind parameters.
  *
  * - {@link queryReadings}: raw rows when the range holds at most `maxPoints` samples (estimated
  *   from the rollups' counts), else epoch-aligned min/max/mean buckets — from the hourly
@@ -10,7 +12,8 @@
  *   from raw rows (after bulk loads with generate_series or COPY, which bypass the worker).
  * - {@link applyRetention}: the retention policy (README "Retention").
  */
-import type pg from 'pg';
+import { Op, QueryTypes, type Sequelize } from 'sequelize';
+import { Channel, IngestRejection } from '../../../db/models/index.ts';
 import { BUCKET_LADDER_MS, chooseBucketMs, chooseSource } from '../domain/series/buckets.ts';
 import {
   RetentionSettingsSchema,
@@ -28,9 +31,10 @@ export interface ChannelBrief {
   unit: string;
 }
 
-export async function channelBrief(pool: pg.Pool, channelId: number): Promise<ChannelBrief | null> {
-  const { rows } = await pool.query<ChannelBrief>('select id, unit from channels where id = $1', [channelId]);
-  return rows[0] ?? null;
+export async function channelBrief(sequelize: Sequelize, channelId: number): Promise<ChannelBrief | null> {
+  void sequelize; // the models are initialised on it
+  const c = await Channel.findByPk(channelId, { attributes: ['id', 'unit'], raw: true });
+  return c ? { id: c.id, unit: c.unit } : null;
 }
 
 /**
@@ -49,29 +53,29 @@ export function alignedBucketMs(from: number, to: number, maxPoints: number): nu
 }
 
 /** Samples of one channel in `[from, to)`, estimated from the rollups (exact for whole minutes). */
-export async function estimateCount(pool: pg.Pool, channelId: number, from: number, to: number): Promise<number> {
+export async function estimateCount(sequelize: Sequelize, channelId: number, from: number, to: number): Promise<number> {
   const table = to - from > 2 * DAY_MS ? 'readings_1h' : 'readings_1m';
   const width = table === 'readings_1h' ? HOUR_MS : MINUTE_MS;
-  const { rows } = await pool.query<{ n: number }>(
+  const rows = await sequelize.query<{ n: number }>(
     `select coalesce(sum(n), 0)::float8 as n from ${table}
       where channel_id = $1 and bucket >= to_timestamp($2::float8 / 1000) and bucket < to_timestamp($3::float8 / 1000)`,
-    [channelId, Math.floor(from / width) * width, to],
+    { bind: [channelId, Math.floor(from / width) * width, to], type: QueryTypes.SELECT },
   );
   return rows[0]?.n ?? 0;
 }
 
 /** The readings endpoint's answer for one channel (product.md §6). */
-export async function queryReadings(pool: pg.Pool, channel: ChannelBrief, q: ReadingsQuery): Promise<ReadingsResponse> {
+export async function queryReadings(sequelize: Sequelize, channel: ChannelBrief, q: ReadingsQuery): Promise<ReadingsResponse> {
   const { from, to, maxPoints } = q;
   const head = { channelId: channel.id, unit: channel.unit, from, to };
-  const estimate = await estimateCount(pool, channel.id, from, to);
+  const estimate = await estimateCount(sequelize, channel.id, from, to);
   if (estimate <= maxPoints) {
     // Rollups can lag a bulk load that bypassed them; the limit keeps the promise regardless.
-    const { rows } = await pool.query<{ t: number; v: number; q: number }>(
+    const rows = await sequelize.query<{ t: number; v: number; q: number }>(
       `select (extract(epoch from ts) * 1000)::float8 as t, value as v, quality as q from readings
         where channel_id = $1 and ts >= to_timestamp($2::float8 / 1000) and ts < to_timestamp($3::float8 / 1000)
         order by ts limit $4`,
-      [channel.id, from, to, maxPoints + 1],
+      { bind: [channel.id, from, to, maxPoints + 1], type: QueryTypes.SELECT },
     );
     if (rows.length <= maxPoints) {
       return {
@@ -103,12 +107,10 @@ export async function queryReadings(pool: pg.Pool, channel: ChannelBrief, q: Rea
                   where channel_id = $1 and bucket >= to_timestamp($2::float8 / 1000) and bucket < to_timestamp($3::float8 / 1000)) x
           group by b order by b`;
   const rollupWidth = source === 'hour' ? HOUR_MS : source === 'minute' ? MINUTE_MS : 1;
-  const { rows } = await pool.query<{ t: number; min: number; max: number; mean: number; n: number }>(sql, [
-    channel.id,
-    Math.floor(from / rollupWidth) * rollupWidth,
-    to,
-    bucketMs,
-  ]);
+  const rows = await sequelize.query<{ t: number; min: number; max: number; mean: number; n: number }>(sql, {
+    bind: [channel.id, Math.floor(from / rollupWidth) * rollupWidth, to, bucketMs],
+    type: QueryTypes.SELECT,
+  });
   return { ...head, mode: 'bucketed', bucketMs, source, buckets: rows.slice(0, maxPoints) };
 }
 
@@ -116,39 +118,33 @@ export async function queryReadings(pool: pg.Pool, channel: ChannelBrief, q: Rea
  * Recompute the minute and hour rollups of one channel over `[fromMs, toMs)` (widened to
  * whole hours) from the raw rows. Idempotent; use after loading readings in bulk.
  */
-export async function rebuildRollups(pool: pg.Pool, channelId: number, fromMs: number, toMs: number): Promise<void> {
+export async function rebuildRollups(sequelize: Sequelize, channelId: number, fromMs: number, toMs: number): Promise<void> {
   const from = Math.floor(fromMs / HOUR_MS) * HOUR_MS;
   const to = Math.ceil(toMs / HOUR_MS) * HOUR_MS;
-  const client = await pool.connect();
-  try {
-    await client.query('begin');
+  await sequelize.transaction(async (transaction) => {
     for (const [table, width] of [
       ['readings_1m', '1 minute'],
       ['readings_1h', '1 hour'],
     ] as const) {
-      await client.query(
+      await sequelize.query(
         `delete from ${table} where channel_id = $1 and bucket >= to_timestamp($2::float8 / 1000) and bucket < to_timestamp($3::float8 / 1000)`,
-        [channelId, from, to],
+        { bind: [channelId, from, to], transaction, type: QueryTypes.BULKDELETE },
       );
-      await client.query(
+      await sequelize.query(
         `insert into ${table}(channel_id, bucket, vmin, vmax, vsum, n)
          select channel_id, date_bin('${width}', ts, 'epoch'::timestamptz), min(value), max(value), sum(value), count(*)
            from readings where channel_id = $1 and ts >= to_timestamp($2::float8 / 1000) and ts < to_timestamp($3::float8 / 1000)
           group by 1, 2`,
-        [channelId, from, to],
+        { bind: [channelId, from, to], transaction, type: QueryTypes.INSERT },
       );
     }
-    await client.query('commit');
-  } catch (e) {
-    await client.query('rollback').catch(() => {});
-    throw e;
-  } finally {
-    client.release();
-  }
+  });
 }
 
-export async function retentionSettings(pool: pg.Pool): Promise<RetentionSettings | null> {
-  const { rows } = await pool.query<{ value: unknown }>(`select value from site_settings where key = 'retention'`);
+export async function retentionSettings(sequelize: Sequelize): Promise<RetentionSettings | null> {
+  const rows = await sequelize.query<{ value: unknown }>(`select value from site_settings where key = 'retention'`, {
+    type: QueryTypes.SELECT,
+  });
   const r = RetentionSettingsSchema.safeParse(rows[0]?.value);
   return r.success ? r.data : null;
 }
@@ -169,55 +165,51 @@ export interface RetentionResult {
  *    (when set) and refused messages older than `rejectionDays` are deleted.
  * A channel's raw retention is `rawDaysByKind[kind]`, else its `raw_retention_days` column.
  */
-export async function applyRetention(pool: pg.Pool, nowMs: number, settings?: RetentionSettings): Promise<RetentionResult> {
-  const s = settings ?? (await retentionSettings(pool));
+export async function applyRetention(
+  sequelize: Sequelize,
+  nowMs: number,
+  settings?: RetentionSettings,
+): Promise<RetentionResult> {
+  const s = settings ?? (await retentionSettings(sequelize));
   const out: RetentionResult = { droppedPartitions: [], deletedRaw: 0, deletedMinute: 0, deletedHour: 0, deletedRejections: 0 };
   if (!s) return out;
-  const { rows: channels } = await pool.query<{ id: number; kind: string; raw_retention_days: number }>(
-    'select id, kind, raw_retention_days from channels',
-  );
-  const days = (c: { kind: string; raw_retention_days: number }) => s.rawDaysByKind[c.kind] ?? c.raw_retention_days;
+  const channels = await Channel.findAll({ attributes: ['id', 'kind', 'rawRetentionDays'], raw: true });
+  const days = (c: { kind: string; rawRetentionDays: number }) => s.rawDaysByKind[c.kind] ?? c.rawRetentionDays;
   const longest = channels.reduce((m, c) => Math.max(m, days(c)), 0);
+  const remove = (sql: string, bind: unknown[]) => sequelize.query(sql, { bind, type: QueryTypes.BULKDELETE });
   if (longest > 0) {
     const cutoff = nowMs - longest * DAY_MS;
-    const { rows: parts } = await pool.query<{ name: string; upper_ms: number }>(`
+    const parts = await sequelize.query<{ name: string; upper_ms: number }>(
+      `
       select c.relname as name,
              (extract(epoch from (regexp_match(pg_get_expr(c.relpartbound, c.oid), 'TO \\(''([^'']+)''\\)'))[1]::timestamptz) * 1000)::float8 as upper_ms
         from pg_inherits i join pg_class c on c.oid = i.inhrelid join pg_class p on p.oid = i.inhparent
-       where p.relname = 'readings'`);
+       where p.relname = 'readings'`,
+      { type: QueryTypes.SELECT },
+    );
     for (const p of parts) {
       if (p.upper_ms !== null && p.upper_ms <= cutoff && /^readings_\d{4}w\d{2}$/.test(p.name)) {
-        await pool.query(`drop table if exists "${p.name}"`);
+        await sequelize.query(`drop table if exists "${p.name}"`, { type: QueryTypes.RAW });
         out.droppedPartitions.push(p.name);
       }
     }
   }
   for (const c of channels) {
-    const r = await pool.query(`delete from readings where channel_id = $1 and ts < to_timestamp($2::float8 / 1000)`, [
+    out.deletedRaw += await remove(`delete from readings where channel_id = $1 and ts < to_timestamp($2::float8 / 1000)`, [
       c.id,
       nowMs - days(c) * DAY_MS,
     ]);
-    out.deletedRaw += r.rowCount ?? 0;
   }
-  out.deletedMinute =
-    (
-      await pool.query(`delete from readings_1m where bucket < to_timestamp($1::float8 / 1000)`, [
-        nowMs - s.minuteRollupDays * DAY_MS,
-      ])
-    ).rowCount ?? 0;
+  out.deletedMinute = await remove(`delete from readings_1m where bucket < to_timestamp($1::float8 / 1000)`, [
+    nowMs - s.minuteRollupDays * DAY_MS,
+  ]);
   if (s.hourRollupDays !== null) {
-    out.deletedHour =
-      (
-        await pool.query(`delete from readings_1h where bucket < to_timestamp($1::float8 / 1000)`, [
-          nowMs - s.hourRollupDays * DAY_MS,
-        ])
-      ).rowCount ?? 0;
+    out.deletedHour = await remove(`delete from readings_1h where bucket < to_timestamp($1::float8 / 1000)`, [
+      nowMs - s.hourRollupDays * DAY_MS,
+    ]);
   }
-  out.deletedRejections =
-    (
-      await pool.query(`delete from ingest_rejections where received_at < to_timestamp($1::float8 / 1000)`, [
-        nowMs - s.rejectionDays * DAY_MS,
-      ])
-    ).rowCount ?? 0;
+  out.deletedRejections = await IngestRejection.destroy({
+    where: { receivedAt: { [Op.lt]: new Date(nowMs - s.rejectionDays * DAY_MS) } },
+  });
   return out;
 }

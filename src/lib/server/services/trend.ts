@@ -6,7 +6,8 @@
  */
 import { stepsFromSamples, type AnnotationsResponse, type TrendEvent, type WindowSegment } from '../../shared/trend.ts';
 import type { ProcessWindowInForce } from '../../shared/windows.ts';
-import { pgPool } from '../db.ts';
+import { QueryTypes } from 'sequelize';
+import { pgPool, sequelize } from '../db.ts';
 import { windowInForce } from '../../core/window-store.ts';
 
 /** Most events one answer carries (the earliest are kept; `truncated` says when more exist). */
@@ -15,6 +16,11 @@ export const MAX_EVENTS = 3000;
 const RAW_DOOR_RANGE_MS = 2 * 86_400_000;
 
 const at = (ms: number) => new Date(ms);
+
+/** One read-only statement with bind parameters through the web app's Sequelize instance. */
+function select<T extends object>(sql: string, bind: unknown[]): Promise<T[]> {
+  return sequelize().query<T>(sql, { bind, type: QueryTypes.SELECT });
+}
 
 export interface TrendChannel {
   id: number;
@@ -30,7 +36,7 @@ export interface TrendChannel {
 
 /** One channel with its asset and top-level asset (line, oven, coater), or null. */
 export async function trendChannel(id: number): Promise<TrendChannel | null> {
-  const { rows } = await pgPool().query<TrendChannel>(
+  const rows = await select<TrendChannel>(
     `with recursive up(id, parent_id, depth) as (
        select a.id, a.parent_id, 0 from channels c join assets a on a.id = c.asset_id where c.id = $1
        union all select a.id, a.parent_id, up.depth + 1 from assets a join up on a.id = up.parent_id where up.depth < 16)
@@ -44,8 +50,7 @@ export async function trendChannel(id: number): Promise<TrendChannel | null> {
 
 /** The windows in force for the channel's asset over [from, to): evaluated at the start and at every change instant inside. */
 async function windowSegments(assetId: number, from: number, to: number): Promise<WindowSegment[]> {
-  const pool = pgPool();
-  const { rows } = await pool.query<{ t: number }>(
+  const rows = await select<{ t: number }>(
     `with recursive up(id, parent_id, depth) as (
        select id, parent_id, 0 from assets where id = $1
        union all select a.id, a.parent_id, up.depth + 1 from assets a join up on a.id = up.parent_id where up.depth < 16),
@@ -58,7 +63,7 @@ async function windowSegments(assetId: number, from: number, to: number): Promis
     [assetId, at(from), at(to)],
   );
   const samples: { tMs: number; value: ProcessWindowInForce | null }[] = [];
-  for (const tMs of [from, ...rows.map((r) => r.t)]) samples.push({ tMs, value: await windowInForce(pool, assetId, tMs) });
+  for (const tMs of [from, ...rows.map((r) => r.t)]) samples.push({ tMs, value: await windowInForce(pgPool(), assetId, tMs) });
   return stepsFromSamples(samples, from, to, (a, b) => (a?.id ?? null) === (b?.id ?? null)).map((s) => ({
     fromMs: s.fromMs,
     toMs: s.toMs,
@@ -79,9 +84,8 @@ const secondsWords = (s: number) => (s < 90 ? `${Math.round(s)} s` : `${Math.rou
 
 /** Door openings of one door channel in [from, to] (value ≥ 0.5 = open). */
 async function doorOpenings(doorId: number, from: number, to: number): Promise<TrendEvent[]> {
-  const pool = pgPool();
   if (to - from <= RAW_DOOR_RANGE_MS) {
-    const { rows } = await pool.query<{ t: number; open: boolean }>(
+    const rows = await select<{ t: number; open: boolean }>(
       `select t, open from (
          select (extract(epoch from ts) * 1000)::float8 as t, value >= 0.5 as open, lag(value >= 0.5) over (order by ts) as was
            from readings where channel_id = $1 and ts >= $2 and ts <= $3) x
@@ -104,7 +108,7 @@ async function doorOpenings(doorId: number, from: number, to: number): Promise<T
     return out;
   }
   // Long ranges: runs of consecutive minutes in which the door was open at some point.
-  const { rows } = await pool.query<{ t: number; minutes: number }>(
+  const rows = await select<{ t: number; minutes: number }>(
     `select (extract(epoch from min(b)) * 1000)::float8 as t, count(*)::int as minutes from (
        select bucket as b, bucket - (row_number() over (order by bucket)) * interval '1 minute' as grp
          from readings_1m where channel_id = $1 and bucket >= $2 and bucket <= $3 and vmax >= 0.5) x
@@ -123,12 +127,11 @@ async function doorOpenings(doorId: number, from: number, to: number): Promise<T
 
 /** Window stretches and events for a channel's trend over [from, to]; null when the channel does not exist. */
 export async function channelAnnotations(channelId: number, from: number, to: number): Promise<AnnotationsResponse | null> {
-  const pool = pgPool();
   const ch = await trendChannel(channelId);
   if (!ch) return null;
   const [windows, alarms, additions, filters, loads, doors] = await Promise.all([
     windowSegments(ch.assetId, from, to),
-    pool.query<{ t: number; priority: 'high' | 'medium' | 'low'; message: string; source_label: string; state: string }>(
+    select<{ t: number; priority: 'high' | 'medium' | 'low'; message: string; source_label: string; state: string }>(
       `with recursive up(id, parent_id, depth) as (
          select id, parent_id, 0 from assets where id = $2
          union all select a.id, a.parent_id, up.depth + 1 from assets a join up on a.id = up.parent_id where up.depth < 16)
@@ -138,21 +141,21 @@ export async function channelAnnotations(channelId: number, from: number, to: nu
         order by raised_at limit ${MAX_EVENTS}`,
       [channelId, ch.assetId, at(from), at(to)],
     ),
-    pool.query<{ t: number; kind: 'solvent' | 'fresh-lacquer'; mass_kg: number; by_label: string; tank: string }>(
+    select<{ t: number; kind: 'solvent' | 'fresh-lacquer'; mass_kg: number; by_label: string; tank: string }>(
       `with recursive down(id) as (select $1::int union all select a.id from assets a join down on a.parent_id = down.id)
        select (extract(epoch from b.at) * 1000)::float8 as t, b.kind, b.mass_kg, b.by_label, a.name as tank
          from bath_additions b join assets a on a.id = b.tank_asset_id
         where b.tank_asset_id in (select id from down) and b.at >= $2 and b.at <= $3 order by b.at limit ${MAX_EVENTS}`,
       [ch.topAssetId, at(from), at(to)],
     ),
-    pool.query<{ t: number; filter_type: string; rating_um: number | null; by_label: string; tank: string }>(
+    select<{ t: number; filter_type: string; rating_um: number | null; by_label: string; tank: string }>(
       `with recursive down(id) as (select $1::int union all select a.id from assets a join down on a.parent_id = down.id)
        select (extract(epoch from f.at) * 1000)::float8 as t, f.filter_type, f.rating_um, f.by_label, a.name as tank
          from filter_changes f join assets a on a.id = f.tank_asset_id
         where f.tank_asset_id in (select id from down) and f.at >= $2 and f.at <= $3 order by f.at limit ${MAX_EVENTS}`,
       [ch.topAssetId, at(from), at(to)],
     ),
-    pool.query<{ id: number; opened: number; closed: number | null; opened_by: string; verdict: string | null }>(
+    select<{ id: number; opened: number; closed: number | null; opened_by: string; verdict: string | null }>(
       `select id, (extract(epoch from opened_at) * 1000)::float8 as opened, (extract(epoch from closed_at) * 1000)::float8 as closed,
               opened_by, verdict
          from oven_loads
@@ -161,7 +164,7 @@ export async function channelAnnotations(channelId: number, from: number, to: nu
       [ch.topAssetId, at(from), at(to)],
     ),
     (async () => {
-      const { rows } = await pool.query<{ id: number }>(
+      const rows = await select<{ id: number }>(
         `with recursive down(id) as (select $1::int union all select a.id from assets a join down on a.parent_id = down.id)
          select id from channels where kind = 'door' and asset_id in (select id from down)`,
         [ch.topAssetId],
@@ -171,7 +174,7 @@ export async function channelAnnotations(channelId: number, from: number, to: nu
   ]);
 
   const events: TrendEvent[] = [
-    ...alarms.rows.map(
+    ...alarms.map(
       (r): TrendEvent => ({
         tMs: r.t,
         kind: 'alarm',
@@ -180,7 +183,7 @@ export async function channelAnnotations(channelId: number, from: number, to: nu
         priority: r.priority,
       }),
     ),
-    ...additions.rows.map(
+    ...additions.map(
       (r): TrendEvent => ({
         tMs: r.t,
         kind: r.kind === 'solvent' ? 'solvent-addition' : 'lacquer-addition',
@@ -188,7 +191,7 @@ export async function channelAnnotations(channelId: number, from: number, to: nu
         detail: `by ${r.by_label}`,
       }),
     ),
-    ...filters.rows.map(
+    ...filters.map(
       (r): TrendEvent => ({
         tMs: r.t,
         kind: 'filter-change',
@@ -196,7 +199,7 @@ export async function channelAnnotations(channelId: number, from: number, to: nu
         detail: `by ${r.by_label}`,
       }),
     ),
-    ...loads.rows.flatMap((r): TrendEvent[] => {
+    ...loads.flatMap((r): TrendEvent[] => {
       const out: TrendEvent[] = [];
       if (r.opened >= from && r.opened <= to)
         out.push({

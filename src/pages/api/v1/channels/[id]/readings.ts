@@ -1,5 +1,5 @@
 import type { APIRoute } from 'astro';
-import { pgPool } from '../../../../../lib/server/db.ts';
+import { sequelize } from '../../../../../lib/server/db.ts';
 import { requireRole } from '../../../../../lib/server/guard.ts';
 import { HttpProblem, idParam, readQuery } from '../../../../../lib/server/http.ts';
 import { channelBrief, queryReadings } from '../../../../../lib/core/readings-store.ts';
@@ -29,7 +29,7 @@ export const GET: APIRoute = async ({ locals, params, url }) => {
   requireRole(locals, contract.GET.action);
   const id = idParam(params['id'], 'channel');
   const q = readQuery(url, contract.GET.query);
-  const channel = await channelBrief(pgPool(), id);
+  const channel = await channelBrief(sequelize(), id);
   if (!channel) throw new HttpProblem(404, 'Not found', 'No such channel.');
-  return Response.json(await queryReadings(pgPool(), channel, q), { headers: { 'cache-control': 'no-store' } });
+  return Response.json(await queryReadings(sequelize(), channel, q), { headers: { 'cache-control': 'no-store' } });
 };
