@@ -11,8 +11,38 @@ import { PasswordReset } from './password-reset.ts';
 import { Site } from './site.ts';
 import { User } from './user.ts';
 import { UserSession } from './user-session.ts';
+import { Alarm } from './alarm.ts';
+import { AlarmEvent } from './alarm-event.ts';
+import { AlarmConfig } from './alarm-config.ts';
+import { Characteristic } from './characteristic.ts';
+import { LimitSet } from './limit-set.ts';
+import { SpcPoint } from './spc-point.ts';
+import { SiteSetting } from './site-setting.ts';
+import { ProcessWindow } from './process-window.ts';
+import { WindowAssignment } from './window-assignment.ts';
 
-export { ApiToken, Asset, AuditEntry, Channel, Device, LoginThrottle, OutboxMail, PasswordReset, Site, User, UserSession };
+export {
+  ApiToken,
+  Asset,
+  AuditEntry,
+  Channel,
+  Device,
+  LoginThrottle,
+  OutboxMail,
+  PasswordReset,
+  Site,
+  User,
+  UserSession,
+  Alarm,
+  AlarmEvent,
+  AlarmConfig,
+  Characteristic,
+  LimitSet,
+  SpcPoint,
+  SiteSetting,
+  ProcessWindow,
+  WindowAssignment,
+};
 export type { RoleName } from './user.ts';
 export type { AssetKind } from './asset.ts';
 export type { SignatureRecord } from './audit-entry.ts';
@@ -34,6 +64,15 @@ export function initModels(sequelize: Sequelize): void {
     Site,
     User,
     UserSession,
+    Alarm,
+    AlarmEvent,
+    AlarmConfig,
+    Characteristic,
+    LimitSet,
+    SpcPoint,
+    SiteSetting,
+    ProcessWindow,
+    WindowAssignment,
   ]) {
     m.initModel(sequelize);
   }
@@ -46,4 +85,23 @@ export function initModels(sequelize: Sequelize): void {
   Device.belongsTo(Site, { foreignKey: 'siteId' });
   UserSession.belongsTo(User, { foreignKey: 'userId' });
   ApiToken.belongsTo(User, { as: 'creator', foreignKey: 'createdBy' });
+  Alarm.belongsTo(User, { as: 'acker', foreignKey: 'ackedBy' });
+  Alarm.belongsTo(Asset, { foreignKey: 'assetId' });
+  Alarm.hasMany(AlarmEvent, { as: 'events', foreignKey: 'alarmId' });
+  AlarmEvent.belongsTo(Alarm, { foreignKey: 'alarmId' });
+  AlarmEvent.belongsTo(User, { foreignKey: 'userId' });
+  AlarmConfig.belongsTo(Channel, { foreignKey: 'channelId' });
+  AlarmConfig.belongsTo(Characteristic, { foreignKey: 'characteristicId' });
+  AlarmConfig.belongsTo(User, { as: 'editor', foreignKey: 'updatedBy' });
+  Characteristic.belongsTo(Asset, { foreignKey: 'assetId' });
+  Characteristic.hasMany(LimitSet, { foreignKey: 'characteristicId' });
+  Characteristic.hasMany(SpcPoint, { foreignKey: 'characteristicId' });
+  LimitSet.belongsTo(Characteristic, { foreignKey: 'characteristicId' });
+  SpcPoint.belongsTo(Characteristic, { foreignKey: 'characteristicId' });
+  SpcPoint.belongsTo(LimitSet, { foreignKey: 'limitSetId' });
+  ProcessWindow.belongsTo(User, { as: 'creator', foreignKey: 'createdBy' });
+  ProcessWindow.belongsTo(User, { as: 'approver', foreignKey: 'approvedBy' });
+  WindowAssignment.belongsTo(ProcessWindow, { as: 'window', foreignKey: 'windowId' });
+  WindowAssignment.belongsTo(Asset, { foreignKey: 'assetId' });
+  WindowAssignment.belongsTo(User, { as: 'assigner', foreignKey: 'assignedBy' });
 }

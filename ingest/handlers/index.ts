@@ -7,7 +7,7 @@
 import type pg from 'pg';
 import type { Sequelize } from 'sequelize';
 import { retentionHandler } from './retention.ts';
-import { alarmsHandler } from './alarms.ts';
+import { alarmsHandler } from './alarms/index.ts';
 import { ovenLoadsHandler } from './oven-loads.ts';
 import { spcHandler } from './spc.ts';
 

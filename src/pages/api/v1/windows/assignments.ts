@@ -3,7 +3,6 @@ import { z } from 'zod';
 import { requireRole } from '../../../../lib/server/guard.ts';
 import { readJson, readQuery } from '../../../../lib/server/http.ts';
 import { assignWindow, listAssignments } from '../../../../lib/server/services/windows.ts';
-import { pgPool } from '../../../../lib/server/db.ts';
 import { WindowAssignSchema } from '../../../../lib/shared/windows.ts';
 
 const Query = z.object({ assetId: z.coerce.number().int().positive().optional() });
@@ -12,7 +11,7 @@ const Query = z.object({ assetId: z.coerce.number().int().positive().optional() 
 export const GET: APIRoute = async ({ locals, url }) => {
   requireRole(locals, 'view');
   const { assetId } = readQuery(url, Query);
-  return Response.json(await listAssignments(pgPool(), assetId));
+  return Response.json(await listAssignments(assetId));
 };
 
 /** Assign an approved window to a line/oven from a time on (engineer; audited). */

@@ -1,9 +1,8 @@
 import type { APIRoute } from 'astro';
 import { z } from 'zod';
-import { pgPool } from '../../../../lib/server/db.ts';
 import { requireRole } from '../../../../lib/server/guard.ts';
 import { HttpProblem, readQuery } from '../../../../lib/server/http.ts';
-import { windowInForce } from '../../../../lib/core/window-store.ts';
+import { windowInForce } from '../../../../lib/server/services/windows.ts';
 
 const Query = z.object({
   assetId: z.coerce.number({ error: 'assetId must be a number.' }).int().positive('assetId must be a positive id.'),
@@ -14,7 +13,7 @@ const Query = z.object({
 export const GET: APIRoute = async ({ locals, url }) => {
   requireRole(locals, 'view');
   const { assetId, at } = readQuery(url, Query);
-  const w = await windowInForce(pgPool(), assetId, at ? Date.parse(at) : Date.now());
+  const w = await windowInForce(assetId, at ? Date.parse(at) : Date.now());
   if (!w)
     throw new HttpProblem(
       404,
