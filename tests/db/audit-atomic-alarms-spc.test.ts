@@ -317,7 +317,7 @@ describe('process windows', () => {
     const [m] = await select<{ id: number }>(
       seq,
       `insert into materials (code, name, refractive_index) values ($1, $2, 1.5) returning id`,
-      [`AT-${run}`, `Atomic test substrate ${run}`],
+      [`at-${run}`, `Atomic test substrate ${run}`],
     );
     materialId = m!.id;
     limits = (await ProcessWindow.findOne({ order: [['id', 'ASC']] }))!.limits as ProcessWindowLimits;
