@@ -15,7 +15,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { Asset, Channel, Device } from '../../db/models/index.ts';
 import type { ChannelAlarmConfig } from '../../src/lib/core/alarm-config-store.ts';
-import { getAlarm } from '../../src/lib/core/alarm-store.ts';
+import { getAlarm, transitionAlarm } from '../../src/lib/core/alarm-store.ts';
 import { select } from '../../src/lib/core/db.ts';
 import type { AlarmView } from '../../src/lib/shared/alarm-views.ts';
 import { checkDevices } from '../../ingest/handlers/alarms/devices.ts';
@@ -194,12 +194,19 @@ describe('suppression.ts: an idle oven suppresses its only-while-running alarms'
     await evaluateReadings(rt, ctx, [reading(door.id, t0 + 3000, 0)], t0 + 3000); // closed while running: clears
     const cleared = await openAlarm(key());
     expect(cleared).toMatchObject({ state: 'rtn-unacked', active: false });
+    // Acknowledged after it cleared: back to normal (ISA-18.2), so the source has no open alarm.
+    const acked = await transitionAlarm(
+      ctx.sequelize,
+      cleared!.id,
+      { type: 'ack', comment: 'closed' },
+      { role: 'operator', userId: null, nowMs: Date.now() },
+    );
+    expect(acked.ok && acked.alarm.state).toBe('normal');
     rt.setpoints.set(ovenId, 20);
     await evaluateReadings(rt, ctx, [reading(door.id, t0 + 4000, 1), reading(door.id, t0 + 5000, 1)], t0 + 5000);
     const after = await openAlarm(key());
-    expect(after?.id).toBe(cleared?.id);
-    expect(after?.active).toBe(false);
-    expect(after?.activationCount).toBe(cleared?.activationCount);
+    expect(after?.id).toBe(cleared?.id); // no new alarm row
+    expect(after).toMatchObject({ state: 'normal', active: false, activationCount: cleared!.activationCount });
   });
 });
 

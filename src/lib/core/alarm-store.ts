@@ -413,11 +413,14 @@ export async function transitionAlarm(
   id: number,
   event: AlarmEvent,
   ctx: TransitionActor,
+  opts: { openOnly?: boolean } = {},
 ): Promise<TransitionAlarmResult> {
   return inTransaction(db, async (t) => {
     // Lock the alarm row only (the joins are read afterwards, outside the lock clause).
     const locked = await Alarm.findByPk(id, { transaction: t, lock: t.LOCK.UPDATE });
     if (!locked) return { ok: false, status: 404, reason: `alarm ${id} does not exist` };
+    // A closed occurrence (normal) is not the source's open alarm any more.
+    if (opts.openOnly && locked.state === 'normal') return { ok: false, status: 404, reason: `alarm ${id} is no longer open` };
     const before = (await viewById(t, id))!;
     const tr = transition<AlarmRecord>(recordOfView(before), event, { nowMs: ctx.nowMs, role: ctx.role });
     if (!tr.ok) return { ok: false, status: 409, reason: tr.reason };
@@ -726,8 +729,15 @@ export async function systemEventForSource(
   hint?: AlarmHint,
 ): Promise<AlarmView | null> {
   const hinted = fromHint(hint);
-  const open = hinted !== undefined ? hinted : await readOpen(pool, sourceKey);
+  const system = { role: 'system' as const, userId: null, nowMs: atMs };
+  let open = hinted !== undefined ? hinted : await readOpen(pool, sourceKey);
   if (!open) return null;
-  const r = await transitionAlarm(pool, open.id, event, { role: 'system', userId: null, nowMs: atMs });
+  let r = await transitionAlarm(pool, open.id, event, system, { openOnly: true });
+  if (!r.ok && hinted !== undefined) {
+    // The hint was stale (e.g. acknowledged back to normal on the web meanwhile): read what is open now.
+    open = await readOpen(pool, sourceKey);
+    if (!open) return null;
+    r = await transitionAlarm(pool, open.id, event, system, { openOnly: true });
+  }
   return r.ok && r.changed ? r.alarm : null;
 }
