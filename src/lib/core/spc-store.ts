@@ -58,9 +58,23 @@ export interface CharacteristicRecord {
   updatedAt: string;
 }
 
-const CHAR_COLUMNS = `id, name, description, asset_id as "assetId", channel_ids as "channelIds", subgroup_rule as "subgroupRule",
-  subgroup_size as "subgroupSize", chart, chart_params as "chartParams", rules, spec, unit, active,
-  created_at as "createdAt", updated_at as "updatedAt"`;
+const CHAR_ATTRIBUTES = [
+  'id',
+  'name',
+  'description',
+  'assetId',
+  'channelIds',
+  'subgroupRule',
+  'subgroupSize',
+  'chart',
+  'chartParams',
+  'rules',
+  'spec',
+  'unit',
+  'active',
+  'createdAt',
+  'updatedAt',
+] as const;
 
 function toCharacteristic(r: Record<string, unknown>): CharacteristicRecord {
   return {
@@ -70,20 +84,20 @@ function toCharacteristic(r: Record<string, unknown>): CharacteristicRecord {
   };
 }
 
-export async function listCharacteristicRecords(
-  pool: Queryable,
-  opts: { activeOnly?: boolean } = {},
-): Promise<CharacteristicRecord[]> {
-  const rows = await select<Record<string, unknown>>(
-    pool,
-    `select ${CHAR_COLUMNS} from characteristics ${opts.activeOnly ? 'where active' : ''} order by name`,
-  );
-  return rows.map(toCharacteristic);
+export async function listCharacteristicRecords(db: Db, opts: { activeOnly?: boolean } = {}): Promise<CharacteristicRecord[]> {
+  const rows = await Characteristic.findAll({
+    attributes: [...CHAR_ATTRIBUTES],
+    ...(opts.activeOnly ? { where: { active: true } } : {}),
+    order: [['name', 'ASC']],
+    raw: true,
+    ...txOpt(db),
+  });
+  return rows.map((r) => toCharacteristic(r as unknown as Record<string, unknown>));
 }
 
-export async function getCharacteristicRecord(pool: Queryable, id: number): Promise<CharacteristicRecord | null> {
-  const rows = await select<Record<string, unknown>>(pool, `select ${CHAR_COLUMNS} from characteristics where id = $1`, [id]);
-  return rows[0] ? toCharacteristic(rows[0]) : null;
+export async function getCharacteristicRecord(db: Db, id: number): Promise<CharacteristicRecord | null> {
+  const r = await Characteristic.findByPk(id, { attributes: [...CHAR_ATTRIBUTES], raw: true, ...txOpt(db) });
+  return r ? toCharacteristic(r as unknown as Record<string, unknown>) : null;
 }
 
 /**
@@ -162,19 +176,12 @@ export async function updateCharacteristicRow(
 
 // --- limit sets -----------------------------------------------------------------------------
 
-const LS_COLUMNS = `id, characteristic_id as "characteristicId", version, status, chart, center, ucl, lcl,
-  dispersion_center, dispersion_ucl, dispersion_lcl, sigma, n, params,
-  baseline_from as "baselineFrom", baseline_to as "baselineTo", baseline_first_index as "baselineFirstIndex",
-  baseline_last_index as "baselineLastIndex", baseline_points as "baselinePoints", excluded, suggested, capability, note,
-  effective_from as "effectiveFrom", approved_signature as "approvedSignature", approved_at as "approvedAt", seeded,
-  created_at as "createdAt"`;
-
 function iso(d: unknown): string | null {
   return d instanceof Date ? d.toISOString() : null;
 }
 
 function toLimitSet(r: Record<string, unknown>): LimitSetView {
-  const dc = r['dispersion_center'] as number | null;
+  const dc = r['dispersionCenter'] as number | null;
   const eff = r['effectiveFrom'] as Date | null;
   return {
     id: r['id'] as number,
@@ -185,7 +192,7 @@ function toLimitSet(r: Record<string, unknown>): LimitSetView {
     center: r['center'] as number,
     ucl: r['ucl'] as number,
     lcl: r['lcl'] as number,
-    dispersion: dc === null ? null : { center: dc, ucl: r['dispersion_ucl'] as number, lcl: r['dispersion_lcl'] as number },
+    dispersion: dc === null ? null : { center: dc, ucl: r['dispersionUcl'] as number, lcl: r['dispersionLcl'] as number },
     sigma: r['sigma'] as number | null,
     n: r['n'] as number,
     params: r['params'] as ChartParams,
@@ -208,18 +215,20 @@ function toLimitSet(r: Record<string, unknown>): LimitSetView {
 }
 
 /** Every limit set of a characteristic (drafts included), newest version first. */
-export async function limitSetsOf(pool: Queryable, characteristicId: number): Promise<LimitSetView[]> {
-  const rows = await select<Record<string, unknown>>(
-    pool,
-    `select ${LS_COLUMNS} from limit_sets where characteristic_id = $1 order by version desc`,
-    [characteristicId],
-  );
-  return rows.map(toLimitSet);
+export async function limitSetsOf(db: Db, characteristicId: number): Promise<LimitSetView[]> {
+  const rows = await LimitSet.findAll({
+    where: { characteristicId },
+    attributes: { exclude: ['createdBy'] },
+    order: [['version', 'DESC']],
+    raw: true,
+    ...txOpt(db),
+  });
+  return rows.map((r) => toLimitSet(r as unknown as Record<string, unknown>));
 }
 
-export async function getLimitSet(pool: Queryable, id: number): Promise<LimitSetView | null> {
-  const rows = await select<Record<string, unknown>>(pool, `select ${LS_COLUMNS} from limit_sets where id = $1`, [id]);
-  return rows[0] ? toLimitSet(rows[0]) : null;
+export async function getLimitSet(db: Db, id: number): Promise<LimitSetView | null> {
+  const r = await LimitSet.findByPk(id, { attributes: { exclude: ['createdBy'] }, raw: true, ...txOpt(db) });
+  return r ? toLimitSet(r as unknown as Record<string, unknown>) : null;
 }
 
 /** The library's limit-set shape of a stored set. */
