@@ -19,6 +19,7 @@ import { Characteristic, LimitSet } from '../../../db/models/index.ts';
 import { judgeSubgroups, historyNeeded } from '../domain/control/phase2.ts';
 import { formSubgroups, type FormedSubgroup, type SourceReading } from '../domain/control/subgroups.ts';
 import { mean, range, sampleSd } from '../domain/spc/math.ts';
+import { limitSetAt } from '../domain/series/limit-steps.ts';
 import {
   CharacteristicInputSchema,
   type ChartParams,
@@ -254,11 +255,13 @@ export function setsInForceOrder(sets: readonly LimitSetView[]): LimitSetView[] 
     .sort((a, b) => a.effectiveFromMs! - b.effectiveFromMs! || a.version - b.version);
 }
 
-/** The set in force at `tMs` among `ordered` (from `setsInForceOrder`), or null. */
+/**
+ * The set in force at `tMs` among `ordered` (from `setsInForceOrder`), or null: the domain's
+ * tested `limitSetAt` (latest effective-from ≤ t; at a tie the later in the order, i.e. the
+ * higher version, wins).
+ */
 export function setInForceAt(ordered: readonly LimitSetView[], tMs: number): LimitSetView | null {
-  let found: LimitSetView | null = null;
-  for (const s of ordered) if (s.effectiveFromMs! <= tMs) found = s;
-  return found;
+  return limitSetAt(ordered as readonly (LimitSetView & { effectiveFromMs: number })[], tMs);
 }
 
 export interface NewLimitSet {
