@@ -13,7 +13,8 @@
  * validation. Idempotent: a channel that already has settings (e.g. edited by an engineer) is
  * left alone.
  */
-import type { Sequelize } from 'sequelize';
+import { Op, type Sequelize } from 'sequelize';
+import { AlarmConfig, Asset, Channel, initModels } from '../db/models/index.ts';
 
 const NOTE = "Example default — replace with the lacquer maker's data.";
 
@@ -60,37 +61,39 @@ export const ALARM_DEFAULTS: readonly DefaultConfig[] = [
 ];
 
 export async function seedAlarmDefaults(sequelize: Sequelize, opts: { log?: (s: string) => void } = {}): Promise<number> {
+  initModels(sequelize);
   let made = 0;
   for (const d of ALARM_DEFAULTS) {
-    const [rows] = await sequelize.query(
-      `insert into alarm_configs (channel_id, enabled, limits_mode, high, low, deadband, on_delay_ms, off_delay_ms, priority,
-         only_while_running, label, stale_seconds, stale_priority, note)
-       select c.id, true, $1::text, $2::float8, $3::float8, $4::float8, $5::int, $6::int, $7::text, $8::boolean, $9::text,
-              $10::int, $11::text, $12::text
-         from channels c join assets a on a.id = c.asset_id
-        where c.key = $13 and a.code like $14
-       on conflict (channel_id) where channel_id is not null do nothing
-       returning id`,
-      {
-        bind: [
-          d.limitsMode ?? 'absolute',
-          d.high ?? null,
-          d.low ?? null,
-          d.deadband ?? 0,
-          d.onDelayMs ?? 0,
-          d.offDelayMs ?? 0,
-          d.priority ?? 'medium',
-          d.onlyWhileRunning ?? false,
-          d.label ?? null,
-          d.staleSeconds ?? null,
-          d.stalePriority ?? 'high',
-          NOTE,
-          d.channelKey,
-          d.assetLike,
-        ],
-      },
-    );
-    made += (rows as unknown[]).length;
+    const channels = await Channel.findAll({
+      attributes: ['id'],
+      where: { key: d.channelKey },
+      include: [{ model: Asset, attributes: [], required: true, where: { code: { [Op.like]: d.assetLike } } }],
+    });
+    for (const ch of channels) {
+      // A channel that already has settings keeps them (the engineer's or an earlier seed's).
+      const [, created] = await AlarmConfig.findOrCreate({
+        where: { channelId: ch.id },
+        defaults: {
+          channelId: ch.id,
+          characteristicId: null,
+          enabled: true,
+          limitsMode: d.limitsMode ?? 'absolute',
+          high: d.high ?? null,
+          low: d.low ?? null,
+          deadband: d.deadband ?? 0,
+          onDelayMs: d.onDelayMs ?? 0,
+          offDelayMs: d.offDelayMs ?? 0,
+          priority: d.priority ?? 'medium',
+          onlyWhileRunning: d.onlyWhileRunning ?? false,
+          label: d.label ?? null,
+          staleSeconds: d.staleSeconds ?? null,
+          stalePriority: d.stalePriority ?? 'high',
+          note: NOTE,
+          updatedBy: null,
+        },
+      });
+      if (created) made += 1;
+    }
   }
   if (made > 0) opts.log?.(`Seeded ${made} example alarm settings (replace with the lacquer maker's data).`);
   return made;

@@ -22,8 +22,10 @@
  * Idempotent (does nothing when any of the three exists); `unseedCharacteristics` reverses it.
  * Runs after the history seed (it needs the readings).
  */
-import pg from 'pg';
 import type { Sequelize } from 'sequelize';
+import type { SignatureRecord } from '../db/models/index.ts';
+import { auditIn, withTransaction } from '../db/transaction.ts';
+import { execute, select, type Db } from '../src/lib/core/db.ts';
 import { runStudy } from '../src/lib/domain/control/study.ts';
 import { formSubgroups, type FormedSubgroup, type SourceReading } from '../src/lib/domain/control/subgroups.ts';
 import type { CharacteristicFields } from '../src/lib/shared/characteristics.ts';
@@ -105,30 +107,18 @@ export interface SeedCharacteristicsOptions {
   nowMs?: number;
 }
 
-function poolOf(sequelize: Sequelize): pg.Pool {
-  const c = sequelize.config;
-  const pool = new pg.Pool({
-    host: c.host,
-    port: Number(c.port),
-    user: c.username,
-    password: c.password ?? undefined,
-    database: c.database,
-    max: 2,
-  });
-  pool.on('error', () => {});
-  return pool;
-}
-
-async function channelId(pool: pg.Pool, asset: string, key: string): Promise<number | null> {
-  const { rows } = await pool.query<{ id: number }>(
+async function channelId(pool: Db, asset: string, key: string): Promise<number | null> {
+  const rows = await select<{ id: number }>(
+    pool,
     `select c.id from channels c join assets a on a.id = c.asset_id where a.code = $1 and c.key = $2`,
     [asset, key],
   );
   return rows[0]?.id ?? null;
 }
 
-async function readingsOf(pool: pg.Pool, ids: number[]): Promise<SourceReading[]> {
-  const { rows } = await pool.query<SourceReading>(
+async function readingsOf(pool: Db, ids: number[]): Promise<SourceReading[]> {
+  const rows = await select<SourceReading>(
+    pool,
     `select channel_id as "channelId", (extract(epoch from ts) * 1000)::float8 as "tMs", value from readings
       where channel_id = any($1::int[]) and quality = 0 order by ts, channel_id`,
     [ids],
@@ -137,11 +127,12 @@ async function readingsOf(pool: pg.Pool, ids: number[]): Promise<SourceReading[]
 }
 
 /** Oven A's soak means: from seeded loads when they exist, else from the plant model's cycles. */
-async function soakSubgroups(pool: pg.Pool, ids: number[], nowMs: number): Promise<NewSubgroup[]> {
+async function soakSubgroups(pool: Db, ids: number[], nowMs: number): Promise<NewSubgroup[]> {
   const spans: { fromMs: number; toMs: number; endMs: number; key: string; loadId: number | null }[] = [];
-  const hasLoads = await pool.query(`select to_regclass('oven_loads') is not null as ok`).then((r) => r.rows[0]?.ok as boolean);
+  const hasLoads = (await select<{ ok: boolean }>(pool, `select to_regclass('oven_loads') is not null as ok`))[0]?.ok === true;
   if (hasLoads) {
-    const { rows } = await pool.query<{ id: number; fromMs: number; toMs: number; endMs: number }>(
+    const rows = await select<{ id: number; fromMs: number; toMs: number; endMs: number }>(
+      pool,
       `select l.id, (l.record->'soak'->>'startMs')::float8 as "fromMs", (l.record->'soak'->>'endMs')::float8 as "toMs",
               (extract(epoch from l.closed_at) * 1000)::float8 as "endMs"
          from oven_loads l join assets a on a.id = l.oven_asset_id
@@ -155,7 +146,8 @@ async function soakSubgroups(pool: pg.Pool, ids: number[], nowMs: number): Promi
     }
   }
   if (spans.length === 0) return [];
-  const { rows } = await pool.query<{ i: number; n: number; avg: number | null }>(
+  const rows = await select<{ i: number; n: number; avg: number | null }>(
+    pool,
     `select s.i, r.n::int as n, r.avg
        from unnest($2::float8[], $3::float8[]) with ordinality as s(f, t, i)
        cross join lateral (select count(*) as n, avg(value) as avg from readings
@@ -183,12 +175,15 @@ async function soakSubgroups(pool: pg.Pool, ids: number[], nowMs: number): Promi
 export async function seedCharacteristics(sequelize: Sequelize, opts: SeedCharacteristicsOptions = {}): Promise<boolean> {
   const log = opts.log ?? (() => {});
   const nowMs = opts.nowMs ?? Date.now();
-  const pool = poolOf(sequelize);
-  try {
+  const pool = sequelize;
+  {
     const names = DEMO_CHARACTERISTICS.map((d) => d.fields.name);
-    const { rows: existing } = await pool.query(`select 1 from characteristics where name = any($1::text[])`, [names]);
+    const existing = await select<Record<string, unknown>>(pool, `select 1 from characteristics where name = any($1::text[])`, [
+      names,
+    ]);
     if (existing.length > 0) return false;
-    const { rows: eng } = await pool.query<{ id: number; username: string; displayName: string }>(
+    const eng = await select<{ id: number; username: string; displayName: string }>(
+      pool,
       `select id, username, display_name as "displayName" from users where username = 'engineer'`,
     );
     const engineer = eng[0];
@@ -203,11 +198,10 @@ export async function seedCharacteristics(sequelize: Sequelize, opts: SeedCharac
       }
       const fields: CharacteristicFields = { ...d.fields, channelIds: ids };
       const assetId = (await topAssetOfChannel(pool, ids[0]!))!;
-      const client = await pool.connect();
-      try {
-        await client.query('begin');
-        const id = await insertCharacteristic(client, fields, assetId, engineer.id);
-        const c = (await getCharacteristicRecord(client, id))!;
+      const seedActor = { id: engineer.id, label: `${engineer.username} (demo seed)` };
+      await withTransaction(sequelize, async (t) => {
+        const id = await insertCharacteristic(t, fields, assetId, engineer.id);
+        const c = (await getCharacteristicRecord(t, id))!;
         let subgroups: NewSubgroup[];
         if (fields.subgroupRule.kind === 'per-oven-load') {
           subgroups = await soakSubgroups(pool, ids, nowMs);
@@ -221,14 +215,10 @@ export async function seedCharacteristics(sequelize: Sequelize, opts: SeedCharac
           );
           subgroups = formed.map((f) => ({ ...f, readings: f.readings.map((r) => ({ c: r.channelId, t: r.tMs, v: r.value })) }));
         }
-        await pool.query(
-          `insert into audit_log (actor_id, actor_label, action, entity, entity_id, after) values ($1, $2, 'characteristic.create', 'characteristic', $3, $4)`,
-          [engineer.id, `${engineer.username} (demo seed)`, String(id), JSON.stringify(fields)],
-        );
+        await auditIn(t, seedActor, { action: 'characteristic.create', entity: 'characteristic', entityId: id, after: fields });
         if (subgroups.length < 2) {
-          await client.query('commit');
           log(`SPC seed: ${fields.name} has no history to study (${subgroups.length} points).`);
-          continue;
+          return;
         }
         const firstMs = subgroups[0]!.tMs;
         const baselineEnd = firstMs + BASELINE_DAYS * 86_400_000;
@@ -248,7 +238,7 @@ export async function seedCharacteristics(sequelize: Sequelize, opts: SeedCharac
           baseline.map((s) => s.values),
           new Set(exclusions.map((e) => e.index)),
         );
-        const draft = await insertDraftLimitSet(client, {
+        const draft = await insertDraftLimitSet(t, {
           characteristicId: id,
           chart: c.chart,
           limitSet: study.limitSet,
@@ -272,60 +262,45 @@ export async function seedCharacteristics(sequelize: Sequelize, opts: SeedCharac
           signedAt: new Date(nowMs).toISOString(),
           seeded: true,
         };
-        const approved = await approveLimitSetRow(client, draft.id, signature, firstMs, true);
+        const approved = await approveLimitSetRow(t, draft.id, signature, firstMs, true);
         const rows = await judgeForStorage(c, subgroups, null, [approved], async () => []);
-        for (let i = 0; i < rows.length; i += 2000) await insertPointRows(client, rows.slice(i, i + 2000));
-        await client.query(
+        for (let i = 0; i < rows.length; i += 2000) await insertPointRows(t, rows.slice(i, i + 2000));
+        await execute(
+          t,
           `update spc_points p set excluded = true, exclusion_reason = x.reason from unnest($2::int[], $3::text[]) as x(idx, reason)
             where p.characteristic_id = $1 and p.idx = x.idx`,
           [id, exclusions.map((e) => e.index), exclusions.map((e) => `${e.reason} (limit set v${approved.version})`)],
         );
-        await client.query(
-          `insert into audit_log (actor_id, actor_label, action, entity, entity_id, after, signature) values ($1, $2, 'limits.approve', 'limit-set', $3, $4, $5)`,
-          [
-            engineer.id,
-            `${engineer.username} (demo seed)`,
-            String(approved.id),
-            JSON.stringify({
-              characteristicId: id,
-              version: approved.version,
-              center: approved.center,
-              ucl: approved.ucl,
-              lcl: approved.lcl,
-              sigma: approved.sigma,
-              effectiveFrom: approved.effectiveFrom,
-              excluded: exclusions.length,
-              seeded: true,
-            }),
-            JSON.stringify(signature),
-          ],
-        );
-        await client.query('commit');
+        await auditIn(t, seedActor, {
+          action: 'limits.approve',
+          entity: 'limit-set',
+          entityId: approved.id,
+          after: {
+            characteristicId: id,
+            version: approved.version,
+            center: approved.center,
+            ucl: approved.ucl,
+            lcl: approved.lcl,
+            sigma: approved.sigma,
+            effectiveFrom: approved.effectiveFrom,
+            excluded: exclusions.length,
+            seeded: true,
+          },
+          signature: signature as SignatureRecord,
+        });
         log(
           `SPC seed: ${fields.name}: ${rows.length} points, limits v${approved.version} from ${baseline.length} baseline points (${exclusions.length} excluded).`,
         );
-      } catch (e) {
-        await client.query('rollback').catch(() => {});
-        throw e;
-      } finally {
-        client.release();
-      }
+      });
     }
     log(`SPC seed took ${Date.now() - started} ms.`);
     return true;
-  } finally {
-    await pool.end();
   }
 }
 
 /** Remove what `seedCharacteristics` created (its characteristics, their limit sets and points). */
 export async function unseedCharacteristics(sequelize: Sequelize): Promise<void> {
-  const pool = poolOf(sequelize);
-  try {
-    await pool.query(`delete from characteristics where name = any($1::text[])`, [
-      DEMO_CHARACTERISTICS.map((d) => d.fields.name),
-    ]);
-  } finally {
-    await pool.end();
-  }
+  await execute(sequelize, `delete from characteristics where name = any($1::text[])`, [
+    DEMO_CHARACTERISTICS.map((d) => d.fields.name),
+  ]);
 }

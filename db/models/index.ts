@@ -19,15 +19,54 @@ import { BathCheck } from './bath-check.ts';
 import { BathAddition } from './bath-addition.ts';
 import { FilterChange } from './filter-change.ts';
 import { OvenSurvey } from './oven-survey.ts';
-
-export { ApiToken, Asset, AuditEntry, Channel, Device, LoginThrottle, OutboxMail, PasswordReset, Site, User, UserSession };
-export { Material, Lacquer, LacquerLot, BathCharge, BathCheck, BathAddition, FilterChange, OvenSurvey };
 import { IngestRejection } from './ingest-rejection.ts';
 import { UnknownChannel } from './unknown-channel.ts';
 import { IngestStatus } from './ingest-status.ts';
 import { DeviceEvent } from './device-event.ts';
+import { Alarm } from './alarm.ts';
+import { AlarmEvent } from './alarm-event.ts';
+import { AlarmConfig } from './alarm-config.ts';
+import { Characteristic } from './characteristic.ts';
+import { LimitSet } from './limit-set.ts';
+import { SpcPoint } from './spc-point.ts';
+import { SiteSetting } from './site-setting.ts';
+import { ProcessWindow } from './process-window.ts';
+import { WindowAssignment } from './window-assignment.ts';
 
-export { IngestRejection, UnknownChannel, IngestStatus, DeviceEvent };
+export {
+  ApiToken,
+  Asset,
+  AuditEntry,
+  Channel,
+  Device,
+  LoginThrottle,
+  OutboxMail,
+  PasswordReset,
+  Site,
+  User,
+  UserSession,
+  Material,
+  Lacquer,
+  LacquerLot,
+  BathCharge,
+  BathCheck,
+  BathAddition,
+  FilterChange,
+  OvenSurvey,
+  IngestRejection,
+  UnknownChannel,
+  IngestStatus,
+  DeviceEvent,
+  Alarm,
+  AlarmEvent,
+  AlarmConfig,
+  Characteristic,
+  LimitSet,
+  SpcPoint,
+  SiteSetting,
+  ProcessWindow,
+  WindowAssignment,
+};
 export type { RoleName } from './user.ts';
 export type { AssetKind } from './asset.ts';
 export type { SignatureRecord } from './audit-entry.ts';
@@ -61,6 +100,15 @@ export function initModels(sequelize: Sequelize): void {
     UnknownChannel,
     IngestStatus,
     DeviceEvent,
+    Alarm,
+    AlarmEvent,
+    AlarmConfig,
+    Characteristic,
+    LimitSet,
+    SpcPoint,
+    SiteSetting,
+    ProcessWindow,
+    WindowAssignment,
   ]) {
     m.initModel(sequelize);
   }
@@ -89,4 +137,23 @@ export function initModels(sequelize: Sequelize): void {
   OvenSurvey.belongsTo(User, { as: 'recorder', foreignKey: 'recordedBy' });
   UnknownChannel.belongsTo(Device, { foreignKey: 'deviceId' });
   DeviceEvent.belongsTo(Device, { foreignKey: 'deviceId' });
+  Alarm.belongsTo(User, { as: 'acker', foreignKey: 'ackedBy' });
+  Alarm.belongsTo(Asset, { foreignKey: 'assetId' });
+  Alarm.hasMany(AlarmEvent, { as: 'events', foreignKey: 'alarmId' });
+  AlarmEvent.belongsTo(Alarm, { foreignKey: 'alarmId' });
+  AlarmEvent.belongsTo(User, { foreignKey: 'userId' });
+  AlarmConfig.belongsTo(Channel, { foreignKey: 'channelId' });
+  AlarmConfig.belongsTo(Characteristic, { foreignKey: 'characteristicId' });
+  AlarmConfig.belongsTo(User, { as: 'editor', foreignKey: 'updatedBy' });
+  Characteristic.belongsTo(Asset, { foreignKey: 'assetId' });
+  Characteristic.hasMany(LimitSet, { foreignKey: 'characteristicId' });
+  Characteristic.hasMany(SpcPoint, { foreignKey: 'characteristicId' });
+  LimitSet.belongsTo(Characteristic, { foreignKey: 'characteristicId' });
+  SpcPoint.belongsTo(Characteristic, { foreignKey: 'characteristicId' });
+  SpcPoint.belongsTo(LimitSet, { foreignKey: 'limitSetId' });
+  ProcessWindow.belongsTo(User, { as: 'creator', foreignKey: 'createdBy' });
+  ProcessWindow.belongsTo(User, { as: 'approver', foreignKey: 'approvedBy' });
+  WindowAssignment.belongsTo(ProcessWindow, { as: 'window', foreignKey: 'windowId' });
+  WindowAssignment.belongsTo(Asset, { foreignKey: 'assetId' });
+  WindowAssignment.belongsTo(User, { as: 'assigner', foreignKey: 'assignedBy' });
 }

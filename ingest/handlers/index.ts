@@ -7,7 +7,7 @@
  * add one line per handler below.
  */
 import { retentionHandler } from './retention.ts';
-import { alarmsHandler } from './alarms.ts';
+import { alarmsHandler } from './alarms/index.ts';
 import { ovenLoadsHandler } from './oven-loads.ts';
 import { spcHandler } from './spc.ts';
 import type { PostCommitHandler } from './types.ts';

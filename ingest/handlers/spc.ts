@@ -43,7 +43,7 @@ const nextWindowEnd = new Map<number, number>();
 async function refresh(ctx: WorkerContext, nowMs: number, force = false): Promise<void> {
   if (!force && nowMs - refreshedAt < REFRESH_MS) return;
   refreshedAt = nowMs;
-  characteristics = await listCharacteristicRecords(ctx.pool, { activeOnly: true });
+  characteristics = await listCharacteristicRecords(ctx.sequelize, { activeOnly: true });
   byChannel = new Map();
   for (const c of characteristics) {
     for (const ch of c.channelIds) {
@@ -82,7 +82,7 @@ async function afterPoints(ctx: WorkerContext, c: CharacteristicRecord, points: 
     if (p.violations.length > 0) {
       const above = p.ucl !== null && p.value > p.ucl;
       const below = p.lcl !== null && p.value < p.lcl;
-      const raised = await raiseAlarm(ctx.pool, {
+      const raised = await raiseAlarm(ctx.sequelize, {
         sourceKind: 'spc',
         sourceKey,
         sourceLabel: c.name,
@@ -95,27 +95,27 @@ async function afterPoints(ctx: WorkerContext, c: CharacteristicRecord, points: 
         limit: above ? p.ucl : below ? p.lcl : null,
         atMs: p.tMs,
       });
-      const view = await getAlarm(ctx.pool, raised.id);
+      const view = await getAlarm(ctx.sequelize, raised.id);
       if (view) ctx.publishLive('alarms', liveAlarmPayload(view));
     } else if (p.limitSetId !== null) {
-      const cleared = await clearAlarmReturning(ctx.pool, sourceKey, p.tMs);
+      const cleared = await clearAlarmReturning(ctx.sequelize, sourceKey, p.tMs);
       if (cleared) ctx.publishLive('alarms', liveAlarmPayload(cleared));
     }
   }
 }
 
 async function advance(ctx: WorkerContext, c: CharacteristicRecord, nowMs: number): Promise<void> {
-  const points = await advanceCharacteristic(ctx.pool, c, nowMs);
+  const points = await advanceCharacteristic(ctx.sequelize, c, nowMs);
   if (points.length > 0) await afterPoints(ctx, c, points);
 }
 
 async function advanceLoads(ctx: WorkerContext, c: CharacteristicRecord): Promise<void> {
-  const last = await lastPointOf(ctx.pool, c.id);
+  const last = await lastPointOf(ctx.sequelize, c.id);
   // Without points yet, only loads closed since the characteristic was created (its back-fill
   // plotted the earlier ones it was asked for).
-  const pending = await pendingLoadSubgroups(ctx.pool, c, last?.tMs ?? Date.parse(c.createdAt));
+  const pending = await pendingLoadSubgroups(ctx.sequelize, c, last?.tMs ?? Date.parse(c.createdAt));
   if (pending.length === 0) return;
-  const points = await recordSubgroups(ctx.pool, c, pending);
+  const points = await recordSubgroups(ctx.sequelize, c, pending);
   if (points.length > 0) await afterPoints(ctx, c, points);
 }
 

@@ -12,6 +12,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { clearAlarm, raiseAlarm } from '../../src/lib/core/alarm-store.ts';
 import { api, signIn, type Session } from '../support/http.ts';
+import { closeTestSequelize, testSequelize } from '../support/sequelize.ts';
 import {
   channelIdOf,
   closeAlarmHelpers,
@@ -61,6 +62,7 @@ afterAll(async () => {
     },
   });
   await closeAlarmHelpers();
+  await closeTestSequelize();
 });
 
 describe('raise over MQTT, see it on the API and live', () => {
@@ -426,18 +428,18 @@ describe('alarm settings and health', () => {
       json: { enabled: false, priority: 'low' },
     });
     expect(off.status).toBe(200);
-    expect(await raiseAlarm(testDb(), input)).toEqual({ id: 0, created: false });
+    expect(await raiseAlarm(testSequelize(), input)).toEqual({ id: 0, created: false });
 
     await api(`/api/v1/alarm-configs/characteristics/${charId}`, {
       method: 'PUT',
       session: engineer,
       json: { enabled: true, priority: 'high' },
     });
-    const raised = await raiseAlarm(testDb(), { ...input, atMs: Date.now() });
+    const raised = await raiseAlarm(testSequelize(), { ...input, atMs: Date.now() });
     expect(raised.created).toBe(true);
     expect((await api(`/api/v1/alarms/${raised.id}`, { session: viewer })).body.priority).toBe('high');
 
-    await clearAlarm(testDb(), input.sourceKey, Date.now());
+    await clearAlarm(testSequelize(), input.sourceKey, Date.now());
     await api(`/api/v1/alarms/${raised.id}/ack`, { method: 'POST', session: operator, json: { comment: 'test alarm' } });
     await api(`/api/v1/alarm-configs/characteristics/${charId}`, {
       method: 'PUT',

@@ -9,6 +9,7 @@ import pg from 'pg';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { demoDevicePassword } from '../../seeds/demo-plant.ts';
 import { recordLoadSubgroup } from '../../src/lib/core/spc-store.ts';
+import { closeTestSequelize, testSequelize } from '../support/sequelize.ts';
 import { waitFor } from '../support/ingest-harness.ts';
 import { api, signIn, type Session } from '../support/http.ts';
 import { TEST_DEVICE_SECRET, TEST_PASSWORD } from '../support/test-stack.ts';
@@ -46,6 +47,7 @@ beforeAll(async () => {
 afterAll(async () => {
   await client?.endAsync();
   await pool?.end();
+  await closeTestSequelize();
 });
 
 const publish = (tMs: number, v: number) => client.publishAsync(topic, JSON.stringify({ t: tMs, v }), { qos: 1 });
@@ -271,9 +273,9 @@ describe('per oven load', () => {
     );
     const loadId = load.rows[0]!.id;
     const tMs = Date.now() + 180_000;
-    const p = await recordLoadSubgroup(pool, loadChar, loadId, [109, 110, 111], { tMs });
+    const p = await recordLoadSubgroup(testSequelize(), loadChar, loadId, [109, 110, 111], { tMs });
     expect(p?.value).toBeCloseTo(110, 9); // (109 + 110 + 111)/3
     expect(p?.ovenLoadId).toBe(loadId);
-    expect(await recordLoadSubgroup(pool, loadChar, loadId, [109, 110, 111], { tMs: tMs + 1 })).toBeNull();
+    expect(await recordLoadSubgroup(testSequelize(), loadChar, loadId, [109, 110, 111], { tMs: tMs + 1 })).toBeNull();
   });
 });

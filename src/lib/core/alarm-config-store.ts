@@ -1,11 +1,12 @@
 /**
- * Alarm settings in PostgreSQL (worker-safe: `pg.Pool` parameter, no Astro env): the
+ * Alarm settings in PostgreSQL (worker-safe: takes the Sequelize instance or a transaction, no Astro env; records through the
+ * `AlarmConfig` and `SiteSetting` models): the
  * per-channel limit / stale-data configs (`alarm_configs`) and, in `site_settings`, the
  * escalation rules per priority (`alarmEscalation`) and the on-shift engineer's e-mail
  * (`onShiftEngineerEmail`). Read by the ingest worker's alarm sources and written by the
  * engineer's settings endpoints.
  */
-import type pg from 'pg';
+import { AlarmConfig, Asset, Channel, Characteristic, User } from '../../../db/models/index.ts';
 import type { AlarmPriority, EscalationRule } from '../shared/alarms.ts';
 import { EscalationRuleSchema } from '../shared/alarms.ts';
 import {
@@ -19,8 +20,8 @@ import {
   type LimitsMode,
 } from '../shared/alarm-views.ts';
 import type { EscalationRules } from '../domain/alarms/escalation.ts';
-
-type Queryable = pg.Pool | pg.PoolClient;
+import { execute, inTransaction, isDb, select, txOpt, type AnyDb, type Db } from './db.ts';
+import { readSettings, writeSettingIn } from './settings-store.ts';
 
 /** One channel's alarm config as the worker uses it. */
 export interface ChannelAlarmConfig {
@@ -43,63 +44,42 @@ export interface ChannelAlarmConfig {
   updatedBy: string | null;
 }
 
-interface ConfigRow {
-  id: number;
-  channel_id: number;
-  enabled: boolean;
-  limits_mode: LimitsMode;
-  high: number | null;
-  low: number | null;
-  deadband: number;
-  on_delay_ms: number;
-  off_delay_ms: number;
-  priority: AlarmPriority;
-  only_while_running: boolean;
-  label: string | null;
-  stale_seconds: number | null;
-  stale_priority: AlarmPriority;
-  note: string | null;
-  updated_at: Date;
-  updated_by_name: string | null;
-}
+type ConfigWithEditor = AlarmConfig & { editor?: { displayName: string } | null };
 
-const CONFIG_SQL = `select c.id, c.channel_id, c.enabled, c.limits_mode, c.high, c.low, c.deadband, c.on_delay_ms,
-  c.off_delay_ms, c.priority, c.only_while_running, c.label, c.stale_seconds, c.stale_priority, c.note, c.updated_at,
-  u.display_name as updated_by_name
-  from alarm_configs c left join users u on u.id = c.updated_by`;
-
-function toConfig(r: ConfigRow): ChannelAlarmConfig {
+function toConfig(r: ConfigWithEditor): ChannelAlarmConfig {
   return {
     id: r.id,
-    channelId: r.channel_id,
+    channelId: r.channelId!,
     enabled: r.enabled,
-    limitsMode: r.limits_mode,
+    limitsMode: r.limitsMode as LimitsMode,
     high: r.high,
     low: r.low,
     deadband: r.deadband,
-    onDelayMs: r.on_delay_ms,
-    offDelayMs: r.off_delay_ms,
-    priority: r.priority,
-    onlyWhileRunning: r.only_while_running,
+    onDelayMs: r.onDelayMs,
+    offDelayMs: r.offDelayMs,
+    priority: r.priority as AlarmPriority,
+    onlyWhileRunning: r.onlyWhileRunning,
     label: r.label,
-    staleSeconds: r.stale_seconds,
-    stalePriority: r.stale_priority,
+    staleSeconds: r.staleSeconds,
+    stalePriority: r.stalePriority as AlarmPriority,
     note: r.note,
-    updatedAtMs: r.updated_at.getTime(),
-    updatedBy: r.updated_by_name,
+    updatedAtMs: r.updatedAt.getTime(),
+    updatedBy: r.editor?.displayName ?? null,
   };
 }
 
+const EDITOR = () => [{ model: User, as: 'editor', attributes: ['displayName'], required: false }];
+
 /** Every channel's alarm config, keyed by channel id. */
-export async function channelAlarmConfigs(pool: Queryable): Promise<Map<number, ChannelAlarmConfig>> {
-  const res = await pool.query<ConfigRow>(`${CONFIG_SQL} where c.channel_id is not null`);
-  return new Map(res.rows.map((r) => [r.channel_id, toConfig(r)]));
+export async function channelAlarmConfigs(db: Db): Promise<Map<number, ChannelAlarmConfig>> {
+  const rows = await AlarmConfig.findAll({ where: { characteristicId: null }, include: EDITOR(), ...txOpt(db) });
+  return new Map(rows.filter((r) => r.channelId !== null).map((r) => [r.channelId!, toConfig(r as ConfigWithEditor)]));
 }
 
 /** One channel's config, or null. */
-export async function channelAlarmConfig(pool: Queryable, channelId: number): Promise<ChannelAlarmConfig | null> {
-  const res = await pool.query<ConfigRow>(`${CONFIG_SQL} where c.channel_id = $1`, [channelId]);
-  return res.rows[0] ? toConfig(res.rows[0]) : null;
+export async function channelAlarmConfig(db: Db, channelId: number): Promise<ChannelAlarmConfig | null> {
+  const r = await AlarmConfig.findOne({ where: { channelId }, include: EDITOR(), ...txOpt(db) });
+  return r ? toConfig(r as ConfigWithEditor) : null;
 }
 
 function inputOf(c: ChannelAlarmConfig): AlarmConfigInput {
@@ -121,78 +101,81 @@ function inputOf(c: ChannelAlarmConfig): AlarmConfigInput {
 }
 
 /** Every channel of the plant with its alarm config (null when none), in asset / channel order. */
-export async function listChannelAlarmConfigs(pool: Queryable): Promise<ChannelAlarmConfigView[]> {
+export async function listChannelAlarmConfigs(db: Db): Promise<ChannelAlarmConfigView[]> {
   const [channels, configs] = await Promise.all([
-    pool.query<{ id: number; name: string; kind: string; unit: string; asset_id: number; asset_name: string }>(
-      `select c.id, c.name, c.kind, c.unit, c.asset_id, a.name as asset_name
-         from channels c join assets a on a.id = c.asset_id order by a.code, c.key`,
-    ),
-    channelAlarmConfigs(pool),
+    Channel.findAll({
+      attributes: ['id', 'name', 'kind', 'unit', 'assetId', 'key'],
+      include: [{ model: Asset, attributes: ['name', 'code'], required: true }],
+      order: [
+        [Asset, 'code', 'ASC'],
+        ['key', 'ASC'],
+      ],
+      ...txOpt(db),
+    }),
+    channelAlarmConfigs(db),
   ]);
-  return channels.rows.map((c) => {
+  return channels.map((ch) => {
+    const c = ch as Channel & { Asset: { name: string } };
     const cfg = configs.get(c.id);
     return {
       channelId: c.id,
       channelName: c.name,
       channelKind: c.kind,
       unit: c.unit,
-      assetId: c.asset_id,
-      assetName: c.asset_name,
+      assetId: c.assetId,
+      assetName: c.Asset.name,
       config: cfg ? { ...inputOf(cfg), id: cfg.id, updatedAtMs: cfg.updatedAtMs, updatedBy: cfg.updatedBy } : null,
     };
   });
 }
 
 /** Does the channel exist? */
-export async function channelExists(pool: Queryable, channelId: number): Promise<boolean> {
-  const res = await pool.query('select 1 from channels where id = $1', [channelId]);
-  return (res.rowCount ?? 0) > 0;
+export async function channelExists(db: Db, channelId: number): Promise<boolean> {
+  return (await Channel.count({ where: { id: channelId }, ...txOpt(db) })) > 0;
 }
 
 /** Insert or replace one channel's alarm config. Returns the config before (null if new) and after. */
 export async function upsertChannelAlarmConfig(
-  pool: Queryable,
+  db: Db,
   channelId: number,
   input: AlarmConfigInput,
   userId: number | null,
 ): Promise<{ before: ChannelAlarmConfig | null; after: ChannelAlarmConfig }> {
-  const before = await channelAlarmConfig(pool, channelId);
-  await pool.query(
-    `insert into alarm_configs (channel_id, enabled, limits_mode, high, low, deadband, on_delay_ms, off_delay_ms, priority,
-       only_while_running, label, stale_seconds, stale_priority, note, updated_at, updated_by)
-     values ($1,$2,$3,$4,$5,$6,$7,$8,$9,$10,$11,$12,$13,$14, now(), $15)
-     on conflict (channel_id) where channel_id is not null do update set
-       enabled = excluded.enabled, limits_mode = excluded.limits_mode, high = excluded.high, low = excluded.low,
-       deadband = excluded.deadband, on_delay_ms = excluded.on_delay_ms, off_delay_ms = excluded.off_delay_ms,
-       priority = excluded.priority, only_while_running = excluded.only_while_running, label = excluded.label,
-       stale_seconds = excluded.stale_seconds, stale_priority = excluded.stale_priority, note = excluded.note,
-       updated_at = now(), updated_by = excluded.updated_by`,
-    [
-      channelId,
-      input.enabled,
-      input.limitsMode,
-      input.high ?? null,
-      input.low ?? null,
-      input.deadband,
-      input.onDelayMs,
-      input.offDelayMs,
-      input.priority,
-      input.onlyWhileRunning,
-      input.label ?? null,
-      input.staleSeconds ?? null,
-      input.stalePriority,
-      input.note ?? null,
-      userId,
-    ],
-  );
-  return { before, after: (await channelAlarmConfig(pool, channelId))! };
+  return inTransaction(db, async (t) => {
+    // Two first saves of the same channel at once: the second waits and then updates.
+    await execute(t, `select pg_advisory_xact_lock(hashtext('alarm_configs'), $1)`, [channelId]);
+    const row = await AlarmConfig.findOne({ where: { channelId }, transaction: t, lock: t.LOCK.UPDATE });
+    const before = row ? await channelAlarmConfig(t, channelId) : null;
+    const fields = {
+      enabled: input.enabled,
+      limitsMode: input.limitsMode,
+      high: input.high ?? null,
+      low: input.low ?? null,
+      deadband: input.deadband,
+      onDelayMs: input.onDelayMs,
+      offDelayMs: input.offDelayMs,
+      priority: input.priority,
+      onlyWhileRunning: input.onlyWhileRunning,
+      label: input.label ?? null,
+      staleSeconds: input.staleSeconds ?? null,
+      stalePriority: input.stalePriority,
+      note: input.note ?? null,
+      updatedAt: new Date(),
+      updatedBy: userId,
+    };
+    if (row) await row.update(fields, { transaction: t });
+    else await AlarmConfig.create({ ...fields, channelId, characteristicId: null }, { transaction: t });
+    return { before, after: (await channelAlarmConfig(t, channelId))! };
+  });
 }
 
 /** Remove a channel's config (the channel then falls back to its process window). Returns what was removed. */
-export async function deleteChannelAlarmConfig(pool: Queryable, channelId: number): Promise<ChannelAlarmConfig | null> {
-  const before = await channelAlarmConfig(pool, channelId);
-  if (before) await pool.query('delete from alarm_configs where channel_id = $1', [channelId]);
-  return before;
+export async function deleteChannelAlarmConfig(db: Db, channelId: number): Promise<ChannelAlarmConfig | null> {
+  return inTransaction(db, async (t) => {
+    const before = await channelAlarmConfig(t, channelId);
+    if (before) await AlarmConfig.destroy({ where: { channelId }, transaction: t });
+    return before;
+  });
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -203,11 +186,8 @@ export const ESCALATION_KEY = 'alarmEscalation';
 export const ON_SHIFT_EMAIL_KEY = 'onShiftEngineerEmail';
 
 /** The escalation rules and the on-shift engineer's address, with defaults where unset or unreadable. */
-export async function escalationSettings(pool: Queryable): Promise<EscalationSettings> {
-  const res = await pool.query<{ key: string; value: unknown }>(`select key, value from site_settings where key = any($1)`, [
-    [ESCALATION_KEY, ON_SHIFT_EMAIL_KEY],
-  ]);
-  const byKey = new Map(res.rows.map((r) => [r.key, r.value]));
+export async function escalationSettings(db: Db): Promise<EscalationSettings> {
+  const byKey = await readSettings(db, [ESCALATION_KEY, ON_SHIFT_EMAIL_KEY]);
   let rules: EscalationRule[] = Object.entries(DEFAULT_ESCALATION).map(([priority, steps]) => ({
     priority: priority as AlarmPriority,
     steps: [...(steps ?? [])],
@@ -226,21 +206,15 @@ export async function escalationSettings(pool: Queryable): Promise<EscalationSet
 
 /** Store the escalation settings. Returns the settings before and after. */
 export async function saveEscalationSettings(
-  pool: Queryable,
+  db: Db,
   settings: EscalationSettings,
 ): Promise<{ before: EscalationSettings; after: EscalationSettings }> {
-  const before = await escalationSettings(pool);
-  await pool.query(
-    `insert into site_settings (key, value, updated_at) values ($1, $2, now()), ($3, $4, now())
-     on conflict (key) do update set value = excluded.value, updated_at = now()`,
-    [
-      ESCALATION_KEY,
-      JSON.stringify({ rules: settings.rules }),
-      ON_SHIFT_EMAIL_KEY,
-      JSON.stringify(settings.onShiftEngineerEmail),
-    ],
-  );
-  return { before, after: await escalationSettings(pool) };
+  return inTransaction(db, async (t) => {
+    const before = await escalationSettings(t);
+    await writeSettingIn(t, ESCALATION_KEY, { rules: settings.rules });
+    await writeSettingIn(t, ON_SHIFT_EMAIL_KEY, settings.onShiftEngineerEmail);
+    return { before, after: await escalationSettings(t) };
+  });
 }
 
 /** The rules as the domain's `dueEscalations` takes them. */
@@ -255,75 +229,84 @@ export function rulesByPriority(rules: readonly EscalationRule[]): EscalationRul
 // ---------------------------------------------------------------------------------------------
 
 /** Every characteristic with its alarm settings (null = none: alarms on at the priority raised). */
-export async function listCharacteristicAlarmConfigs(pool: Queryable): Promise<CharacteristicAlarmConfigView[]> {
-  const res = await pool.query<{
-    id: number;
-    name: string;
-    asset_name: string;
-    active: boolean;
-    enabled: boolean | null;
-    priority: AlarmPriority | null;
-    note: string | null;
-    updated_at: Date | null;
-    updated_by: string | null;
-  }>(
-    `select ch.id, ch.name, a.name as asset_name, ch.active, c.enabled, c.priority, c.note, c.updated_at,
-            u.display_name as updated_by
-       from characteristics ch join assets a on a.id = ch.asset_id
-       left join alarm_configs c on c.characteristic_id = ch.id
-       left join users u on u.id = c.updated_by
-      order by ch.name`,
-  );
-  return res.rows.map((r) => ({
-    characteristicId: r.id,
-    name: r.name,
-    assetName: r.asset_name,
-    active: r.active,
-    config:
-      r.enabled === null || r.priority === null || r.updated_at === null
-        ? null
-        : {
-            enabled: r.enabled,
-            priority: r.priority,
-            note: r.note,
-            updatedAtMs: r.updated_at.getTime(),
-            updatedBy: r.updated_by,
-          },
-  }));
+export async function listCharacteristicAlarmConfigs(db: Db): Promise<CharacteristicAlarmConfigView[]> {
+  const [chars, configs] = await Promise.all([
+    Characteristic.findAll({
+      attributes: ['id', 'name', 'active', 'assetId'],
+      include: [{ model: Asset, attributes: ['name'], required: true }],
+      order: [['name', 'ASC']],
+      ...txOpt(db),
+    }),
+    AlarmConfig.findAll({ where: { channelId: null }, include: EDITOR(), ...txOpt(db) }),
+  ]);
+  const byChar = new Map(configs.map((c) => [c.characteristicId!, c as ConfigWithEditor]));
+  return chars.map((ch) => {
+    const c = ch as Characteristic & { Asset: { name: string } };
+    const cfg = byChar.get(c.id);
+    return {
+      characteristicId: c.id,
+      name: c.name,
+      assetName: c.Asset.name,
+      active: c.active,
+      config: cfg
+        ? {
+            enabled: cfg.enabled,
+            priority: cfg.priority as AlarmPriority,
+            note: cfg.note,
+            updatedAtMs: cfg.updatedAt.getTime(),
+            updatedBy: cfg.editor?.displayName ?? null,
+          }
+        : null,
+    };
+  });
 }
 
-/** A characteristic's alarm settings, or null when it has none (or the characteristics table is absent). */
-export async function characteristicAlarmConfig(
-  pool: Queryable,
-  characteristicId: number,
-): Promise<CharacteristicAlarmConfig | null> {
-  const res = await pool.query<{ enabled: boolean; priority: AlarmPriority; note: string | null }>(
+/** A characteristic's alarm settings, or null when it has none. */
+export async function characteristicAlarmConfig(q: AnyDb, characteristicId: number): Promise<CharacteristicAlarmConfig | null> {
+  if (isDb(q)) {
+    const r = await AlarmConfig.findOne({
+      where: { characteristicId },
+      attributes: ['enabled', 'priority', 'note'],
+      ...txOpt(q),
+    });
+    return r ? { enabled: r.enabled, priority: r.priority as AlarmPriority, note: r.note } : null;
+  }
+  const rows = await select<CharacteristicAlarmConfig>(
+    q,
     `select enabled, priority, note from alarm_configs where characteristic_id = $1`,
     [characteristicId],
   );
-  return res.rows[0] ?? null;
+  return rows[0] ?? null;
 }
 
-export async function characteristicExists(pool: Queryable, characteristicId: number): Promise<boolean> {
-  const res = await pool.query('select 1 from characteristics where id = $1', [characteristicId]);
-  return (res.rowCount ?? 0) > 0;
+export async function characteristicExists(db: Db, characteristicId: number): Promise<boolean> {
+  return (await Characteristic.count({ where: { id: characteristicId }, ...txOpt(db) })) > 0;
 }
 
 /** Insert or replace a characteristic's alarm settings; returns before (null if new) and after. */
 export async function upsertCharacteristicAlarmConfig(
-  pool: Queryable,
+  db: Db,
   characteristicId: number,
   input: CharacteristicAlarmConfig,
   userId: number | null,
 ): Promise<{ before: CharacteristicAlarmConfig | null; after: CharacteristicAlarmConfig }> {
-  const before = await characteristicAlarmConfig(pool, characteristicId);
-  await pool.query(
-    `insert into alarm_configs (characteristic_id, enabled, priority, note, updated_at, updated_by)
-     values ($1, $2, $3, $4, now(), $5)
-     on conflict (characteristic_id) where characteristic_id is not null do update set
-       enabled = excluded.enabled, priority = excluded.priority, note = excluded.note, updated_at = now(),
-       updated_by = excluded.updated_by`,
-    [characteristicId, input.enabled, input.priority, input.note ?? null, userId],
-  );
-  return { before, after: (await characteristicAlarmConfig(pool, characteristicId))! };
+  return inTransaction(db, async (t) => {
+    await execute(t, `select pg_advisory_xact_lock(hashtext('alarm_configs'), $1)`, [-characteristicId]);
+    const row = await AlarmConfig.findOne({ where: { characteristicId }, transaction: t, lock: t.LOCK.UPDATE });
+    const before = row ? { enabled: row.enabled, priority: row.priority as AlarmPriority, note: row.note } : null;
+    const fields = {
+      enabled: input.enabled,
+      priority: input.priority,
+      note: input.note ?? null,
+      updatedAt: new Date(),
+      updatedBy: userId,
+    };
+    if (row) await row.update(fields, { transaction: t });
+    else
+      await AlarmConfig.create(
+        { ...fields, characteristicId, channelId: null, high: null, low: null, label: null, staleSeconds: null },
+        { transaction: t },
+      );
+    return { before, after: (await characteristicAlarmConfig(t, characteristicId))! };
+  });
 }

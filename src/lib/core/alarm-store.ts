@@ -1,8 +1,13 @@
 /**
  * The alarm store: raising, clearing and transitioning alarms in PostgreSQL. Worker-safe —
- * takes a `pg.Pool`, imports no Astro env — so the ingest worker (limit, stale, device and
- * system sources), the web endpoints (acknowledge, shelve, out of service) and other helpers
- * (SPC and cure verdicts) all go through the same code.
+ * takes the process's Sequelize instance or a transaction of it, imports no Astro env — so the
+ * ingest worker (limit, stale, device and system sources), the web endpoints (acknowledge,
+ * shelve, out of service) and other helpers (SPC and cure verdicts) all go through the same code.
+ *
+ * Records go through the `Alarm` / `AlarmEvent` models. Raise and clear stay one guarded SQL
+ * statement each (`sequelize.query` with bind parameters): they run per judged sample in the
+ * worker, and one round trip per raise is what keeps `npm run bench:alarms` at its figures;
+ * the queue list and the health log are multi-join report queries and stay SQL too.
  *
  * Every state change goes through the domain's `transition` (ANSI/ISA-18.2 / IEC 62682 alarm
  * states, `lib/domain/alarms/state.ts`) and writes one `alarm_events` row. A source has at
@@ -12,11 +17,13 @@
  *
  * The store does not publish live events; callers publish `alarms` with {@link liveAlarmPayload}.
  */
-import type pg from 'pg';
+import { Op } from 'sequelize';
+import { Alarm, AlarmEvent as AlarmEventRow, Asset, User } from '../../../db/models/index.ts';
 import { transition, type AlarmEvent, type AlarmRecord, type AlarmActor, type AlarmState } from '../domain/alarms/state.ts';
 import type { AlarmPriority } from '../shared/alarms.ts';
 import type { AlarmSourceKind, AlarmView, AlarmEventView } from '../shared/alarm-views.ts';
 import { characteristicAlarmConfig } from './alarm-config-store.ts';
+import { execute, inTransaction, isDb, select, txOpt, type AnyDb, type Db } from './db.ts';
 
 export interface RaiseAlarmInput {
   sourceKind: AlarmSourceKind;
@@ -36,7 +43,7 @@ export interface RaiseAlarmInput {
   atMs: number;
 }
 
-type Queryable = pg.Pool | pg.PoolClient;
+type Queryable = AnyDb;
 
 const COLUMNS = `a.id, a.source_kind, a.source_key, a.source_label, a.asset_id, a.channel_id, a.characteristic_id,
   a.load_id, a.priority, a.message, a.value, a.limit_value, a.state, a.active, a.raised_at, a.last_activated_at,
@@ -108,43 +115,51 @@ export function liveAlarmPayload(alarm: AlarmView): AlarmView {
   return alarm;
 }
 
-async function withTx<T>(pool: pg.Pool, fn: (c: pg.PoolClient) => Promise<T>): Promise<T> {
-  const c = await pool.connect();
-  try {
-    await c.query('begin');
-    const out = await fn(c);
-    await c.query('commit');
-    return out;
-  } catch (e) {
-    await c.query('rollback').catch(() => {});
-    throw e;
-  } finally {
-    c.release();
-  }
+async function selectOne(q: Queryable, where: string, params: unknown[]): Promise<AlarmRow | null> {
+  const rows = await select<AlarmRow>(q, `select ${COLUMNS} from ${FROM} where ${where}`, params);
+  return rows[0] ?? null;
 }
 
-async function selectOne(q: Queryable, where: string, params: unknown[], lock = false): Promise<AlarmRow | null> {
-  // FOR UPDATE cannot apply to the nullable side of an outer join: lock the alarm row only.
-  const res = await q.query<AlarmRow>(`select ${COLUMNS} from ${FROM} where ${where} ${lock ? 'for update of a' : ''}`, params);
-  return res.rows[0] ?? null;
+/** The joins a view needs (who acknowledged, the asset's name). */
+const VIEW_INCLUDE = () => [
+  { model: User, as: 'acker', attributes: ['displayName'], required: false },
+  { model: Asset, attributes: ['name'], required: false },
+];
+
+type AlarmWithJoins = Alarm & { acker?: { displayName: string } | null; Asset?: { name: string } | null };
+
+function viewOfModel(a: AlarmWithJoins): AlarmView {
+  return {
+    id: a.id,
+    sourceKind: a.sourceKind as AlarmSourceKind,
+    sourceKey: a.sourceKey,
+    sourceLabel: a.sourceLabel,
+    assetId: a.assetId,
+    assetName: a.Asset?.name ?? null,
+    channelId: a.channelId,
+    characteristicId: a.characteristicId,
+    loadId: a.loadId,
+    priority: a.priority as AlarmPriority,
+    message: a.message,
+    value: a.value,
+    limit: a.limitValue,
+    state: a.state as AlarmState,
+    active: a.active,
+    raisedAtMs: a.raisedAt.getTime(),
+    lastActivatedAtMs: a.lastActivatedAt.getTime(),
+    clearedAtMs: ms(a.clearedAt),
+    ackedAtMs: ms(a.ackedAt),
+    ackedBy: a.acker?.displayName ?? null,
+    shelvedUntilMs: ms(a.shelvedUntil),
+    escalationStepsSent: a.escalationStepsSent ?? [],
+    activationCount: a.activationCount,
+    updatedAtMs: a.updatedAt.getTime(),
+  };
 }
 
-async function insertEvent(
-  q: Queryable,
-  alarmId: number,
-  atMs: number,
-  event: string,
-  from: AlarmState | null,
-  to: AlarmState,
-  active: boolean,
-  userId: number | null,
-  comment: string | null,
-): Promise<void> {
-  await q.query(
-    `insert into alarm_events (alarm_id, at, event, from_state, to_state, active, user_id, comment)
-     values ($1, to_timestamp($2 / 1000.0), $3, $4, $5, $6, $7, $8)`,
-    [alarmId, atMs, event, from, to, active, userId, comment],
-  );
+async function viewById(db: Db, id: number): Promise<AlarmView | null> {
+  const a = await Alarm.findByPk(id, { include: VIEW_INCLUDE(), ...txOpt(db) });
+  return a ? viewOfModel(a as AlarmWithJoins) : null;
 }
 
 const SYSTEM = { role: 'system' as const };
@@ -176,11 +191,12 @@ function guardParams(o: OpenAlarmState): [AlarmState, boolean, number | null] {
 }
 
 async function readOpen(pool: Queryable, sourceKey: string): Promise<OpenAlarmState | null> {
-  const res = await pool.query<{ id: number; state: AlarmState; active: boolean; shelved_until: Date | null }>(
+  const rows = await select<{ id: number; state: AlarmState; active: boolean; shelved_until: Date | null }>(
+    pool,
     `select id, state, active, shelved_until from alarms where source_key = $1 and state <> 'normal'`,
     [sourceKey],
   );
-  const r = res.rows[0];
+  const r = rows[0];
   return r ? { id: r.id, state: r.state, active: r.active, shelvedUntilMs: ms(r.shelved_until) } : null;
 }
 
@@ -206,7 +222,7 @@ function isUniqueViolation(e: unknown): boolean {
  * (`alarm_configs.characteristic_id`): their priority replaces the caller's, and when its
  * alarms are switched off nothing is raised and the answer is `{id: 0, created: false}`.
  */
-export async function raiseAlarm(pool: pg.Pool, input: RaiseAlarmInput): Promise<{ id: number; created: boolean }> {
+export async function raiseAlarm(pool: Queryable, input: RaiseAlarmInput): Promise<{ id: number; created: boolean }> {
   const r = await raiseAlarmReturning(pool, input);
   return r ? { id: r.alarm.id, created: r.created } : { id: 0, created: false };
 }
@@ -221,7 +237,7 @@ export async function raiseAlarm(pool: pg.Pool, input: RaiseAlarmInput): Promise
  * in between, the statement touches nothing and the raise is computed again.
  */
 export async function raiseAlarmReturning(
-  pool: pg.Pool,
+  pool: Queryable,
   raw: RaiseAlarmInput,
   hint?: AlarmHint,
 ): Promise<{ alarm: AlarmView; created: boolean; activated: boolean } | null> {
@@ -246,12 +262,13 @@ export async function raiseAlarmReturning(
 }
 
 async function insertNew(
-  pool: pg.Pool,
+  pool: Queryable,
   input: RaiseAlarmInput,
 ): Promise<{ alarm: AlarmView; created: boolean; activated: boolean }> {
   const t = transition<AlarmRecord>({ state: 'normal', active: false }, { type: 'activate' }, { nowMs: input.atMs, ...SYSTEM });
   if (!t.ok) throw new Error(`alarm store: ${t.reason}`);
-  const res = await pool.query<AlarmRow>(
+  const rows = await select<AlarmRow>(
+    pool,
     `with changed as (
        insert into alarms (source_kind, source_key, source_label, asset_id, channel_id, characteristic_id, load_id,
          priority, message, value, limit_value, state, active, raised_at, last_activated_at)
@@ -279,18 +296,19 @@ async function insertNew(
       input.atMs,
     ],
   );
-  return { alarm: toView(res.rows[0]!), created: true, activated: true };
+  return { alarm: toView(rows[0]!), created: true, activated: true };
 }
 
 async function reactivate(
-  pool: pg.Pool,
+  pool: Queryable,
   open: OpenAlarmState,
   input: RaiseAlarmInput,
 ): Promise<{ alarm: AlarmView; created: boolean; activated: boolean } | null> {
   const t = transition<AlarmRecord>(recordOf(open), { type: 'activate' }, { nowMs: input.atMs, ...SYSTEM });
   if (!t.ok) throw new Error(`alarm store: ${t.reason}`);
   const newActivation = !open.active;
-  const res = await pool.query<AlarmRow>(
+  const rows = await select<AlarmRow>(
+    pool,
     `with changed as (
        update alarms set state = $5, active = true, message = $6, value = $7, limit_value = $8, priority = $9,
          source_label = $10, asset_id = coalesce($11, asset_id), channel_id = coalesce($12, channel_id),
@@ -327,7 +345,7 @@ async function reactivate(
       input.atMs,
     ],
   );
-  const row = res.rows[0];
+  const row = rows[0];
   return row ? { alarm: toView(row), created: false, activated: newActivation || t.changed } : null;
 }
 
@@ -337,13 +355,13 @@ async function reactivate(
  * their state with the condition inactive). Does nothing when the source has no open alarm
  * or the alarm is already inactive.
  */
-export async function clearAlarm(pool: pg.Pool, sourceKey: string, atMs: number): Promise<void> {
+export async function clearAlarm(pool: Queryable, sourceKey: string, atMs: number): Promise<void> {
   await clearAlarmReturning(pool, sourceKey, atMs);
 }
 
 /** {@link clearAlarm}, returning the alarm when it changed (for the caller's live event). */
 export async function clearAlarmReturning(
-  pool: pg.Pool,
+  pool: Queryable,
   sourceKey: string,
   atMs: number,
   hint?: AlarmHint,
@@ -354,7 +372,8 @@ export async function clearAlarmReturning(
     if (!open || !open.active) return null;
     const t = transition<AlarmRecord>(recordOf(open), { type: 'clear' }, { nowMs: atMs, ...SYSTEM });
     if (!t.ok || !t.changed) return null;
-    const res = await pool.query<AlarmRow>(
+    const rows = await select<AlarmRow>(
+      pool,
       `with changed as (
          update alarms set state = $5, active = false, cleared_at = to_timestamp($6::float8 / 1000.0), updated_at = now()
           where id = $1 and ${GUARD}
@@ -366,7 +385,7 @@ export async function clearAlarmReturning(
        ${VIEW_OF_CHANGED}`,
       [open.id, ...guardParams(open), t.alarm.state, atMs],
     );
-    if (res.rows[0]) return toView(res.rows[0]);
+    if (rows[0]) return toView(rows[0]);
   }
   throw new Error(`alarm store: could not clear ${sourceKey} (kept changing under us)`);
 }
@@ -390,30 +409,49 @@ export type TransitionAlarmResult =
  * id as 404. A changing transition writes an `alarm_events` row with the comment or reason.
  */
 export async function transitionAlarm(
-  pool: pg.Pool,
+  db: Db,
   id: number,
   event: AlarmEvent,
   ctx: TransitionActor,
+  opts: { openOnly?: boolean } = {},
 ): Promise<TransitionAlarmResult> {
-  return withTx(pool, async (c) => {
-    const row = await selectOne(c, 'a.id = $1', [id], true);
-    if (!row) return { ok: false, status: 404, reason: `alarm ${id} does not exist` };
-    const t = transition<AlarmRecord>(recordOf(row), event, { nowMs: ctx.nowMs, role: ctx.role });
-    if (!t.ok) return { ok: false, status: 409, reason: t.reason };
-    const before = toView(row);
-    if (!t.changed) return { ok: true, changed: false, before, alarm: before };
+  return inTransaction(db, async (t) => {
+    // Lock the alarm row only (the joins are read afterwards, outside the lock clause).
+    const locked = await Alarm.findByPk(id, { transaction: t, lock: t.LOCK.UPDATE });
+    if (!locked) return { ok: false, status: 404, reason: `alarm ${id} does not exist` };
+    // A closed occurrence (normal) is not the source's open alarm any more.
+    if (opts.openOnly && locked.state === 'normal') return { ok: false, status: 404, reason: `alarm ${id} is no longer open` };
+    const before = (await viewById(t, id))!;
+    const tr = transition<AlarmRecord>(recordOfView(before), event, { nowMs: ctx.nowMs, role: ctx.role });
+    if (!tr.ok) return { ok: false, status: 409, reason: tr.reason };
+    if (!tr.changed) return { ok: true, changed: false, before, alarm: before };
     const acked = event.type === 'ack';
-    await c.query(
-      `update alarms set state = $2, active = $3,
-         shelved_until = case when $4::double precision is null then null else to_timestamp($4 / 1000.0) end,
-         acked_at = case when $5 then to_timestamp($6 / 1000.0) when $2 = 'unacked' then null else acked_at end,
-         acked_by = case when $5 then $7 when $2 = 'unacked' then null else acked_by end,
-         updated_at = now()
-       where id = $1`,
-      [id, t.alarm.state, t.alarm.active, t.alarm.shelvedUntilMs ?? null, acked, ctx.nowMs, ctx.userId],
+    const toUnacked = tr.alarm.state === 'unacked';
+    await locked.update(
+      {
+        state: tr.alarm.state,
+        active: tr.alarm.active,
+        shelvedUntil: tr.alarm.shelvedUntilMs == null ? null : new Date(tr.alarm.shelvedUntilMs),
+        ackedAt: acked ? new Date(ctx.nowMs) : toUnacked ? null : locked.ackedAt,
+        ackedBy: acked ? ctx.userId : toUnacked ? null : locked.ackedBy,
+        updatedAt: new Date(),
+      },
+      { transaction: t },
     );
-    await insertEvent(c, id, ctx.nowMs, event.type, row.state, t.alarm.state, t.alarm.active, ctx.userId, eventText(event));
-    const after = toView((await selectOne(c, 'a.id = $1', [id]))!);
+    await AlarmEventRow.create(
+      {
+        alarmId: id,
+        at: new Date(ctx.nowMs),
+        event: event.type,
+        fromState: before.state,
+        toState: tr.alarm.state,
+        active: tr.alarm.active,
+        userId: ctx.userId,
+        comment: eventText(event),
+      },
+      { transaction: t },
+    );
+    const after = (await viewById(t, id))!;
     return { ok: true, changed: true, before, alarm: after };
   });
 }
@@ -432,9 +470,12 @@ function eventText(event: AlarmEvent): string | null {
   }
 }
 
-function recordOf(r: AlarmRow | OpenAlarmState): AlarmRecord {
-  if ('shelvedUntilMs' in r) return { state: r.state, active: r.active, shelvedUntilMs: r.shelvedUntilMs };
-  return { state: r.state, active: r.active, shelvedUntilMs: ms(r.shelved_until) };
+function recordOf(r: OpenAlarmState): AlarmRecord {
+  return { state: r.state, active: r.active, shelvedUntilMs: r.shelvedUntilMs };
+}
+
+function recordOfView(a: AlarmView): AlarmRecord {
+  return { state: a.state, active: a.active, shelvedUntilMs: a.shelvedUntilMs };
 }
 
 function finiteOrNull(v: number | null | undefined): number | null {
@@ -447,6 +488,7 @@ function finiteOrNull(v: number | null | undefined): number | null {
 
 /** One alarm by id, or null. */
 export async function getAlarm(pool: Queryable, id: number): Promise<AlarmView | null> {
+  if (isDb(pool)) return viewById(pool, id);
   const row = await selectOne(pool, 'a.id = $1', [id]);
   return row ? toView(row) : null;
 }
@@ -458,34 +500,30 @@ export async function openAlarmForSource(pool: Queryable, sourceKey: string): Pr
 }
 
 /** An alarm's transitions, oldest first, with the person's name. */
-export async function alarmEvents(pool: Queryable, alarmId: number): Promise<AlarmEventView[]> {
-  const res = await pool.query<{
-    id: number;
-    at: Date;
-    event: string;
-    from_state: AlarmState | null;
-    to_state: AlarmState;
-    active: boolean;
-    user_id: number | null;
-    user_name: string | null;
-    comment: string | null;
-  }>(
-    `select e.id, e.at, e.event, e.from_state, e.to_state, e.active, e.user_id, u.display_name as user_name, e.comment
-       from alarm_events e left join users u on u.id = e.user_id
-      where e.alarm_id = $1 order by e.at, e.id`,
-    [alarmId],
-  );
-  return res.rows.map((r) => ({
-    id: Number(r.id),
-    atMs: r.at.getTime(),
-    event: r.event,
-    fromState: r.from_state,
-    toState: r.to_state,
-    active: r.active,
-    userId: r.user_id,
-    userName: r.user_name,
-    comment: r.comment,
-  }));
+export async function alarmEvents(db: Db, alarmId: number): Promise<AlarmEventView[]> {
+  const rows = await AlarmEventRow.findAll({
+    where: { alarmId },
+    include: [{ model: User, attributes: ['displayName'], required: false }],
+    order: [
+      ['at', 'ASC'],
+      ['id', 'ASC'],
+    ],
+    ...txOpt(db),
+  });
+  return rows.map((r) => {
+    const e = r as AlarmEventRow & { User?: { displayName: string } | null };
+    return {
+      id: Number(e.id),
+      atMs: e.at.getTime(),
+      event: e.event,
+      fromState: e.fromState as AlarmState | null,
+      toState: e.toState as AlarmState,
+      active: e.active,
+      userId: e.userId,
+      userName: e.User?.displayName ?? null,
+      comment: e.comment,
+    };
+  });
 }
 
 export interface ListAlarmsFilter {
@@ -527,7 +565,8 @@ export async function listAlarms(pool: Queryable, f: ListAlarmsFilter): Promise<
     where.push(`a.updated_at >= to_timestamp($${params.length} / 1000.0)`);
   }
   params.push(f.limit);
-  const res = await pool.query<AlarmRow>(
+  const rows = await select<AlarmRow>(
+    pool,
     `select ${COLUMNS} from ${FROM}
       ${where.length ? `where ${where.join(' and ')}` : ''}
       order by (a.state in ('unacked','rtn-unacked')) desc,
@@ -536,7 +575,7 @@ export async function listAlarms(pool: Queryable, f: ListAlarmsFilter): Promise<
       limit $${params.length}`,
     params,
   );
-  return res.rows.map(toView);
+  return rows.map(toView);
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -544,61 +583,76 @@ export async function listAlarms(pool: Queryable, f: ListAlarmsFilter): Promise<
 // ---------------------------------------------------------------------------------------------
 
 /** Shelved alarms whose shelf has ended at `nowMs`: apply `shelf-expired` (system). Returns the changed alarms. */
-export async function expireShelves(pool: pg.Pool, nowMs: number): Promise<AlarmView[]> {
-  const due = await pool.query<{ id: number }>(
-    `select id from alarms where state = 'shelved' and (shelved_until is null or shelved_until <= to_timestamp($1 / 1000.0))`,
-    [nowMs],
-  );
+export async function expireShelves(db: Db, nowMs: number): Promise<AlarmView[]> {
+  const due = await Alarm.findAll({
+    attributes: ['id'],
+    where: { state: 'shelved', [Op.or]: [{ shelvedUntil: null }, { shelvedUntil: { [Op.lte]: new Date(nowMs) } }] },
+    ...txOpt(db),
+  });
   const out: AlarmView[] = [];
-  for (const { id } of due.rows) {
-    const r = await transitionAlarm(pool, id, { type: 'shelf-expired' }, { role: 'system', userId: null, nowMs });
+  for (const { id } of due) {
+    const r = await transitionAlarm(db, id, { type: 'shelf-expired' }, { role: 'system', userId: null, nowMs });
     if (r.ok && r.changed) out.push(r.alarm);
   }
   return out;
 }
 
 /** Alarms that may escalate (waiting for acknowledgement), for the escalation duty. */
-export async function alarmsAwaitingAck(pool: Queryable): Promise<AlarmView[]> {
-  const res = await pool.query<AlarmRow>(
-    `select ${COLUMNS} from ${FROM} where a.state in ('unacked','rtn-unacked') order by a.id`,
-  );
-  return res.rows.map(toView);
+export async function alarmsAwaitingAck(db: Db): Promise<AlarmView[]> {
+  const rows = await Alarm.findAll({
+    where: { state: ['unacked', 'rtn-unacked'] },
+    include: VIEW_INCLUDE(),
+    order: [['id', 'ASC']],
+    ...txOpt(db),
+  });
+  return rows.map((a) => viewOfModel(a as AlarmWithJoins));
 }
 
 /**
  * Record that escalation step `stepIndex` was sent for an alarm (once: a step already recorded
  * is not added again) and log an `escalate` event. Returns false when it had already been recorded.
+ * The claim is one guarded `array_append` (two workers never both claim a step).
  */
-export async function recordEscalation(
-  pool: pg.Pool,
-  alarmId: number,
-  stepIndex: number,
-  atMs: number,
-  note: string,
-): Promise<boolean> {
-  return withTx(pool, async (c) => {
-    const res = await c.query<{ state: AlarmState; active: boolean }>(
+export async function recordEscalation(db: Db, alarmId: number, stepIndex: number, atMs: number, note: string): Promise<boolean> {
+  return inTransaction(db, async (t) => {
+    const [row] = await select<{ state: AlarmState; active: boolean }>(
+      t,
       `update alarms set escalation_steps_sent = array_append(escalation_steps_sent, $2), updated_at = now()
         where id = $1 and not ($2 = any(escalation_steps_sent)) returning state, active`,
       [alarmId, stepIndex],
     );
-    const row = res.rows[0];
     if (!row) return false;
-    await insertEvent(c, alarmId, atMs, 'escalate', row.state, row.state, row.active, null, note);
+    await AlarmEventRow.create(
+      {
+        alarmId,
+        at: new Date(atMs),
+        event: 'escalate',
+        fromState: row.state,
+        toState: row.state,
+        active: row.active,
+        userId: null,
+        comment: note,
+      },
+      { transaction: t },
+    );
     return true;
   });
 }
 
 /** Release a claimed escalation step (the e-mail could not be sent; it will be tried again). */
-export async function releaseEscalation(pool: pg.Pool, alarmId: number, stepIndex: number): Promise<void> {
-  await pool.query(`update alarms set escalation_steps_sent = array_remove(escalation_steps_sent, $2) where id = $1`, [
-    alarmId,
-    stepIndex,
-  ]);
-  await pool.query(
-    `delete from alarm_events where id = (select max(id) from alarm_events where alarm_id = $1 and event = 'escalate')`,
-    [alarmId],
-  );
+export async function releaseEscalation(db: Db, alarmId: number, stepIndex: number): Promise<void> {
+  await inTransaction(db, async (t) => {
+    await execute(t, `update alarms set escalation_steps_sent = array_remove(escalation_steps_sent, $2) where id = $1`, [
+      alarmId,
+      stepIndex,
+    ]);
+    const last = await AlarmEventRow.findOne({
+      where: { alarmId, event: 'escalate' },
+      order: [['id', 'DESC']],
+      transaction: t,
+    });
+    await last?.destroy({ transaction: t });
+  });
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -628,7 +682,7 @@ export async function alarmLog(
   toMs: number,
   lookbackMs = 7 * 86_400_000,
 ): Promise<AlarmLogRow[]> {
-  const res = await pool.query<{
+  const rows = await select<{
     id: number;
     alarm_id: number;
     source: string;
@@ -638,6 +692,7 @@ export async function alarmLog(
     cleared: Date | null;
     acked: Date | null;
   }>(
+    pool,
     `select e.id, e.alarm_id, a.priority, a.source_kind, e.at,
             a.source_label || case when a.source_key like '%:high' then ' (high)'
                                    when a.source_key like '%:low' then ' (low)' else '' end as source,
@@ -649,7 +704,7 @@ export async function alarmLog(
       order by e.at, e.id`,
     [fromMs - lookbackMs, toMs],
   );
-  return res.rows.map((r) => ({
+  return rows.map((r) => ({
     id: String(r.id),
     alarmId: r.alarm_id,
     source: r.source,
@@ -667,15 +722,22 @@ export async function alarmLog(
  * Returns the alarm when the event changed it, else null.
  */
 export async function systemEventForSource(
-  pool: pg.Pool,
+  pool: Db,
   sourceKey: string,
   event: Extract<AlarmEvent, { type: 'suppress' | 'unsuppress' }>,
   atMs: number,
   hint?: AlarmHint,
 ): Promise<AlarmView | null> {
   const hinted = fromHint(hint);
-  const open = hinted !== undefined ? hinted : await readOpen(pool, sourceKey);
+  const system = { role: 'system' as const, userId: null, nowMs: atMs };
+  let open = hinted !== undefined ? hinted : await readOpen(pool, sourceKey);
   if (!open) return null;
-  const r = await transitionAlarm(pool, open.id, event, { role: 'system', userId: null, nowMs: atMs });
+  let r = await transitionAlarm(pool, open.id, event, system, { openOnly: true });
+  if (!r.ok && hinted !== undefined) {
+    // The hint was stale (e.g. acknowledged back to normal on the web meanwhile): read what is open now.
+    open = await readOpen(pool, sourceKey);
+    if (!open) return null;
+    r = await transitionAlarm(pool, open.id, event, system, { openOnly: true });
+  }
   return r.ok && r.changed ? r.alarm : null;
 }

@@ -1,16 +1,25 @@
 /**
  * SPC persistence shared by the ingest worker, the web services and the seed: characteristics,
- * versioned limit sets and plotted points. Worker-safe — takes a `pg.Pool`, imports no Astro env.
+ * versioned limit sets and plotted points. Worker-safe — takes the Sequelize instance or a
+ * transaction of it, imports no Astro env.
+ *
+ * Characteristics and limit sets are written through their models (`Characteristic`,
+ * `LimitSet`). Point storage and the reads the judge loop runs for every subgroup stay SQL through
+ * `sequelize.query` with bind parameters: points go in as one `jsonb_to_recordset` statement per
+ * batch and come back with epoch milliseconds computed in the server (half the cost of turning
+ * every timestamptz into a Date, measured in stack.md).
  *
  * Judging new subgroups (`recordSubgroups`) runs in one transaction under a per-characteristic
  * advisory lock, so two workers (or the worker and a closing oven load) never number points twice;
  * each subgroup is judged against the limit set in force when it closed (latest approved or
  * superseded set with `effective_from ≤ t`) — limits are never re-estimated here.
  */
-import type pg from 'pg';
+import type { Transaction } from 'sequelize';
+import { Characteristic, LimitSet } from '../../../db/models/index.ts';
 import { judgeSubgroups, historyNeeded } from '../domain/control/phase2.ts';
 import { formSubgroups, type FormedSubgroup, type SourceReading } from '../domain/control/subgroups.ts';
 import { mean, range, sampleSd } from '../domain/spc/math.ts';
+import { limitSetAt } from '../domain/series/limit-steps.ts';
 import {
   CharacteristicInputSchema,
   type ChartParams,
@@ -24,8 +33,9 @@ import {
 } from '../shared/characteristics.ts';
 import type { SpcLimitSet, SpcRuleId } from '../shared/spc.ts';
 import { windowInForce } from './window-store.ts';
+import { execute, inTransaction, select, txOpt, type AnyDb, type Db } from './db.ts';
 
-type Queryable = pg.Pool | pg.PoolClient;
+type Queryable = AnyDb;
 
 /** Lock namespace for per-characteristic advisory locks ("SPC" on a phone keypad). */
 const LOCK_NS = 772;
@@ -49,9 +59,23 @@ export interface CharacteristicRecord {
   updatedAt: string;
 }
 
-const CHAR_COLUMNS = `id, name, description, asset_id as "assetId", channel_ids as "channelIds", subgroup_rule as "subgroupRule",
-  subgroup_size as "subgroupSize", chart, chart_params as "chartParams", rules, spec, unit, active,
-  created_at as "createdAt", updated_at as "updatedAt"`;
+const CHAR_ATTRIBUTES = [
+  'id',
+  'name',
+  'description',
+  'assetId',
+  'channelIds',
+  'subgroupRule',
+  'subgroupSize',
+  'chart',
+  'chartParams',
+  'rules',
+  'spec',
+  'unit',
+  'active',
+  'createdAt',
+  'updatedAt',
+] as const;
 
 function toCharacteristic(r: Record<string, unknown>): CharacteristicRecord {
   return {
@@ -61,19 +85,20 @@ function toCharacteristic(r: Record<string, unknown>): CharacteristicRecord {
   };
 }
 
-export async function listCharacteristicRecords(
-  pool: Queryable,
-  opts: { activeOnly?: boolean } = {},
-): Promise<CharacteristicRecord[]> {
-  const { rows } = await pool.query(
-    `select ${CHAR_COLUMNS} from characteristics ${opts.activeOnly ? 'where active' : ''} order by name`,
-  );
-  return rows.map(toCharacteristic);
+export async function listCharacteristicRecords(db: Db, opts: { activeOnly?: boolean } = {}): Promise<CharacteristicRecord[]> {
+  const rows = await Characteristic.findAll({
+    attributes: [...CHAR_ATTRIBUTES],
+    ...(opts.activeOnly ? { where: { active: true } } : {}),
+    order: [['name', 'ASC']],
+    raw: true,
+    ...txOpt(db),
+  });
+  return rows.map((r) => toCharacteristic(r as unknown as Record<string, unknown>));
 }
 
-export async function getCharacteristicRecord(pool: Queryable, id: number): Promise<CharacteristicRecord | null> {
-  const { rows } = await pool.query(`select ${CHAR_COLUMNS} from characteristics where id = $1`, [id]);
-  return rows[0] ? toCharacteristic(rows[0]) : null;
+export async function getCharacteristicRecord(db: Db, id: number): Promise<CharacteristicRecord | null> {
+  const r = await Characteristic.findByPk(id, { attributes: [...CHAR_ATTRIBUTES], raw: true, ...txOpt(db) });
+  return r ? toCharacteristic(r as unknown as Record<string, unknown>) : null;
 }
 
 /**
@@ -81,7 +106,8 @@ export async function getCharacteristicRecord(pool: Queryable, id: number): Prom
  * characteristic belongs to for grouping and alarm context.
  */
 export async function topAssetOfChannel(pool: Queryable, channelId: number): Promise<number | null> {
-  const { rows } = await pool.query<{ id: number }>(
+  const rows = await select<{ id: number }>(
+    pool,
     `with recursive up as (
        select a.id, a.parent_id, 0 as depth from channels c join assets a on a.id = c.asset_id where c.id = $1
        union all
@@ -94,49 +120,69 @@ export async function topAssetOfChannel(pool: Queryable, channelId: number): Pro
 
 /** Insert a characteristic (validated fields); returns its id. */
 export async function insertCharacteristic(
-  pool: Queryable,
+  db: Db,
   fields: CharacteristicFields,
   assetId: number,
   createdBy: number | null,
 ): Promise<number> {
   const f = CharacteristicInputSchema.parse(fields);
-  const { rows } = await pool.query<{ id: number }>(
-    `insert into characteristics (name, description, asset_id, channel_ids, subgroup_rule, subgroup_size, chart, chart_params, rules, spec, unit, active, created_by)
-     values ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13) returning id`,
-    [
-      f.name,
-      f.description,
+  const row = await Characteristic.create(
+    {
+      name: f.name,
+      description: f.description,
       assetId,
-      f.channelIds,
-      JSON.stringify(f.subgroupRule),
-      f.subgroupSize,
-      f.chart,
-      JSON.stringify(f.chartParams),
-      f.rules,
-      JSON.stringify(f.spec),
-      f.unit,
-      f.active,
+      channelIds: f.channelIds,
+      subgroupRule: f.subgroupRule,
+      subgroupSize: f.subgroupSize,
+      chart: f.chart,
+      chartParams: f.chartParams,
+      rules: f.rules,
+      spec: f.spec,
+      unit: f.unit,
+      active: f.active,
       createdBy,
-    ],
+    },
+    { ...txOpt(db) },
   );
-  return rows[0]!.id;
+  return row.id;
+}
+
+/** Replace a characteristic's fields (validated by the caller). Returns false when it does not exist. */
+export async function updateCharacteristicRow(
+  db: Db,
+  id: number,
+  fields: Omit<CharacteristicFields, 'backfillDays'>,
+  assetId: number,
+): Promise<boolean> {
+  const [n] = await Characteristic.update(
+    {
+      name: fields.name,
+      description: fields.description,
+      assetId,
+      channelIds: fields.channelIds,
+      subgroupRule: fields.subgroupRule,
+      subgroupSize: fields.subgroupSize,
+      chart: fields.chart,
+      chartParams: fields.chartParams,
+      rules: fields.rules,
+      spec: fields.spec,
+      unit: fields.unit,
+      active: fields.active,
+      updatedAt: new Date(),
+    },
+    { where: { id }, ...txOpt(db) },
+  );
+  return n > 0;
 }
 
 // --- limit sets -----------------------------------------------------------------------------
-
-const LS_COLUMNS = `id, characteristic_id as "characteristicId", version, status, chart, center, ucl, lcl,
-  dispersion_center, dispersion_ucl, dispersion_lcl, sigma, n, params,
-  baseline_from as "baselineFrom", baseline_to as "baselineTo", baseline_first_index as "baselineFirstIndex",
-  baseline_last_index as "baselineLastIndex", baseline_points as "baselinePoints", excluded, suggested, capability, note,
-  effective_from as "effectiveFrom", approved_signature as "approvedSignature", approved_at as "approvedAt", seeded,
-  created_at as "createdAt"`;
 
 function iso(d: unknown): string | null {
   return d instanceof Date ? d.toISOString() : null;
 }
 
 function toLimitSet(r: Record<string, unknown>): LimitSetView {
-  const dc = r['dispersion_center'] as number | null;
+  const dc = r['dispersionCenter'] as number | null;
   const eff = r['effectiveFrom'] as Date | null;
   return {
     id: r['id'] as number,
@@ -147,7 +193,7 @@ function toLimitSet(r: Record<string, unknown>): LimitSetView {
     center: r['center'] as number,
     ucl: r['ucl'] as number,
     lcl: r['lcl'] as number,
-    dispersion: dc === null ? null : { center: dc, ucl: r['dispersion_ucl'] as number, lcl: r['dispersion_lcl'] as number },
+    dispersion: dc === null ? null : { center: dc, ucl: r['dispersionUcl'] as number, lcl: r['dispersionLcl'] as number },
     sigma: r['sigma'] as number | null,
     n: r['n'] as number,
     params: r['params'] as ChartParams,
@@ -170,16 +216,20 @@ function toLimitSet(r: Record<string, unknown>): LimitSetView {
 }
 
 /** Every limit set of a characteristic (drafts included), newest version first. */
-export async function limitSetsOf(pool: Queryable, characteristicId: number): Promise<LimitSetView[]> {
-  const { rows } = await pool.query(`select ${LS_COLUMNS} from limit_sets where characteristic_id = $1 order by version desc`, [
-    characteristicId,
-  ]);
-  return rows.map(toLimitSet);
+export async function limitSetsOf(db: Db, characteristicId: number): Promise<LimitSetView[]> {
+  const rows = await LimitSet.findAll({
+    where: { characteristicId },
+    attributes: { exclude: ['createdBy'] },
+    order: [['version', 'DESC']],
+    raw: true,
+    ...txOpt(db),
+  });
+  return rows.map((r) => toLimitSet(r as unknown as Record<string, unknown>));
 }
 
-export async function getLimitSet(pool: Queryable, id: number): Promise<LimitSetView | null> {
-  const { rows } = await pool.query(`select ${LS_COLUMNS} from limit_sets where id = $1`, [id]);
-  return rows[0] ? toLimitSet(rows[0]) : null;
+export async function getLimitSet(db: Db, id: number): Promise<LimitSetView | null> {
+  const r = await LimitSet.findByPk(id, { attributes: { exclude: ['createdBy'] }, raw: true, ...txOpt(db) });
+  return r ? toLimitSet(r as unknown as Record<string, unknown>) : null;
 }
 
 /** The library's limit-set shape of a stored set. */
@@ -205,11 +255,13 @@ export function setsInForceOrder(sets: readonly LimitSetView[]): LimitSetView[] 
     .sort((a, b) => a.effectiveFromMs! - b.effectiveFromMs! || a.version - b.version);
 }
 
-/** The set in force at `tMs` among `ordered` (from `setsInForceOrder`), or null. */
+/**
+ * The set in force at `tMs` among `ordered` (from `setsInForceOrder`), or null: the domain's
+ * tested `limitSetAt` (latest effective-from ≤ t; at a tie the later in the order, i.e. the
+ * higher version, wins).
+ */
 export function setInForceAt(ordered: readonly LimitSetView[], tMs: number): LimitSetView | null {
-  let found: LimitSetView | null = null;
-  for (const s of ordered) if (s.effectiveFromMs! <= tMs) found = s;
-  return found;
+  return limitSetAt(ordered as readonly (LimitSetView & { effectiveFromMs: number })[], tMs);
 }
 
 export interface NewLimitSet {
@@ -229,72 +281,84 @@ export interface NewLimitSet {
   createdBy: number | null;
 }
 
-/** Store a drafted set as the next version; returns it. */
-export async function insertDraftLimitSet(client: Queryable, s: NewLimitSet): Promise<LimitSetView> {
-  const ls = s.limitSet;
-  const { rows } = await client.query(
-    `insert into limit_sets (characteristic_id, version, status, chart, center, ucl, lcl, dispersion_center, dispersion_ucl, dispersion_lcl,
-        sigma, n, params, baseline_from, baseline_to, baseline_first_index, baseline_last_index, baseline_points, excluded, suggested,
-        capability, note, created_by)
-     values ($1, (select coalesce(max(version), 0) + 1 from limit_sets where characteristic_id = $1), 'draft', $2, $3, $4, $5, $6, $7, $8,
-        $9, $10, $11, $12, $13, $14, $15, $16, $17, $18, $19, $20, $21)
-     returning ${LS_COLUMNS}`,
-    [
-      s.characteristicId,
-      s.chart,
-      ls.center,
-      ls.ucl,
-      ls.lcl,
-      ls.dispersion?.center ?? null,
-      ls.dispersion?.ucl ?? null,
-      ls.dispersion?.lcl ?? null,
-      ls.sigma,
-      ls.subgroupSize,
-      JSON.stringify(s.params),
-      new Date(s.baselineFromMs),
-      new Date(s.baselineToMs),
-      s.baselineFirstIndex,
-      s.baselineLastIndex,
-      s.baselinePoints,
-      JSON.stringify(s.excluded),
-      JSON.stringify(s.suggested),
-      s.capability === null ? null : JSON.stringify(s.capability),
-      s.note,
-      s.createdBy,
-    ],
-  );
-  return toLimitSet(rows[0]);
+/** Store a drafted set as the next version (numbered under a per-characteristic lock); returns it. */
+export async function insertDraftLimitSet(db: Db, s: NewLimitSet): Promise<LimitSetView> {
+  return inTransaction(db, async (t) => {
+    await execute(t, 'select pg_advisory_xact_lock($1, $2)', [LOCK_NS + 1, s.characteristicId]);
+    const latest = (await LimitSet.max('version', { where: { characteristicId: s.characteristicId }, transaction: t })) as
+      | number
+      | null;
+    const ls = s.limitSet;
+    const row = await LimitSet.create(
+      {
+        characteristicId: s.characteristicId,
+        version: (latest ?? 0) + 1,
+        status: 'draft',
+        chart: s.chart,
+        center: ls.center,
+        ucl: ls.ucl,
+        lcl: ls.lcl,
+        dispersionCenter: ls.dispersion?.center ?? null,
+        dispersionUcl: ls.dispersion?.ucl ?? null,
+        dispersionLcl: ls.dispersion?.lcl ?? null,
+        sigma: ls.sigma,
+        n: ls.subgroupSize,
+        params: s.params,
+        baselineFrom: new Date(s.baselineFromMs),
+        baselineTo: new Date(s.baselineToMs),
+        baselineFirstIndex: s.baselineFirstIndex,
+        baselineLastIndex: s.baselineLastIndex,
+        baselinePoints: s.baselinePoints,
+        excluded: s.excluded,
+        suggested: s.suggested,
+        capability: s.capability,
+        note: s.note,
+        effectiveFrom: null,
+        approvedSignature: null,
+        approvedAt: null,
+        createdBy: s.createdBy,
+      },
+      { transaction: t },
+    );
+    return (await getLimitSet(t, row.id))!;
+  });
 }
 
 /**
  * Approve a draft: the previous approved set becomes superseded (it stays readable and keeps its
- * effective-from), the draft's excluded points are marked on the chart. Runs inside the caller's
- * transaction (`client`).
+ * effective-from), the draft's excluded points are marked on the chart. Runs inside `t`.
  */
 export async function approveLimitSetRow(
-  client: pg.PoolClient,
+  t: Transaction,
   id: number,
   signature: object,
   effectiveFromMs: number,
   seeded = false,
 ): Promise<LimitSetView> {
-  const ls = await getLimitSet(client, id);
-  if (!ls) throw new Error(`limit set ${id} not found`);
-  await client.query(`update limit_sets set status = 'superseded' where characteristic_id = $1 and status = 'approved'`, [
-    ls.characteristicId,
-  ]);
-  const { rows } = await client.query(
-    `update limit_sets set status = 'approved', effective_from = $2, approved_signature = $3, approved_at = now(), seeded = $4
-      where id = $1 and status = 'draft' returning ${LS_COLUMNS}`,
-    [id, new Date(effectiveFromMs), JSON.stringify(signature), seeded],
+  const draft = await LimitSet.findByPk(id, { transaction: t, lock: t.LOCK.UPDATE });
+  if (!draft) throw new Error(`limit set ${id} not found`);
+  if (draft.status !== 'draft') throw new Error(`limit set ${id} is not a draft`);
+  await LimitSet.update(
+    { status: 'superseded' },
+    { where: { characteristicId: draft.characteristicId, status: 'approved' }, transaction: t },
   );
-  if (!rows[0]) throw new Error(`limit set ${id} is not a draft`);
-  const approved = toLimitSet(rows[0]);
+  await draft.update(
+    {
+      status: 'approved',
+      effectiveFrom: new Date(effectiveFromMs),
+      approvedSignature: signature,
+      approvedAt: new Date(),
+      seeded,
+    },
+    { transaction: t },
+  );
+  const approved = (await getLimitSet(t, id))!;
   if (approved.excluded.length > 0 && approved.baselineFirstIndex !== null) {
     // Exclusion indexes are 1-based within the baseline; the baseline starts at baselineFirstIndex.
     const idx = approved.excluded.map((e) => approved.baselineFirstIndex! + e.index - 1);
     const reasons = approved.excluded.map((e) => `${e.reason} (limit set v${approved.version})`);
-    await client.query(
+    await execute(
+      t,
       `update spc_points p set excluded = true, exclusion_reason = x.reason
          from unnest($2::int[], $3::text[]) as x(idx, reason)
         where p.characteristic_id = $1 and p.idx = x.idx`,
@@ -302,6 +366,11 @@ export async function approveLimitSetRow(
     );
   }
   return approved;
+}
+
+/** Delete a draft limit set (approved and superseded sets are permanent). Returns false when it was not a draft. */
+export async function deleteDraftLimitSet(db: Db, id: number): Promise<boolean> {
+  return (await LimitSet.destroy({ where: { id, status: 'draft' }, ...txOpt(db) })) > 0;
 }
 
 // --- points ---------------------------------------------------------------------------------
@@ -318,7 +387,8 @@ export async function lastPointOf(
   pool: Queryable,
   characteristicId: number,
 ): Promise<{ index: number; tMs: number; key: string | null; observation: number } | null> {
-  const { rows } = await pool.query<{ index: number; tMs: number; key: string | null; observation: number }>(
+  const rows = await select<{ index: number; tMs: number; key: string | null; observation: number }>(
+    pool,
     `select idx as "index", (extract(epoch from t) * 1000)::float8 as "tMs", subgroup_key as key, observation
        from spc_points where characteristic_id = $1 order by idx desc limit 1`,
     [characteristicId],
@@ -333,13 +403,15 @@ export async function pointsOf(
   q: { fromMs?: number; toMs?: number; last?: number },
 ): Promise<ChartPoint[]> {
   if (q.fromMs !== undefined || q.toMs !== undefined) {
-    const { rows } = await pool.query(
+    const rows = await select<Record<string, unknown>>(
+      pool,
       `select ${POINT_COLUMNS} from spc_points where characteristic_id = $1 and t >= $2 and t <= $3 order by idx limit 20000`,
       [characteristicId, new Date(q.fromMs ?? 0), new Date(q.toMs ?? 8.64e15)],
     );
     return rows.map(toPoint);
   }
-  const { rows } = await pool.query(
+  const rows = await select<Record<string, unknown>>(
+    pool,
     `select * from (select ${POINT_COLUMNS} from spc_points where characteristic_id = $1 order by idx desc limit $2) p order by "index"`,
     [characteristicId, q.last ?? 200],
   );
@@ -353,7 +425,8 @@ export async function baselineOf(
   fromMs: number,
   toMs: number,
 ): Promise<(ChartPoint & { members: number[] })[]> {
-  const { rows } = await pool.query(
+  const rows = await select<Record<string, unknown>>(
+    pool,
     `select ${POINT_COLUMNS}, members from spc_points where characteristic_id = $1 and t >= $2 and t <= $3 order by idx limit 20000`,
     [characteristicId, new Date(fromMs), new Date(toMs)],
   );
@@ -365,7 +438,8 @@ export async function pointById(
   characteristicId: number,
   pointId: number,
 ): Promise<(ChartPoint & { members: number[]; readings: unknown[]; key: string | null }) | null> {
-  const { rows } = await pool.query(
+  const rows = await select<Record<string, unknown>>(
+    pool,
     `select ${POINT_COLUMNS}, members, readings, subgroup_key as key from spc_points where characteristic_id = $1 and id = $2`,
     [characteristicId, pointId],
   );
@@ -376,7 +450,7 @@ export async function pointById(
 }
 
 export async function countPoints(pool: Queryable, characteristicId: number): Promise<number> {
-  const { rows } = await pool.query<{ n: number }>(`select count(*)::int as n from spc_points where characteristic_id = $1`, [
+  const rows = await select<{ n: number }>(pool, `select count(*)::int as n from spc_points where characteristic_id = $1`, [
     characteristicId,
   ]);
   return rows[0]?.n ?? 0;
@@ -556,7 +630,8 @@ export async function insertPointRows(client: Queryable, rows: readonly PointRow
     dip_run_id: r.dipRunId,
     oven_load_id: r.ovenLoadId,
   }));
-  const { rows: stored } = await client.query(
+  const stored = await select<Record<string, unknown>>(
+    client,
     `insert into spc_points (characteristic_id, idx, t, t_from, value, observation, dispersion, n, members, readings, extra, center, ucl, lcl,
         violations, limit_set_id, excluded, exclusion_reason, subgroup_key, dip_run_id, oven_load_id)
      select characteristic_id, idx, t, t_from, value, observation, dispersion, n, members, readings, extra, center, ucl, lcl,
@@ -575,22 +650,17 @@ export async function insertPointRows(client: Queryable, rows: readonly PointRow
  * Judge and store new subgroups of a characteristic (oldest first). Subgroups that close at or
  * before the last stored point, or whose key is already stored, are ignored. Returns the stored points.
  */
-export async function recordSubgroups(
-  pool: pg.Pool,
-  c: CharacteristicRecord,
-  subgroups: readonly NewSubgroup[],
-): Promise<ChartPoint[]> {
+export async function recordSubgroups(db: Db, c: CharacteristicRecord, subgroups: readonly NewSubgroup[]): Promise<ChartPoint[]> {
   if (subgroups.length === 0) return [];
-  const client = await pool.connect();
-  try {
-    await client.query('begin');
-    await client.query('select pg_advisory_xact_lock($1, $2)', [LOCK_NS, c.id]);
-    const last = await lastPointOf(client, c.id);
+  return inTransaction(db, async (t) => {
+    await execute(t, 'select pg_advisory_xact_lock($1, $2)', [LOCK_NS, c.id]);
+    const last = await lastPointOf(t, c.id);
     let fresh = [...subgroups].sort((a, b) => a.tMs - b.tMs).filter((s) => last === null || s.tMs > last.tMs);
     if (fresh.length > 0) {
       const keys = fresh.map((s) => s.key).filter((k): k is string => !!k);
       if (keys.length > 0) {
-        const { rows } = await client.query<{ k: string }>(
+        const rows = await select<{ k: string }>(
+          t,
           `select subgroup_key as k from spc_points where characteristic_id = $1 and subgroup_key = any($2)`,
           [c.id, keys],
         );
@@ -598,29 +668,20 @@ export async function recordSubgroups(
         fresh = fresh.filter((s) => !s.key || !seen.has(s.key));
       }
     }
-    if (fresh.length === 0) {
-      await client.query('commit');
-      return [];
-    }
-    const sets = await limitSetsOf(client, c.id);
+    if (fresh.length === 0) return [];
+    const sets = await limitSetsOf(t, c.id);
     const rows = await judgeForStorage(c, fresh, last, sets, async (setId, keep) => {
-      const r = await client.query<{ members: number[] }>(
+      const r = await select<{ members: number[] }>(
+        t,
         keep === null
           ? `select members from spc_points where characteristic_id = $1 and limit_set_id = $2 order by idx`
           : `select members from (select idx, members from spc_points where characteristic_id = $1 and limit_set_id = $2 order by idx desc limit $3) h order by idx`,
         keep === null ? [c.id, setId] : [c.id, setId, keep],
       );
-      return r.rows.map((x) => x.members);
+      return r.map((x) => x.members);
     });
-    const stored = await insertPointRows(client, rows);
-    await client.query('commit');
-    return stored;
-  } catch (e) {
-    await client.query('rollback').catch(() => {});
-    throw e;
-  } finally {
-    client.release();
-  }
+    return insertPointRows(t, rows);
+  });
 }
 
 /** Readings of the source channels strictly after `afterMs` (at most `limit`, oldest first). */
@@ -630,7 +691,8 @@ export async function sourceReadingsAfter(
   afterMs: number,
   limit = 5000,
 ): Promise<SourceReading[]> {
-  const { rows } = await pool.query<SourceReading>(
+  const rows = await select<SourceReading>(
+    pool,
     `select channel_id as "channelId", (extract(epoch from ts) * 1000)::float8 as "tMs", value
        from readings where channel_id = any($1::int[]) and ts > $2 and quality = 0 order by ts, channel_id limit $3`,
     [channelIds, new Date(afterMs), limit],
@@ -645,17 +707,13 @@ export const BACKFILL_MAX_READINGS = 200_000;
  * Plot a new characteristic's points from stored history since `fromMs` (readings, or closed oven
  * loads), unjudged unless a limit set is in force. Returns the number of points stored.
  */
-export async function backfillCharacteristic(
-  pool: pg.Pool,
-  c: CharacteristicRecord,
-  fromMs: number,
-  nowMs: number,
-): Promise<number> {
+export async function backfillCharacteristic(pool: Db, c: CharacteristicRecord, fromMs: number, nowMs: number): Promise<number> {
   if (c.subgroupRule.kind === 'per-oven-load') {
     const pending = await pendingLoadSubgroups(pool, c, fromMs);
     return (await recordSubgroups(pool, c, pending)).length;
   }
-  const { rows } = await pool.query<SourceReading>(
+  const rows = await select<SourceReading>(
+    pool,
     `select * from (select channel_id as "channelId", (extract(epoch from ts) * 1000)::float8 as "tMs", value
        from readings where channel_id = any($1::int[]) and ts > $2 and quality = 0 order by ts desc limit $3) r order by "tMs", "channelId"`,
     [c.channelIds, new Date(fromMs), BACKFILL_MAX_READINGS],
@@ -680,7 +738,7 @@ export function firstLookbackMs(rule: SubgroupRule): number {
  * Form and record whatever subgroups of `c` are complete at `nowMs` from its source readings.
  * Stateless: re-reads the readings after the last point every time.
  */
-export async function advanceCharacteristic(pool: pg.Pool, c: CharacteristicRecord, nowMs: number): Promise<ChartPoint[]> {
+export async function advanceCharacteristic(pool: Db, c: CharacteristicRecord, nowMs: number): Promise<ChartPoint[]> {
   if (c.subgroupRule.kind === 'per-oven-load') return [];
   const last = await lastPointOf(pool, c.id);
   const after = last?.tMs ?? nowMs - firstLookbackMs(c.subgroupRule);
@@ -700,7 +758,7 @@ export async function advanceCharacteristic(pool: pg.Pool, c: CharacteristicReco
  * Returns the stored point, or null when the load was already recorded or is older than the last point.
  */
 export async function recordLoadSubgroup(
-  pool: pg.Pool,
+  pool: Db,
   characteristicId: number,
   loadId: number,
   values: readonly number[],
@@ -731,7 +789,7 @@ export async function recordLoadSubgroup(
  * its cure alarm tells that story.
  */
 export async function pendingLoadSubgroups(pool: Queryable, c: CharacteristicRecord, afterMs: number): Promise<NewSubgroup[]> {
-  const { rows } = await pool.query<{
+  const rows = await select<{
     id: number;
     computed: boolean;
     fromMs: number | null;
@@ -740,6 +798,7 @@ export async function pendingLoadSubgroups(pool: Queryable, c: CharacteristicRec
     n: number | null;
     avg: number | null;
   }>(
+    pool,
     `with oven as (
        select a.id from assets a where a.id = $1 and a.kind = 'oven'
        union select a.parent_id from assets a where a.id = $1 and a.kind = 'zone'),
@@ -778,7 +837,7 @@ export async function pendingLoadSubgroups(pool: Queryable, c: CharacteristicRec
 
 /** The specification of a characteristic at `atMs` (fixed, or from the process window in force). */
 export async function resolveSpec(
-  pool: pg.Pool,
+  pool: Queryable,
   c: Pick<CharacteristicRecord, 'spec' | 'channelIds' | 'assetId'>,
   atMs: number,
 ): Promise<{ spec: SpecLimits | null; note: string | null }> {
@@ -791,7 +850,7 @@ export async function resolveSpec(
     if (s.target !== undefined) spec.target = s.target;
     return { spec, note: null };
   }
-  const { rows } = await pool.query<{ asset_id: number }>(`select asset_id from channels where id = $1`, [c.channelIds[0]]);
+  const rows = await select<{ asset_id: number }>(pool, `select asset_id from channels where id = $1`, [c.channelIds[0]]);
   const assetId = rows[0]?.asset_id ?? c.assetId;
   const w = await windowInForce(pool, assetId, atMs);
   if (!w)

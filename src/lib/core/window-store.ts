@@ -1,6 +1,11 @@
 /**
- * Which process window is in force for an asset at a time (worker-safe: takes a pg.Pool,
- * imports neither astro:env nor the web app's db handles).
+ * Which process window is in force for an asset at a time, and the window versions as the
+ * screens show them (worker-safe: takes the Sequelize instance or a transaction, imports neither
+ * astro:env nor the web app's db handles).
+ *
+ * These reads stay SQL through `sequelize.query`: "in force" is one recursive walk up the asset
+ * tree that the worker runs per channel and the floor per asset (one round trip instead of one
+ * per ancestor), and the views join lacquers and materials, which are the baths area's tables.
  *
  * An assignment names a window (a lacquer × substrate recipe, any version) for a line or an
  * oven over [valid_from, valid_to). The version in force at `atMs` is the one of that recipe
@@ -8,8 +13,9 @@
  * a new version takes effect on every line running the recipe without re-assigning.
  * A tank, zone or coater walks up the asset tree to the nearest assigned ancestor.
  */
-import type pg from 'pg';
-import type { ProcessWindowInForce, ProcessWindowLimits } from '../shared/windows.ts';
+import type { SignatureRecord } from '../../../db/models/index.ts';
+import type { ProcessWindowInForce, ProcessWindowLimits, WindowStatus } from '../shared/windows.ts';
+import { select, type AnyDb } from './db.ts';
 
 interface Row {
   id: number;
@@ -55,23 +61,9 @@ function toInForce(r: Row): ProcessWindowInForce {
 }
 
 /** The window in force for `assetId` (line, tank, oven, zone…) at `atMs`, or null. */
-export async function windowInForce(pool: pg.Pool, assetId: number, atMs: number): Promise<ProcessWindowInForce | null> {
-  const { rows } = await pool.query<Row>(IN_FORCE_SQL, [assetId, new Date(atMs)]);
+export async function windowInForce(q: AnyDb, assetId: number, atMs: number): Promise<ProcessWindowInForce | null> {
+  const rows = await select<Row>(q, IN_FORCE_SQL, [assetId, new Date(atMs)]);
   return rows[0] ? toInForce(rows[0]) : null;
-}
-
-/** The windows in force for several assets at one time (a map keyed by asset id; absent = none). */
-export async function windowsInForce(
-  pool: pg.Pool,
-  assetIds: readonly number[],
-  atMs: number,
-): Promise<Map<number, ProcessWindowInForce>> {
-  const out = new Map<number, ProcessWindowInForce>();
-  for (const id of new Set(assetIds)) {
-    const w = await windowInForce(pool, id, atMs);
-    if (w) out.set(id, w);
-  }
-  return out;
 }
 
 export interface AssignmentRow {
@@ -91,8 +83,8 @@ export interface AssignmentRow {
 }
 
 /** Assignment history, newest first (optionally for one asset). */
-export async function listAssignments(pool: pg.Pool, assetId?: number): Promise<AssignmentRow[]> {
-  const { rows } = await pool.query<{
+export async function listAssignments(q: AnyDb, assetId?: number): Promise<AssignmentRow[]> {
+  const rows = await select<{
     id: number;
     asset_id: number;
     asset_code: string;
@@ -107,6 +99,7 @@ export async function listAssignments(pool: pg.Pool, assetId?: number): Promise<
     assigned_by: string | null;
     note: string | null;
   }>(
+    q,
     `select wa.id, wa.asset_id, a.code as asset_code, a.name as asset_name, wa.window_id, pw.name as window_name, pw.version,
             l.name as lacquer, m.name as substrate, wa.valid_from, wa.valid_to, u.username as assigned_by, wa.note
        from window_assignments wa
@@ -134,4 +127,61 @@ export async function listAssignments(pool: pg.Pool, assetId?: number): Promise<
     assignedBy: r.assigned_by,
     note: r.note,
   }));
+}
+
+/** One version of a process window as the screens show it. */
+export interface WindowRow {
+  id: number;
+  lacquerId: number;
+  lacquer: string;
+  materialId: number;
+  substrate: string;
+  version: number;
+  name: string;
+  status: WindowStatus;
+  limits: ProcessWindowLimits;
+  note: string | null;
+  createdBy: string | null;
+  createdAt: string;
+  updatedAt: string;
+  approvedBy: string | null;
+  approvedSignature: SignatureRecord | null;
+  effectiveFrom: string | null;
+  supersededAt: string | null;
+}
+
+const iso = (d: Date | string | null): string | null => (d == null ? null : new Date(d).toISOString());
+
+export const WINDOW_SELECT = `
+  select pw.id, pw.lacquer_id as "lacquerId", l.name as lacquer, pw.material_id as "materialId", m.name as substrate,
+         pw.version, pw.name, pw.status, pw.limits, pw.note, cu.username as "createdBy", pw.created_at as "createdAt",
+         pw.updated_at as "updatedAt", au.username as "approvedBy", pw.approved_signature as "approvedSignature",
+         pw.effective_from as "effectiveFrom", pw.superseded_at as "supersededAt"
+    from process_windows pw
+    join lacquers l on l.id = pw.lacquer_id
+    join materials m on m.id = pw.material_id
+    left join users cu on cu.id = pw.created_by
+    left join users au on au.id = pw.approved_by`;
+
+export type RawWindow = Omit<WindowRow, 'createdAt' | 'updatedAt' | 'effectiveFrom' | 'supersededAt'> & {
+  createdAt: Date;
+  updatedAt: Date;
+  effectiveFrom: Date | null;
+  supersededAt: Date | null;
+};
+
+export function toWindow(r: RawWindow): WindowRow {
+  return {
+    ...r,
+    createdAt: iso(r.createdAt)!,
+    updatedAt: iso(r.updatedAt)!,
+    effectiveFrom: iso(r.effectiveFrom),
+    supersededAt: iso(r.supersededAt),
+  };
+}
+
+/** One window version by id, or null. */
+export async function windowById(q: AnyDb, id: number): Promise<WindowRow | null> {
+  const [row] = await select<RawWindow>(q, `${WINDOW_SELECT} where pw.id = $1`, [id]);
+  return row ? toWindow(row) : null;
 }

@@ -6,47 +6,47 @@ import type { AlarmEvent } from '../../domain/alarms/state.ts';
 import { alarmKpis, type AlarmKpiReport } from '../../domain/alarms/kpi.ts';
 import type { AlarmConfigInput, AlarmView, CharacteristicAlarmConfig, EscalationSettings } from '../../shared/alarm-views.ts';
 import type { SessionUser } from '../auth.ts';
-import { audit } from '../audit.ts';
 import { publishLive } from '../broker-link.ts';
-import { pgPool } from '../db.ts';
+import { sequelize } from '../db.ts';
 import { actorOf } from '../guard.ts';
-import { HttpProblem } from '../http.ts';
+import { DOMAIN_ERROR_STATUS, HttpProblem } from '../http.ts';
+import { alarmEvents, alarmLog, getAlarm, listAlarms, type AlarmLogRow, type ListAlarmsFilter } from '../../core/alarm-store.ts';
 import {
-  alarmEvents,
-  alarmLog,
-  getAlarm,
-  listAlarms,
-  transitionAlarm,
-  type AlarmLogRow,
-  type ListAlarmsFilter,
-} from '../../core/alarm-store.ts';
-import {
-  channelExists,
-  characteristicExists,
-  deleteChannelAlarmConfig,
-  listCharacteristicAlarmConfigs,
-  upsertCharacteristicAlarmConfig,
   escalationSettings,
-  listChannelAlarmConfigs,
-  saveEscalationSettings,
-  upsertChannelAlarmConfig,
+  listChannelAlarmConfigs as listChannelConfigs,
+  listCharacteristicAlarmConfigs as listCharacteristicConfigs,
 } from '../../core/alarm-config-store.ts';
+import {
+  applyAlarmEventAudited,
+  bulkAckAudited,
+  removeChannelAlarmConfig,
+  saveChannelAlarmConfig,
+  saveCharacteristicAlarmConfig,
+  saveEscalationAudited,
+  type AlarmPerson,
+} from '../../core/alarm-commands.ts';
 
-export { listChannelAlarmConfigs, listCharacteristicAlarmConfigs };
+export const listChannelAlarmConfigs = () => listChannelConfigs(sequelize());
+export const listCharacteristicAlarmConfigs = () => listCharacteristicConfigs(sequelize());
 
 export async function alarmsList(f: ListAlarmsFilter): Promise<AlarmView[]> {
-  return listAlarms(pgPool(), f);
+  return listAlarms(sequelize(), f);
 }
 
 export async function alarmWithEvents(id: number) {
-  const alarm = await getAlarm(pgPool(), id);
+  const alarm = await getAlarm(sequelize(), id);
   if (!alarm) throw new HttpProblem(404, 'Not found', `No alarm ${id}.`);
-  return { ...alarm, events: await alarmEvents(pgPool(), id) };
+  return { ...alarm, events: await alarmEvents(sequelize(), id) };
+}
+
+function personOf(user: SessionUser, address: string | null): AlarmPerson {
+  return { ...actorOf(user, address), role: user.role, userId: user.id };
 }
 
 /**
  * Apply a person's event to an alarm: 404 when unknown, 409 with the state model's reason
- * when refused; audited (`alarm.<event>`) and published live when it changed something.
+ * when refused; audited (`alarm.<event>`) in the change's transaction and published live when
+ * it changed something.
  */
 export async function applyAlarmEvent(
   user: SessionUser,
@@ -54,22 +54,8 @@ export async function applyAlarmEvent(
   id: number,
   event: AlarmEvent,
 ): Promise<AlarmView> {
-  const r = await transitionAlarm(pgPool(), id, event, { role: user.role, userId: user.id, nowMs: Date.now() });
-  if (!r.ok) {
-    throw new HttpProblem(r.status, r.status === 404 ? 'Not found' : 'Refused by the alarm state model', r.reason, {
-      reason: r.reason,
-    });
-  }
-  if (r.changed) {
-    await audit(actorOf(user, address), {
-      action: `alarm.${event.type}`,
-      entity: 'alarm',
-      entityId: id,
-      before: stateOf(r.before),
-      after: { ...stateOf(r.alarm), ...eventDetail(event) },
-    });
-    publishLive('alarms', r.alarm);
-  }
+  const r = await applyAlarmEventAudited(sequelize(), personOf(user, address), id, event, Date.now());
+  if (r.changed) publishLive('alarms', r.alarm);
   return r.alarm;
 }
 
@@ -80,34 +66,12 @@ export interface BulkAckResult {
 
 /** Acknowledge several alarms with one comment; each is transitioned and audited on its own. */
 export async function bulkAck(user: SessionUser, address: string | null, ids: number[], comment: string): Promise<BulkAckResult> {
-  const out: BulkAckResult = { acknowledged: [], refused: [] };
-  for (const id of ids) {
-    try {
-      out.acknowledged.push(await applyAlarmEvent(user, address, id, { type: 'ack', comment }));
-    } catch (e) {
-      if (!(e instanceof HttpProblem)) throw e;
-      out.refused.push({ id, status: e.status, reason: e.detail ?? e.title });
-    }
-  }
-  return out;
-}
-
-function stateOf(a: AlarmView) {
-  return { state: a.state, active: a.active, shelvedUntilMs: a.shelvedUntilMs, priority: a.priority, source: a.sourceLabel };
-}
-
-function eventDetail(e: AlarmEvent): Record<string, unknown> {
-  switch (e.type) {
-    case 'ack':
-      return { comment: e.comment.trim() };
-    case 'shelve':
-      return { minutes: e.minutes, reason: e.reason.trim() };
-    case 'remove-from-service':
-    case 'return-to-service':
-      return { reason: e.reason.trim() };
-    default:
-      return {};
-  }
+  const r = await bulkAckAudited(sequelize(), personOf(user, address), ids, comment, Date.now());
+  for (const a of r.acknowledged) if (a.changed) publishLive('alarms', a.alarm);
+  return {
+    acknowledged: r.acknowledged.map((a) => a.alarm),
+    refused: r.refused.map((x) => ({ id: x.id, status: DOMAIN_ERROR_STATUS[x.kind], reason: x.reason })),
+  };
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -115,22 +79,11 @@ function eventDetail(e: AlarmEvent): Record<string, unknown> {
 // ---------------------------------------------------------------------------------------------
 
 export async function saveChannelConfig(user: SessionUser, address: string | null, channelId: number, input: AlarmConfigInput) {
-  if (!(await channelExists(pgPool(), channelId))) throw new HttpProblem(404, 'Not found', `No channel ${channelId}.`);
-  const { before, after } = await upsertChannelAlarmConfig(pgPool(), channelId, input, user.id);
-  await audit(actorOf(user, address), { action: 'alarm.configure', entity: 'alarm_config', entityId: channelId, before, after });
-  return after;
+  return saveChannelAlarmConfig(sequelize(), actorOf(user, address), channelId, input);
 }
 
 export async function removeChannelConfig(user: SessionUser, address: string | null, channelId: number) {
-  const before = await deleteChannelAlarmConfig(pgPool(), channelId);
-  if (!before) throw new HttpProblem(404, 'Not found', `Channel ${channelId} has no alarm settings of its own.`);
-  await audit(actorOf(user, address), {
-    action: 'alarm.configure',
-    entity: 'alarm_config',
-    entityId: channelId,
-    before,
-    after: null,
-  });
+  await removeChannelAlarmConfig(sequelize(), actorOf(user, address), channelId);
 }
 
 export async function saveCharacteristicConfig(
@@ -139,22 +92,11 @@ export async function saveCharacteristicConfig(
   characteristicId: number,
   input: CharacteristicAlarmConfig,
 ) {
-  if (!(await characteristicExists(pgPool(), characteristicId))) {
-    throw new HttpProblem(404, 'Not found', `No characteristic ${characteristicId}.`);
-  }
-  const { before, after } = await upsertCharacteristicAlarmConfig(pgPool(), characteristicId, input, user.id);
-  await audit(actorOf(user, address), {
-    action: 'alarm.configure',
-    entity: 'alarm_config_characteristic',
-    entityId: characteristicId,
-    before,
-    after,
-  });
-  return after;
+  return saveCharacteristicAlarmConfig(sequelize(), actorOf(user, address), characteristicId, input);
 }
 
 export async function escalation(): Promise<EscalationSettings> {
-  return escalationSettings(pgPool());
+  return escalationSettings(sequelize());
 }
 
 export async function saveEscalation(
@@ -162,15 +104,7 @@ export async function saveEscalation(
   address: string | null,
   s: EscalationSettings,
 ): Promise<EscalationSettings> {
-  const { before, after } = await saveEscalationSettings(pgPool(), s);
-  await audit(actorOf(user, address), {
-    action: 'alarm.escalation',
-    entity: 'site_settings',
-    entityId: 'alarmEscalation',
-    before,
-    after,
-  });
-  return after;
+  return saveEscalationAudited(sequelize(), actorOf(user, address), s);
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -190,7 +124,7 @@ const TEN_MIN = 600_000;
 
 /** The alarm-system health figures of a period (`alarmKpis`, ANSI/ISA-18.2 benchmarks) and the 10-minute series. */
 export async function alarmHealth(fromMs: number, toMs: number, positions: number): Promise<AlarmHealth> {
-  const log = await alarmLog(pgPool(), fromMs, toMs);
+  const log = await alarmLog(sequelize(), fromMs, toMs);
   const report = alarmKpis(log, { fromMs, toMs, operatorPositions: positions });
   const start = Math.floor(fromMs / TEN_MIN) * TEN_MIN;
   const buckets = new Map<number, number>();

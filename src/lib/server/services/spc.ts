@@ -1,7 +1,8 @@
 /**
  * Characteristics, control-limit studies and chart data for the web app (pages and API). The
- * persistence is `stores/spc-store.ts` (shared with the ingest worker); this layer adds the
- * checks, the audit trail and the electronic signature.
+ * persistence is `core/spc-store.ts` (shared with the ingest worker) and the audited changes
+ * `core/spc-commands.ts` (change and audit row in one transaction); this layer adds the checks,
+ * the study and the electronic signature.
  */
 import { runStudy, StudyError } from '../../domain/control/study.ts';
 import { dataFor } from '../../domain/control/phase2.ts';
@@ -19,20 +20,25 @@ import {
   type StudyResult,
 } from '../../shared/characteristics.ts';
 import type { SpcCapability } from '../../shared/spc.ts';
-import { audit } from '../audit.ts';
 import { signWithPassword, type SessionUser } from '../auth.ts';
-import { pgPool } from '../db.ts';
+import { sequelize } from '../db.ts';
+import { select } from '../../core/db.ts';
+import { siteTimeZone as siteZoneOf } from '../../core/settings-store.ts';
+import {
+  approveLimitSetAudited,
+  createCharacteristicAudited,
+  discardDraftAudited,
+  draftLimitSetAudited,
+  updateCharacteristicAudited,
+} from '../../core/spc-commands.ts';
 import { actorOf } from '../guard.ts';
 import { HttpProblem } from '../http.ts';
 import {
-  approveLimitSetRow,
   backfillCharacteristic,
   baselineOf,
   countPoints,
   getCharacteristicRecord,
   getLimitSet,
-  insertCharacteristic,
-  insertDraftLimitSet,
   lastPointOf,
   limitSetsOf,
   listCharacteristicRecords,
@@ -50,18 +56,19 @@ const invalid = (path: string, message: string) =>
 
 /** The site's time zone (the demo's is Europe/London). */
 export async function siteTimeZone(): Promise<string> {
-  const { rows } = await pgPool().query<{ tz: string }>(`select time_zone as tz from sites order by id limit 1`);
-  return rows[0]?.tz ?? 'UTC';
+  return siteZoneOf(sequelize());
 }
 
 async function decorate(records: CharacteristicRecord[]): Promise<Characteristic[]> {
   if (records.length === 0) return [];
   const ids = [...new Set(records.flatMap((r) => r.channelIds))];
-  const { rows: chans } = await pgPool().query<{ id: number; name: string; unit: string; assetId: number }>(
+  const chans = await select<{ id: number; name: string; unit: string; assetId: number }>(
+    sequelize(),
     `select id, name, unit, asset_id as "assetId" from channels where id = any($1::int[])`,
     [ids],
   );
-  const { rows: assets } = await pgPool().query<{ id: number; name: string }>(
+  const assets = await select<{ id: number; name: string }>(
+    sequelize(),
     `select id, name from assets where id = any($1::int[])`,
     [records.map((r) => r.assetId)],
   );
@@ -75,7 +82,7 @@ async function decorate(records: CharacteristicRecord[]): Promise<Characteristic
 }
 
 export async function listCharacteristics(): Promise<Characteristic[]> {
-  return decorate(await listCharacteristicRecords(pgPool()));
+  return decorate(await listCharacteristicRecords(sequelize()));
 }
 
 /** One row of the characteristics list: the characteristic and how its chart stands. */
@@ -92,19 +99,22 @@ export async function characteristicSummaries(): Promise<CharacteristicSummary[]
   const list = await listCharacteristics();
   if (list.length === 0) return [];
   const ids = list.map((c) => c.id);
-  const pool = pgPool();
+  const pool = sequelize();
   const [sets, stats, lasts] = await Promise.all([
-    pool.query<{ cid: number; version: number | null; eff: Date | null; drafts: number }>(
+    select<{ cid: number; version: number | null; eff: Date | null; drafts: number }>(
+      pool,
       `select characteristic_id as cid, max(version) filter (where status = 'approved') as version,
               max(effective_from) filter (where status = 'approved') as eff, count(*) filter (where status = 'draft')::int as drafts
          from limit_sets where characteristic_id = any($1::int[]) group by characteristic_id`,
       [ids],
     ),
-    pool.query<{ cid: number; n: number }>(
+    select<{ cid: number; n: number }>(
+      pool,
       `select characteristic_id as cid, count(*)::int as n from spc_points where characteristic_id = any($1::int[]) group by 1`,
       [ids],
     ),
-    pool.query<{ cid: number; tMs: number; value: number; violations: string[]; recent: number }>(
+    select<{ cid: number; tMs: number; value: number; violations: string[]; recent: number }>(
+      pool,
       `select c.id as cid, p."tMs", p.value, p.violations, r.recent
          from unnest($1::int[]) as c(id)
          cross join lateral (select (extract(epoch from t) * 1000)::float8 as "tMs", value, violations from spc_points where characteristic_id = c.id order by idx desc limit 1) p
@@ -113,9 +123,9 @@ export async function characteristicSummaries(): Promise<CharacteristicSummary[]
       [ids],
     ),
   ]);
-  const setBy = new Map(sets.rows.map((r) => [r.cid, r]));
-  const countBy = new Map(stats.rows.map((r) => [r.cid, r.n]));
-  const lastBy = new Map(lasts.rows.map((r) => [r.cid, r]));
+  const setBy = new Map(sets.map((r) => [r.cid, r]));
+  const countBy = new Map(stats.map((r) => [r.cid, r.n]));
+  const lastBy = new Map(lasts.map((r) => [r.cid, r]));
   return list.map((c) => {
     const s = setBy.get(c.id);
     const l = lastBy.get(c.id);
@@ -132,13 +142,14 @@ export async function characteristicSummaries(): Promise<CharacteristicSummary[]
 }
 
 export async function getCharacteristic(id: number): Promise<Characteristic> {
-  const r = await getCharacteristicRecord(pgPool(), id);
+  const r = await getCharacteristicRecord(sequelize(), id);
   if (!r) throw new HttpProblem(404, 'Not found', 'No such characteristic.');
   return (await decorate([r]))[0]!;
 }
 
 async function checkChannels(fields: CharacteristicFields): Promise<number> {
-  const { rows } = await pgPool().query<{ id: number; unit: string; kind: string }>(
+  const rows = await select<{ id: number; unit: string; kind: string }>(
+    sequelize(),
     `select id, unit, kind from channels where id = any($1::int[])`,
     [fields.channelIds],
   );
@@ -154,13 +165,14 @@ async function checkChannels(fields: CharacteristicFields): Promise<number> {
     );
   if (rows.some((r) => r.kind === 'door'))
     throw invalid('channelIds', 'A door switch (open/closed) is not a measurement to chart.');
-  const top = await topAssetOfChannel(pgPool(), fields.channelIds[0]!);
+  const top = await topAssetOfChannel(sequelize(), fields.channelIds[0]!);
   if (top === null) throw invalid('channelIds.0', 'The channel has no asset.');
   return top;
 }
 
 async function checkName(name: string, exceptId: number | null): Promise<void> {
-  const { rows } = await pgPool().query(
+  const rows = await select<Record<string, unknown>>(
+    sequelize(),
     `select id from characteristics where lower(name) = lower($1) and id is distinct from $2`,
     [name, exceptId],
   );
@@ -176,13 +188,12 @@ export async function createCharacteristic(
   await checkName(fields.name, null);
   const assetId = await checkChannels(fields);
   const { backfillDays = 14, ...stored } = fields;
-  const id = await insertCharacteristic(pgPool(), stored, assetId, user.id);
-  await audit(actorOf(user, address), { action: 'characteristic.create', entity: 'characteristic', entityId: id, after: stored });
+  const id = await createCharacteristicAudited(sequelize(), actorOf(user, address), stored, assetId);
   if (backfillDays > 0 && stored.active) {
-    const record = await getCharacteristicRecord(pgPool(), id);
+    const record = await getCharacteristicRecord(sequelize(), id);
     if (record) {
       const now = Date.now();
-      await backfillCharacteristic(pgPool(), record, now - backfillDays * 86_400_000, now);
+      await backfillCharacteristic(sequelize(), record, now - backfillDays * 86_400_000, now);
     }
   }
   return getCharacteristic(id);
@@ -202,7 +213,7 @@ export async function updateCharacteristic(
   void _ignored;
   await checkName(fields.name, id);
   const assetId = await checkChannels(fields);
-  const points = await countPoints(pgPool(), id);
+  const points = await countPoints(sequelize(), id);
   if (points > 0) {
     for (const k of STRUCTURAL) {
       if (JSON.stringify(before[k]) !== JSON.stringify(fields[k])) {
@@ -217,26 +228,6 @@ export async function updateCharacteristic(
       }
     }
   }
-  await pgPool().query(
-    `update characteristics set name = $2, description = $3, asset_id = $4, channel_ids = $5, subgroup_rule = $6, subgroup_size = $7, chart = $8,
-        chart_params = $9, rules = $10, spec = $11, unit = $12, active = $13, updated_at = now() where id = $1`,
-    [
-      id,
-      fields.name,
-      fields.description,
-      assetId,
-      fields.channelIds,
-      JSON.stringify(fields.subgroupRule),
-      fields.subgroupSize,
-      fields.chart,
-      JSON.stringify(fields.chartParams),
-      fields.rules,
-      JSON.stringify(fields.spec),
-      fields.unit,
-      fields.active,
-    ],
-  );
-  const after = await getCharacteristic(id);
   const b = {
     name: before.name,
     description: before.description,
@@ -250,13 +241,8 @@ export async function updateCharacteristic(
     unit: before.unit,
     active: before.active,
   };
-  await audit(actorOf(user, address), {
-    action: 'characteristic.update',
-    entity: 'characteristic',
-    entityId: id,
-    before: b,
-    after: fields,
-  });
+  await updateCharacteristicAudited(sequelize(), actorOf(user, address), id, fields, assetId, b);
+  const after = await getCharacteristic(id);
   return after;
 }
 
@@ -305,7 +291,7 @@ function capabilityOfPoints(
 
 export async function chartData(id: number, q: { fromMs?: number; toMs?: number; last?: number }): Promise<ChartData> {
   const characteristic = await getCharacteristic(id);
-  const pool = pgPool();
+  const pool = sequelize();
   const [points, limitSets, totalPoints, timeZone] = await Promise.all([
     q.fromMs !== undefined || q.toMs !== undefined
       ? baselineOf(pool, id, q.fromMs ?? 0, q.toMs ?? 8.64e15)
@@ -330,15 +316,15 @@ export async function chartData(id: number, q: { fromMs?: number; toMs?: number;
 }
 
 async function pointsWithMembers(id: number, last: number): Promise<(ChartPoint & { members: number[] })[]> {
-  const recent = await pointsOf(pgPool(), id, { last });
+  const recent = await pointsOf(sequelize(), id, { last });
   if (recent.length === 0) return [];
-  return baselineOf(pgPool(), id, recent[0]!.tMs, recent[recent.length - 1]!.tMs);
+  return baselineOf(sequelize(), id, recent[0]!.tMs, recent[recent.length - 1]!.tMs);
 }
 
 /** Everything behind one plotted point: raw readings with their channels, and the records it belongs to. */
 export async function pointDetail(id: number, pointId: number) {
   const c = await getCharacteristic(id);
-  const pool = pgPool();
+  const pool = sequelize();
   const p = await pointById(pool, id, pointId);
   if (!p) throw new HttpProblem(404, 'Not found', 'No such point on this chart.');
   const limitSet = p.limitSetId ? await getLimitSet(pool, p.limitSetId) : null;
@@ -346,26 +332,22 @@ export async function pointDetail(id: number, pointId: number) {
   const to = new Date(p.tMs + 60_000);
   const channelAssets = c.channels.map((ch) => ch.assetId);
   // Records the subgroup belongs to: dip runs on the same line around the stroke, oven loads in progress.
-  const dipRuns = await pool
-    .query<{ id: number; dippedAt: Date; speed: number | null }>(
-      `select d.id, d.dipped_at as "dippedAt", d.withdrawal_speed_mm_s as speed from dip_runs d
+  const dipRuns = await select<{ id: number; dippedAt: Date; speed: number | null }>(
+    pool,
+    `select d.id, d.dipped_at as "dippedAt", d.withdrawal_speed_mm_s as speed from dip_runs d
         where ($1::int is not null and d.id = $1) or (
           (d.line_asset_id = $2 or d.tank_asset_id = any($3::int[]))
           and coalesce(d.stroke_ended_at, d.dipped_at) >= $4 and coalesce(d.stroke_started_at, d.dipped_at) <= $5)
         order by d.dipped_at limit 20`,
-      [p.dipRunId, c.assetId, channelAssets, from, to],
-    )
-    .then((r) => r.rows)
-    .catch(() => []);
-  const ovenLoads = await pool
-    .query<{ id: number; openedAt: Date; closedAt: Date | null; verdict: string | null }>(
-      `select l.id, l.opened_at as "openedAt", l.closed_at as "closedAt", l.verdict from oven_loads l
+    [p.dipRunId, c.assetId, channelAssets, from, to],
+  ).catch(() => []);
+  const ovenLoads = await select<{ id: number; openedAt: Date; closedAt: Date | null; verdict: string | null }>(
+    pool,
+    `select l.id, l.opened_at as "openedAt", l.closed_at as "closedAt", l.verdict from oven_loads l
         where ($1::int is not null and l.id = $1) or (l.oven_asset_id = $2 and l.opened_at <= $4 and coalesce(l.closed_at, now()) >= $3)
         order by l.opened_at limit 10`,
-      [p.ovenLoadId, c.assetId, new Date(p.tFromMs ?? p.tMs), new Date(p.tMs)],
-    )
-    .then((r) => r.rows)
-    .catch(() => []);
+    [p.ovenLoadId, c.assetId, new Date(p.tFromMs ?? p.tMs), new Date(p.tMs)],
+  ).catch(() => []);
   return {
     characteristicId: id,
     point: { ...p, readings: undefined, members: undefined, key: undefined },
@@ -386,7 +368,7 @@ export async function pointDetail(id: number, pointId: number) {
 // --- studies and limit sets ------------------------------------------------------------------
 
 async function studyFor(c: Characteristic, fromMs: number, toMs: number, exclusions: { index: number; reason: string }[]) {
-  const pool = pgPool();
+  const pool = sequelize();
   const baseline = await baselineOf(pool, c.id, fromMs, toMs);
   if (baseline.length === 0) throw invalid('baselineFrom', 'There are no points in this period.');
   const sizes = new Set(baseline.map((p) => p.members.length));
@@ -458,7 +440,7 @@ export async function draftLimitSet(
   const fromMs = Date.parse(input.baselineFrom);
   const toMs = Date.parse(input.baselineTo);
   const { baseline, outcome } = await studyFor(c, fromMs, toMs, input.exclusions);
-  const draft = await insertDraftLimitSet(pgPool(), {
+  return draftLimitSetAudited(sequelize(), actorOf(user, address), {
     characteristicId: id,
     chart: c.chart,
     limitSet: outcome.limitSet,
@@ -474,21 +456,6 @@ export async function draftLimitSet(
     note: input.note,
     createdBy: user.id,
   });
-  await audit(actorOf(user, address), {
-    action: 'limits.draft',
-    entity: 'limit-set',
-    entityId: draft.id,
-    after: {
-      characteristicId: id,
-      version: draft.version,
-      center: draft.center,
-      ucl: draft.ucl,
-      lcl: draft.lcl,
-      sigma: draft.sigma,
-      excluded: draft.excluded,
-    },
-  });
-  return draft;
 }
 
 /**
@@ -502,7 +469,7 @@ export async function approveLimitSet(
   input: ApproveLimitSet,
   address: string | null,
 ): Promise<LimitSetView> {
-  const pool = pgPool();
+  const pool = sequelize();
   const draft = await getLimitSet(pool, setId);
   if (!draft || draft.characteristicId !== id)
     throw new HttpProblem(404, 'Not found', 'No such limit set for this characteristic.');
@@ -535,64 +502,21 @@ export async function approveLimitSet(
     effectiveFromMs = Math.max(Date.now(), floorMs);
   }
   const signature = await signWithPassword(user, input.password, input.meaning, address);
-  const client = await pool.connect();
-  let approved: LimitSetView;
-  try {
-    await client.query('begin');
-    approved = await approveLimitSetRow(client, setId, signature, effectiveFromMs);
-    await client.query('commit');
-  } catch (e) {
-    await client.query('rollback').catch(() => {});
-    throw e;
-  } finally {
-    client.release();
-  }
-  await audit(actorOf(user, address), {
-    action: 'limits.approve',
-    entity: 'limit-set',
-    entityId: setId,
-    before: previous
-      ? { supersededVersion: previous.version, center: previous.center, ucl: previous.ucl, lcl: previous.lcl }
-      : null,
-    after: {
-      characteristicId: id,
-      version: approved.version,
-      center: approved.center,
-      ucl: approved.ucl,
-      lcl: approved.lcl,
-      sigma: approved.sigma,
-      effectiveFrom: approved.effectiveFrom,
-      excluded: approved.excluded,
-    },
-    signature,
-  });
-  return approved;
+  return approveLimitSetAudited(sequelize(), actorOf(user, address), setId, signature, effectiveFromMs, previous ?? null);
 }
 
 /** Discard a draft that will not be approved (approved and superseded sets are permanent). */
 export async function discardDraft(user: SessionUser, id: number, setId: number, address: string | null): Promise<void> {
-  const pool = pgPool();
-  const draft = await getLimitSet(pool, setId);
-  if (!draft || draft.characteristicId !== id)
-    throw new HttpProblem(404, 'Not found', 'No such limit set for this characteristic.');
-  if (draft.status !== 'draft')
-    throw new HttpProblem(409, 'Not a draft', `Limit set v${draft.version} is ${draft.status} and stays on record.`);
-  await pool.query(`delete from limit_sets where id = $1 and status = 'draft'`, [setId]);
-  await audit(actorOf(user, address), {
-    action: 'limits.discard-draft',
-    entity: 'limit-set',
-    entityId: setId,
-    before: { characteristicId: id, version: draft.version },
-  });
+  await discardDraftAudited(sequelize(), actorOf(user, address), id, setId);
 }
 
 export async function limitSetsFor(id: number): Promise<LimitSetView[]> {
   await getCharacteristic(id);
-  return limitSetsOf(pgPool(), id);
+  return limitSetsOf(sequelize(), id);
 }
 
 export async function limitSetFor(id: number, setId: number): Promise<LimitSetView> {
-  const s = await getLimitSet(pgPool(), setId);
+  const s = await getLimitSet(sequelize(), setId);
   if (!s || s.characteristicId !== id) throw new HttpProblem(404, 'Not found', 'No such limit set for this characteristic.');
   return s;
 }
@@ -600,7 +524,7 @@ export async function limitSetFor(id: number, setId: number): Promise<LimitSetVi
 /** What the printable capability report needs: the observations behind the capability summary. */
 export async function capabilityReport(id: number, last: number) {
   const c = await getCharacteristic(id);
-  const pool = pgPool();
+  const pool = sequelize();
   const [points, sets, timeZone] = await Promise.all([pointsWithMembers(id, last), limitSetsOf(pool, id), siteTimeZone()]);
   const newest = points[points.length - 1];
   const { spec, note } = await resolveSpec(pool, c, newest?.tMs ?? Date.now());

@@ -1,7 +1,6 @@
 import type { APIRoute } from 'astro';
 import { requireRole } from '../../../../lib/server/guard.ts';
 import { listChannelAlarmConfigs } from '../../../../lib/server/services/alarms.ts';
-import { pgPool } from '../../../../lib/server/db.ts';
 import { operation } from '../../../../lib/server/api-operation.ts';
 import { ChannelAlarmConfigListSchema } from '../../../../lib/shared/api/alarms.ts';
 
@@ -17,5 +16,5 @@ export const contract = {
 /** Every channel with its alarm settings (null = none of its own: the process window applies), engineer. */
 export const GET: APIRoute = async ({ locals }) => {
   requireRole(locals, contract.GET.action);
-  return Response.json(await listChannelAlarmConfigs(pgPool()), { headers: { 'cache-control': 'no-store' } });
+  return Response.json(await listChannelAlarmConfigs(), { headers: { 'cache-control': 'no-store' } });
 };

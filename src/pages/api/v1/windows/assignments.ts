@@ -3,7 +3,6 @@ import { z } from 'zod';
 import { requireRole } from '../../../../lib/server/guard.ts';
 import { readJson, readQuery } from '../../../../lib/server/http.ts';
 import { assignWindow, listAssignments } from '../../../../lib/server/services/windows.ts';
-import { pgPool } from '../../../../lib/server/db.ts';
 import { WindowAssignSchema } from '../../../../lib/shared/windows.ts';
 import { operation } from '../../../../lib/server/api-operation.ts';
 import { AssignedWindowSchema, AssignmentListSchema } from '../../../../lib/shared/api/windows.ts';
@@ -31,7 +30,7 @@ export const contract = {
 export const GET: APIRoute = async ({ locals, url }) => {
   requireRole(locals, contract.GET.action);
   const { assetId } = readQuery(url, contract.GET.query);
-  return Response.json(await listAssignments(pgPool(), assetId));
+  return Response.json(await listAssignments(assetId));
 };
 
 /** Assign an approved window to a line/oven from a time on (engineer; audited). */

@@ -1,9 +1,8 @@
 import type { APIRoute } from 'astro';
 import { z } from 'zod';
-import { pgPool } from '../../../../lib/server/db.ts';
 import { requireRole } from '../../../../lib/server/guard.ts';
 import { HttpProblem, readQuery } from '../../../../lib/server/http.ts';
-import { windowInForce } from '../../../../lib/core/window-store.ts';
+import { windowInForce } from '../../../../lib/server/services/windows.ts';
 import { operation } from '../../../../lib/server/api-operation.ts';
 import { WindowInForceSchema } from '../../../../lib/shared/api/windows.ts';
 
@@ -27,7 +26,7 @@ export const contract = {
 export const GET: APIRoute = async ({ locals, url }) => {
   requireRole(locals, contract.GET.action);
   const { assetId, at } = readQuery(url, contract.GET.query);
-  const w = await windowInForce(pgPool(), assetId, at ? Date.parse(at) : Date.now());
+  const w = await windowInForce(assetId, at ? Date.parse(at) : Date.now());
   if (!w)
     throw new HttpProblem(
       404,

@@ -1,5 +1,4 @@
 import type { APIRoute } from 'astro';
-import { pgPool } from '../../../../../lib/server/db.ts';
 import { requireRole } from '../../../../../lib/server/guard.ts';
 import { listCharacteristicAlarmConfigs } from '../../../../../lib/server/services/alarms.ts';
 import { operation } from '../../../../../lib/server/api-operation.ts';
@@ -17,5 +16,5 @@ export const contract = {
 /** Every control-chart characteristic with its alarm settings (null = on, at the priority raised), engineer. */
 export const GET: APIRoute = async ({ locals }) => {
   requireRole(locals, contract.GET.action);
-  return Response.json(await listCharacteristicAlarmConfigs(pgPool()), { headers: { 'cache-control': 'no-store' } });
+  return Response.json(await listCharacteristicAlarmConfigs(), { headers: { 'cache-control': 'no-store' } });
 };
