@@ -90,7 +90,7 @@ export async function seedAlarmDefaults(sequelize: Sequelize, opts: { log?: (s: 
         ],
       },
     );
-    made += (rows as unknown[]).length;
+    made += rows.length;
   }
   if (made > 0) opts.log?.(`Seeded ${made} example alarm settings (replace with the lacquer maker's data).`);
   return made;

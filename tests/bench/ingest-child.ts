@@ -122,9 +122,11 @@ if (mode === 'subscriber') {
       send({ ready: true });
     }
   }, 100);
-  process.once('SIGTERM', async () => {
-    await worker.close();
-    await pool.end();
-    process.exit(0);
+  process.once('SIGTERM', () => {
+    void (async () => {
+      await worker.close();
+      await pool.end();
+      process.exit(0);
+    })();
   });
 }

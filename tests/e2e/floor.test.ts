@@ -169,7 +169,7 @@ describe('the channel trend in the browser', () => {
       page.waitForEvent('download'),
       page.getByRole('button', { name: 'Download CSV' }).click(),
     ]);
-    const csv = fs.readFileSync((await csvDl.path())!, 'utf8').replace(/^\ufeff/, '');
+    const csv = fs.readFileSync(await csvDl.path(), 'utf8').replace(/^\ufeff/, '');
     const lines = csv.trim().split('\r\n');
     expect(lines[0]).toBe('channel,unit,time,zone,kind,value,min,mean,max,samples,bucket_start,bucket_end');
     expect(lines.length).toBeGreaterThan(2);
@@ -182,7 +182,7 @@ describe('the channel trend in the browser', () => {
       page.waitForEvent('download'),
       page.getByRole('button', { name: 'Download PNG' }).click(),
     ]);
-    const png = fs.readFileSync((await pngDl.path())!);
+    const png = fs.readFileSync(await pngDl.path());
     expect([...png.subarray(0, 8)]).toEqual([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]); // PNG signature (RFC 2083)
     fs.writeFileSync(path.join(OUT, 'trend-export.png'), png);
   }, 60_000);

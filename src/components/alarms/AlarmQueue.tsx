@@ -590,8 +590,11 @@ function Spark({ a }: { a: AlarmView }) {
   const [failed, setFailed] = useState(false);
   const from = a.lastActivatedAtMs - 10 * 60_000;
   const to = Math.min(Date.now(), a.lastActivatedAtMs + 5 * 60_000);
-  const key = `${a.channelId}:${a.lastActivatedAtMs}`;
   useEffect(() => {
+    // Fetched once per alarm activation (the cache key), whatever the clock says at re-render.
+    const key = `${a.channelId}:${a.lastActivatedAtMs}`;
+    const from = a.lastActivatedAtMs - 10 * 60_000;
+    const to = Math.min(Date.now(), a.lastActivatedAtMs + 5 * 60_000);
     let gone = false;
     let p = sparkCache.get(key);
     if (!p) {
@@ -605,7 +608,7 @@ function Spark({ a }: { a: AlarmView }) {
     return () => {
       gone = true;
     };
-  }, [key]);
+  }, [a.channelId, a.lastActivatedAtMs]);
   if (failed) return <span className="text-xs font-normal text-ink-soft">Trend unavailable</span>;
   if (!data) return <span className="block h-7 w-[120px] animate-pulse rounded bg-slate-panel" aria-label="Loading trend" />;
   const points = data.mode === 'raw' ? data.points : data.buckets.map((b) => ({ t: b.t, v: b.mean }));

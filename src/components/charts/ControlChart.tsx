@@ -529,7 +529,7 @@ function PointPanel({
               <tbody>
                 {detail.readings.slice(0, 60).map((r, i) => (
                   <tr key={i}>
-                    <td>{formatSiteTime(r.t!, tz, { seconds: true })}</td>
+                    <td>{formatSiteTime(r.t, tz, { seconds: true })}</td>
                     <td>{chName.get(r.c ?? -1) ?? r.c}</td>
                     <td className="num text-right">{fmtNum(r.v, 6)}</td>
                   </tr>

@@ -35,6 +35,7 @@ import {
   toLocalInput,
   zonesOver,
 } from '../../lib/shared/time.ts';
+import { thinLine } from '../../lib/domain/series/thin-line.ts';
 import {
   clampToNow,
   EVENT_STYLE,
@@ -45,7 +46,6 @@ import {
   presetRange,
   RANGE_PRESETS,
   shapeReadings,
-  thinLine,
   TREND_EVENT_KINDS,
   trendCsv,
   unitAxes,
@@ -238,7 +238,7 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
       setSeries(new Map(results));
       setLoading(null);
     };
-    const timer = setTimeout(run, first ? 0 : 80);
+    const timer = setTimeout(() => void run(), first ? 0 : 80);
     return () => {
       clearTimeout(timer);
       ac.abort();
@@ -275,8 +275,11 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
 
   // ---- chart data
   const axes = useMemo(() => unitAxes(ids.map((id) => byId.get(id)?.unit ?? '')), [ids, byId]);
-  const axisOf = (unit: string) => axes.find((a) => a.unit === unit)?.id ?? 'y0';
-  const loaded = ids.map((id) => ({ id, ch: byId.get(id)!, st: series.get(id) })).filter((x) => x.ch);
+  const axisOf = useCallback((unit: string) => axes.find((a) => a.unit === unit)?.id ?? 'y0', [axes]);
+  const loaded = useMemo(
+    () => ids.map((id) => ({ id, ch: byId.get(id)!, st: series.get(id) })).filter((x) => x.ch),
+    [ids, byId, series],
+  );
   const anyData = loaded.some((x) => (x.st?.shaped?.rows.length ?? 0) > 0);
 
   const markers: Marker[] = useMemo(() => {
@@ -296,7 +299,7 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
 
   const bandsByChannel = useMemo(
     () => new Map(loaded.map(({ id, ch }) => [id, notes.get(id)?.a ? windowBands(notes.get(id)!.a!.windows, ch.kind) : []])),
-    [notes, ids],
+    [notes, loaded],
   );
 
   const { data, totalPoints } = useMemo(() => {
@@ -387,7 +390,7 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
       }
     }
     return { data: { datasets } as ChartData<'line', ChartPoint[]>, totalPoints };
-  }, [series, ids, showEvents, markers, widthPx]);
+  }, [loaded, axisOf, showEvents, markers, widthPx]);
 
   const options = useMemo((): ChartOptions<'line'> => {
     const annotations: Record<string, any> = {};
@@ -561,7 +564,24 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
         drawnFlag: { ready: !loading && anyData, points: totalPoints },
       } as any,
     };
-  }, [axes, bandsByChannel, showWindow, showEvents, markers, fromMs, toMs, at, tz, loading, anyData, totalPoints, widthPx]);
+  }, [
+    axes,
+    axisOf,
+    loaded,
+    span,
+    bandsByChannel,
+    showWindow,
+    showEvents,
+    markers,
+    fromMs,
+    toMs,
+    at,
+    tz,
+    loading,
+    anyData,
+    totalPoints,
+    widthPx,
+  ]);
 
   // ---- pan / zoom by pointer, wheel and keys
   const plotX = (clientX: number) => {

@@ -22,8 +22,8 @@ export default function WindowBar({ value, min, max, unit, digits = 2, label }: 
         {v} {unit} <span className="text-xs text-ink-soft">(no window)</span>
       </span>
     );
-  const lo = min as number;
-  const hi = max as number;
+  const lo = min;
+  const hi = max;
   const pad = (hi - lo) * 0.25;
   const from = lo - pad;
   const to = hi + pad;

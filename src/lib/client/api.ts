@@ -49,6 +49,6 @@ export async function apiFetch<T>(
  */
 export function subscribeLive(kinds: string[], onEvent: (kind: string, payload: any) => void): () => void {
   const es = new EventSource(`/api/v1/stream?kinds=${encodeURIComponent(kinds.join(','))}`);
-  for (const k of kinds) es.addEventListener(k, (e) => onEvent(k, JSON.parse((e as MessageEvent).data)));
+  for (const k of kinds) es.addEventListener(k, (e) => onEvent(k, JSON.parse(e.data)));
   return () => es.close();
 }

@@ -6,6 +6,9 @@
  * as a published template for a lens-lab cure oven: class 1 ±3 °C, 2 ±6, 3 ±8, 4 ±10, 5 ±14,
  * 6 ±28. Revision F differs in class 2 (±5 °C) and class 3 (±7 °C).
  */
+import type { UniformityResult } from '../../shared/surveys.ts';
+
+export type { UniformityResult };
 
 /** One row of a uniformity class table: the class and its ±tolerance in °C. */
 export interface UniformityClass {
@@ -50,22 +53,6 @@ export interface UniformityInput {
   stabilisedFromIndex?: number | undefined;
   /** Class table; default {@link AMS2750G_CLASSES}. */
   classTable?: readonly UniformityClass[] | undefined;
-}
-
-/** Result of the survey. */
-export interface UniformityResult {
-  /** Hottest corrected reading − setpoint, °C. */
-  hottestDeviationC: number;
-  /** Coldest corrected reading − setpoint, °C. */
-  coldestDeviationC: number;
-  hottestSensor: string;
-  coldestSensor: string;
-  /** Tightest class whose ±tolerance holds both deviations; null when none does. */
-  uniformityClass: number | null;
-  /** That class's tolerance, °C (null with the class). */
-  classToleranceC: number | null;
-  /** 'outside every class' when uniformityClass is null. */
-  message?: string;
 }
 
 /**
