@@ -228,14 +228,19 @@ describe('shelve, shelf expiry, out of service', () => {
   });
 
   it('the condition returns inside the deadband: an acknowledged alarm goes to normal', async () => {
+    const from = stream.mark();
     await api(`/api/v1/alarms/${alarmId}/ack`, { method: 'POST', session: operator, json: { comment: 'back in service' } });
+    await stream.next((e) => e.data.id === alarmId && e.data.state === 'acked', 5_000);
     await dev.publish('uv-1', 'spin-speed', 1990, tNext()); // inside the limit but not by more than the 20 rpm deadband
-    await new Promise((r) => setTimeout(r, 1_000));
-    expect((await api(`/api/v1/alarms/${alarmId}`, { session: viewer })).body).toMatchObject({ state: 'acked', active: true });
-    stream.mark();
-    await dev.publish('uv-1', 'spin-speed', 1900, tNext());
+    const back = tNext();
+    await dev.publish('uv-1', 'spin-speed', 1900, back);
     const live = await stream.next((e) => e.data.id === alarmId && e.data.state === 'normal', 5_000);
     expect(live.data.active).toBe(false);
+    // The worker judges a channel's readings in order: 1990 was judged before 1900. Had it changed
+    // the alarm, its event would stand between the acknowledgement and this one; it is 1900's clear.
+    const between = stream.since(from).filter((e) => e.data.id === alarmId && e !== live);
+    expect(between.map((e) => [e.data.state, e.data.active])).toEqual(between.map(() => ['acked', true]));
+    expect(live.data.clearedAtMs).toBe(back);
   });
 });
 
@@ -344,13 +349,41 @@ describe('escalation e-mail', () => {
     const detail = await api(`/api/v1/alarms/${id}`, { session: viewer });
     expect(detail.body.escalationStepsSent).toEqual([0]);
     expect(detail.body.events.filter((e: { event: string }) => e.event === 'escalate')).toHaveLength(1);
-    await new Promise((r) => setTimeout(r, 6_000)); // more ticks: still one message for this step
+    // Later escalation passes must not send this step again. A second alarm past the same step
+    // proves a later pass ran: each pass walks the waiting alarms by id, this one first.
+    await dev.publish('uv-1', 'irradiance', 280, tNext()); // clears the acknowledged irradiance alarm → normal
+    await dev.publish('uv-1', 'irradiance', 400, tNext());
+    const second = await stream.next(
+      (e) => e.data.sourceKey === `channel:${uv}:high` && e.data.state === 'unacked' && e.data.value === 400,
+      5_000,
+    );
+    const laterId = second.data.id as number;
+    expect(laterId).toBeGreaterThan(id);
+    await testDb().query(
+      `update alarms set raised_at = raised_at - interval '2 minutes', last_activated_at = last_activated_at - interval '2 minutes' where id = $1`,
+      [laterId],
+    );
+    await eventually(
+      async () =>
+        (
+          await testDb().query(`select 1 from outbox_mail where mail_to = $1 and body like $2`, [
+            address,
+            `%/alarms?focus=${laterId}%`,
+          ])
+        ).rows[0],
+      15_000,
+      "the second alarm's escalation e-mail (a later pass)",
+    );
     const count = await testDb().query(`select count(*)::int as n from outbox_mail where mail_to = $1 and body like $2`, [
       address,
       `%/alarms?focus=${id}%`,
     ]);
     expect(count.rows[0].n).toBe(1);
-    await api(`/api/v1/alarms/${id}/ack`, { method: 'POST', session: operator, json: { comment: 'seen after escalation' } });
+    await api(`/api/v1/alarms/ack`, {
+      method: 'POST',
+      session: operator,
+      json: { ids: [id, laterId], comment: 'seen after escalation' },
+    });
   });
 });
 

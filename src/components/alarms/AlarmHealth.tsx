@@ -66,6 +66,8 @@ export default function AlarmHealth({ timeZone, nowMs }: Props) {
   const [data, setData] = useState<Health | null>(null);
   const [loading, setLoading] = useState(true);
   const [error, setError] = useState<string | null>(null);
+  /** The query whose figures are shown (browser tests wait on `data-loaded` matching the export link). */
+  const [loadedQuery, setLoadedQuery] = useState<string | null>(null);
 
   const query = `from=${Math.round(range.fromMs)}&to=${Math.round(range.toMs)}&positions=${positions}`;
   const load = useCallback(async () => {
@@ -73,6 +75,7 @@ export default function AlarmHealth({ timeZone, nowMs }: Props) {
     setError(null);
     try {
       setData(await apiFetch<Health>(`/api/v1/alarms/kpi?${query}`));
+      setLoadedQuery(query);
     } catch (e) {
       setError(e instanceof Error ? e.message : String(e));
     } finally {
@@ -104,7 +107,7 @@ export default function AlarmHealth({ timeZone, nowMs }: Props) {
   };
 
   return (
-    <div className="space-y-4">
+    <div className="space-y-4" data-alarm-health data-loaded={loadedQuery ?? ''}>
       <section className="panel flex flex-wrap items-end gap-4" aria-label="Period">
         <div role="group" aria-label="Quick periods" className="flex flex-wrap gap-1">
           {PRESETS.map(([key, label, ms]) => (

@@ -14,6 +14,7 @@ import {
   Tooltip,
   type ChartData,
   type ChartOptions,
+  type Plugin,
   type PointStyle,
   type TooltipItem,
 } from 'chart.js';
@@ -31,6 +32,20 @@ import { dispersionSignals, locationSignals, pointTooltip, shapeControlChart, yR
 import { tickLabel, zonesOver } from '../../lib/shared/time.ts';
 
 ChartJS.register(LineController, LineElement, PointElement, LinearScale, Tooltip, annotationPlugin);
+
+/**
+ * After each render, marks the plot `data-drawn="true"` and `data-drawn-zones` with whether the
+ * 1σ / 2σ zone lines were drawn (browser tests wait on these before a screenshot).
+ */
+const drawnFlag: Plugin<'line'> = {
+  id: 'spcDrawnFlag',
+  afterRender(chart) {
+    const el = chart.canvas.closest('[data-spc-plot]');
+    if (!el) return;
+    el.setAttribute('data-drawn', 'true');
+    el.setAttribute('data-drawn-zones', String(chart.data.datasets.some((d) => d.label === '+1σ')));
+  },
+};
 
 export const COLORS = {
   stat: '#4a545b',
@@ -351,7 +366,7 @@ export const SpcPlot = forwardRef<LineChart | undefined, SpcPlotProps>(function 
         data-signals={shaped.markers.filter((m) => m.kind === 'violation').length}
         data-excluded={shaped.markers.filter((m) => m.kind === 'excluded').length}
       >
-        <Chart ref={ref as never} type="line" data={data} options={options} aria-label={label} role="img" />
+        <Chart ref={ref as never} type="line" data={data} options={options} plugins={[drawnFlag]} aria-label={label} role="img" />
       </div>
     </>
   );

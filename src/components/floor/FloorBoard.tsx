@@ -172,7 +172,7 @@ export function FloorBoard({ initial, wall = false }: Props) {
   const liveAge = lastLive === null ? null : now - lastLive;
 
   return (
-    <div className={wall ? 'floor-wall' : ''} data-floor-ready="true">
+    <div className={wall ? 'floor-wall' : ''} data-floor-ready="true" data-sparks={sparkState}>
       <div
         className={`mb-3 flex flex-wrap items-center gap-x-5 gap-y-1 ${wall ? 'text-lg' : 'text-sm'}`}
         style={{ color: tone.normal }}
