@@ -25,6 +25,7 @@ import { apiFetch } from '../../lib/client/api.ts';
 import { ISA_18_2_BENCHMARKS, RATE_BAND_LABELS, type AlarmKpiReport } from '../../lib/domain/alarms/kpi.ts';
 import { PRIORITY_MEANINGS } from '../../lib/shared/alarms.ts';
 import { formatAge, formatRange, formatSiteTime, fromLocalInput, tickLabel, toLocalInput } from '../../lib/shared/time.ts';
+import { PALETTE } from '../../styles/palette.mjs';
 
 ChartJS.register(
   BarController,
@@ -52,10 +53,10 @@ interface Props {
   nowMs: number;
 }
 
-const INK = '#2d3a42';
-const FAINT = '#7b858c';
-const AMBER = '#c26a00';
-const RED = '#b3261e';
+const INK = PALETTE.slateDeep;
+const FAINT = PALETTE.inkFaint;
+const AMBER = PALETTE.alertMed;
+const RED = PALETTE.alertHigh;
 
 export default function AlarmHealth({ timeZone, nowMs }: Props) {
   const [range, setRange] = useState({ fromMs: nowMs - 24 * 3_600_000, toMs: nowMs });

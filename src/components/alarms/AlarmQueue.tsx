@@ -26,6 +26,7 @@ import {
 } from '../../lib/shared/alarm-queue.ts';
 import { formatAge, formatSiteTime } from '../../lib/shared/time.ts';
 import type { ReadingsResponse } from '../../lib/shared/telemetry.ts';
+import { PALETTE } from '../../styles/palette.mjs';
 
 interface Props {
   initial: AlarmView[];
@@ -624,10 +625,10 @@ function Spark({ a }: { a: AlarmView }) {
       className="block"
     >
       {s.limitY !== null && (
-        <line x1={0} x2={SPARK_W} y1={s.limitY} y2={s.limitY} stroke="#b3261e" strokeDasharray="3 2" strokeWidth={1} />
+        <line x1={0} x2={SPARK_W} y1={s.limitY} y2={s.limitY} stroke={PALETTE.alertHigh} strokeDasharray="3 2" strokeWidth={1} />
       )}
-      {s.alarmX !== null && <line x1={s.alarmX} x2={s.alarmX} y1={0} y2={SPARK_H} stroke="#7b858c" strokeWidth={1} />}
-      <path d={s.path} fill="none" stroke="#2d3a42" strokeWidth={1.4} />
+      {s.alarmX !== null && <line x1={s.alarmX} x2={s.alarmX} y1={0} y2={SPARK_H} stroke={PALETTE.inkFaint} strokeWidth={1} />}
+      <path d={s.path} fill="none" stroke={PALETTE.slateDeep} strokeWidth={1.4} />
     </svg>
   );
 }

@@ -30,6 +30,7 @@ import {
 } from '../../lib/shared/characteristics.ts';
 import { dispersionSignals, locationSignals, pointTooltip, shapeControlChart, yRange } from '../../lib/shared/control-chart.ts';
 import { tickLabel, zonesOver } from '../../lib/shared/time.ts';
+import { PALETTE } from '../../styles/palette.mjs';
 
 ChartJS.register(LineController, LineElement, PointElement, LinearScale, Tooltip, annotationPlugin);
 
@@ -48,14 +49,14 @@ const drawnFlag: Plugin<'line'> = {
 };
 
 export const COLORS = {
-  stat: '#4a545b',
-  center: '#2d3a42',
-  limit: '#2f6f73',
+  stat: PALETTE.inkSoft,
+  center: PALETTE.slateDeep,
+  limit: PALETTE.lacquer,
   zone: '#9aa3a8',
-  spec: '#1f2529',
-  signal: '#b3261e',
+  spec: PALETTE.ink,
+  signal: PALETTE.alertHigh,
   hollow: '#ffffff',
-  step: '#7b858c',
+  step: PALETTE.inkFaint,
 };
 
 export const fmtNum = (x: number | null | undefined, digits = 4): string =>

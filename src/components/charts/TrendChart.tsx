@@ -61,6 +61,7 @@ import {
   type TrendEvent,
   type ViewRange,
 } from '../../lib/shared/trend.ts';
+import { PALETTE, PRIORITY_COLOUR } from '../../styles/palette.mjs';
 
 // The time axis is a linear axis over epoch ms with our own ticks and labels in the site's zone
 // (chart.js's time scale would need a date adapter and aligns ticks to the browser's zone).
@@ -105,7 +106,7 @@ interface View {
 
 /** Series styles: muted line colours with distinct dash patterns (colour is not the only difference). */
 const STYLES = [
-  { line: '#2d3a42', fill: 'rgba(45,58,66,0.16)', dash: [] as number[], name: 'solid' },
+  { line: PALETTE.slateDeep, fill: 'rgba(45,58,66,0.16)', dash: [] as number[], name: 'solid' },
   { line: '#1d5f8a', fill: 'rgba(29,95,138,0.16)', dash: [7, 4], name: 'dashed' },
   { line: '#5b4f8a', fill: 'rgba(91,79,138,0.14)', dash: [2, 3], name: 'dotted' },
   { line: '#6b5a2e', fill: 'rgba(107,90,46,0.14)', dash: [10, 3, 2, 3], name: 'dash-dot' },
@@ -114,7 +115,6 @@ const STYLES = [
 ];
 const MAX_CHANNELS = 6;
 const EVENTS_AXIS_MAX = 24;
-const PRIORITY_COLOUR = { high: '#b3261e', medium: '#c26a00', low: '#8a6d00' } as const;
 const SOURCE_WORDS = { raw: 'raw readings', minute: 'minute rollup', hour: 'hourly rollup' } as const;
 
 const widthWords = (ms: number) =>
@@ -380,10 +380,10 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
           pointRadius: (c: any) => (c.raw?._m?.count > 1 ? 8 : 6.5),
           pointHoverRadius: 9,
           pointBackgroundColor: (c: any) =>
-            kind === 'alarm' ? PRIORITY_COLOUR[(c.raw?._m as Marker | undefined)?.priority ?? 'low'] : '#4a545b',
-          pointBorderColor: '#1f2529',
-          borderColor: kind === 'alarm' ? PRIORITY_COLOUR.high : '#4a545b',
-          backgroundColor: kind === 'alarm' ? PRIORITY_COLOUR.high : '#4a545b',
+            kind === 'alarm' ? PRIORITY_COLOUR[(c.raw?._m as Marker | undefined)?.priority ?? 'low'] : PALETTE.inkSoft,
+          pointBorderColor: PALETTE.ink,
+          borderColor: kind === 'alarm' ? PRIORITY_COLOUR.high : PALETTE.inkSoft,
+          backgroundColor: kind === 'alarm' ? PRIORITY_COLOUR.high : PALETTE.inkSoft,
           pointBorderWidth: 1,
           _role: 'marker',
         });
@@ -419,7 +419,7 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
               display: k === 0 && i < 3,
               content: `${ch.name}: window ${b.label} ${b.min}–${b.max} ${ch.unit}${b.lowApplies === 'soak' ? ' (low limit in soak only)' : b.lowApplies === 'load' ? ' (low limit while loaded)' : ''}`,
               position: { x: 'start', y: 'start' },
-              color: i === 0 ? '#1f4e51' : style.line,
+              color: i === 0 ? PALETTE.lacquerDark : style.line,
               font: { size: 11 },
               padding: 3,
             },
@@ -434,7 +434,7 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
               type: 'line',
               yMin: y,
               yMax: y,
-              borderColor: i === 0 ? '#2f6f73' : style.line,
+              borderColor: i === 0 ? PALETTE.lacquer : style.line,
               borderWidth: i === 0 ? 1 : 1.4,
               borderDash: dash,
             };
@@ -447,7 +447,7 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
             xScaleID: 'x',
             xMin: c.tMs,
             xMax: c.tMs,
-            borderColor: '#2f6f73',
+            borderColor: PALETTE.lacquer,
             borderWidth: 1.5,
             borderDash: [3, 3],
             label: {
@@ -467,13 +467,13 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
         xScaleID: 'x',
         xMin: at,
         xMax: at,
-        borderColor: '#1f2529',
+        borderColor: PALETTE.ink,
         borderWidth: 2,
         label: {
           display: true,
           content: `Linked time ${formatClock(at, tz, { seconds: true })}`,
           position: 'start',
-          backgroundColor: '#1f2529',
+          backgroundColor: PALETTE.ink,
           font: { size: 11 },
         },
       };
@@ -499,7 +499,7 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
           callback: (v: string | number) => tickLabel(Number(v), tz, span),
           maxRotation: 0,
           autoSkipPadding: 18,
-          color: '#4a545b',
+          color: PALETTE.inkSoft,
         },
         // Round ticks on the site's wall clock (chart.js would align them to the browser's zone).
         afterBuildTicks: (scale: Scale) => {
@@ -507,7 +507,7 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
             value,
           }));
         },
-        title: { display: true, text: `Time (${tz}, ${zonesOver(fromMs, toMs, tz)})`, color: '#4a545b' },
+        title: { display: true, text: `Time (${tz}, ${zonesOver(fromMs, toMs, tz)})`, color: PALETTE.inkSoft },
         grid: { color: '#ebebe6' },
       },
       events: { type: 'linear', axis: 'y', display: false, min: 0, max: EVENTS_AXIS_MAX },
@@ -516,8 +516,8 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
       scales[a.id] = {
         type: 'linear',
         position: a.position,
-        title: { display: true, text: a.unit, color: '#1f2529', font: { weight: 'bold' } },
-        ticks: { color: '#4a545b' },
+        title: { display: true, text: a.unit, color: PALETTE.ink, font: { weight: 'bold' } },
+        ticks: { color: PALETTE.inkSoft },
         grid: { drawOnChartArea: i === 0, color: '#ebebe6' },
         afterDataLimits: (scale: Scale) => {
           const ext = bandExtent.get(a.id);
@@ -546,7 +546,7 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
             usePointStyle: true,
             filter: (item: { datasetIndex?: number }, d: ChartData) =>
               (d.datasets[item.datasetIndex ?? 0] as any)?._role !== 'band',
-            color: '#1f2529',
+            color: PALETTE.ink,
             boxHeight: 8,
           },
         },
