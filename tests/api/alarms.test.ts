@@ -1,5 +1,5 @@
 /**
- * The alarm API end to end on the running test stack (product.md §6): a reading published over
+ * The alarm API end to end on the running test stack: a reading published over
  * MQTT with a demo device's credentials raises an alarm that shows on the API and on the live
  * SSE stream; acknowledgement, shelving (with expiry by the worker), out of service, bulk
  * acknowledgement, role refusals, validation with field paths, refusals by the state model

@@ -1,6 +1,5 @@
 /**
- * The OpenAPI document (product.md §6: "The API is described in an OpenAPI document served by
- * the app"): public, OpenAPI 3.1, and every verb of every route file under src/pages/api is in it.
+ * The OpenAPI document, served by the app: public, OpenAPI 3.1, and every verb of every route file under src/pages/api is in it.
  */
 import fs from 'node:fs';
 import path from 'node:path';

@@ -1,5 +1,5 @@
 /**
- * The control-chart view of one characteristic (issue 7 part 3): the statistic with its centre
+ * The control-chart view of one characteristic: the statistic with its centre
  * line and control limits as they were in force (stepping where a new limit set took effect),
  * optional 1σ/2σ zone lines, spec limits dashed and labelled, signals as red triangles with the
  * rule id, excluded Phase I points hollow; the companion R/S/MR chart; a capability side panel;

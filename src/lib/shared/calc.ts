@@ -1,5 +1,5 @@
 /**
- * Zod schemas (and inferred types) for the calculator endpoints of product.md §6
+ * Zod schemas (and inferred types) for the calculator endpoints
  * (`/api/v1/calc/*`), shared by the browser forms, the endpoints and the OpenAPI document.
  * The domain functions that answer them live in `lib/domain/{film,cure,quality,oven}`.
  *

@@ -34,7 +34,7 @@ export interface WindowRange {
 }
 
 /**
- * Which window field holds each channel kind (product.md §3). Oven air temperature is held
+ * Which window field holds each channel kind. Oven air temperature is held
  * between the recipe's minimum cure temperature (during soak) and the substrate's maximum
  * part temperature; the cure setpoint's low limit counts while a load is in the oven. Kinds without a field (door, irradiance, spin speed, room temperature)
  * have no window.
