@@ -249,4 +249,4 @@ export function describeAddition(a: BathAddition | BathAdditionRefusal | null): 
 
 // TEMPORARY: services/baths.ts (rewritten on another branch) still imports these from here; the
 // integrator points it at lib/domain/film/bath-check.ts after merging and deletes this line.
-export { computeBathCheck, recommendAddition, SOLIDS_DEADBAND_PCT } from '../domain/film/bath-check.ts';
+export { computeBathCheck, recommendAddition } from '../domain/film/bath-check.ts';

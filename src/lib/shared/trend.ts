@@ -410,8 +410,6 @@ export const EVENT_STYLE: Readonly<Record<TrendEventKind, { lane: number; shape:
   'load-end': { lane: 3, shape: 'star', one: 'load end', many: 'load ends' },
 };
 
-export const EVENT_LANES = ['Alarms', 'Bath', 'Door', 'Loads'] as const;
-
 /** A marker on the time axis: one event, or several of one kind close together. */
 export interface Marker {
   x: number;
