@@ -685,7 +685,7 @@ export function ovenSampleAt(track: OvenTrack, tMs: number): OvenSample {
     const noise = d.noiseC * hashGauss(seedOf(track.oven, zone, 'tc'), Math.floor(tMs / 1000));
     zonesC[zone] = base - doorDip(track, zone, tMs, j) + wobble + noise;
   }
-  return { setpointC: heating ? (c as OvenCycle).setpointC : STANDBY_SETPOINT_C, door, zonesC };
+  return { setpointC: heating ? c.setpointC : STANDBY_SETPOINT_C, door, zonesC };
 }
 
 /** Times at which the setpoint or door channel changes within [fromMs, toMs). */
@@ -834,7 +834,7 @@ function buildOvenTrack(oven: OvenCode, startMs: number, anchorMs: number): Oven
         rng.range(20, 40),
       ] as const;
       if (kind === 'door-opened') plan.midSoakDoor = { afterSoakMin: extra[0], durationS: extra[1] };
-      if (kind === 'tc-dropout') plan.dropout = { zone: extra[2] as 1 | 2, afterSoakMin: extra[3], durationMin: extra[4] };
+      if (kind === 'tc-dropout') plan.dropout = { zone: extra[2], afterSoakMin: extra[3], durationMin: extra[4] };
       if (kind === 'under-cured') plan.cutShort = { doorOpenS: 11 * 60 + 20 };
       const c = planCycle(track, `${oven}-${dateCode(day)}-${i + 1}`, plan);
       if (c.loadEndMs > atLocal(day, 22.5) || c.loadEndMs > anchorMs) return;

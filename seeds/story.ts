@@ -1,5 +1,5 @@
 /**
- * The demo's traceability story (product.md §7): jobs dipped on the two lines, racks, dip runs
+ * The demo's traceability story: jobs dipped on the two lines, racks, dip runs
  * with their bath charge, last bath check and the stroke's withdrawal speed from the seeded
  * readings, an oven load for every seeded cycle with its cure record computed from the seeded
  * readings (through the load store, as the worker would), and quality tests.

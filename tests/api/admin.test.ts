@@ -1,5 +1,5 @@
 /**
- * Admin API (issue 3): users (create with role and e-mail, role change, deactivate/reactivate,
+ * Admin API: users (create with role and e-mail, role change, deactivate/reactivate,
  * never delete, guards against locking the admins out), API tokens (shown once, stored hashed,
  * Bearer use with last-use recorded, revoke → 401), caught mail — each change audited with
  * before → after.

@@ -1,5 +1,5 @@
 /**
- * The alarm API end to end on the running test stack (product.md §6): a reading published over
+ * The alarm API end to end on the running test stack: a reading published over
  * MQTT with a demo device's credentials raises an alarm that shows on the API and on the live
  * SSE stream; acknowledgement, shelving (with expiry by the worker), out of service, bulk
  * acknowledgement, role refusals, validation with field paths, refusals by the state model
@@ -230,14 +230,20 @@ describe('shelve, shelf expiry, out of service', () => {
   });
 
   it('the condition returns inside the deadband: an acknowledged alarm goes to normal', async () => {
+    const from = stream.mark();
     await api(`/api/v1/alarms/${alarmId}/ack`, { method: 'POST', session: operator, json: { comment: 'back in service' } });
+    const acked = await stream.next((e) => e.data.id === alarmId && e.data.state === 'acked', 5_000);
     await dev.publish('uv-1', 'spin-speed', 1990, tNext()); // inside the limit but not by more than the 20 rpm deadband
-    await new Promise((r) => setTimeout(r, 1_000));
-    expect((await api(`/api/v1/alarms/${alarmId}`, { session: viewer })).body).toMatchObject({ state: 'acked', active: true });
-    stream.mark();
-    await dev.publish('uv-1', 'spin-speed', 1900, tNext());
+    const back = tNext();
+    await dev.publish('uv-1', 'spin-speed', 1900, back);
     const live = await stream.next((e) => e.data.id === alarmId && e.data.state === 'normal', 5_000);
     expect(live.data.active).toBe(false);
+    // The worker judges a channel's readings in order: 1990 was judged before 1900. Had it changed
+    // the alarm, its event would stand between the acknowledgement and this one; it is 1900's clear.
+    const seen = stream.since(from);
+    const between = seen.slice(seen.indexOf(acked) + 1, seen.indexOf(live)).filter((e) => e.data.id === alarmId);
+    expect(between).toEqual([]);
+    expect(live.data.clearedAtMs).toBe(back);
   });
 });
 
@@ -346,13 +352,41 @@ describe('escalation e-mail', () => {
     const detail = await api(`/api/v1/alarms/${id}`, { session: viewer });
     expect(detail.body.escalationStepsSent).toEqual([0]);
     expect(detail.body.events.filter((e: { event: string }) => e.event === 'escalate')).toHaveLength(1);
-    await new Promise((r) => setTimeout(r, 6_000)); // more ticks: still one message for this step
+    // Later escalation passes must not send this step again. A second alarm past the same step
+    // proves a later pass ran: each pass walks the waiting alarms by id, this one first.
+    await dev.publish('uv-1', 'irradiance', 280, tNext()); // clears the acknowledged irradiance alarm → normal
+    await dev.publish('uv-1', 'irradiance', 400, tNext());
+    const second = await stream.next(
+      (e) => e.data.sourceKey === `channel:${uv}:high` && e.data.state === 'unacked' && e.data.value === 400,
+      5_000,
+    );
+    const laterId = second.data.id as number;
+    expect(laterId).toBeGreaterThan(id);
+    await testDb().query(
+      `update alarms set raised_at = raised_at - interval '2 minutes', last_activated_at = last_activated_at - interval '2 minutes' where id = $1`,
+      [laterId],
+    );
+    await eventually(
+      async () =>
+        (
+          await testDb().query(`select 1 from outbox_mail where mail_to = $1 and body like $2`, [
+            address,
+            `%/alarms?focus=${laterId}%`,
+          ])
+        ).rows[0],
+      15_000,
+      "the second alarm's escalation e-mail (a later pass)",
+    );
     const count = await testDb().query(`select count(*)::int as n from outbox_mail where mail_to = $1 and body like $2`, [
       address,
       `%/alarms?focus=${id}%`,
     ]);
     expect(count.rows[0].n).toBe(1);
-    await api(`/api/v1/alarms/${id}/ack`, { method: 'POST', session: operator, json: { comment: 'seen after escalation' } });
+    await api(`/api/v1/alarms/ack`, {
+      method: 'POST',
+      session: operator,
+      json: { ids: [id, laterId], comment: 'seen after escalation' },
+    });
   });
 });
 

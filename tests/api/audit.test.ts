@@ -1,5 +1,5 @@
 /**
- * The audit trail (issue 3 §7): append-only in the database itself (the application's own
+ * The audit trail: append-only in the database itself (the application's own
  * connection cannot alter or delete a row), filters, paging, and the CSV export.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';

@@ -1,5 +1,5 @@
 /**
- * Sign-in hardening (issue 3): no enumeration, malformed input, throttling that slows and then
+ * Sign-in hardening: no enumeration, malformed input, throttling that slows and then
  * locks (kept in PostgreSQL, visible to admins, lifted by an audited unlock), cookie
  * attributes, the cross-origin refusal, and sliding session expiry.
  *

@@ -1,5 +1,5 @@
 /**
- * Calculator endpoints (product.md §6) through the running app: each happy path against a
+ * Calculator endpoints through the running app: each happy path against a
  * published formula or a hand computation named beside the expected value, and bad input →
  * a 4xx problem with a clear message (never a 500).
  */

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { api } from '../support/http.ts';
 
-describe('GET /api/health (product.md §6)', () => {
+describe('GET /api/health', () => {
   it('answers ok with database, broker and ingest details', async () => {
     const r = await api('/api/health');
     expect(r.status).toBe(200);

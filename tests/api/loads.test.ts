@@ -23,6 +23,7 @@ import {
   TEST_CURE_LIMITS,
   type TestOven,
 } from '../support/trace-fixtures.ts';
+import { waitFor } from '../support/ingest-harness.ts';
 
 const MIN = 60_000;
 let pool: pg.Pool;
@@ -326,33 +327,28 @@ describe('the ingest worker opens and closes loads by itself', () => {
     } finally {
       await client.endAsync();
     }
-    let load:
-      | {
+    const load = await waitFor(
+      async () => {
+        const r = await pool.query<{
           id: number;
           opened_at: Date;
           closed_at: Date | null;
           opened_by: string;
           closed_by: string | null;
           verdict: string | null;
-        }
-      | undefined;
-    for (let i = 0; i < 100 && !load?.verdict; i++) {
-      load = (
-        await pool.query(
-          `select id, opened_at, closed_at, opened_by, closed_by, verdict from oven_loads where oven_asset_id = $1`,
-          [o.id],
-        )
-      ).rows[0];
-      if (!load?.verdict) await new Promise((r) => setTimeout(r, 200));
-    }
-    expect(load).toBeDefined();
+        }>(`select id, opened_at, closed_at, opened_by, closed_by, verdict from oven_loads where oven_asset_id = $1`, [o.id]);
+        return r.rows[0]?.verdict ? r.rows[0] : null;
+      },
+      20_000,
+      'the worker to close the load with a verdict',
+    );
     // Opened at the setpoint step (minute 0); closed at the first reading after the fall with every
     // zone at or below 60 °C: zone 1 = 112 − 5k ≤ 60 → k = 11, minute 191 (hand-computed).
-    expect(load!.opened_by).toBe('auto');
-    expect(load!.opened_at.getTime()).toBe(start);
-    expect(load!.closed_by).toBe('auto');
-    expect(load!.closed_at!.getTime()).toBe(start + 191 * MIN);
+    expect(load.opened_by).toBe('auto');
+    expect(load.opened_at.getTime()).toBe(start);
+    expect(load.closed_by).toBe('auto');
+    expect(load.closed_at!.getTime()).toBe(start + 191 * MIN);
     // 160 min at 110 °C plus the ramps: complete against 150 equivalent minutes.
-    expect(load!.verdict).toBe('complete');
+    expect(load.verdict).toBe('complete');
   }, 60_000);
 });

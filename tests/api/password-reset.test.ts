@@ -1,5 +1,5 @@
 /**
- * Password reset end to end through the local fake SMTP relay (issue 3): the admin triggers a
+ * Password reset end to end through the local fake SMTP relay: the admin triggers a
  * link, the mail arrives in outbox_mail (and on the admin's caught-mail API), the link sets a
  * new password once, the new password signs in, the old one does not; reuse and expiry give a
  * clear 4xx; the public "forgot password" form answers the same way for every input.

@@ -1,5 +1,5 @@
 /**
- * Plant set-up endpoints (product.md §6; issue 4 part 1) against the real broker and worker:
+ * Plant set-up endpoints against the real broker and worker:
  * devices with credentials shown once (and working on the broker), rotation, disabling;
  * assets; channels with their topic and validation; approving an unknown channel.
  */

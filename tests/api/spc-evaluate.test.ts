@@ -1,5 +1,5 @@
 /**
- * `POST /api/v1/spc/evaluate` through HTTP: the product.md §6 contract against published worked
+ * `POST /api/v1/spc/evaluate` through HTTP: the endpoint's contract against published worked
  * examples (each expected value names its source), and every class of bad input answered with a
  * 400 problem+json that names the offending field.
  */

@@ -113,7 +113,7 @@ beforeAll(async () => {
     json: { rackCodes: [racks['A']], jobNumbers: [J[6], J[12]] },
   });
   expect(scan.status, JSON.stringify(scan.body)).toBe(200);
-  expect(scan.body.fromRacks[racks['A']!]).toEqual([J[0], J[1], J[2]]);
+  expect(scan.body.fromRacks[racks['A']]).toEqual([J[0], J[1], J[2]]);
   expect(
     (await api(`/api/v1/loads/${load1}/close`, { method: 'POST', session: operator, json: { closedAt: iso(T + 4 * H) } })).status,
   ).toBe(200);

@@ -9,6 +9,7 @@ import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { windowInForce } from '../../src/lib/core/window-store.ts';
 import type { ProcessWindowLimits } from '../../src/lib/shared/windows.ts';
 import { api, signIn, type Session } from '../support/http.ts';
+import { waitFor } from '../support/ingest-harness.ts';
 import { TEST_PASSWORD } from '../support/test-stack.ts';
 
 const tag = randomBytes(3).toString('hex');
@@ -215,7 +216,9 @@ describe('process windows', () => {
     });
     expect(d.status).toBe(201);
     expect(d.body.version).toBe(2);
-    await new Promise((r) => setTimeout(r, 20));
+    // Approve only once the clock has passed the assignment, so that v1 is in force for a while
+    // before v2 supersedes it (the next test looks between the two).
+    await waitFor(async () => Date.now() > Date.parse(assignedAt) + 1, 5_000, 'the clock to pass the assignment');
     const a = await api(`/api/v1/windows/${d.body.id}/approve`, {
       method: 'POST',
       session: engineer,

@@ -147,7 +147,7 @@ async function main() {
     const probe = (async () => {
       while (probing) {
         const s = performance.now();
-        const r = await fetch(`${stack!.baseUrl}/api/v1/alarms?state=open`, { headers: { cookie: operator } });
+        const r = await fetch(`${stack.baseUrl}/api/v1/alarms?state=open`, { headers: { cookie: operator } });
         await r.arrayBuffer();
         if (r.status === 200) listTimes.push(performance.now() - s);
         await new Promise((res) => setTimeout(res, 250));
@@ -177,10 +177,10 @@ async function main() {
           try {
             const ctx = await browser.newContext({ viewport: { width: 1440, height: 900 } });
             const [name, ...rest] = operator.split('=');
-            await ctx.addCookies([{ name: name!, value: rest.join('='), url: stack!.baseUrl }]);
+            await ctx.addCookies([{ name: name!, value: rest.join('='), url: stack.baseUrl }]);
             const page = await ctx.newPage();
             const s = performance.now();
-            await page.goto(`${stack!.baseUrl}/alarms`);
+            await page.goto(`${stack.baseUrl}/alarms`);
             await page.locator('tr[data-state]').first().waitFor({ timeout: 30_000 });
             await page.getByText(/^Live —/).waitFor({ timeout: 30_000 });
             renderMs = performance.now() - s;

@@ -14,7 +14,7 @@
  *    p50 and p95 over 25 runs, beside the time of a full raw SELECT of the same range (ratio);
  * 3. times the first drawn chart in Chromium for that range (the trend page sets
  *    `data-drawn="true"` once the chart has rendered with its data).
- * Prints a table. Targets (issue 7): endpoint p95 < 100 ms; first drawn chart < 1.5 s.
+ * Prints a table. Targets: endpoint p95 < 100 ms; first drawn chart < 1.5 s.
  * Benchmarks print figures; they assert nothing.
  */
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';

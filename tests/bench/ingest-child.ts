@@ -123,10 +123,12 @@ if (mode === 'subscriber') {
       send({ ready: true });
     }
   }, 100);
-  process.once('SIGTERM', async () => {
-    await worker.close();
-    await pool.end();
-    await sequelize.close();
-    process.exit(0);
+  process.once('SIGTERM', () => {
+    void (async () => {
+      await worker.close();
+      await pool.end();
+      await sequelize.close();
+      process.exit(0);
+    })();
   });
 }

@@ -8,6 +8,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { chromium, type Browser, type Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { waitForLiveStreams } from '../support/browser.ts';
 import { base, signIn } from '../support/http.ts';
 import { root } from '../support/test-stack.ts';
 import { channelIdOf, closeAlarmHelpers, configureChannel, connectDevice, type DeviceLink } from '../support/alarm-helpers.ts';
@@ -56,7 +57,7 @@ describe('alarm queue in the browser', () => {
     await page.goto(`${base()}/alarms`);
     await page.getByText('These alarms are advisory.').waitFor();
     await page.getByText(/^Live —/).waitFor(); // the island is hydrated
-    await page.waitForTimeout(800); // let the event stream connect
+    await waitForLiveStreams(page); // the server has subscribed the island's event stream
     let navigations = 0;
     page.on('framenavigated', () => navigations++);
 
@@ -66,11 +67,7 @@ describe('alarm queue in the browser', () => {
     await expect(row.textContent()).resolves.toContain('Needs acknowledgement');
     await expect(row.textContent()).resolves.toContain('Room temperature 36.4 °C above the alarm high 35.0 °C');
     await expect(row.getAttribute('data-state')).resolves.toBe('unacked');
-    await page
-      .locator('svg[role="img"]')
-      .first()
-      .waitFor({ timeout: 5_000 })
-      .catch(() => {});
+    await row.locator('svg[role="img"]').waitFor({ timeout: 10_000 }); // the alarm's sparkline
     await page.screenshot({ path: path.join(OUT, 'alarm-queue-new.png'), fullPage: true });
 
     await row.getByRole('button', { name: 'Acknowledge' }).click();

@@ -83,9 +83,14 @@ describe('alarm settings and health screens', () => {
     await page.getByText('Alarms per 10 minutes against the benchmark').waitFor();
     await page.getByText('Average per 10 min per position').waitFor();
     await page.getByRole('button', { name: 'Last 7 days' }).click();
-    await page.waitForTimeout(1500);
     const csv = page.getByRole('link', { name: 'Export CSV' });
-    await expect(csv.getAttribute('href')).resolves.toMatch(/^\/api\/v1\/alarms\/kpi\?from=\d+&to=\d+&positions=1&format=csv$/);
+    const href = (await csv.getAttribute('href')) ?? '';
+    expect(href).toMatch(/^\/api\/v1\/alarms\/kpi\?from=\d+&to=\d+&positions=1&format=csv$/);
+    const [from, to] = [...href.matchAll(/(?:from|to)=(\d+)/g)].map((m) => Number(m[1]));
+    expect(to! - from!).toBe(7 * 86_400_000); // the link follows the chosen period
+    // The figures for that period are on screen (not the first 24 h any more).
+    const query = href.replace(/^.*\?/, '').replace(/&format=csv$/, '');
+    await page.locator(`[data-alarm-health][data-loaded="${query}"]`).waitFor({ timeout: 10_000 });
     await page.screenshot({ path: path.join(OUT, 'alarm-health.png'), fullPage: true });
     await ctx.close();
 

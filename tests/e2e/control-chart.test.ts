@@ -85,14 +85,14 @@ describe('control chart in the browser', () => {
     const signalRows = page.getByRole('region', { name: /Signals in view/ }).locator('tbody tr');
     expect(await signalRows.count()).toBeGreaterThan(0);
     await expect(signalRows.first().textContent()).resolves.toMatch(/WE \d|spread above/);
-    await page.waitForTimeout(300);
+    await page.locator('[data-spc-plot="statistic"][data-drawn="true"]').waitFor({ timeout: 10_000 });
     await page.screenshot({ path: path.join(OUT, 'control-chart.png'), fullPage: true });
 
     await signalRows.first().getByRole('button', { name: 'Details' }).click();
     const panel = page.getByRole('region', { name: /^Point #\d+/ });
     await panel.getByText('Subgroup (').waitFor({ timeout: 5_000 });
     await page.getByLabel('1σ / 2σ zone lines').check();
-    await page.waitForTimeout(300);
+    await page.locator('[data-spc-plot="statistic"][data-drawn-zones="true"]').waitFor({ timeout: 10_000 });
     await page.screenshot({ path: path.join(OUT, 'control-chart-point.png'), fullPage: true });
     expect(errors).toEqual([]);
   }, 60_000);
@@ -107,7 +107,7 @@ describe('control chart in the browser', () => {
       const plot = page.locator('[data-spc-plot="statistic"]');
       await plot.locator('canvas').waitFor({ timeout: 10_000 });
       expect(Number(await plot.getAttribute('data-limit-points'))).toBeGreaterThan(0);
-      await page.waitForTimeout(300);
+      await page.locator('[data-spc-plot="statistic"][data-drawn="true"]').waitFor({ timeout: 10_000 });
       await page.screenshot({
         path: path.join(OUT, `control-chart-${c.name.toLowerCase().replace(/[^a-z0-9]+/g, '-')}.png`),
         fullPage: false,
@@ -127,7 +127,7 @@ describe('control chart in the browser', () => {
     await page.getByRole('button', { name: 'Run study' }).click();
     await page.locator('[data-spc-plot="statistic"] canvas').waitFor({ timeout: 10_000 });
     await page.getByText(/Trial limits: centre/).waitFor();
-    await page.waitForTimeout(300);
+    await page.locator('[data-spc-plot="statistic"][data-drawn="true"]').waitFor({ timeout: 10_000 });
     await page.screenshot({ path: path.join(OUT, 'limit-study.png'), fullPage: true });
   }, 60_000);
 

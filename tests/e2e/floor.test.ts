@@ -12,6 +12,7 @@ import { chromium, type Browser, type BrowserContext, type Page } from 'playwrig
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { demoDevicePassword, demoTopic } from '../../seeds/demo-plant.ts';
 import type { FloorSnapshot } from '../../src/lib/shared/floor.ts';
+import { waitForLiveStreams } from '../support/browser.ts';
 import { api, base, signIn } from '../support/http.ts';
 import { root, TEST_DEVICE_SECRET } from '../support/test-stack.ts';
 
@@ -73,24 +74,21 @@ afterAll(async () => {
 });
 
 describe('the Floor in the browser', () => {
-  it('shows a reading published over MQTT within 3 s, without a reload, and marks a high value with shape and word', async () => {
+  it('shows a reading published over MQTT without a reload, and marks a high value with shape and word', async () => {
     const speed = channelOf('dip-1', 'withdrawal-speed');
     const topic = demoTopic('gw-dip-1', 'dip-1-hc', 'withdrawal-speed');
     await page.goto(`${base()}/`);
     await page.locator('astro-island:not([ssr])').first().waitFor(); // hydrated
-    await page.waitForTimeout(1000); // the event stream connects
+    await waitForLiveStreams(page); // the server has subscribed the island's event stream
     let navigations = 0;
     page.on('framenavigated', () => navigations++);
 
     // A value inside the channel's window that nothing else publishes (4 decimals, random).
     const w = speed.window!;
     const value = Number((w.min + (w.max - w.min) * (0.3 + 0.4 * Math.random())).toFixed(4));
-    const sent = Date.now();
-    await publish(topic, { t: sent, v: value });
-    const cell = page.locator(`[data-channel="${speed.id}"] [data-value="${value}"]`);
-    await cell.waitFor({ timeout: 3000 });
-    const seenAfterMs = Date.now() - sent;
-    expect(seenAfterMs).toBeLessThan(3000);
+    await publish(topic, { t: Date.now(), v: value });
+    // How fast it shows is measured by the benchmarks; here it must show at all (the wait fails the test).
+    await page.locator(`[data-channel="${speed.id}"] [data-value="${value}"]`).waitFor({ timeout: 10_000 });
     expect(navigations).toBe(0);
     const row = page.locator(`[data-channel="${speed.id}"]`);
     await expect(row.textContent()).resolves.toContain(`${value.toFixed(3)} mm/s`);
@@ -100,12 +98,12 @@ describe('the Floor in the browser', () => {
     // Above the window: colour plus the ▲ shape and the word HIGH.
     const high = Number((w.max + 0.5).toFixed(4));
     await publish(topic, { t: Date.now(), v: high });
-    await page.locator(`[data-channel="${speed.id}"] [data-value="${high}"]`).waitFor({ timeout: 3000 });
+    await page.locator(`[data-channel="${speed.id}"] [data-value="${high}"]`).waitFor({ timeout: 10_000 });
     await expect(row.textContent()).resolves.toContain('▲ HIGH');
     await page.screenshot({ path: path.join(OUT, 'floor-high.png'), fullPage: true });
     // Back inside the window (leave the line as it was for other tests).
     await publish(topic, { t: Date.now(), v: value });
-    await page.locator(`[data-channel="${speed.id}"] [data-value="${value}"]`).waitFor({ timeout: 3000 });
+    await page.locator(`[data-channel="${speed.id}"] [data-value="${value}"]`).waitFor({ timeout: 10_000 });
     expect(navigations).toBe(0);
   }, 30_000);
 
@@ -116,7 +114,7 @@ describe('the Floor in the browser', () => {
     await wall.locator('astro-island:not([ssr])').first().waitFor();
     expect(await wall.locator('nav[aria-label="Main"]').count()).toBe(0);
     expect(await wall.locator('[data-tile]').count()).toBeGreaterThanOrEqual(6);
-    await wall.waitForTimeout(1500); // sparklines
+    await wall.locator('[data-floor-ready][data-sparks="ready"]').waitFor({ timeout: 15_000 }); // sparklines drawn
     await wall.screenshot({ path: path.join(OUT, 'floor-wall.png'), fullPage: true });
     await wall.close();
   }, 30_000);
@@ -169,7 +167,7 @@ describe('the channel trend in the browser', () => {
       page.waitForEvent('download'),
       page.getByRole('button', { name: 'Download CSV' }).click(),
     ]);
-    const csv = fs.readFileSync((await csvDl.path())!, 'utf8').replace(/^\ufeff/, '');
+    const csv = fs.readFileSync(await csvDl.path(), 'utf8').replace(/^\ufeff/, '');
     const lines = csv.trim().split('\r\n');
     expect(lines[0]).toBe('channel,unit,time,zone,kind,value,min,mean,max,samples,bucket_start,bucket_end');
     expect(lines.length).toBeGreaterThan(2);
@@ -182,7 +180,7 @@ describe('the channel trend in the browser', () => {
       page.waitForEvent('download'),
       page.getByRole('button', { name: 'Download PNG' }).click(),
     ]);
-    const png = fs.readFileSync((await pngDl.path())!);
+    const png = fs.readFileSync(await pngDl.path());
     expect([...png.subarray(0, 8)]).toEqual([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]); // PNG signature (RFC 2083)
     fs.writeFileSync(path.join(OUT, 'trend-export.png'), png);
   }, 60_000);

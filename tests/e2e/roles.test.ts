@@ -1,5 +1,5 @@
 /**
- * Roles in the browser (issue 3): each demo user signs in through the sign-in page and sees in
+ * Roles in the browser: each demo user signs in through the sign-in page and sees in
  * the navigation only what the permission table lets that role do; a page the role may not
  * open answers 403. The admin screens, plant set-up and audit trail render and work with
  * their islands. Screenshots go to test-results/.

@@ -62,26 +62,26 @@ describe('limit alarm: on-delay, deadband, re-annunciation', () => {
     // Hand-chosen: high 30 °C, deadband 1 °C (clears below 29 °C), on-delay 20 s.
     await configureChannel(ch, { high: 30, deadband: 1, onDelayMs: 20_000, priority: 'medium' });
     const t = Date.now() - 60_000;
+    expect(await openAlarmId(key)).toBeNull();
+    const from = stream.mark();
     await dip2.publish('dip-2', 'room-temp', 31, t); // abnormal: on-delay starts at t
     await dip2.publish('dip-2', 'room-temp', 31.5, t + 10_000); // 10 s < 20 s: still waiting
-    await new Promise((r) => setTimeout(r, 1_500));
-    expect(await openAlarmId(key)).toBeNull();
-
-    stream.mark();
     await dip2.publish('dip-2', 'room-temp', 32, t + 25_000); // 25 s ≥ 20 s: activates
     const raised = await stream.next((e) => e.data.sourceKey === key && e.data.state === 'unacked', 5_000);
+    // Readings are judged in order: nothing was raised before the on-delay ran out.
+    expect(stream.since(from).filter((e) => e.data.sourceKey === key && e !== raised)).toEqual([]);
     const id = raised.data.id as number;
     expect(raised.data.message).toBe('Room temperature 32.0 °C above the alarm high 30.0 °C');
     expect(raised.data.sourceLabel).toBe('Line 2 room temperature');
     expect(raised.data.raisedAtMs).toBe(t + 25_000);
 
+    const held = stream.mark();
     await dip2.publish('dip-2', 'room-temp', 29.5, t + 30_000); // inside, but not by more than 1 °C
-    await new Promise((r) => setTimeout(r, 1_500));
-    expect(await alarm(id)).toMatchObject({ state: 'unacked', active: true });
-
-    stream.mark();
     await dip2.publish('dip-2', 'room-temp', 28.5, t + 35_000); // beyond the deadband: clears
-    await stream.next((e) => e.data.id === id && e.data.state === 'rtn-unacked', 5_000);
+    const cleared = await stream.next((e) => e.data.id === id && e.data.state === 'rtn-unacked', 5_000);
+    // 29.5 held the alarm: the clear is 28.5's, and no change came between.
+    expect(cleared.data.clearedAtMs).toBe(t + 35_000);
+    expect(stream.since(held).filter((e) => e.data.id === id && e !== cleared && e.data.state !== 'unacked')).toEqual([]);
 
     stream.mark();
     await dip2.publish('dip-2', 'room-temp', 31, t + 40_000);

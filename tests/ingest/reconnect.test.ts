@@ -10,15 +10,7 @@ import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { freePort } from '../../db/pg-control.ts';
 import { root, TEST_DEVICE_SECRET } from '../support/test-stack.ts';
 import mqtt, { type MqttClient } from 'mqtt';
-import {
-  SERVICE_PASSWORD,
-  sleep,
-  startChild,
-  startOwnBroker,
-  waitFor,
-  type Child,
-  type OwnBroker,
-} from '../support/ingest-harness.ts';
+import { SERVICE_PASSWORD, startChild, startOwnBroker, waitFor, type Child, type OwnBroker } from '../support/ingest-harness.ts';
 
 const dir = path.join(root, 'var', `test-reconnect-${process.pid}`);
 let dbUrl: string;
@@ -90,7 +82,6 @@ describe('broker restart', () => {
 
     await broker.stop('SIGKILL');
     await waitFor(async () => !(await brokerOk()), 15_000, 'health to report the broker down');
-    await sleep(500);
     broker = await startOwnBroker(dbUrl, dir, broker.port);
     const restartedAt = Date.now();
 

@@ -154,7 +154,6 @@ describe('broker restart', () => {
 
     const connectsBefore = worker.log().split('connected to').length;
     await broker.stop('SIGKILL');
-    await sleep(500);
     broker = await startOwnBroker(dbUrl, dir, broker.port);
     await waitFor(async () => worker.log().split('connected to').length > connectsBefore, 20_000, 'the worker to reconnect');
 

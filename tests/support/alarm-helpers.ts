@@ -9,6 +9,7 @@ import { inject } from 'vitest';
 import { demoDevicePassword, demoTopic } from '../../seeds/demo-plant.ts';
 import { TEST_DEVICE_SECRET } from './test-stack.ts';
 import { api, base, signIn, type Session } from './http.ts';
+import { within } from './ingest-harness.ts';
 
 let pool: pg.Pool | null = null;
 
@@ -75,6 +76,8 @@ export interface LiveStream {
   next(match: (e: SseEvent) => boolean, timeoutMs?: number, from?: number): Promise<SseEvent>;
   /** Remember "now": later `next()` calls only look at events received from here on. */
   mark(): number;
+  /** The events received from position `from` (default: the last {@link mark}) until now. */
+  since(from?: number): SseEvent[];
   close(): void;
 }
 
@@ -92,12 +95,16 @@ export async function openStream(session: Session, kinds: string[]): Promise<Liv
   let marked = 0;
   const dec = new TextDecoder();
   let buf = '';
+  // The server writes `: connected` once it has subscribed this stream: the readiness signal.
+  let ready!: () => void;
+  const connected = new Promise<void>((r) => (ready = r));
   void (async () => {
     try {
       for (;;) {
         const { value, done } = await reader.read();
         if (done) break;
         buf += dec.decode(value, { stream: true });
+        if (buf.includes(': connected')) ready();
         let i: number;
         while ((i = buf.indexOf('\n\n')) >= 0) {
           const block = buf.slice(0, i);
@@ -123,13 +130,13 @@ export async function openStream(session: Session, kinds: string[]): Promise<Liv
       /* aborted */
     }
   })();
-  // Let the web server subscribe this stream before the test publishes.
-  await new Promise((r2) => setTimeout(r2, 200));
+  await within(connected, 10_000, 'the live stream to connect');
   return {
     mark() {
       marked = seen.length;
       return marked;
     },
+    since: (from = marked) => seen.slice(from),
     next(match, timeoutMs = 10_000, from = marked) {
       const hit = seen.slice(from).find(match);
       if (hit) return Promise.resolve(hit);

@@ -68,3 +68,14 @@ export async function screenshot(page: Page, name: string): Promise<string> {
 export async function waitForIslands(page: Page, timeoutMs = 15_000): Promise<void> {
   await page.waitForFunction(() => document.querySelectorAll('astro-island[ssr]').length === 0, null, { timeout: timeoutMs });
 }
+
+/**
+ * Wait until the page has `n` live streams open (`subscribeLive` in src/lib/client/api.ts counts
+ * them on `<html data-live-open>`): the server has subscribed them, so a reading or an alarm
+ * published from here on reaches the page.
+ */
+export async function waitForLiveStreams(page: Page, n = 1, timeoutMs = 15_000): Promise<void> {
+  await page.waitForFunction((want) => Number(document.documentElement.dataset['liveOpen'] ?? 0) >= want, n, {
+    timeout: timeoutMs,
+  });
+}

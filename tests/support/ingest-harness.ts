@@ -39,6 +39,19 @@ export async function waitFor<T>(
 
 export const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
+/** `p`, or a rejection naming `what` once `timeoutMs` has passed (a wait that fails, never one that passes). */
+export async function within<T>(p: Promise<T>, timeoutMs: number, what: string): Promise<T> {
+  let timer: ReturnType<typeof setTimeout> | undefined;
+  const late = new Promise<never>((_, reject) => {
+    timer = setTimeout(() => reject(new Error(`timed out after ${timeoutMs} ms waiting for ${what}`)), timeoutMs);
+  });
+  try {
+    return await Promise.race([p, late]);
+  } finally {
+    clearTimeout(timer);
+  }
+}
+
 export interface TestChannelSpec {
   key: string;
   kind?: string;

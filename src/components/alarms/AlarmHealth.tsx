@@ -25,6 +25,7 @@ import { apiFetch } from '../../lib/client/api.ts';
 import { ISA_18_2_BENCHMARKS, RATE_BAND_LABELS, type AlarmKpiReport } from '../../lib/domain/alarms/kpi.ts';
 import { PRIORITY_MEANINGS } from '../../lib/shared/alarms.ts';
 import { formatAge, formatRange, formatSiteTime, fromLocalInput, tickLabel, toLocalInput } from '../../lib/shared/time.ts';
+import { PALETTE } from '../../styles/palette.mjs';
 
 ChartJS.register(
   BarController,
@@ -52,10 +53,10 @@ interface Props {
   nowMs: number;
 }
 
-const INK = '#2d3a42';
-const FAINT = '#7b858c';
-const AMBER = '#c26a00';
-const RED = '#b3261e';
+const INK = PALETTE.slateDeep;
+const FAINT = PALETTE.inkFaint;
+const AMBER = PALETTE.alertMed;
+const RED = PALETTE.alertHigh;
 
 export default function AlarmHealth({ timeZone, nowMs }: Props) {
   const [range, setRange] = useState({ fromMs: nowMs - 24 * 3_600_000, toMs: nowMs });
@@ -66,6 +67,8 @@ export default function AlarmHealth({ timeZone, nowMs }: Props) {
   const [data, setData] = useState<Health | null>(null);
   const [loading, setLoading] = useState(true);
   const [error, setError] = useState<string | null>(null);
+  /** The query whose figures are shown (browser tests wait on `data-loaded` matching the export link). */
+  const [loadedQuery, setLoadedQuery] = useState<string | null>(null);
 
   const query = `from=${Math.round(range.fromMs)}&to=${Math.round(range.toMs)}&positions=${positions}`;
   const load = useCallback(async () => {
@@ -73,6 +76,7 @@ export default function AlarmHealth({ timeZone, nowMs }: Props) {
     setError(null);
     try {
       setData(await apiFetch<Health>(`/api/v1/alarms/kpi?${query}`));
+      setLoadedQuery(query);
     } catch (e) {
       setError(e instanceof Error ? e.message : String(e));
     } finally {
@@ -104,7 +108,7 @@ export default function AlarmHealth({ timeZone, nowMs }: Props) {
   };
 
   return (
-    <div className="space-y-4">
+    <div className="space-y-4" data-alarm-health data-loaded={loadedQuery ?? ''}>
       <section className="panel flex flex-wrap items-end gap-4" aria-label="Period">
         <div role="group" aria-label="Quick periods" className="flex flex-wrap gap-1">
           {PRESETS.map(([key, label, ms]) => (

@@ -7,8 +7,8 @@
  * but not acknowledged). New high and medium alarms sound a short beep (mute toggle, kept in
  * this browser). Each alarm's channel is one click away, with a sparkline around the alarm.
  */
-import { useCallback, useEffect, useMemo, useRef, useState, type SubmitEvent } from 'react';
-import { ApiError, apiFetch, subscribeLive } from '../../lib/client/api.ts';
+import { useEffect, useMemo, useRef, useState, type SubmitEvent } from 'react';
+import { ApiError, apiFetch } from '../../lib/client/api.ts';
 import { STATE_LABELS } from '../../lib/domain/alarms/state.ts';
 import { can, type Role } from '../../lib/shared/roles.ts';
 import { SHELVE_MINUTES_MAX, type AlarmPriority, type AlarmState } from '../../lib/shared/alarms.ts';
@@ -18,14 +18,14 @@ import {
   VIEW_LABELS,
   inView,
   mergeAlarm,
-  shouldSound,
   sortQueue,
-  sparkline,
   type QueueSort,
   type QueueView,
 } from '../../lib/shared/alarm-queue.ts';
 import { formatAge, formatSiteTime } from '../../lib/shared/time.ts';
-import type { ReadingsResponse } from '../../lib/shared/telemetry.ts';
+import { AlarmSpark as Spark } from './AlarmSpark.tsx';
+import { useAlarmSound } from './useAlarmSound.ts';
+import { useAlarmStream } from './useAlarmStream.ts';
 
 interface Props {
   initial: AlarmView[];
@@ -50,9 +50,6 @@ const STATE_ICON: Record<AlarmState, string> = {
   suppressed: '⊘',
   'out-of-service': '⊗',
 };
-const MUTE_KEY = 'coatrail.alarms.muted';
-const SPARK_W = 120;
-const SPARK_H = 28;
 
 type Form =
   | { kind: 'ack'; ids: number[] }
@@ -61,97 +58,19 @@ type Form =
   | { kind: 'rts'; id: number };
 
 export default function AlarmQueue({ initial, role, timeZone, focusId, nowMs }: Props) {
-  const [alarms, setAlarms] = useState<Map<number, AlarmView>>(() => new Map(initial.map((a) => [a.id, a])));
   const [view, setView] = useState<QueueView>('open');
   const [sort, setSort] = useState<QueueSort>('priority');
   const [priorities, setPriorities] = useState<Set<AlarmPriority>>(new Set(['high', 'medium', 'low']));
   const [selected, setSelected] = useState<Set<number>>(new Set());
   const [form, setForm] = useState<Form | null>(null);
   const [now, setNow] = useState(nowMs);
-  const [muted, setMuted] = useState(false);
-  const [soundBlocked, setSoundBlocked] = useState(false);
-  const [live, setLive] = useState<{ lastMs: number | null }>({ lastMs: null });
-  const [loading, setLoading] = useState(false);
-  const [loadError, setLoadError] = useState<string | null>(null);
   const [notice, setNotice] = useState<string | null>(null);
   const [expanded, setExpanded] = useState<number | null>(focusId);
-  const audio = useRef<AudioContext | null>(null);
-  const mutedRef = useRef(false);
-  const alarmsRef = useRef(alarms);
-  alarmsRef.current = alarms;
+  const { muted, toggleMute, soundBlocked, beep, unlockAudio } = useAlarmSound();
+  const { alarms, setAlarms, live, loading, loadError } = useAlarmStream({ initial, view, focusId, beep, setNotice });
   const mayAck = can(role, 'alarm.ack');
   const mayShelve = can(role, 'alarm.shelve');
   const mayService = can(role, 'alarm.configure');
-
-  // Mute preference (per browser).
-  useEffect(() => {
-    const m = window.localStorage.getItem(MUTE_KEY) === '1';
-    setMuted(m);
-    mutedRef.current = m;
-  }, []);
-  const toggleMute = () => {
-    const m = !muted;
-    setMuted(m);
-    mutedRef.current = m;
-    window.localStorage.setItem(MUTE_KEY, m ? '1' : '0');
-    if (!m) unlockAudio();
-  };
-
-  /** Browsers start audio only after a user gesture: create/resume the context on the first click or key. */
-  const unlockAudio = useCallback(() => {
-    try {
-      audio.current ??= new AudioContext();
-      if (audio.current.state === 'suspended') void audio.current.resume();
-      setSoundBlocked(false);
-    } catch {
-      setSoundBlocked(true);
-    }
-  }, []);
-  useEffect(() => {
-    const on = () => unlockAudio();
-    window.addEventListener('pointerdown', on, { once: true });
-    window.addEventListener('keydown', on, { once: true });
-    return () => {
-      window.removeEventListener('pointerdown', on);
-      window.removeEventListener('keydown', on);
-    };
-  }, [unlockAudio]);
-
-  const beep = useCallback((priority: AlarmPriority) => {
-    if (mutedRef.current) return;
-    const ctx = audio.current;
-    if (!ctx || ctx.state !== 'running') {
-      setSoundBlocked(true);
-      return;
-    }
-    // High: three short tones; medium: one. 880 Hz sine, quiet.
-    const tones = priority === 'high' ? 3 : 1;
-    for (let i = 0; i < tones; i++) {
-      const t0 = ctx.currentTime + i * 0.22;
-      const osc = ctx.createOscillator();
-      const gain = ctx.createGain();
-      osc.type = 'sine';
-      osc.frequency.value = priority === 'high' ? 988 : 784;
-      gain.gain.setValueAtTime(0.0001, t0);
-      gain.gain.exponentialRampToValueAtTime(0.2, t0 + 0.02);
-      gain.gain.exponentialRampToValueAtTime(0.0001, t0 + 0.16);
-      osc.connect(gain).connect(ctx.destination);
-      osc.start(t0);
-      osc.stop(t0 + 0.18);
-    }
-  }, []);
-
-  // Live updates.
-  useEffect(() => {
-    const stop = subscribeLive(['alarms'], (_kind, payload: AlarmView) => {
-      if (!payload || typeof payload.id !== 'number') return;
-      const before = alarmsRef.current.get(payload.id);
-      if (shouldSound(before, payload)) beep(payload.priority);
-      setAlarms((m) => mergeAlarm(m, payload));
-      setLive({ lastMs: Date.now() });
-    });
-    return stop;
-  }, [beep]);
 
   // Clock for ages.
   useEffect(() => {
@@ -159,33 +78,6 @@ export default function AlarmQueue({ initial, role, timeZone, focusId, nowMs }: 
     return () => clearInterval(t);
   }, []);
 
-  // Reconcile with the server now and then (and whenever the view changes).
-  const reload = useCallback(async (v: QueueView) => {
-    setLoading(true);
-    setLoadError(null);
-    try {
-      const state = v === 'open' ? 'open' : v === 'held' ? 'shelved,suppressed,out-of-service' : '';
-      const list = await apiFetch<AlarmView[]>(`/api/v1/alarms?limit=500${state ? `&state=${state}` : ''}`);
-      setAlarms((m) => list.reduce((acc, a) => mergeAlarm(acc, a), m));
-    } catch (e) {
-      setLoadError(e instanceof Error ? e.message : String(e));
-    } finally {
-      setLoading(false);
-    }
-  }, []);
-  useEffect(() => {
-    void reload(view);
-    const t = setInterval(() => void reload(view), 60_000);
-    return () => clearInterval(t);
-  }, [view, reload]);
-
-  // A focused alarm (from an e-mail link) that is not in the first list: fetch it.
-  useEffect(() => {
-    if (focusId === null || alarmsRef.current.has(focusId)) return;
-    apiFetch<AlarmView>(`/api/v1/alarms/${focusId}`)
-      .then((a) => setAlarms((m) => mergeAlarm(m, a)))
-      .catch(() => setNotice(`Alarm ${focusId} was not found.`));
-  }, [focusId]);
   useEffect(() => {
     if (focusId === null) return;
     const el = document.getElementById(`alarm-${focusId}`);
@@ -579,53 +471,6 @@ function AlarmRow(p: RowProps) {
         </tr>
       )}
     </>
-  );
-}
-
-const sparkCache = new Map<string, Promise<ReadingsResponse>>();
-
-/** The channel around the alarm: 10 min before to 5 min after (or now), the limit dashed, the alarm time marked. */
-function Spark({ a }: { a: AlarmView }) {
-  const [data, setData] = useState<ReadingsResponse | null>(null);
-  const [failed, setFailed] = useState(false);
-  const from = a.lastActivatedAtMs - 10 * 60_000;
-  const to = Math.min(Date.now(), a.lastActivatedAtMs + 5 * 60_000);
-  const key = `${a.channelId}:${a.lastActivatedAtMs}`;
-  useEffect(() => {
-    let gone = false;
-    let p = sparkCache.get(key);
-    if (!p) {
-      p = apiFetch<ReadingsResponse>(
-        `/api/v1/channels/${a.channelId}/readings?from=${Math.round(from)}&to=${Math.round(to) + 1}&maxPoints=120`,
-      );
-      sparkCache.set(key, p);
-      p.catch(() => sparkCache.delete(key));
-    }
-    p.then((d) => !gone && setData(d)).catch(() => !gone && setFailed(true));
-    return () => {
-      gone = true;
-    };
-  }, [key]);
-  if (failed) return <span className="text-xs font-normal text-ink-soft">Trend unavailable</span>;
-  if (!data) return <span className="block h-7 w-[120px] animate-pulse rounded bg-slate-panel" aria-label="Loading trend" />;
-  const points = data.mode === 'raw' ? data.points : data.buckets.map((b) => ({ t: b.t, v: b.mean }));
-  const s = sparkline(points, from, to, SPARK_W, SPARK_H, { alarmAtMs: a.lastActivatedAtMs, limit: a.limit, gapMs: 120_000 });
-  if (!s) return <span className="text-xs font-normal text-ink-soft">No readings around the alarm</span>;
-  return (
-    <svg
-      width={SPARK_W}
-      height={SPARK_H}
-      viewBox={`0 0 ${SPARK_W} ${SPARK_H}`}
-      role="img"
-      aria-label={`Trend of the channel from 10 minutes before the alarm, range ${s.min.toFixed(2)}–${s.max.toFixed(2)} ${data.unit}`}
-      className="block"
-    >
-      {s.limitY !== null && (
-        <line x1={0} x2={SPARK_W} y1={s.limitY} y2={s.limitY} stroke="#b3261e" strokeDasharray="3 2" strokeWidth={1} />
-      )}
-      {s.alarmX !== null && <line x1={s.alarmX} x2={s.alarmX} y1={0} y2={SPARK_H} stroke="#7b858c" strokeWidth={1} />}
-      <path d={s.path} fill="none" stroke="#2d3a42" strokeWidth={1.4} />
-    </svg>
   );
 }
 

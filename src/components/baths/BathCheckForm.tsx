@@ -6,12 +6,12 @@
  * After logging, the recommended addition can be logged in one tap, linked to the check.
  */
 import { useId, useMemo, useState, type SyntheticEvent } from 'react';
+import { computeBathCheck } from '../../lib/domain/film/bath-check.ts';
 import { CUPS } from '../../lib/domain/film/viscosity-cups.ts';
 import { apiFetch, ApiError } from '../../lib/client/api.ts';
 import {
   BATH_CAUTION,
   BathCheckInputSchema,
-  computeBathCheck,
   describeAddition,
   type BathCheckComputation,
   type BathCheckContext,

@@ -3,7 +3,7 @@
  * formed, the chart and its run rules, and the specification (fixed, or from the process window
  * in force). Validated in the browser with the same schema the API uses.
  */
-import { useMemo, useState, type FormEvent } from 'react';
+import { useMemo, useState, type SyntheticEvent } from 'react';
 import { apiFetch, ApiError } from '../../lib/client/api.ts';
 import {
   CHARACTERISTIC_CHARTS,
@@ -131,7 +131,7 @@ export function CharacteristicForm({ channels, existing, hasPoints }: Props) {
     };
   };
 
-  async function submit(ev: FormEvent) {
+  async function submit(ev: SyntheticEvent<HTMLFormElement>) {
     ev.preventDefault();
     setFailure(null);
     const b = body();

@@ -1,5 +1,5 @@
 /**
- * The control-chart view of one characteristic (issue 7 part 3): the statistic with its centre
+ * The control-chart view of one characteristic: the statistic with its centre
  * line and control limits as they were in force (stepping where a new limit set took effect),
  * optional 1σ/2σ zone lines, spec limits dashed and labelled, signals as red triangles with the
  * rule id, excluded Phase I points hollow; the companion R/S/MR chart; a capability side panel;
@@ -21,6 +21,7 @@ import { controlChartCsv } from '../../lib/shared/control-chart.ts';
 import { formatSiteTime, fromLocalInput } from '../../lib/shared/time.ts';
 import type { SpcCapability } from '../../lib/shared/spc.ts';
 import { fmtNum, SpcPlot } from './SpcPlot.tsx';
+import { PALETTE } from '../../styles/palette.mjs';
 
 interface Props {
   initial: ChartData;
@@ -388,20 +389,20 @@ function Legend({ zones, spec, excluded }: { zones: boolean; spec: boolean; excl
     <ul className="mb-1 flex flex-wrap gap-x-4 gap-y-1 text-xs text-ink-soft" aria-label="Legend">
       <li>
         <svg width="22" height="8" aria-hidden="true">
-          <line x1="0" y1="4" x2="22" y2="4" stroke="#2f6f73" strokeWidth="2" />
+          <line x1="0" y1="4" x2="22" y2="4" stroke={PALETTE.lacquer} strokeWidth="2" />
         </svg>{' '}
         control limits (as in force)
       </li>
       <li>
         <svg width="22" height="8" aria-hidden="true">
-          <line x1="0" y1="4" x2="22" y2="4" stroke="#2d3a42" strokeWidth="1" />
+          <line x1="0" y1="4" x2="22" y2="4" stroke={PALETTE.slateDeep} strokeWidth="1" />
         </svg>{' '}
         centre line
       </li>
       {spec && (
         <li>
           <svg width="22" height="8" aria-hidden="true">
-            <line x1="0" y1="4" x2="22" y2="4" stroke="#1f2529" strokeWidth="1.5" strokeDasharray="6 3" />
+            <line x1="0" y1="4" x2="22" y2="4" stroke={PALETTE.ink} strokeWidth="1.5" strokeDasharray="6 3" />
           </svg>{' '}
           spec limits (LSL / USL)
         </li>
@@ -416,14 +417,14 @@ function Legend({ zones, spec, excluded }: { zones: boolean; spec: boolean; excl
       )}
       <li>
         <svg width="12" height="10" aria-hidden="true">
-          <polygon points="6,0 12,10 0,10" fill="#b3261e" />
+          <polygon points="6,0 12,10 0,10" fill={PALETTE.alertHigh} />
         </svg>{' '}
         signal (rule id written beside it)
       </li>
       {excluded > 0 && (
         <li>
           <svg width="10" height="10" aria-hidden="true">
-            <circle cx="5" cy="5" r="4" fill="#fff" stroke="#4a545b" strokeWidth="1.5" />
+            <circle cx="5" cy="5" r="4" fill="#fff" stroke={PALETTE.inkSoft} strokeWidth="1.5" />
           </svg>{' '}
           excluded from the limits ({excluded})
         </li>
@@ -529,7 +530,7 @@ function PointPanel({
               <tbody>
                 {detail.readings.slice(0, 60).map((r, i) => (
                   <tr key={i}>
-                    <td>{formatSiteTime(r.t!, tz, { seconds: true })}</td>
+                    <td>{formatSiteTime(r.t, tz, { seconds: true })}</td>
                     <td>{chName.get(r.c ?? -1) ?? r.c}</td>
                     <td className="num text-right">{fmtNum(r.v, 6)}</td>
                   </tr>

@@ -4,7 +4,7 @@
  * recompute, save the study as a draft limit set, and approve it with an electronic signature.
  * Nothing is applied silently: suggestions stay suggestions until the engineer excludes them.
  */
-import { useCallback, useMemo, useState } from 'react';
+import { useMemo, useState } from 'react';
 import { apiFetch, ApiError } from '../../lib/client/api.ts';
 import {
   CHART_STATISTIC,
@@ -71,20 +71,17 @@ export function LimitStudy({
     } else setError({ text: 'The study could not be run.', fields: {} });
   };
 
-  const run = useCallback(
-    async (rows: Row[]) => {
-      setState('running');
-      setError(null);
-      try {
-        setResult(await apiFetch<StudyResult>(`/api/v1/characteristics/${c.id}/study`, { body: payload(rows) }));
-      } catch (e) {
-        fail(e);
-      } finally {
-        setState('idle');
-      }
-    },
-    [c.id, fromText, toText],
-  );
+  const run = async (rows: Row[]) => {
+    setState('running');
+    setError(null);
+    try {
+      setResult(await apiFetch<StudyResult>(`/api/v1/characteristics/${c.id}/study`, { body: payload(rows) }));
+    } catch (e) {
+      fail(e);
+    } finally {
+      setState('idle');
+    }
+  };
 
   const points: ChartPoint[] = useMemo(
     () =>

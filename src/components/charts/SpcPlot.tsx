@@ -14,6 +14,7 @@ import {
   Tooltip,
   type ChartData,
   type ChartOptions,
+  type Plugin,
   type PointStyle,
   type TooltipItem,
 } from 'chart.js';
@@ -29,18 +30,33 @@ import {
 } from '../../lib/shared/characteristics.ts';
 import { dispersionSignals, locationSignals, pointTooltip, shapeControlChart, yRange } from '../../lib/shared/control-chart.ts';
 import { tickLabel, zonesOver } from '../../lib/shared/time.ts';
+import { PALETTE } from '../../styles/palette.mjs';
 
 ChartJS.register(LineController, LineElement, PointElement, LinearScale, Tooltip, annotationPlugin);
 
+/**
+ * After each render, marks the plot `data-drawn="true"` and `data-drawn-zones` with whether the
+ * 1σ / 2σ zone lines were drawn (browser tests wait on these before a screenshot).
+ */
+const drawnFlag: Plugin<'line'> = {
+  id: 'spcDrawnFlag',
+  afterRender(chart) {
+    const el = chart.canvas.closest('[data-spc-plot]');
+    if (!el) return;
+    el.setAttribute('data-drawn', 'true');
+    el.setAttribute('data-drawn-zones', String(chart.data.datasets.some((d) => d.label === '+1σ')));
+  },
+};
+
 export const COLORS = {
-  stat: '#4a545b',
-  center: '#2d3a42',
-  limit: '#2f6f73',
+  stat: PALETTE.inkSoft,
+  center: PALETTE.slateDeep,
+  limit: PALETTE.lacquer,
   zone: '#9aa3a8',
-  spec: '#1f2529',
-  signal: '#b3261e',
+  spec: PALETTE.ink,
+  signal: PALETTE.alertHigh,
   hollow: '#ffffff',
-  step: '#7b858c',
+  step: PALETTE.inkFaint,
 };
 
 export const fmtNum = (x: number | null | undefined, digits = 4): string =>
@@ -351,7 +367,7 @@ export const SpcPlot = forwardRef<LineChart | undefined, SpcPlotProps>(function 
         data-signals={shaped.markers.filter((m) => m.kind === 'violation').length}
         data-excluded={shaped.markers.filter((m) => m.kind === 'excluded').length}
       >
-        <Chart ref={ref as never} type="line" data={data} options={options} aria-label={label} role="img" />
+        <Chart ref={ref as never} type="line" data={data} options={options} plugins={[drawnFlag]} aria-label={label} role="img" />
       </div>
     </>
   );

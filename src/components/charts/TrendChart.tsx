@@ -5,74 +5,45 @@
  * force shaded (window changes marked), and alarms and plant events as markers. Exports the
  * chart as PNG and the plotted data as CSV. Times in the site's zone, with the zone shown.
  */
-import {
-  Chart as ChartJS,
-  Filler,
-  Legend,
-  LinearScale,
-  LineController,
-  LineElement,
-  PointElement,
-  Tooltip,
-  type ChartData,
-  type ChartOptions,
-  type Plugin,
-  type Scale,
-  type TooltipItem,
-} from 'chart.js';
+import { Chart as ChartJS, Filler, Legend, LinearScale, LineController, LineElement, PointElement, Tooltip } from 'chart.js';
 import annotationPlugin from 'chartjs-plugin-annotation';
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import { Chart } from 'react-chartjs-2';
-import { apiFetch, ApiError } from '../../lib/client/api.ts';
-import type { ReadingsResponse } from '../../lib/shared/telemetry.ts';
-import {
-  formatClock,
-  formatRange,
-  formatSiteTime,
-  fromLocalInput,
-  tickLabel,
-  timeTicks,
-  toLocalInput,
-  zonesOver,
-} from '../../lib/shared/time.ts';
+import { formatRange, fromLocalInput, toLocalInput } from '../../lib/shared/time.ts';
 import {
   clampToNow,
-  EVENT_STYLE,
-  INITIAL_MAX_POINTS,
-  maxPointsFor,
   panRange,
   placeMarkers,
   presetRange,
   RANGE_PRESETS,
-  shapeReadings,
-  thinLine,
-  TREND_EVENT_KINDS,
   trendCsv,
   unitAxes,
   windowBands,
-  windowChanges,
   zoomRange,
-  type AnnotationsResponse,
   type ChartPoint,
   type Marker,
-  type PlottedRow,
   type RangePresetKey,
-  type ShapedSeries,
   type TrendEvent,
   type ViewRange,
 } from '../../lib/shared/trend.ts';
+import {
+  drawnFlag,
+  MAX_CHANNELS,
+  SOURCE_WORDS,
+  STYLES,
+  trendDatasets,
+  trendOptions,
+  whiteBackground,
+  widthWords,
+  type TrendChannelOption,
+} from './trend-chart-config.ts';
+import { useTrendData } from './useTrendData.ts';
+
+export type { TrendChannelOption };
 
 // The time axis is a linear axis over epoch ms with our own ticks and labels in the site's zone
 // (chart.js's time scale would need a date adapter and aligns ticks to the browser's zone).
 ChartJS.register(LineController, LineElement, PointElement, LinearScale, Tooltip, Legend, Filler, annotationPlugin);
-
-export interface TrendChannelOption {
-  id: number;
-  name: string;
-  kind: string;
-  unit: string;
-  assetName: string;
-}
 
 interface Props {
   channels: TrendChannelOption[];
@@ -85,78 +56,16 @@ interface Props {
   timeZone: string;
 }
 
-interface SeriesState {
-  status: 'ok' | 'error';
-  shaped?: ShapedSeries;
-  error?: string;
-}
-
-/** The window stretches and events of one channel (or why they could not be loaded). */
-interface Note {
-  a: AnnotationsResponse | null;
-  error?: string;
-}
-
 interface View {
   range: ViewRange;
   live: boolean;
   preset: RangePresetKey | null;
 }
 
-/** Series styles: muted line colours with distinct dash patterns (colour is not the only difference). */
-const STYLES = [
-  { line: '#2d3a42', fill: 'rgba(45,58,66,0.16)', dash: [] as number[], name: 'solid' },
-  { line: '#1d5f8a', fill: 'rgba(29,95,138,0.16)', dash: [7, 4], name: 'dashed' },
-  { line: '#5b4f8a', fill: 'rgba(91,79,138,0.14)', dash: [2, 3], name: 'dotted' },
-  { line: '#6b5a2e', fill: 'rgba(107,90,46,0.14)', dash: [10, 3, 2, 3], name: 'dash-dot' },
-  { line: '#3f5f3f', fill: 'rgba(63,95,63,0.14)', dash: [14, 4], name: 'long dash' },
-  { line: '#7a4a5a', fill: 'rgba(122,74,90,0.14)', dash: [4, 2], name: 'short dash' },
-];
-const MAX_CHANNELS = 6;
-const EVENTS_AXIS_MAX = 24;
-const PRIORITY_COLOUR = { high: '#b3261e', medium: '#c26a00', low: '#8a6d00' } as const;
-const SOURCE_WORDS = { raw: 'raw readings', minute: 'minute rollup', hour: 'hourly rollup' } as const;
-
-const widthWords = (ms: number) =>
-  ms % 86_400_000 === 0
-    ? `${ms / 86_400_000} d`
-    : ms % 3_600_000 === 0
-      ? `${ms / 3_600_000} h`
-      : ms % 60_000 === 0
-        ? `${ms / 60_000} min`
-        : `${ms / 1000} s`;
-
-/** Paints the canvas white behind everything, so the PNG export is not transparent. */
-const whiteBackground: Plugin<'line'> = {
-  id: 'whiteBackground',
-  beforeDraw(chart) {
-    const { ctx } = chart;
-    ctx.save();
-    ctx.globalCompositeOperation = 'destination-over';
-    ctx.fillStyle = '#ffffff';
-    ctx.fillRect(0, 0, chart.width, chart.height);
-    ctx.restore();
-  },
-};
-
-/** Marks the wrapper `data-drawn="true"` once a chart with loaded data has rendered (browser tests and the benchmark wait on it). */
-const drawnFlag: Plugin<'line', { ready?: boolean; points?: number }> = {
-  id: 'drawnFlag',
-  afterRender(chart, _args, opts) {
-    const el = chart.canvas.closest('[data-trend]');
-    if (!el) return;
-    el.setAttribute('data-drawn', opts.ready ? 'true' : 'false');
-    el.setAttribute('data-points', String(opts.points ?? 0));
-  },
-};
-
 export function TrendChart({ channels, initialIds, initialRange, initialLive, initialPreset, at, timeZone: tz }: Props) {
   const byId = useMemo(() => new Map(channels.map((c) => [c.id, c])), [channels]);
   const [ids, setIds] = useState<number[]>(() => initialIds.filter((id) => byId.has(id)).slice(0, MAX_CHANNELS));
   const [view, setView] = useState<View>({ range: initialRange, live: initialLive, preset: initialPreset });
-  const [series, setSeries] = useState<ReadonlyMap<number, SeriesState>>(new Map());
-  const [notes, setNotes] = useState<ReadonlyMap<number, Note>>(new Map());
-  const [loading, setLoading] = useState<{ done: number; total: number } | null>({ done: 0, total: ids.length });
   const [reloadKey, setReloadKey] = useState(0);
   const [showEvents, setShowEvents] = useState(true);
   const [showWindow, setShowWindow] = useState(true);
@@ -171,7 +80,6 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
   const chartRef = useRef<ChartJS<'line', ChartPoint[]> | null>(null);
   const boxRef = useRef<HTMLDivElement | null>(null);
   const silent = useRef(false);
-  const firstLoad = useRef(true);
   const { fromMs, toMs } = view.range;
   const span = toMs - fromMs;
 
@@ -184,66 +92,8 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
     return () => ro.disconnect();
   }, []);
 
-  // Fetch readings (the chart draws as soon as they arrive) and, beside them, the window and events.
-  useEffect(() => {
-    const ac = new AbortController();
-    const quiet = silent.current;
-    silent.current = false;
-    const first = firstLoad.current;
-    firstLoad.current = false;
-    const from = Math.round(fromMs);
-    const to = Math.round(toMs);
-    // The first load asks exactly what the page preloaded; later ones about one point per pixel (≤ 2 000).
-    const maxPoints = first ? INITIAL_MAX_POINTS : maxPointsFor((boxRef.current?.clientWidth ?? 1000) - 120);
-    const message = (e: unknown) =>
-      e instanceof ApiError ? `${e.title}${e.detail ? `: ${e.detail}` : ''}` : e instanceof Error ? e.message : String(e);
-    const run = async () => {
-      if (!quiet) setLoading({ done: 0, total: ids.length });
-      void Promise.all(
-        ids.map(async (id): Promise<[number, Note]> => {
-          try {
-            return [
-              id,
-              {
-                a: await apiFetch<AnnotationsResponse>(`/api/v1/channels/${id}/annotations?from=${from}&to=${to}`, {
-                  signal: ac.signal,
-                }),
-              },
-            ];
-          } catch (e) {
-            return [id, { a: null, error: message(e) }];
-          }
-        }),
-      ).then((r) => {
-        if (!ac.signal.aborted) setNotes(new Map(r));
-      });
-      let done = 0;
-      const results = await Promise.all(
-        ids.map(async (id): Promise<[number, SeriesState]> => {
-          try {
-            const resp = await apiFetch<ReadingsResponse>(
-              `/api/v1/channels/${id}/readings?from=${from}&to=${to}&maxPoints=${maxPoints}`,
-              { signal: ac.signal },
-            );
-            return [id, { status: 'ok', shaped: shapeReadings(resp) }];
-          } catch (e) {
-            return [id, { status: 'error', error: message(e) }];
-          } finally {
-            done++;
-            if (!quiet && !ac.signal.aborted) setLoading({ done, total: ids.length });
-          }
-        }),
-      );
-      if (ac.signal.aborted) return;
-      setSeries(new Map(results));
-      setLoading(null);
-    };
-    const timer = setTimeout(run, first ? 0 : 80);
-    return () => {
-      clearTimeout(timer);
-      ac.abort();
-    };
-  }, [ids, fromMs, toMs, reloadKey]);
+  // Readings (the chart draws as soon as they arrive) and, beside them, the window and events.
+  const { series, notes, loading } = useTrendData({ ids, fromMs, toMs, reloadKey, boxRef, silent });
 
   // A live view (a preset ending now) follows the clock.
   useEffect(() => {
@@ -275,8 +125,11 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
 
   // ---- chart data
   const axes = useMemo(() => unitAxes(ids.map((id) => byId.get(id)?.unit ?? '')), [ids, byId]);
-  const axisOf = (unit: string) => axes.find((a) => a.unit === unit)?.id ?? 'y0';
-  const loaded = ids.map((id) => ({ id, ch: byId.get(id)!, st: series.get(id) })).filter((x) => x.ch);
+  const axisOf = useCallback((unit: string) => axes.find((a) => a.unit === unit)?.id ?? 'y0', [axes]);
+  const loaded = useMemo(
+    () => ids.map((id) => ({ id, ch: byId.get(id)!, st: series.get(id) })).filter((x) => x.ch),
+    [ids, byId, series],
+  );
   const anyData = loaded.some((x) => (x.st?.shaped?.rows.length ?? 0) > 0);
 
   const markers: Marker[] = useMemo(() => {
@@ -296,272 +149,53 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
 
   const bandsByChannel = useMemo(
     () => new Map(loaded.map(({ id, ch }) => [id, notes.get(id)?.a ? windowBands(notes.get(id)!.a!.windows, ch.kind) : []])),
-    [notes, ids],
+    [notes, loaded],
   );
 
-  const { data, totalPoints } = useMemo(() => {
-    const datasets: any[] = [];
-    let totalPoints = 0;
-    loaded.forEach(({ ch, st }, i) => {
-      const s = st?.shaped;
-      if (!s) return;
-      const style = STYLES[i % STYLES.length]!;
-      const yAxisID = axisOf(ch.unit);
-      const rows = new Map<number, PlottedRow>(s.rows.map((r) => [r.x, r]));
-      const common = { yAxisID, spanGaps: false, parsing: false, normalized: true, _ch: ch, _rows: rows, _mode: s.mode };
-      if (s.mode === 'bucketed') {
-        datasets.push({
-          ...common,
-          label: `${ch.name} max`,
-          data: s.max,
-          borderWidth: 0,
-          pointRadius: 0,
-          fill: '+1',
-          backgroundColor: style.fill,
-          _role: 'band',
-        });
-        datasets.push({
-          ...common,
-          label: `${ch.name} min`,
-          data: s.min,
-          borderWidth: 0,
-          pointRadius: 0,
-          fill: false,
-          _role: 'band',
-        });
-        datasets.push({
-          ...common,
-          label: `${ch.name} (${ch.unit}) — mean, min–max band per ${widthWords(s.bucketMs ?? 0)}`,
-          data: s.line,
-          borderColor: style.line,
-          backgroundColor: style.line,
-          borderDash: style.dash,
-          borderWidth: 1.6,
-          pointRadius: 0,
-          pointStyle: 'line',
-          _role: 'line',
-        });
-        totalPoints += s.rows.length;
-      } else {
-        const line = thinLine(s.line, Math.max(200, widthPx * 1.5));
-        const dots = s.rows.length <= 240;
-        datasets.push({
-          ...common,
-          label: `${ch.name} (${ch.unit}) — readings`,
-          data: line,
-          borderColor: style.line,
-          backgroundColor: style.line,
-          borderDash: style.dash,
-          borderWidth: 1.6,
-          pointRadius: dots ? 2.2 : 0,
-          pointHoverRadius: 4,
-          pointStyle: dots ? 'circle' : 'line',
-          stepped: ch.kind === 'door' ? 'before' : false,
-          _role: 'line',
-        });
-        totalPoints += s.rows.length;
-      }
-    });
-    if (showEvents) {
-      for (const kind of TREND_EVENT_KINDS) {
-        const ms = markers.filter((m) => m.kind === kind);
-        if (ms.length === 0) continue;
-        const st = EVENT_STYLE[kind];
-        datasets.push({
-          label: st.many.charAt(0).toUpperCase() + st.many.slice(1),
-          data: ms.map((m) => ({ x: m.x, y: m.lane + 0.7, _m: m })),
-          yAxisID: 'events',
-          showLine: false,
-          parsing: false,
-          pointStyle: st.shape,
-          pointRadius: (c: any) => (c.raw?._m?.count > 1 ? 8 : 6.5),
-          pointHoverRadius: 9,
-          pointBackgroundColor: (c: any) =>
-            kind === 'alarm' ? PRIORITY_COLOUR[(c.raw?._m as Marker | undefined)?.priority ?? 'low'] : '#4a545b',
-          pointBorderColor: '#1f2529',
-          borderColor: kind === 'alarm' ? PRIORITY_COLOUR.high : '#4a545b',
-          backgroundColor: kind === 'alarm' ? PRIORITY_COLOUR.high : '#4a545b',
-          pointBorderWidth: 1,
-          _role: 'marker',
-        });
-      }
-    }
-    return { data: { datasets } as ChartData<'line', ChartPoint[]>, totalPoints };
-  }, [series, ids, showEvents, markers, widthPx]);
+  const { data, totalPoints } = useMemo(
+    () => trendDatasets({ loaded, axisOf, showEvents, markers, widthPx }),
+    [loaded, axisOf, showEvents, markers, widthPx],
+  );
 
-  const options = useMemo((): ChartOptions<'line'> => {
-    const annotations: Record<string, any> = {};
-    if (showWindow) {
-      loaded.forEach(({ id, ch }, i) => {
-        const bands = bandsByChannel.get(id) ?? [];
-        const style = STYLES[i % STYLES.length]!;
-        const yScaleID = axisOf(ch.unit);
-        bands.forEach((b, k) => {
-          const base = {
-            xScaleID: 'x',
-            yScaleID,
-            xMin: Math.max(b.fromMs, fromMs),
-            xMax: Math.min(b.toMs, toMs),
-            drawTime: 'beforeDatasetsDraw',
-          };
-          annotations[`w${id}-${k}`] = {
-            ...base,
-            type: 'box',
-            yMin: b.min,
-            yMax: b.max,
-            // Only the first channel's window is shaded; the others are drawn as limit lines in their series' style.
-            backgroundColor: i === 0 ? 'rgba(47,111,115,0.07)' : 'rgba(0,0,0,0)',
-            borderWidth: 0,
-            label: {
-              display: k === 0 && i < 3,
-              content: `${ch.name}: window ${b.label} ${b.min}–${b.max} ${ch.unit}${b.lowApplies === 'soak' ? ' (low limit in soak only)' : b.lowApplies === 'load' ? ' (low limit while loaded)' : ''}`,
-              position: { x: 'start', y: 'start' },
-              color: i === 0 ? '#1f4e51' : style.line,
-              font: { size: 11 },
-              padding: 3,
-            },
-          };
-          for (const [key, y, dash] of [
-            ['lo', b.min, [6, 4]],
-            ['hi', b.max, [6, 4]],
-            ...(b.target !== null ? [['tg', b.target, [1, 3]] as const] : []),
-          ] as const) {
-            annotations[`w${id}-${k}-${key}`] = {
-              ...base,
-              type: 'line',
-              yMin: y,
-              yMax: y,
-              borderColor: i === 0 ? '#2f6f73' : style.line,
-              borderWidth: i === 0 ? 1 : 1.4,
-              borderDash: dash,
-            };
-          }
-        });
-        windowChanges(bands).forEach((c, k) => {
-          if (c.tMs <= fromMs || c.tMs >= toMs) return;
-          annotations[`wc${id}-${k}`] = {
-            type: 'line',
-            xScaleID: 'x',
-            xMin: c.tMs,
-            xMax: c.tMs,
-            borderColor: '#2f6f73',
-            borderWidth: 1.5,
-            borderDash: [3, 3],
-            label: {
-              display: true,
-              content: c.label,
-              position: 'end',
-              backgroundColor: 'rgba(31,78,81,0.85)',
-              font: { size: 10 },
-            },
-          };
-        });
-      });
-    }
-    if (at !== null && at >= fromMs && at <= toMs) {
-      annotations['at'] = {
-        type: 'line',
-        xScaleID: 'x',
-        xMin: at,
-        xMax: at,
-        borderColor: '#1f2529',
-        borderWidth: 2,
-        label: {
-          display: true,
-          content: `Linked time ${formatClock(at, tz, { seconds: true })}`,
-          position: 'start',
-          backgroundColor: '#1f2529',
-          font: { size: 11 },
-        },
-      };
-    }
-    // Extents of the shaded windows per axis, so a window is visible even when the data sits inside it.
-    const bandExtent = new Map<string, [number, number]>();
-    if (showWindow) {
-      loaded.forEach(({ id, ch }) => {
-        for (const b of bandsByChannel.get(id) ?? []) {
-          const a = axisOf(ch.unit);
-          const cur = bandExtent.get(a);
-          bandExtent.set(a, cur ? [Math.min(cur[0], b.min), Math.max(cur[1], b.max)] : [b.min, b.max]);
-        }
-      });
-    }
-    const hasMarkers = showEvents && markers.length > 0;
-    const scales: Record<string, any> = {
-      x: {
-        type: 'linear',
-        min: fromMs,
-        max: toMs,
-        ticks: {
-          callback: (v: string | number) => tickLabel(Number(v), tz, span),
-          maxRotation: 0,
-          autoSkipPadding: 18,
-          color: '#4a545b',
-        },
-        // Round ticks on the site's wall clock (chart.js would align them to the browser's zone).
-        afterBuildTicks: (scale: Scale) => {
-          scale.ticks = timeTicks(fromMs, toMs, tz, Math.max(3, Math.floor((scale.width || widthPx) / 110))).map((value) => ({
-            value,
-          }));
-        },
-        title: { display: true, text: `Time (${tz}, ${zonesOver(fromMs, toMs, tz)})`, color: '#4a545b' },
-        grid: { color: '#ebebe6' },
-      },
-      events: { type: 'linear', axis: 'y', display: false, min: 0, max: EVENTS_AXIS_MAX },
-    };
-    axes.forEach((a, i) => {
-      scales[a.id] = {
-        type: 'linear',
-        position: a.position,
-        title: { display: true, text: a.unit, color: '#1f2529', font: { weight: 'bold' } },
-        ticks: { color: '#4a545b' },
-        grid: { drawOnChartArea: i === 0, color: '#ebebe6' },
-        afterDataLimits: (scale: Scale) => {
-          const ext = bandExtent.get(a.id);
-          let lo = Number.isFinite(scale.min) ? scale.min : (ext?.[0] ?? 0);
-          let hi = Number.isFinite(scale.max) ? scale.max : (ext?.[1] ?? 1);
-          if (ext) {
-            lo = Math.min(lo, ext[0]);
-            hi = Math.max(hi, ext[1]);
-          }
-          const r = hi - lo || Math.abs(hi) * 0.1 || 1;
-          scale.min = lo - r * (hasMarkers ? 0.26 : 0.05);
-          scale.max = hi + r * 0.06;
-        },
-      };
-    });
-    return {
-      animation: false,
-      responsive: true,
-      maintainAspectRatio: false,
-      interaction: { mode: 'nearest', axis: 'xy', intersect: false },
-      scales,
-      plugins: {
-        legend: {
-          position: 'bottom',
-          labels: {
-            usePointStyle: true,
-            filter: (item: { datasetIndex?: number }, d: ChartData) =>
-              (d.datasets[item.datasetIndex ?? 0] as any)?._role !== 'band',
-            color: '#1f2529',
-            boxHeight: 8,
-          },
-        },
-        tooltip: {
-          filter: (item: TooltipItem<'line'>) => (item.dataset as any)._role !== 'band',
-          callbacks: {
-            title: (items: TooltipItem<'line'>[]) => {
-              const x = (items[0]?.raw as ChartPoint | undefined)?.x;
-              return x === undefined ? '' : formatSiteTime(x, tz, { seconds: span <= 2 * 86_400_000 });
-            },
-            label: (item: TooltipItem<'line'>) => tooltipLines(item, tz),
-          },
-        },
-        annotation: { annotations },
-        drawnFlag: { ready: !loading && anyData, points: totalPoints },
-      } as any,
-    };
-  }, [axes, bandsByChannel, showWindow, showEvents, markers, fromMs, toMs, at, tz, loading, anyData, totalPoints, widthPx]);
+  const options = useMemo(
+    () =>
+      trendOptions({
+        axes,
+        axisOf,
+        loaded,
+        span,
+        bandsByChannel,
+        showWindow,
+        showEvents,
+        markers,
+        fromMs,
+        toMs,
+        at,
+        tz,
+        loading,
+        anyData,
+        totalPoints,
+        widthPx,
+      }),
+    [
+      axes,
+      axisOf,
+      loaded,
+      span,
+      bandsByChannel,
+      showWindow,
+      showEvents,
+      markers,
+      fromMs,
+      toMs,
+      at,
+      tz,
+      loading,
+      anyData,
+      totalPoints,
+      widthPx,
+    ],
+  );
 
   // ---- pan / zoom by pointer, wheel and keys
   const plotX = (clientX: number) => {
@@ -913,26 +547,6 @@ export function TrendChart({ channels, initialIds, initialRange, initialLive, in
       </div>
     </div>
   );
-}
-
-function tooltipLines(item: TooltipItem<'line'>, tz: string): string | string[] {
-  const ds = item.dataset as any;
-  const raw = item.raw as ChartPoint & { _m?: Marker };
-  if (ds._role === 'marker' && raw._m) {
-    const m = raw._m;
-    const lines = m.events
-      .slice(0, 6)
-      .map((e) => `${formatClock(e.tMs, tz, { seconds: true })} ${e.label}${e.detail ? ` (${e.detail})` : ''}`);
-    if (m.count > 6) lines.push(`… and ${m.count - 6} more — zoom in to see them`);
-    return m.count > 1 ? [m.label, ...lines] : lines;
-  }
-  const ch = ds._ch as TrendChannelOption;
-  const row = (ds._rows as Map<number, PlottedRow>).get(raw.x);
-  if (!row) return `${ch.name}: ${raw.y} ${ch.unit}`;
-  if (ds._mode === 'raw')
-    return `${ch.name}: ${row.value} ${ch.unit}${row.quality ? ` (quality ${row.quality === 1 ? 'uncertain' : 'bad'})` : ''}`;
-  const f = (v: number | undefined) => (v === undefined ? '—' : Number(v.toPrecision(6)));
-  return `${ch.name}: mean ${f(row.mean)} ${ch.unit} (min ${f(row.min)}, max ${f(row.max)}; ${row.n} readings from ${formatClock(row.bucketStartMs ?? raw.x, tz)})`;
 }
 
 function download(href: string, filename: string) {

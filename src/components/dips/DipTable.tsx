@@ -3,7 +3,7 @@ import { useMemo, useState } from 'react';
 import { formatSiteTime } from '../../lib/shared/site-time.ts';
 import type { DipRunItem } from '../../lib/shared/trace-views.ts';
 import { downloadCsv, SortTh, sortRows, useSort } from '../admin/table.tsx';
-import WindowBar from '../quality/WindowBar.tsx';
+import WindowBar from '../windows/WindowBar.tsx';
 
 type Key = 'at' | 'line' | 'rack' | 'jobs' | 'speed' | 'visc';
 
@@ -141,6 +141,7 @@ export default function DipTable({ initial, timeZone }: { initial: DipRunItem[];
                           min={d.viscosityWindow?.min}
                           max={d.viscosityWindow?.max}
                           unit="mm²/s"
+                          digits={2}
                         />
                         <div className="text-xs text-ink-soft">{t(d.lastCheckAt)}</div>
                       </>

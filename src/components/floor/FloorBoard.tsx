@@ -23,6 +23,7 @@ import {
 import type { ReadingsResponse } from '../../lib/shared/telemetry.ts';
 import { formatAge, formatClock, formatMinutes, formatSiteTime, siteDate } from '../../lib/shared/time.ts';
 import { placeOnBand, shapeReadings, type ChartPoint } from '../../lib/shared/trend.ts';
+import { PALETTE } from '../../styles/palette.mjs';
 
 const SPARK_MS = 60 * 60_000;
 const SPARK_POINTS = 120;
@@ -38,14 +39,14 @@ interface Props {
 /** Colours for abnormal states only; the normal state stays grey. Two palettes: paper and wall. */
 const TONE = {
   paper: {
-    high: '#b3261e',
-    med: '#c26a00',
-    low: '#8a6d00',
-    normal: '#4a545b',
-    faint: '#7b858c',
+    high: PALETTE.alertHigh,
+    med: PALETTE.alertMed,
+    low: PALETTE.alertLow,
+    normal: PALETTE.inkSoft,
+    faint: PALETTE.inkFaint,
     track: '#e2e3de',
     band: '#c4c8c6',
-    ink: '#1f2529',
+    ink: PALETTE.ink,
   },
   wall: {
     high: '#ff8a80',
@@ -172,7 +173,7 @@ export function FloorBoard({ initial, wall = false }: Props) {
   const liveAge = lastLive === null ? null : now - lastLive;
 
   return (
-    <div className={wall ? 'floor-wall' : ''} data-floor-ready="true">
+    <div className={wall ? 'floor-wall' : ''} data-floor-ready="true" data-sparks={sparkState}>
       <div
         className={`mb-3 flex flex-wrap items-center gap-x-5 gap-y-1 ${wall ? 'text-lg' : 'text-sm'}`}
         style={{ color: tone.normal }}
@@ -262,7 +263,7 @@ function Tile(props: {
       ? tone[topPriority === 'medium' ? 'med' : topPriority === 'high' ? 'high' : 'low']
       : wall
         ? '#3a4449'
-        : '#c9cdcf';
+        : PALETTE.slateLine;
   return (
     <section
       className={`rounded-md border p-3 ${wall ? 'bg-[#242b30]' : 'bg-white'}`}

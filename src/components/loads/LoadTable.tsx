@@ -35,13 +35,9 @@ export default function LoadTable({ initial, timeZone, query, ovens, canManage }
     let timer: ReturnType<typeof setTimeout> | null = null;
     const refresh = () => {
       if (timer) return;
-      timer = setTimeout(async () => {
+      timer = setTimeout(() => {
         timer = null;
-        try {
-          setRows(await apiFetch<LoadListItem[]>(`/api/v1/loads?${query}`));
-        } catch {
-          setLive('off');
-        }
+        apiFetch<LoadListItem[]>(`/api/v1/loads?${query}`).then(setRows, () => setLive('off'));
       }, 800);
     };
     const stop = subscribeLive(['loads'], () => {

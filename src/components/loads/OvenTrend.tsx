@@ -22,6 +22,7 @@ import { Chart } from 'react-chartjs-2';
 import { formatSiteTime } from '../../lib/shared/site-time.ts';
 import { tickLabel } from '../../lib/shared/time.ts';
 import type { TrendSeries } from '../../lib/shared/trace-views.ts';
+import { PALETTE } from '../../styles/palette.mjs';
 
 ChartJS.register(LineController, LineElement, PointElement, LinearScale, Tooltip, Legend, Filler, annotationPlugin);
 
@@ -38,7 +39,7 @@ export interface OvenTrendProps {
   height?: number;
 }
 
-const ZONE_COLOURS = ['#1f2529', '#4a545b', '#7b858c', '#2d3a42'];
+const ZONE_COLOURS = [PALETTE.ink, PALETTE.inkSoft, PALETTE.inkFaint, PALETTE.slateDeep];
 
 export default function OvenTrend({
   series,
@@ -77,7 +78,7 @@ export default function OvenTrend({
     datasets: temps.map((s, i) => ({
       label: `${s.label} (${s.unit})`,
       data: s.points,
-      borderColor: s.kind === 'setpoint' ? '#2f6f73' : ZONE_COLOURS[i % ZONE_COLOURS.length],
+      borderColor: s.kind === 'setpoint' ? PALETTE.lacquer : ZONE_COLOURS[i % ZONE_COLOURS.length],
       borderDash: s.kind === 'setpoint' ? [6, 4] : [],
       borderWidth: s.kind === 'setpoint' ? 1.5 : 1.8,
       stepped: s.kind === 'setpoint' ? ('before' as const) : false,
@@ -104,7 +105,7 @@ export default function OvenTrend({
       xMin: g.startMs,
       xMax: g.endMs,
       backgroundColor: 'rgba(138,109,0,0.18)',
-      borderColor: '#8a6d00',
+      borderColor: PALETTE.alertLow,
       borderWidth: 1,
       borderDash: [2, 2],
       label: { display: true, content: 'no data', color: '#5c4900', font: { size: 10 } },
@@ -117,13 +118,19 @@ export default function OvenTrend({
       xMax: soak.endMs,
       backgroundColor: 'rgba(47,111,115,0.06)',
       borderWidth: 0,
-      label: { display: true, content: 'soak', position: { x: 'center', y: 'end' }, color: '#1f4e51', font: { size: 10 } },
+      label: {
+        display: true,
+        content: 'soak',
+        position: { x: 'center', y: 'end' },
+        color: PALETTE.lacquerDark,
+        font: { size: 10 },
+      },
     };
   annotations['opened'] = {
     type: 'line',
     xMin: openedAtMs,
     xMax: openedAtMs,
-    borderColor: '#2d3a42',
+    borderColor: PALETTE.slateDeep,
     borderWidth: 1.5,
     label: { display: true, content: 'load opened', position: 'start', font: { size: 10 } },
   };
@@ -132,7 +139,7 @@ export default function OvenTrend({
       type: 'line',
       xMin: closedAtMs,
       xMax: closedAtMs,
-      borderColor: '#2d3a42',
+      borderColor: PALETTE.slateDeep,
       borderWidth: 1.5,
       label: { display: true, content: 'load closed', position: 'start', font: { size: 10 } },
     };
@@ -141,7 +148,7 @@ export default function OvenTrend({
       type: 'line',
       yMin: minTempC,
       yMax: minTempC,
-      borderColor: '#4a545b',
+      borderColor: PALETTE.inkSoft,
       borderDash: [3, 3],
       borderWidth: 1,
       label: {
@@ -150,7 +157,7 @@ export default function OvenTrend({
         position: 'end',
         font: { size: 10 },
         backgroundColor: 'rgba(244,243,239,0.9)',
-        color: '#1f2529',
+        color: PALETTE.ink,
       },
     };
   if (maxPartTempC != null)
@@ -158,7 +165,7 @@ export default function OvenTrend({
       type: 'line',
       yMin: maxPartTempC,
       yMax: maxPartTempC,
-      borderColor: '#c26a00',
+      borderColor: PALETTE.alertMed,
       borderDash: [3, 3],
       borderWidth: 1,
       label: {
@@ -184,11 +191,11 @@ export default function OvenTrend({
         min: xMin,
         max: xMax,
         ticks: { maxTicksLimit: 10, callback: (v) => tickLabel(Number(v), timeZone, span) },
-        grid: { color: '#e8e8e3' },
+        grid: { color: PALETTE.slatePanel },
       },
       y: {
         title: { display: true, text: '°C' },
-        grid: { color: '#e8e8e3' },
+        grid: { color: PALETTE.slatePanel },
         suggestedMax: maxPartTempC != null ? maxPartTempC + 5 : undefined,
       },
     },

@@ -25,10 +25,21 @@ import { apiFetch, ApiError } from '../../lib/client/api.ts';
 import { SurveyInputSchema } from '../../lib/shared/surveys.ts';
 import type { SurveyComputation } from '../../lib/shared/trace-views.ts';
 import { fromLocalInput } from '../../lib/shared/time.ts';
+import { PALETTE } from '../../styles/palette.mjs';
 
 ChartJS.register(LineController, LineElement, PointElement, LinearScale, CategoryScale, Tooltip, Legend, annotationPlugin);
 
-const GREYS = ['#1f2529', '#4a545b', '#7b858c', '#2d3a42', '#5f6b73', '#39444b', '#8a949b', '#2f6f73', '#1f4e51'];
+const GREYS = [
+  PALETTE.ink,
+  PALETTE.inkSoft,
+  PALETTE.inkFaint,
+  PALETTE.slateDeep,
+  '#5f6b73',
+  '#39444b',
+  '#8a949b',
+  PALETTE.lacquer,
+  PALETTE.lacquerDark,
+];
 
 export default function SurveyUpload({ ovens, timeZone }: { ovens: { id: number; name: string }[]; timeZone: string }) {
   const [ovenId, setOvenId] = useState(ovens[0]?.id ?? 0);
@@ -128,7 +139,7 @@ export default function SurveyUpload({ ovens, timeZone }: { ovens: { id: number;
                 type: 'line',
                 yMin: result.setpointC,
                 yMax: result.setpointC,
-                borderColor: '#2f6f73',
+                borderColor: PALETTE.lacquer,
                 borderDash: [5, 4],
                 borderWidth: 1,
                 label: { display: true, content: `setpoint ${result.setpointC} °C`, position: 'end', font: { size: 10 } },
@@ -139,7 +150,7 @@ export default function SurveyUpload({ ovens, timeZone }: { ovens: { id: number;
                       type: 'line',
                       yMin: result.setpointC + tol,
                       yMax: result.setpointC + tol,
-                      borderColor: '#7b858c',
+                      borderColor: PALETTE.inkFaint,
                       borderDash: [2, 3],
                       borderWidth: 1,
                     },
@@ -147,7 +158,7 @@ export default function SurveyUpload({ ovens, timeZone }: { ovens: { id: number;
                       type: 'line',
                       yMin: result.setpointC - tol,
                       yMax: result.setpointC - tol,
-                      borderColor: '#7b858c',
+                      borderColor: PALETTE.inkFaint,
                       borderDash: [2, 3],
                       borderWidth: 1,
                     },

@@ -18,6 +18,7 @@ import {
 } from 'chart.js';
 import { Chart } from 'react-chartjs-2';
 import type { AdhesionChart } from '../../lib/shared/trace-views.ts';
+import { PALETTE } from '../../styles/palette.mjs';
 
 ChartJS.register(LineController, LineElement, PointElement, LinearScale, CategoryScale, Tooltip, Legend);
 
@@ -41,8 +42,8 @@ export default function PChart({ chart }: { chart: AdhesionChart }) {
       {
         label: 'Fraction failing',
         data: ev.points.map((p) => p.value),
-        borderColor: '#1f2529',
-        backgroundColor: ev.points.map((_, i) => (signal[i] ? '#b3261e' : '#1f2529')),
+        borderColor: PALETTE.ink,
+        backgroundColor: ev.points.map((_, i) => (signal[i] ? PALETTE.alertHigh : PALETTE.ink)),
         pointStyle: ev.points.map((_, i) => (signal[i] ? 'triangle' : 'circle')),
         pointRadius: ev.points.map((_, i) => (signal[i] ? 7 : 3)),
         borderWidth: 1.5,
@@ -50,17 +51,17 @@ export default function PChart({ chart }: { chart: AdhesionChart }) {
       {
         label: 'UCL',
         data: ev.points.map((p) => p.ucl),
-        borderColor: '#4a545b',
+        borderColor: PALETTE.inkSoft,
         borderDash: [5, 4],
         borderWidth: 1,
         pointRadius: 0,
         stepped: 'middle',
       },
-      { label: 'Centre p̄', data: ev.points.map((p) => p.center), borderColor: '#2f6f73', borderWidth: 1, pointRadius: 0 },
+      { label: 'Centre p̄', data: ev.points.map((p) => p.center), borderColor: PALETTE.lacquer, borderWidth: 1, pointRadius: 0 },
       {
         label: 'LCL',
         data: ev.points.map((p) => p.lcl),
-        borderColor: '#4a545b',
+        borderColor: PALETTE.inkSoft,
         borderDash: [5, 4],
         borderWidth: 1,
         pointRadius: 0,

@@ -46,9 +46,30 @@ export async function apiFetch<T>(
 /**
  * Subscribe to the server's live stream (server-sent events from /api/v1/stream).
  * `kinds` filters the event names (readings, alarms, points, devices, loads).
+ *
+ * While a stream is open, `<html data-live-open="n">` counts the page's open streams: the server
+ * has subscribed a stream by the time its response opens, so browser tests wait on this
+ * attribute before they publish instead of sleeping.
  */
 export function subscribeLive(kinds: string[], onEvent: (kind: string, payload: any) => void): () => void {
   const es = new EventSource(`/api/v1/stream?kinds=${encodeURIComponent(kinds.join(','))}`);
-  for (const k of kinds) es.addEventListener(k, (e) => onEvent(k, JSON.parse((e as MessageEvent).data)));
-  return () => es.close();
+  let open = false;
+  const count = (by: 1 | -1) => {
+    const root = document.documentElement;
+    root.dataset['liveOpen'] = String(Math.max(0, Number(root.dataset['liveOpen'] ?? 0) + by));
+  };
+  es.addEventListener('open', () => {
+    if (!open) count(1);
+    open = true;
+  });
+  es.addEventListener('error', () => {
+    if (open && es.readyState !== EventSource.OPEN) count(-1);
+    open = es.readyState === EventSource.OPEN;
+  });
+  for (const k of kinds) es.addEventListener(k, (e) => onEvent(k, JSON.parse(e.data)));
+  return () => {
+    if (open) count(-1);
+    open = false;
+    es.close();
+  };
 }

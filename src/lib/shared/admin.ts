@@ -4,6 +4,7 @@
  */
 import { z } from 'zod';
 import { RoleSchema } from './roles.ts';
+import type { SignatureRecord } from './signature.ts';
 
 /** Passwords: at least 10 characters (NIST SP 800-63B asks for 8 or more; we ask a little more). */
 export const PASSWORD_MIN = 10;
@@ -146,7 +147,7 @@ export interface AuditRowView {
   before: unknown;
   after: unknown;
   address: string | null;
-  signature: { displayName: string; username: string; meaning: string; signedAt: string } | null;
+  signature: Omit<SignatureRecord, 'userId'> | null;
 }
 
 export interface AuditPage {

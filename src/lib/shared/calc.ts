@@ -1,5 +1,5 @@
 /**
- * Zod schemas (and inferred types) for the calculator endpoints of product.md §6
+ * Zod schemas (and inferred types) for the calculator endpoints
  * (`/api/v1/calc/*`), shared by the browser forms, the endpoints and the OpenAPI document.
  * The domain functions that answer them live in `lib/domain/{film,cure,quality,oven}`.
  *
@@ -97,7 +97,7 @@ export type CalibrationInput = z.infer<typeof CalibrationInputSchema>;
 // ---------------------------------------------------------------------------------------------
 // Viscosity cups
 
-/** Cup ids (product.md §6). Kept in step with `CUP_IDS` in lib/domain/film/viscosity-cups. */
+/** The supported viscosity-cup ids (lib/domain/film/viscosity-cups holds each cup's equation). */
 // prettier-ignore
 export const CUP_ID_VALUES = [
   'zahn-1', 'zahn-2', 'zahn-3', 'zahn-4', 'zahn-5',
@@ -106,6 +106,9 @@ export const CUP_ID_VALUES = [
   'iso-3mm', 'iso-4mm', 'iso-5mm', 'iso-6mm',
   'din-4mm',
 ] as const;
+
+/** One of the supported cup ids. */
+export type CupId = (typeof CUP_ID_VALUES)[number];
 
 /** `POST /api/v1/calc/viscosity-cup` body: cup id, efflux seconds, density g/cm³. */
 export const ViscosityCupInputSchema = z.object({

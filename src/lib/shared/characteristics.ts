@@ -1,5 +1,5 @@
 /**
- * Characteristics and control-limit studies (product.md §3–4): what gets charted, how its
+ * Characteristics and control-limit studies: what gets charted, how its
  * subgroups are formed from channels (rational subgrouping — never raw 1 Hz samples, which are
  * autocorrelated and would flood a Shewhart chart with false signals; Montgomery, *Introduction
  * to SQC*, §5.3.4 on rational subgroups), which chart and run rules judge it, and against which

@@ -103,10 +103,22 @@ export function normaliseHeader(h: string): string {
     .replace(/[\s-]+/g, '_');
 }
 
-/** One CSV field, quoted when it needs to be (RFC 4180); formula-leading text is prefixed with '. */
+/**
+ * One CSV field, quoted when it needs to be (RFC 4180); formula-leading text is prefixed with '.
+ * A Date is written as ISO 8601 UTC and any other object as JSON (never "[object Object]").
+ */
 export function csvField(value: unknown): string {
   if (value === null || value === undefined) return '';
-  let s = typeof value === 'number' ? (Number.isFinite(value) ? String(value) : '') : String(value);
+  let s =
+    typeof value === 'number'
+      ? Number.isFinite(value)
+        ? String(value)
+        : ''
+      : value instanceof Date
+        ? value.toISOString()
+        : typeof value === 'object'
+          ? JSON.stringify(value)
+          : String(value as string | boolean | bigint | symbol);
   // Spreadsheet formula injection (OWASP "CSV Injection"): neutralise a leading = + - @.
   if (typeof value === 'string' && /^[=+\-@\t\r]/.test(s)) s = `'${s}`;
   return /[",\r\n;]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;

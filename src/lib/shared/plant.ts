@@ -1,5 +1,5 @@
 /**
- * Schemas of the plant set-up endpoints (product.md §6): devices, channels and the approval
+ * Schemas of the plant set-up endpoints: devices, channels and the approval
  * of a channel the ingest worker heard from a known device but did not know.
  */
 import { z } from 'zod';

@@ -191,7 +191,7 @@ export const TestListQuerySchema = z.object({
 });
 export type TestListQuery = z.infer<typeof TestListQuerySchema>;
 
-/** One test as the list endpoint returns it (product.md §6: id, jobNumber, kind, result, …). */
+/** One test as the list endpoint returns it (id, jobNumber, kind, result, …). */
 export interface TestListItem {
   id: number;
   jobNumber: string;

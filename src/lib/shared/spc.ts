@@ -48,8 +48,6 @@ export type SpcViolationId = SpcRuleId | (typeof SPC_CHART_SIGNALS)[number];
 
 /** Charts whose data are measurements (variables), as opposed to counts (attributes). */
 export const SPC_VARIABLES_CHARTS: readonly SpcChart[] = ['xbar-r', 'xbar-s', 'imr', 'ewma', 'cusum'];
-/** Charts whose data are counts (attributes). */
-export const SPC_ATTRIBUTE_CHARTS: readonly SpcChart[] = ['p', 'np', 'c', 'u'];
 
 /** Subgroup sizes covered by the control-chart constants (ASTM E2587 tables run n = 2…25). */
 export const SPC_MIN_SUBGROUP_SIZE = 2;

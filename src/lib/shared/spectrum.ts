@@ -6,7 +6,12 @@
  * are skipped. Every bad row is reported with its line number. Pure (browser and server).
  */
 import { z } from 'zod';
-import type { SpectrumPoint } from '../domain/quality/fringes.ts';
+
+/** One spectrum sample: wavelength in nm and reflectance (fraction or %, any linear scale). */
+export interface SpectrumPoint {
+  wavelengthNm: number;
+  reflectance: number;
+}
 
 /** Largest accepted spectrum upload: 1 MB (1 048 576 bytes). */
 export const MAX_SPECTRUM_BYTES = 1024 * 1024;

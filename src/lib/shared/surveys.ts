@@ -9,6 +9,22 @@
 import { z } from 'zod';
 import { normaliseHeader, parseCsv, CsvSyntaxError } from './csv-table.ts';
 
+/** Result of a uniformity survey (computed by lib/domain/oven/uniformity.ts). */
+export interface UniformityResult {
+  /** Hottest corrected reading − setpoint, °C. */
+  hottestDeviationC: number;
+  /** Coldest corrected reading − setpoint, °C. */
+  coldestDeviationC: number;
+  hottestSensor: string;
+  coldestSensor: string;
+  /** Tightest class whose ±tolerance holds both deviations; null when none does. */
+  uniformityClass: number | null;
+  /** That class's tolerance, °C (null with the class). */
+  classToleranceC: number | null;
+  /** 'outside every class' when uniformityClass is null. */
+  message?: string;
+}
+
 /** Stabilised soak, automatic rule: every sensor within setpoint − 2 °C, then 10 more minutes (common practice). */
 export const AUTO_STABILISE_BAND_C = 2;
 export const AUTO_STABILISE_WAIT_MIN = 10;

@@ -51,7 +51,6 @@ export const SampleTimeSchema = z.union([
 /** Quality flag: 0 good, 1 uncertain, 2 bad. */
 export const QualitySchema = z.union([z.literal(0), z.literal(1), z.literal(2)]);
 export type Quality = z.infer<typeof QualitySchema>;
-export const QUALITY_LABELS: Record<Quality, string> = { 0: 'good', 1: 'uncertain', 2: 'bad' };
 
 const UnitSchema = z.string().min(1).max(32);
 

@@ -2,22 +2,16 @@
  * The shapes the loads, dip-run, quality, trace, hold and survey endpoints return (and the pages
  * hand to their islands). Types only; shared by the server services and the browser.
  */
-import type { BathAge } from '../domain/film/bath-maintenance.ts';
-import type { UniformityResult } from '../domain/oven/uniformity.ts';
+import type { BathAge } from './baths.ts';
 import type { StoredCureRecord } from './jobs.ts';
 import type { Acceptance, Disposition, TestKind, TestListItem, TestResult } from './quality.ts';
 import type { SpcEvaluateOutput } from './spc.ts';
-import type { SurveySettings } from './surveys.ts';
+import type { SurveySettings, UniformityResult } from './surveys.ts';
+import type { SignatureRecord } from './signature.ts';
 import type { Range } from './windows.ts';
 
-/** An electronic signature as stored with a signed record (21 CFR 11.50: printed name, date-time, meaning). */
-export interface Signature {
-  userId: number;
-  username: string;
-  displayName: string;
-  meaning: string;
-  signedAt: string;
-}
+/** An electronic signature as stored with a signed record (the one type, in signature.ts). */
+export type Signature = SignatureRecord;
 
 /** The phase of an open load (lib/domain/cure ovenLoadPhase) with the latest setpoint and coldest zone. */
 export interface OpenLoadPhase {

@@ -6,7 +6,6 @@
  *
  * For display only — bucketed or thinned data never feeds SPC statistics.
  */
-import { lttb } from '../domain/series/lttb.ts';
 import { toCsv } from './csv-table.ts';
 import type { ReadingsResponse } from './telemetry.ts';
 import { isoInZone, zoneAbbreviation } from './time.ts';
@@ -35,7 +34,7 @@ export interface WindowRange {
 }
 
 /**
- * Which window field holds each channel kind (product.md §3). Oven air temperature is held
+ * Which window field holds each channel kind. Oven air temperature is held
  * between the recipe's minimum cure temperature (during soak) and the substrate's maximum
  * part temperature; the cure setpoint's low limit counts while a load is in the oven. Kinds without a field (door, irradiance, spin speed, room temperature)
  * have no window.
@@ -275,33 +274,6 @@ export function shapeReadings(resp: ReadingsResponse): ShapedSeries {
   };
 }
 
-/**
- * Thin a line for drawing when it holds more points than `targetPoints` (e.g. the plot was
- * narrowed after the data came): each unbroken stretch between gaps is downsampled by LTTB
- * (Steinarsson 2013, lib/domain/series/lttb.ts) to its share of the target (at least 3 points),
- * and the gap breaks are kept — chart.js's own decimation would read a break as a value.
- * Lines within the target are returned as they are.
- */
-export function thinLine(line: readonly ChartPoint[], targetPoints: number): ChartPoint[] {
-  const total = line.reduce((n, p) => n + (p.y === null ? 0 : 1), 0);
-  if (total <= targetPoints) return line as ChartPoint[];
-  const runs: { x: number; y: number }[][] = [[]];
-  for (const p of line) {
-    if (p.y === null) runs.push([]);
-    else runs[runs.length - 1]!.push({ x: p.x, y: p.y });
-  }
-  const out: ChartPoint[] = [];
-  let first = true;
-  for (const run of runs) {
-    if (run.length === 0) continue;
-    if (!first) out.push({ x: (out[out.length - 1]!.x + run[0]!.x) / 2, y: null });
-    first = false;
-    const share = Math.max(3, Math.floor((targetPoints * run.length) / total));
-    out.push(...lttb(run, share));
-  }
-  return out;
-}
-
 // ---------------------------------------------------------------------------------------------
 // Window steps over time
 
@@ -437,8 +409,6 @@ export const EVENT_STYLE: Readonly<Record<TrendEventKind, { lane: number; shape:
   'load-start': { lane: 3, shape: 'crossRot', one: 'load start', many: 'load starts' },
   'load-end': { lane: 3, shape: 'star', one: 'load end', many: 'load ends' },
 };
-
-export const EVENT_LANES = ['Alarms', 'Bath', 'Door', 'Loads'] as const;
 
 /** A marker on the time axis: one event, or several of one kind close together. */
 export interface Marker {

@@ -67,7 +67,7 @@ const EVENT: Record<AlarmEventType, AlarmEvent> = {
 
 // Outcome for a permitted role. 'x' = refused; '=' = accepted, nothing changes;
 // otherwise the next state and condition (+ active, - inactive).
-type Cell = 'x' | '=' | string;
+type Cell = string;
 const E = ALARM_EVENTS;
 // prettier-ignore
 const TABLE: Record<string, Cell[]> = {

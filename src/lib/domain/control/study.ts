@@ -108,7 +108,7 @@ export function runStudy(
             const centre = inc.reduce((a, i) => a + stats[i]!.value, 0) / Math.max(1, inc.length);
             return standardsGivenLimits(underlying, centre, sampleSd(obs), n);
           },
-          (ls, i) => (ls.sigma !== null && ls.sigma > 0 && stats[i] ? shewhartOutsideReason(ls, stats[i]!) : null),
+          (ls, i) => (ls.sigma !== null && ls.sigma > 0 && stats[i] ? shewhartOutsideReason(ls, stats[i]) : null),
         )
       : (whole.phase1?.suggestedExclusions ?? []);
 

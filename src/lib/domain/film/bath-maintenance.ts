@@ -5,6 +5,9 @@
  * Additions follow the material's safety data sheet, ventilation and local fire codes (the
  * lacquer and its solvents are flammable and harmful); this module only does the arithmetic.
  */
+import type { BathAddition, BathAdditionRefusal, BathAge } from '../../shared/baths.ts';
+
+export type { BathAddition, BathAdditionRefusal, BathAge };
 
 /** Inputs of the addition calculation. Solids are mass fractions in percent (wt %). */
 export interface BathAdditionInput {
@@ -18,25 +21,6 @@ export interface BathAdditionInput {
   lacquerSolidsPct?: number | undefined;
   /** Largest bath mass the tank holds, kg (optional; additions beyond it are refused). */
   maxBathMassKg?: number | undefined;
-}
-
-/** A feasible addition. */
-export interface BathAddition {
-  ok: true;
-  /** 'solvent' lowers solids, 'lacquer' raises them, 'none' when already on target. */
-  kind: 'solvent' | 'lacquer' | 'none';
-  /** Mass to add, kg. */
-  massKg: number;
-  /** Bath mass after the addition, kg. */
-  resultingBathMassKg: number;
-  /** Solids after the addition (equals the target), wt %. */
-  resultingSolidsPct: number;
-}
-
-/** A refused request, with the reason in plain words. */
-export interface BathAdditionRefusal {
-  ok: false;
-  reason: string;
 }
 
 function pct(name: string, v: number): string | null {
@@ -109,16 +93,6 @@ export interface BathAgeInput {
   potLifeDays: number;
   /** Fraction of pot life that counts as near the end (default 0.8, common practice). */
   nearEndFraction?: number | undefined;
-}
-
-/** Bath age and pot-life status. */
-export interface BathAge {
-  /** Age in days (86 400 000 ms per day). */
-  ageDays: number;
-  /** ageDays / potLifeDays. */
-  potLifeFractionUsed: number;
-  /** 'ok' below the near-end fraction, 'near-end' from it (≥), 'expired' from 1 (≥). */
-  status: 'ok' | 'near-end' | 'expired';
 }
 
 /**

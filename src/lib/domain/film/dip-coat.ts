@@ -276,12 +276,12 @@ export function withdrawalSpeedForThickness(input: SpeedAdvisorInput): SpeedAdvi
   requirePositive('densityKgM3', densityKgM3);
   let wetUm: number;
   if (hasDry) {
-    requirePositive('targetDryThicknessUm', targetDryThicknessUm as number);
+    requirePositive('targetDryThicknessUm', targetDryThicknessUm);
     if (solidsVolumeFraction === undefined) {
       throw new RangeError('solidsVolumeFraction is needed to advise on a dry-thickness target');
     }
     requireFraction('solidsVolumeFraction', solidsVolumeFraction);
-    wetUm = (targetDryThicknessUm as number) / solidsVolumeFraction;
+    wetUm = targetDryThicknessUm / solidsVolumeFraction;
   } else {
     requirePositive('targetWetThicknessUm', targetWetThicknessUm as number);
     wetUm = targetWetThicknessUm as number;

@@ -20,18 +20,11 @@
  * (`equation`), which then replace them (provenance 'lab').
  */
 
-/** Cup identifiers accepted by the calculator (API contract, product.md §6). */
-// prettier-ignore
-export const CUP_IDS = [
-  'zahn-1', 'zahn-2', 'zahn-3', 'zahn-4', 'zahn-5',
-  'shell-1', 'shell-2', 'shell-2.5', 'shell-3', 'shell-3.5', 'shell-4', 'shell-5', 'shell-6',
-  'ford-1', 'ford-2', 'ford-3', 'ford-4', 'ford-5',
-  'iso-3mm', 'iso-4mm', 'iso-5mm', 'iso-6mm',
-  'din-4mm',
-] as const;
+import { CUP_ID_VALUES, type CupId } from '../../shared/calc.ts';
 
-/** One of the supported cup ids. */
-export type CupId = (typeof CUP_IDS)[number];
+/** Cup identifiers accepted by the calculator: the one list, `CUP_ID_VALUES` in lib/shared/calc.ts. */
+export const CUP_IDS = CUP_ID_VALUES;
+export type { CupId };
 
 /** The cup families (series); the neighbour suggestion stays inside a family. */
 export type CupFamily = 'zahn' | 'shell' | 'ford' | 'iso' | 'din';

@@ -9,6 +9,9 @@
  * class 3: {@link AMS2750_TIGHTER_C_CLASSES}. (Checked against public summaries of Table 11; the
  * purchased standard governs.)
  */
+import type { UniformityResult } from '../../shared/surveys.ts';
+
+export type { UniformityResult };
 
 /** One row of a uniformity class table: the class and its ±tolerance in °C. */
 export interface UniformityClass {
@@ -62,22 +65,6 @@ export interface UniformityInput {
   stabilisedFromIndex?: number | undefined;
   /** Class table; default {@link AMS2750_CLASSES}. */
   classTable?: readonly UniformityClass[] | undefined;
-}
-
-/** Result of the survey. */
-export interface UniformityResult {
-  /** Hottest corrected reading − setpoint, °C. */
-  hottestDeviationC: number;
-  /** Coldest corrected reading − setpoint, °C. */
-  coldestDeviationC: number;
-  hottestSensor: string;
-  coldestSensor: string;
-  /** Tightest class whose ±tolerance holds both deviations; null when none does. */
-  uniformityClass: number | null;
-  /** That class's tolerance, °C (null with the class). */
-  classToleranceC: number | null;
-  /** 'outside every class' when uniformityClass is null. */
-  message?: string;
 }
 
 /**

@@ -36,11 +36,9 @@ export function fringeThickness(input: FringeThicknessInput): { thicknessNm: num
   return { thicknessNm: (fringes * l1 * l2) / (2 * n * (l1 - l2)) };
 }
 
-/** One spectrum sample: wavelength in nm and reflectance (fraction or %, any linear scale). */
-export interface SpectrumPoint {
-  wavelengthNm: number;
-  reflectance: number;
-}
+import type { SpectrumPoint } from '../../shared/spectrum.ts';
+
+export type { SpectrumPoint };
 
 /** Options of the spectrum analysis. */
 export interface FringeAnalysisOptions {

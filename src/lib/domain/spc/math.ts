@@ -55,11 +55,6 @@ function erfSeries(x: number): number {
   return (2 / SQRT_PI) * Math.exp(-x2) * sum;
 }
 
-/** Standard normal density φ(z) = e^(−z²/2)/√(2π) (A&S 26.2.1). */
-export function normalPdf(z: number): number {
-  return Math.exp(-0.5 * z * z - LN_SQRT_2PI);
-}
-
 /**
  * Standard normal cumulative distribution Φ(z) = ½·erfc(−z/√2) (A&S 26.2.2, 7.1.2), accurate in
  * both tails (the lower tail keeps its relative precision because erfc is evaluated directly).

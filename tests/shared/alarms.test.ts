@@ -11,7 +11,7 @@ import {
   OutOfServiceSchema,
   PRIORITY_MEANINGS,
   ShelveAlarmSchema,
-} from '../../../src/lib/shared/alarms';
+} from '../../src/lib/shared/alarms';
 
 const paths = (r: { success: boolean; error?: { issues: { path: PropertyKey[] }[] } }) =>
   r.success ? [] : (r.error?.issues ?? []).map((i) => i.path.join('.'));

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { SpcEvaluateInputSchema, SpcLimitSetSchema } from '../../../src/lib/shared/spc.ts';
+import { SpcEvaluateInputSchema, SpcLimitSetSchema } from '../../src/lib/shared/spc.ts';
 
 const paths = (input: unknown): string[] => {
   const r = SpcEvaluateInputSchema.safeParse(input);

@@ -3,8 +3,8 @@
  * a new set took effect, signal and exclusion markers, CUSUM sums, CSV. Hand-computed values.
  */
 import { describe, expect, it } from 'vitest';
-import type { ChartPoint, LimitSetView } from '../../../src/lib/shared/characteristics.ts';
-import { controlChartCsv, shapeControlChart, yRange, zoneLines } from '../../../src/lib/shared/control-chart.ts';
+import type { ChartPoint, LimitSetView } from '../../src/lib/shared/characteristics.ts';
+import { controlChartCsv, shapeControlChart, yRange, zoneLines } from '../../src/lib/shared/control-chart.ts';
 
 const pt = (index: number, value: number, extra: Partial<ChartPoint> = {}): ChartPoint => ({
   id: index,

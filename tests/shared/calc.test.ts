@@ -17,15 +17,15 @@ import {
   UniformityOutputSchema,
   ViscosityCupInputSchema,
   ViscosityCupOutputSchema,
-} from '../../../src/lib/shared/calc';
-import { dipThickness, calibrateThicknessConstant, withdrawalSpeedForThickness } from '../../../src/lib/domain/film/dip-coat';
-import { viscosityFromCup } from '../../../src/lib/domain/film/viscosity-cups';
-import { bathAddition } from '../../../src/lib/domain/film/bath-maintenance';
-import { activationEnergyForEquivalence, cureEquivalent } from '../../../src/lib/domain/cure/arrhenius';
-import { fringeThickness } from '../../../src/lib/domain/quality/fringes';
-import { crosscutClass } from '../../../src/lib/domain/quality/crosscut';
-import { bayerRatio } from '../../../src/lib/domain/quality/abrasion';
-import { uniformitySurvey } from '../../../src/lib/domain/oven/uniformity';
+} from '../../src/lib/shared/calc';
+import { dipThickness, calibrateThicknessConstant, withdrawalSpeedForThickness } from '../../src/lib/domain/film/dip-coat';
+import { viscosityFromCup } from '../../src/lib/domain/film/viscosity-cups';
+import { bathAddition } from '../../src/lib/domain/film/bath-maintenance';
+import { activationEnergyForEquivalence, cureEquivalent } from '../../src/lib/domain/cure/arrhenius';
+import { fringeThickness } from '../../src/lib/domain/quality/fringes';
+import { crosscutClass } from '../../src/lib/domain/quality/crosscut';
+import { bayerRatio } from '../../src/lib/domain/quality/abrasion';
+import { uniformitySurvey } from '../../src/lib/domain/oven/uniformity';
 
 type Schema = { safeParse: (v: unknown) => { success: boolean; error?: { issues: { path: PropertyKey[]; message: string }[] } } };
 
