@@ -87,7 +87,7 @@ export class HandlerQueue {
       try {
         await call(h);
       } catch (e) {
-        this.ctx.log(`handler ${h.name} failed on ${what}: ${(e as Error).stack ?? e}`);
+        this.ctx.log(`handler ${h.name} failed on ${what}: ${(e as Error).stack ?? String(e)}`);
       }
     }
   }

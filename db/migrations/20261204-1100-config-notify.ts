@@ -36,8 +36,8 @@ export const migration: Migration = {
   async up(ctx) {
     const triggers = TABLES.map((t) => {
       const upd = UPDATE_WHEN[t] ? ` when (${UPDATE_WHEN[t]})` : '';
-      const ins = INSERT_DELETE_WHEN[t]?.insert ? ` when (${INSERT_DELETE_WHEN[t]!.insert})` : '';
-      const del = INSERT_DELETE_WHEN[t]?.delete ? ` when (${INSERT_DELETE_WHEN[t]!.delete})` : '';
+      const ins = INSERT_DELETE_WHEN[t]?.insert ? ` when (${INSERT_DELETE_WHEN[t].insert})` : '';
+      const del = INSERT_DELETE_WHEN[t]?.delete ? ` when (${INSERT_DELETE_WHEN[t].delete})` : '';
       return `
       create trigger ${t}_config_notify_ins after insert on ${t} for each row${ins} execute function coatrail_config_notify();
       create trigger ${t}_config_notify_upd after update on ${t} for each row${upd} execute function coatrail_config_notify();

@@ -342,7 +342,7 @@ async function realPathValues(session: Session): Promise<Record<string, Record<s
     const r = await call('GET', url, { session });
     if (r.status !== 200) return undefined;
     const v = pick(r.body);
-    return v === undefined || v === null ? undefined : String(v);
+    return v === undefined || v === null ? undefined : typeof v === 'object' ? JSON.stringify(v) : String(v as string | number);
   };
   const list = (b: any) => (Array.isArray(b) ? b : (b?.items ?? b?.surveys ?? b?.rows ?? b?.points ?? []));
   const id = (b: any) => list(b)[0]?.id;

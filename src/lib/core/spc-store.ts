@@ -285,9 +285,7 @@ export interface NewLimitSet {
 export async function insertDraftLimitSet(db: Db, s: NewLimitSet): Promise<LimitSetView> {
   return inTransaction(db, async (t) => {
     await execute(t, 'select pg_advisory_xact_lock($1, $2)', [LOCK_NS + 1, s.characteristicId]);
-    const latest = (await LimitSet.max('version', { where: { characteristicId: s.characteristicId }, transaction: t })) as
-      | number
-      | null;
+    const latest = (await LimitSet.max('version', { where: { characteristicId: s.characteristicId }, transaction: t }));
     const ls = s.limitSet;
     const row = await LimitSet.create(
       {

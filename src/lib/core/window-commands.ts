@@ -61,7 +61,7 @@ export async function createWindowDraft(
     const latest = (await ProcessWindow.max<number | null, ProcessWindow>('version', {
       where: { lacquerId: input.lacquerId, materialId: input.materialId },
       transaction: t,
-    })) as number | null;
+    }));
     const row = await ProcessWindow.create(
       {
         lacquerId: input.lacquerId,

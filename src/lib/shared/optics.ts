@@ -10,7 +10,9 @@
  * `lib/domain/colour`.
  */
 import { z } from 'zod';
-import { MIN_COVERAGE_NM } from '../domain/colour/colorimetry.ts';
+
+/** Narrowest span a spectrum must cover, nm (the rest of 380–780 is held at the end values). */
+export const MIN_COVERAGE_NM: readonly [number, number] = [400, 700];
 
 /** Most layers a stack may have. */
 export const MAX_STACK_LAYERS = 50;

@@ -17,6 +17,7 @@
  * A measured spectrum is interpolated linearly onto the 5 nm table grid (CIE 015 §7.2.2
  * recommends the tables' grid; linear interpolation of a densely sampled measurement).
  */
+import { MIN_COVERAGE_NM } from '../../shared/optics.ts';
 import { CIE1931_XBAR, CIE1931_YBAR, CIE1931_ZBAR, CIE_D65, CIE_ROWS, CIE_START_NM, CIE_STEP_NM } from './cie-tables.ts';
 
 /** The colour of a reflectance spectrum (product.md §6 `spectrum-colour`). */
@@ -39,8 +40,6 @@ export interface SpectrumColour {
   warnings?: string[];
 }
 
-/** Narrowest span a spectrum must cover, nm (the rest of 380–780 is held at the end values). */
-export const MIN_COVERAGE_NM: readonly [number, number] = [400, 700];
 
 const WEIGHTS = (() => {
   const wx = new Float64Array(CIE_ROWS);
@@ -194,3 +193,5 @@ export function swatchHex(X: number, Y: number, Z: number, displayY = 40): strin
       .join('')
   );
 }
+
+export { MIN_COVERAGE_NM };
