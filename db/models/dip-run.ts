@@ -47,7 +47,7 @@ export class DipRun extends Model<InferAttributes<DipRun>, InferCreationAttribut
         strokeStartedAt: { type: DataTypes.DATE, allowNull: true },
         strokeEndedAt: { type: DataTypes.DATE, allowNull: true },
         strokeSamples: { type: DataTypes.INTEGER, allowNull: true },
-        source: { type: DataTypes.TEXT, allowNull: false },
+        source: { type: DataTypes.TEXT, allowNull: false, defaultValue: 'scan' },
         note: { type: DataTypes.TEXT, allowNull: true },
         recordedBy: { type: DataTypes.INTEGER, allowNull: true },
         createdAt: { type: DataTypes.DATE },

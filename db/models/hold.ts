@@ -34,7 +34,7 @@ export class Hold extends Model<InferAttributes<Hold>, InferCreationAttributes<H
         reason: { type: DataTypes.TEXT, allowNull: false },
         placedBy: { type: DataTypes.INTEGER, allowNull: true },
         placedAt: { type: DataTypes.DATE },
-        status: { type: DataTypes.TEXT, allowNull: false },
+        status: { type: DataTypes.TEXT, allowNull: false, defaultValue: 'active' },
         disposition: { type: DataTypes.TEXT, allowNull: true },
         dispositionComment: { type: DataTypes.TEXT, allowNull: true },
         closedAt: { type: DataTypes.DATE, allowNull: true },

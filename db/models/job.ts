@@ -29,7 +29,7 @@ export class Job extends Model<InferAttributes<Job>, InferCreationAttributes<Job
         customerRef: { type: DataTypes.TEXT, allowNull: true },
         lensMaterial: { type: DataTypes.TEXT, allowNull: true },
         materialId: { type: DataTypes.INTEGER, allowNull: true },
-        status: { type: DataTypes.TEXT, allowNull: false },
+        status: { type: DataTypes.TEXT, allowNull: false, defaultValue: 'active' },
         note: { type: DataTypes.TEXT, allowNull: true },
         createdAt: { type: DataTypes.DATE },
         updatedAt: { type: DataTypes.DATE },

@@ -39,7 +39,7 @@ export class OvenLoad extends Model<InferAttributes<OvenLoad>, InferCreationAttr
         openedByUser: { type: DataTypes.INTEGER, allowNull: true },
         closedBy: { type: DataTypes.TEXT, allowNull: true },
         closedByUser: { type: DataTypes.INTEGER, allowNull: true },
-        status: { type: DataTypes.TEXT, allowNull: false },
+        status: { type: DataTypes.TEXT, allowNull: false, defaultValue: 'open' },
         windowId: { type: DataTypes.INTEGER, allowNull: true },
         record: { type: DataTypes.JSONB, allowNull: true },
         verdict: { type: DataTypes.TEXT, allowNull: true },

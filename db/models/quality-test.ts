@@ -38,7 +38,7 @@ export class QualityTest extends Model<InferAttributes<QualityTest>, InferCreati
         inputs: { type: DataTypes.JSONB, allowNull: false },
         computed: { type: DataTypes.JSONB, allowNull: false },
         result: { type: DataTypes.TEXT, allowNull: false },
-        reasons: { type: DataTypes.ARRAY(DataTypes.TEXT), allowNull: false },
+        reasons: { type: DataTypes.ARRAY(DataTypes.TEXT), allowNull: false, defaultValue: [] },
         boilCycles: { type: DataTypes.INTEGER, allowNull: true },
         acceptance: { type: DataTypes.JSONB, allowNull: false },
         note: { type: DataTypes.TEXT, allowNull: true },

@@ -19,7 +19,7 @@ export class Rack extends Model<InferAttributes<Rack>, InferCreationAttributes<R
       {
         id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
         code: { type: DataTypes.TEXT, allowNull: false, unique: true },
-        kind: { type: DataTypes.TEXT, allowNull: false },
+        kind: { type: DataTypes.TEXT, allowNull: false, defaultValue: 'rack' },
         createdAt: { type: DataTypes.DATE },
       },
       { sequelize, tableName: 'racks' },

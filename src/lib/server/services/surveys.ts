@@ -21,7 +21,7 @@ import {
 } from '../../shared/surveys.ts';
 import { audit } from '../audit.ts';
 import type { SessionUser } from '../auth.ts';
-import { pgPool } from '../db.ts';
+import { pgPool, sequelize } from '../db.ts';
 import { actorOf } from '../guard.ts';
 import { HttpProblem } from '../http.ts';
 import { attachFile } from '../../core/quality-store.ts';
@@ -171,7 +171,7 @@ export async function recordSurvey(
     ],
   );
   const id = rows[0]!.id;
-  await attachFile(pool, {
+  await attachFile(sequelize(), {
     surveyId: id,
     name: input.fileName || 'survey.csv',
     bytes: new TextEncoder().encode(input.csv),

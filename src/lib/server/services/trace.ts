@@ -10,7 +10,11 @@ import { bathAge, type BathAge } from '../../domain/film/bath-maintenance.ts';
 import { DEFAULT_TRACE_SETTINGS, TraceSettingsSchema, type TestKind, type TestResult } from '../../shared/quality.ts';
 import type { StoredCureRecord } from '../../shared/jobs.ts';
 import type { Range } from '../../shared/windows.ts';
-import { pgPool } from '../db.ts';
+import { sequelize } from '../db.ts';
+import { poolView, selectRows } from '../../core/record-db.ts';
+
+/** A raw SELECT through the web process's Sequelize instance (bind parameters). */
+const rawRows = <T extends object>(sql: string, bind: unknown[] = []) => selectRows<T>(sequelize(), sql, bind);
 import { readSetting } from '../../core/settings-store.ts';
 import { alarmsDuring } from './loads.ts';
 import type { TraceDipRun, TraceLoad, TraceTest, TraceSibling, TraceResult } from '../../shared/trace-views.ts';
@@ -19,14 +23,13 @@ const iso = (d: Date | null) => (d ? d.toISOString() : null);
 
 /** The sibling window in hours (site setting, default 8 h). */
 export async function siblingHours(): Promise<number> {
-  return (await readSetting(pgPool(), 'trace', TraceSettingsSchema, DEFAULT_TRACE_SETTINGS)).bathSiblingHours;
+  return (await readSetting(poolView(sequelize()), 'trace', TraceSettingsSchema, DEFAULT_TRACE_SETTINGS)).bathSiblingHours;
 }
 
 /** The trace of a job, or null when the job is unknown. */
 export async function traceJob(jobNumber: string, hoursOverride?: number): Promise<TraceResult | null> {
-  const pool = pgPool();
   const hours = hoursOverride ?? (await siblingHours());
-  const jr = await pool.query<{
+  const jr = await rawRows<{
     id: number;
     job_number: string;
     customer_ref: string | null;
@@ -42,11 +45,11 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
       where j.job_number = $1`,
     [jobNumber],
   );
-  const j = jr.rows[0];
+  const j = jr[0];
   if (!j) return null;
 
   // Dip runs with the bath as it was at the dip.
-  const dr = await pool.query<{
+  const dr = await rawRows<{
     id: number;
     dipped_at: Date;
     line_id: number;
@@ -102,7 +105,7 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
       where dj.job_id = $1 order by d.dipped_at`,
     [j.id],
   );
-  const dipRuns: TraceDipRun[] = dr.rows.map((r) => {
+  const dipRuns: TraceDipRun[] = dr.map((r) => {
     const vw = r.limits?.viscosityMm2S ?? null;
     const v = r.kinematic_mm2s;
     let age: BathAge | null = null;
@@ -154,7 +157,7 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
   });
 
   // Loads with record and alarms.
-  const lr = await pool.query<{
+  const lr = await rawRows<{
     id: number;
     oven_id: number;
     oven_code: string;
@@ -173,7 +176,7 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
     [j.id],
   );
   const loads: TraceLoad[] = [];
-  for (const r of lr.rows) {
+  for (const r of lr) {
     loads.push({
       id: r.id,
       oven: { id: r.oven_id, code: r.oven_code, name: r.oven_name },
@@ -187,7 +190,7 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
     });
   }
 
-  const tr = await pool.query<{
+  const tr = await rawRows<{
     id: number;
     kind: TestKind;
     result: TestResult;
@@ -202,7 +205,7 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
        from quality_tests t where t.job_id = $1 order by t.tested_at`,
     [j.id],
   );
-  const tests: TraceTest[] = tr.rows.map((t) => ({
+  const tests: TraceTest[] = tr.map((t) => ({
     id: t.id,
     kind: t.kind,
     result: t.result,
@@ -214,7 +217,7 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
   }));
 
   // Siblings: same load(s); same tank and bath charge within ± hours of each of the job's dips.
-  const sr = await pool.query<{
+  const sr = await rawRows<{
     job_id: number;
     job_number: string;
     status: string;
@@ -256,7 +259,7 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
       order by (bl.load_ids is not null) desc, j.job_number`,
     [j.id, hours],
   );
-  const siblings: TraceSibling[] = sr.rows.map((r) => ({
+  const siblings: TraceSibling[] = sr.map((r) => ({
     jobNumber: r.job_number,
     status: r.status,
     sameLoads: r.load_ids ?? [],
