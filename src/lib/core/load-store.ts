@@ -514,7 +514,12 @@ export async function closeLoad(
   });
   const alarmId = await applyCureAlarm(
     db,
-    { id: loadId, ovenAssetId: load.ovenAssetId, ovenName: load.oven?.name ?? `oven ${load.ovenAssetId}`, closedAtMs: input.atMs },
+    {
+      id: loadId,
+      ovenAssetId: load.ovenAssetId,
+      ovenName: load.oven?.name ?? `oven ${load.ovenAssetId}`,
+      closedAtMs: input.atMs,
+    },
     record,
     opts.publish,
   );
@@ -559,7 +564,7 @@ export async function addJobsToLoad(
       const rack = await Rack.findOne({ attributes: ['id'], where: { code }, transaction: t });
       const run = rack
         ? await DipRun.findOne({
-            attributes: ['id'],
+            attributes: ['id', 'dippedAt'],
             where: { rackId: rack.id },
             order: [['dippedAt', 'DESC']],
             include: [{ model: Job, attributes: ['jobNumber'], through: { attributes: [] } }],
