@@ -5,6 +5,7 @@
  * of them is stored with the test, so a later change of the settings does not rewrite history).
  */
 import { createHash } from 'node:crypto';
+import { Op, col, fn, literal } from 'sequelize';
 import { Job, QualityTest, TestFile } from '../../../db/models/index.ts';
 import { auditIn, type AuditActor } from '../../../db/transaction.ts';
 import { findExtrema, type SpectrumPoint } from '../domain/quality/fringes.ts';
@@ -299,4 +300,19 @@ export async function attachTestFile(
     await auditIn(t, actor, { action: 'test.file.attach', entity: 'quality_test', entityId: f.testId, after: file });
     return file;
   });
+}
+
+/** How many tests each job has and how many of them failed (jobs without tests are absent). */
+export async function testCountsOf(db: Db, jobIds: readonly number[]): Promise<Map<number, { tests: number; failed: number }>> {
+  const out = new Map<number, { tests: number; failed: number }>();
+  if (jobIds.length === 0) return out;
+  const rows = (await QualityTest.findAll({
+    attributes: ['jobId', [fn('count', col('id')), 'tests'], [literal(`count(*) filter (where result = 'fail')`), 'failed']],
+    where: { jobId: { [Op.in]: [...new Set(jobIds)] } },
+    group: ['jobId'],
+    raw: true,
+    transaction: transactionOf(db) ?? null,
+  })) as unknown as { jobId: number; tests: number; failed: number }[];
+  for (const r of rows) out.set(r.jobId, { tests: Number(r.tests), failed: Number(r.failed) });
+  return out;
 }

@@ -15,6 +15,8 @@ import {
   type NcDisposition,
 } from '../../shared/quality.ts';
 import type { SignatureRecord } from '../../../../db/models/index.ts';
+import { Op } from 'sequelize';
+import { Asset, Job, NcDisposition as NcDispositionRow, NcTest, OvenLoad, QualityTest } from '../../../../db/models/index.ts';
 import * as core from '../../core/hold-store.ts';
 import { signWithPassword, type SessionUser } from '../auth.ts';
 import { sequelize } from '../db.ts';
@@ -219,37 +221,27 @@ export async function getNc(id: number): Promise<NcDetail | null> {
   const rows = await rawRows<NcRow>(`${NC_SELECT} where n.id = $1`, [id]);
   const n = rows[0];
   if (!n) return null;
-  const tests = await rawRows<{
-    id: number;
-    job_number: string;
-    kind: string;
-    result: string;
-    tested_at: Date;
-    computed: Record<string, unknown>;
-  }>(
-    `select t.id, j.job_number, t.kind, t.result, t.tested_at, t.computed from nc_tests x join quality_tests t on t.id = x.test_id join jobs j on j.id = t.job_id where x.nc_id = $1 order by t.tested_at`,
-    [id],
-  );
-  const disp = await rawRows<{
-    id: number;
-    disposition: Disposition;
-    job_numbers: string[];
-    comment: string;
-    signature: SignatureRecord;
-    at: Date;
-  }>(
-    `select d.id, d.disposition, array(select j.job_number from jobs j where j.id = any(d.job_ids) order by j.job_number) as job_numbers, d.comment, d.signature, d.at
-       from nc_dispositions d where d.nc_id = $1 order by d.at`,
-    [id],
+  const tests = (await QualityTest.findAll({
+    attributes: ['id', 'kind', 'result', 'testedAt', 'computed'],
+    where: { id: { [Op.in]: (await NcTest.findAll({ attributes: ['testId'], where: { ncId: id } })).map((x) => x.testId) } },
+    include: [{ model: Job, attributes: ['jobNumber'], required: true }],
+    order: [['testedAt', 'ASC']],
+  })) as (QualityTest & { Job: Job })[];
+  const disp = await NcDispositionRow.findAll({ where: { ncId: id }, order: [['at', 'ASC']] });
+  const dispJobs = new Map(
+    (
+      await Job.findAll({
+        attributes: ['id', 'jobNumber'],
+        where: { id: { [Op.in]: [...new Set(disp.flatMap((d) => d.jobIds))] } },
+      })
+    ).map((j) => [j.id, j.jobNumber]),
   );
   const load = n.suspected_load_id
-    ? (
-        await rawRows<{ id: number; oven_name: string; opened_at: Date; verdict: string | null }>(
-          `select l.id, a.name as oven_name, l.opened_at, l.verdict from oven_loads l join assets a on a.id = l.oven_asset_id where l.id = $1`,
-          [n.suspected_load_id],
-        )
-      )[0]
-    : undefined;
+    ? ((await OvenLoad.findByPk(n.suspected_load_id, {
+        attributes: ['id', 'openedAt', 'verdict'],
+        include: [{ model: Asset, as: 'oven', attributes: ['name'], required: true }],
+      })) as (OvenLoad & { oven: Asset }) | null)
+    : null;
   const charge = n.suspected_bath_charge_id
     ? (
         await rawRows<{ id: number; tank_code: string; lot_code: string; charged_at: Date }>(
@@ -262,22 +254,25 @@ export async function getNc(id: number): Promise<NcDetail | null> {
     ...toNc(n),
     testList: tests.map((t) => ({
       id: t.id,
-      jobNumber: t.job_number,
+      jobNumber: t.Job.jobNumber,
       kind: t.kind,
       result: t.result,
-      testedAt: t.tested_at.toISOString(),
+      testedAt: t.testedAt.toISOString(),
       summary: String(t.computed['summary'] ?? ''),
     })),
     holdList: await listHolds({ status: 'all', ncId: id }),
     dispositions: disp.map((d) => ({
       id: d.id,
       disposition: d.disposition,
-      jobNumbers: d.job_numbers,
+      jobNumbers: d.jobIds
+        .map((j) => dispJobs.get(j))
+        .filter((j): j is string => j !== undefined)
+        .sort(),
       comment: d.comment,
       signature: d.signature,
       at: d.at.toISOString(),
     })),
-    load: load ? { id: load.id, ovenName: load.oven_name, openedAt: load.opened_at.toISOString(), verdict: load.verdict } : null,
+    load: load ? { id: load.id, ovenName: load.oven.name, openedAt: load.openedAt.toISOString(), verdict: load.verdict } : null,
     bathCharge: charge
       ? { id: charge.id, tankCode: charge.tank_code, lotCode: charge.lot_code, chargedAt: charge.charged_at.toISOString() }
       : null,

@@ -16,7 +16,8 @@ import {
 } from '../../shared/jobs.ts';
 import type { SessionUser } from '../auth.ts';
 import { publishLive } from '../broker-link.ts';
-import { Asset } from '../../../../db/models/index.ts';
+import { Asset, Job, LoadJob, Rack } from '../../../../db/models/index.ts';
+import { testCountsOf } from '../../core/quality-store.ts';
 import { sequelize } from '../db.ts';
 import { poolView, selectRows } from '../../core/record-db.ts';
 
@@ -278,21 +279,21 @@ export async function getLoad(id: number): Promise<LoadDetail | null> {
   const r = rows[0];
   if (!r) return null;
   const openPhase = r.status === 'open' ? await openLoadPhase(r.oven_asset_id, r.opened_at.getTime()) : null;
-  const jobs = await rawRows<{
-    job_id: number;
-    job_number: string;
-    status: string;
-    rack_code: string | null;
-    added_at: Date;
-    tests: number;
-    failed: number;
-  }>(
-    `select j.id as job_id, j.job_number, j.status, k.code as rack_code, lj.added_at,
-            (select count(*)::int from quality_tests t where t.job_id = j.id) as tests,
-            (select count(*)::int from quality_tests t where t.job_id = j.id and t.result = 'fail') as failed
-       from load_jobs lj join jobs j on j.id = lj.job_id left join racks k on k.id = lj.rack_id
-      where lj.load_id = $1 order by k.code nulls last, j.job_number`,
-    [id],
+  const inLoad = (await LoadJob.findAll({
+    where: { loadId: id },
+    attributes: ['jobId', 'addedAt'],
+    include: [
+      { model: Job, attributes: ['jobNumber', 'status'], required: true },
+      { model: Rack, attributes: ['code'] },
+    ],
+    order: [
+      [Rack, 'code', 'ASC NULLS LAST'],
+      [Job, 'jobNumber', 'ASC'],
+    ],
+  })) as (LoadJob & { Job: Job; Rack: Rack | null })[];
+  const counts = await testCountsOf(
+    sequelize(),
+    inLoad.map((lj) => lj.jobId),
   );
   const toMs = r.closed_at?.getTime() ?? Date.now();
   const alarms = await alarmsDuring(r.oven_asset_id, r.id, r.opened_at.getTime(), toMs);
@@ -312,14 +313,14 @@ export async function getLoad(id: number): Promise<LoadDetail | null> {
     record: r.record,
     computedAt: iso(r.computed_at),
     note: r.note,
-    jobList: jobs.map((j) => ({
-      jobId: j.job_id,
-      jobNumber: j.job_number,
-      status: j.status,
-      rackCode: j.rack_code,
-      addedAt: j.added_at.toISOString(),
-      tests: j.tests,
-      failed: j.failed,
+    jobList: inLoad.map((lj) => ({
+      jobId: lj.jobId,
+      jobNumber: lj.Job.jobNumber,
+      status: lj.Job.status,
+      rackCode: lj.Rack?.code ?? null,
+      addedAt: lj.addedAt.toISOString(),
+      tests: counts.get(lj.jobId)?.tests ?? 0,
+      failed: counts.get(lj.jobId)?.failed ?? 0,
     })),
     alarms,
     openPhase,

@@ -20,7 +20,7 @@ import {
 import { SpcEvaluateInputSchema } from '../../shared/spc.ts';
 import { audit } from '../audit.ts';
 import type { SessionUser } from '../auth.ts';
-import { TestFile } from '../../../../db/models/index.ts';
+import { TestFile, User } from '../../../../db/models/index.ts';
 import { sequelize } from '../db.ts';
 import { poolView, selectRows } from '../../core/record-db.ts';
 
@@ -136,19 +136,12 @@ export async function getTest(id: number): Promise<TestDetail | null> {
   const rows = await rawRows<TestRow>(`${TEST_SELECT} where t.id = $1`, [id]);
   const r = rows[0];
   if (!r) return null;
-  const files = await rawRows<{
-    id: number;
-    filename: string;
-    mime: string;
-    size_bytes: number;
-    sha256: string;
-    uploaded_at: Date;
-    uploaded_by: string | null;
-  }>(
-    `select f.id, f.filename, f.mime, f.size_bytes, f.sha256, f.uploaded_at, u.display_name as uploaded_by
-       from test_files f left join users u on u.id = f.uploaded_by where f.test_id = $1 order by f.id`,
-    [id],
-  );
+  const files = (await TestFile.findAll({
+    where: { testId: id },
+    attributes: ['id', 'filename', 'mime', 'sizeBytes', 'sha256', 'uploadedAt'],
+    include: [{ model: User, as: 'uploader', attributes: ['displayName'] }],
+    order: [['id', 'ASC']],
+  })) as (TestFile & { uploader: User | null })[];
   return {
     ...toItem(r),
     inputs: r.inputs,
@@ -158,10 +151,10 @@ export async function getTest(id: number): Promise<TestDetail | null> {
       id: f.id,
       filename: f.filename,
       mime: f.mime,
-      sizeBytes: f.size_bytes,
+      sizeBytes: f.sizeBytes,
       sha256: f.sha256,
-      uploadedAt: f.uploaded_at.toISOString(),
-      uploadedBy: f.uploaded_by,
+      uploadedAt: f.uploadedAt.toISOString(),
+      uploadedBy: f.uploader?.displayName ?? null,
     })),
   };
 }

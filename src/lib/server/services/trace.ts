@@ -10,6 +10,7 @@ import { bathAge, type BathAge } from '../../domain/film/bath-maintenance.ts';
 import { DEFAULT_TRACE_SETTINGS, TraceSettingsSchema, type TestKind, type TestResult } from '../../shared/quality.ts';
 import type { StoredCureRecord } from '../../shared/jobs.ts';
 import type { Range } from '../../shared/windows.ts';
+import { Hold, Job, QualityTest, TestFile, User } from '../../../../db/models/index.ts';
 import { sequelize } from '../db.ts';
 import { poolView, selectRows } from '../../core/record-db.ts';
 
@@ -29,24 +30,21 @@ export async function siblingHours(): Promise<number> {
 /** The trace of a job, or null when the job is unknown. */
 export async function traceJob(jobNumber: string, hoursOverride?: number): Promise<TraceResult | null> {
   const hours = hoursOverride ?? (await siblingHours());
-  const jr = await rawRows<{
-    id: number;
-    job_number: string;
-    customer_ref: string | null;
-    lens_material: string | null;
-    status: string;
-    hold_id: number | null;
-    reason: string | null;
-    placed_at: Date | null;
-    placed_by: string | null;
-  }>(
-    `select j.id, j.job_number, j.customer_ref, j.lens_material, j.status, h.id as hold_id, h.reason, h.placed_at, u.display_name as placed_by
-       from jobs j left join holds h on h.job_id = j.id and h.status = 'active' left join users u on u.id = h.placed_by
-      where j.job_number = $1`,
-    [jobNumber],
-  );
-  const j = jr[0];
+  const j = (await Job.findOne({
+    attributes: ['id', 'jobNumber', 'customerRef', 'lensMaterial', 'status'],
+    where: { jobNumber },
+    include: [
+      {
+        model: Hold,
+        attributes: ['id', 'reason', 'placedAt'],
+        where: { status: 'active' },
+        required: false,
+        include: [{ model: User, as: 'placer', attributes: ['displayName'] }],
+      },
+    ],
+  })) as (Job & { Holds: (Hold & { placer: User | null })[] }) | null;
   if (!j) return null;
+  const hold = j.Holds[0] ?? null;
 
   // Dip runs with the bath as it was at the dip.
   const dr = await rawRows<{
@@ -190,30 +188,21 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
     });
   }
 
-  const tr = await rawRows<{
-    id: number;
-    kind: TestKind;
-    result: TestResult;
-    tested_at: Date;
-    tested_by_label: string;
-    computed: Record<string, unknown>;
-    boil_cycles: number | null;
-    files: number;
-  }>(
-    `select t.id, t.kind, t.result, t.tested_at, t.tested_by_label, t.computed, t.boil_cycles,
-            (select count(*)::int from test_files f where f.test_id = t.id) as files
-       from quality_tests t where t.job_id = $1 order by t.tested_at`,
-    [j.id],
-  );
+  const tr = (await QualityTest.findAll({
+    attributes: ['id', 'kind', 'result', 'testedAt', 'testedByLabel', 'computed', 'boilCycles'],
+    where: { jobId: j.id },
+    include: [{ model: TestFile, attributes: ['id'] }],
+    order: [['testedAt', 'ASC']],
+  })) as (QualityTest & { TestFiles: TestFile[] })[];
   const tests: TraceTest[] = tr.map((t) => ({
     id: t.id,
     kind: t.kind,
     result: t.result,
-    testedAt: t.tested_at.toISOString(),
-    testedBy: t.tested_by_label,
+    testedAt: t.testedAt.toISOString(),
+    testedBy: t.testedByLabel,
     summary: String(t.computed['summary'] ?? ''),
-    boilCycles: t.boil_cycles,
-    files: t.files,
+    boilCycles: t.boilCycles,
+    files: t.TestFiles.length,
   }));
 
   // Siblings: same load(s); same tank and bath charge within ± hours of each of the job's dips.
@@ -278,12 +267,12 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
   return {
     job: {
       id: j.id,
-      jobNumber: j.job_number,
-      customerRef: j.customer_ref,
-      lensMaterial: j.lens_material,
+      jobNumber: j.jobNumber,
+      customerRef: j.customerRef,
+      lensMaterial: j.lensMaterial,
       status: j.status,
-      activeHold: j.hold_id
-        ? { id: j.hold_id, reason: j.reason!, placedAt: j.placed_at!.toISOString(), placedBy: j.placed_by }
+      activeHold: hold
+        ? { id: hold.id, reason: hold.reason, placedAt: hold.placedAt.toISOString(), placedBy: hold.placer?.displayName ?? null }
         : null,
     },
     dipRuns,
