@@ -1,10 +1,4 @@
-import {
-  DataTypes,
-  Model,
-  type InferAttributes,
-  type InferCreationAttributes,
-  type Sequelize,
-} from 'sequelize';
+import { DataTypes, Model, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
 
 /** A job carried by a dip run (the rack's contents at the dip). */
 export class DipRunJob extends Model<InferAttributes<DipRunJob>, InferCreationAttributes<DipRunJob>> {

@@ -1,10 +1,4 @@
-import {
-  DataTypes,
-  Model,
-  type InferAttributes,
-  type InferCreationAttributes,
-  type Sequelize,
-} from 'sequelize';
+import { DataTypes, Model, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
 
 /** A failed test tied to a nonconformance. */
 export class NcTest extends Model<InferAttributes<NcTest>, InferCreationAttributes<NcTest>> {

@@ -17,7 +17,8 @@ import { setBeforeCommitHookForTests, type AuditActor } from '../../db/transacti
 import { closeHolds, closeNc, createNc, dispositionNc, placeHolds } from '../../src/lib/core/hold-store.ts';
 import { createDipRun, importJobs } from '../../src/lib/core/job-store.ts';
 import { addJobsToLoad, closeLoad, openLoad, recomputeLoad } from '../../src/lib/core/load-store.ts';
-import { attachTestFile, recordTest } from '../../src/lib/core/quality-store.ts';
+import { acceptanceSettings, attachTestFile, putAcceptanceSettings, recordTest } from '../../src/lib/core/quality-store.ts';
+import { DEFAULT_ACCEPTANCE } from '../../src/lib/shared/quality.ts';
 import { verifyPassword } from '../../src/lib/server/passwords.ts';
 import { closeTestPool, createThrowawayUser, testPool, type Throwaway } from '../support/accounts.ts';
 import { createTestLine, createTestOven, tag, type TestLine, type TestOven } from '../support/trace-fixtures.ts';
@@ -297,5 +298,26 @@ describe('dip runs, job import, quality tests and files, holds and nonconformanc
     expect(await audits('nc.close', 'entity_id = $3', [String(ncId)])).toBe(1);
     // Closed once: a second close is refused before anyone signs.
     await expect(closeNc(seq, ncId, input, sign, actor)).rejects.toMatchObject({ kind: 'conflict' });
+  });
+});
+
+describe('acceptance settings', () => {
+  it('a change of the settings', async () => {
+    const changed = { ...DEFAULT_ACCEPTANCE, thicknessUm: { min: 1.6, max: 3.9 } };
+    const settingAudits = () => audits('settings.acceptance', `entity_id = 'acceptance'`, []);
+    const n = await settingAudits();
+    const before = await acceptanceSettings(seq);
+    failBeforeCommit();
+    await expect(putAcceptanceSettings(seq, changed, actor)).rejects.toThrow(INJECTED);
+    expect(await acceptanceSettings(seq)).toEqual(before);
+    expect(await settingAudits()).toBe(n);
+    setBeforeCommitHookForTests(null);
+    try {
+      await putAcceptanceSettings(seq, changed, actor);
+      expect((await acceptanceSettings(seq)).thicknessUm).toEqual({ min: 1.6, max: 3.9 });
+      expect(await settingAudits()).toBe(n + 1);
+    } finally {
+      await putAcceptanceSettings(seq, before, actor);
+    }
   });
 });

@@ -14,7 +14,7 @@ import { CsvSyntaxError, normaliseHeader, parseCsv } from '../shared/csv-table.t
 import { MAX_UPLOAD_BYTES, sniffUpload, safeFileName, type UploadMime } from '../shared/file-types.ts';
 import { AcceptanceSchema, DEFAULT_ACCEPTANCE, type Acceptance, type TestCreate } from '../shared/quality.ts';
 import { DomainError, fieldError, type DomainErrorKind } from './errors.ts';
-import { inTransaction, poolView, transactionOf, type Db } from './record-db.ts';
+import { inTransaction, poolView, selectRows, transactionOf, type Db } from './record-db.ts';
 import { readSetting } from './settings-store.ts';
 
 /** The lab's acceptance settings (site_settings 'acceptance'), defaults when unset. */
@@ -315,4 +315,30 @@ export async function testCountsOf(db: Db, jobIds: readonly number[]): Promise<M
   })) as unknown as { jobId: number; tests: number; failed: number }[];
   for (const r of rows) out.set(r.jobId, { tests: Number(r.tests), failed: Number(r.failed) });
   return out;
+}
+
+/**
+ * Replaces the acceptance settings with their audit row (`settings.acceptance`, before → after)
+ * in one transaction. Tests already recorded keep the copy they were judged against.
+ */
+export async function putAcceptanceSettings(db: Db, value: Acceptance, actor: AuditActor): Promise<Acceptance> {
+  const parsed = AcceptanceSchema.parse(value);
+  return inTransaction(db, async (t) => {
+    // site_settings is one JSON value per key: the same statements as settings-store's writeSetting, inside `t`.
+    const prev = await selectRows<{ value: unknown }>(t, `select value from site_settings where key = 'acceptance' for update`);
+    await selectRows(
+      t,
+      `insert into site_settings (key, value, updated_at) values ('acceptance', $1::jsonb, now())
+       on conflict (key) do update set value = excluded.value, updated_at = now() returning key`,
+      [JSON.stringify(parsed)],
+    );
+    await auditIn(t, actor, {
+      action: 'settings.acceptance',
+      entity: 'site_settings',
+      entityId: 'acceptance',
+      before: prev[0]?.value ?? null,
+      after: parsed,
+    });
+    return parsed;
+  });
 }

@@ -9,7 +9,6 @@ import { toCsv } from '../../shared/csv-table.ts';
 import { isoWeekKey } from '../../shared/site-time.ts';
 import {
   ADHESION_KINDS,
-  AcceptanceSchema,
   TEST_KIND_LABELS,
   type Acceptance,
   type TestCreate,
@@ -18,7 +17,6 @@ import {
   type TestListQuery,
 } from '../../shared/quality.ts';
 import { SpcEvaluateInputSchema } from '../../shared/spc.ts';
-import { audit } from '../audit.ts';
 import type { SessionUser } from '../auth.ts';
 import { TestFile, User } from '../../../../db/models/index.ts';
 import { sequelize } from '../db.ts';
@@ -28,8 +26,14 @@ import { poolView, selectRows } from '../../core/record-db.ts';
 const rawRows = <T extends object>(sql: string, bind: unknown[] = []) => selectRows<T>(sequelize(), sql, bind);
 import { actorOf } from '../guard.ts';
 import { HttpProblem } from '../http.ts';
-import { acceptanceSettings, attachTestFile, recordTest, type RecordedTest } from '../../core/quality-store.ts';
-import { siteTimeZone, writeSetting } from '../../core/settings-store.ts';
+import {
+  acceptanceSettings,
+  attachTestFile,
+  putAcceptanceSettings,
+  recordTest,
+  type RecordedTest,
+} from '../../core/quality-store.ts';
+import { siteTimeZone } from '../../core/settings-store.ts';
 import type { TestDetail, AdhesionWeek, AdhesionChart, FailureGroup } from '../../shared/trace-views.ts';
 
 interface TestRow {
@@ -193,16 +197,7 @@ export function getAcceptance(): Promise<Acceptance> {
 
 /** Change the acceptance settings (quality); audited with before and after. Tests already recorded keep their judgement. */
 export async function putAcceptance(user: SessionUser, value: Acceptance, address: string | null): Promise<Acceptance> {
-  const parsed = AcceptanceSchema.parse(value);
-  const before = await writeSetting(poolView(sequelize()), 'acceptance', parsed);
-  await audit(actorOf(user, address), {
-    action: 'settings.acceptance',
-    entity: 'site_settings',
-    entityId: 'acceptance',
-    before,
-    after: parsed,
-  });
-  return parsed;
+  return putAcceptanceSettings(sequelize(), value, actorOf(user, address));
 }
 
 /**
