@@ -42,7 +42,7 @@ export async function seedAll(sequelize: Sequelize, opts: SeedAllOptions): Promi
     try {
       await seedHistory(pool, { nowMs, days: typeof opts.history === 'object' ? opts.history.days : undefined, log: opts.log });
       // Jobs, dip runs, oven loads (cure records from the history's readings) and quality tests: the trace story.
-      await seedStory(pool, { nowMs, ...(opts.log ? { log: opts.log } : {}) });
+      await seedStory(sequelize, pool, { nowMs, ...(opts.log ? { log: opts.log } : {}) });
     } finally {
       if (!opts.pool) await pool.end();
     }

@@ -16,6 +16,7 @@
  * it done; `unseedStory` removes it again.
  */
 import type pg from 'pg';
+import type { Sequelize } from 'sequelize';
 import { judgeTest, type TestMeasurement } from '../src/lib/domain/quality/acceptance.ts';
 import { AMS2750G_CLASSES, uniformitySurvey } from '../src/lib/domain/oven/uniformity.ts';
 import { acceptanceSettings, attachFile } from '../src/lib/core/quality-store.ts';
@@ -81,7 +82,11 @@ const empty = (reason: string): SeedStoryResult => ({
   failedJobs: [],
 });
 
-export async function seedStory(pool: pg.Pool, opts: SeedStoryOptions = {}): Promise<SeedStoryResult> {
+/**
+ * `sequelize` carries the records the core writes (oven loads and their cure records, files);
+ * `pool` the story's bulk inserts of jobs, racks, dip runs and tests (thousands of rows).
+ */
+export async function seedStory(sequelize: Sequelize, pool: pg.Pool, opts: SeedStoryOptions = {}): Promise<SeedStoryResult> {
   const log = opts.log ?? (() => {});
   const done = await pool.query(`select 1 from site_settings where key = 'demoStory'`);
   if (done.rowCount) return empty('the story is already seeded');
@@ -195,7 +200,12 @@ export async function seedStory(pool: pg.Pool, opts: SeedStoryOptions = {}): Pro
   for (const cy of cycles) {
     const oven = asset.get(cy.oven);
     if (!oven) continue;
-    const r = await recordPastLoad(pool, { ovenAssetId: oven, openedAtMs: cy.rampStartMs, closedAtMs: cy.loadEndMs, by: 'auto' });
+    const r = await recordPastLoad(sequelize, {
+      ovenAssetId: oven,
+      openedAtMs: cy.rampStartMs,
+      closedAtMs: cy.loadEndMs,
+      by: 'auto',
+    });
     loadOf.set(cy, r.loadId);
     if (cy === story) storyLoadId = r.loadId;
   }
@@ -240,7 +250,7 @@ export async function seedStory(pool: pg.Pool, opts: SeedStoryOptions = {}): Pro
   log(`Story: ${loadOf.size} oven loads, ${lj.length} jobs loaded.`);
 
   // ---- quality tests
-  const acceptance = await acceptanceSettings(pool);
+  const acceptance = await acceptanceSettings(sequelize);
   const tests: {
     job: string;
     kind: string;
@@ -361,7 +371,7 @@ export async function seedStory(pool: pg.Pool, opts: SeedStoryOptions = {}): Pro
       judged.map((t) => t.boil),
     ],
   );
-  await seedSurveys(pool, nowMs, asset);
+  await seedSurveys(sequelize, pool, nowMs, asset);
   const result: SeedStoryResult = {
     seeded: true,
     jobs: allJobs.length,
@@ -397,7 +407,7 @@ const SURVEY_DAYS_AGO: Record<string, number> = { 'oven-a': 41, 'oven-b': 118, '
  * heat-up at about 3 °C/min to a per-sensor offset around the 110 °C setpoint, ±0.15 °C noise),
  * computed like an uploaded one: automatic stabilised soak, AMS2750G class table.
  */
-async function seedSurveys(pool: pg.Pool, nowMs: number, asset: Map<string, number>): Promise<void> {
+async function seedSurveys(sequelize: Sequelize, pool: pg.Pool, nowMs: number, asset: Map<string, number>): Promise<void> {
   const engineer = (await pool.query<{ id: number }>(`select id from users where username = 'engineer'`)).rows[0];
   for (const [code, daysAgo] of Object.entries(SURVEY_DAYS_AGO)) {
     const oven = asset.get(code);
@@ -460,7 +470,7 @@ async function seedSurveys(pool: pg.Pool, nowMs: number, asset: Map<string, numb
         engineer?.id ?? null,
       ],
     );
-    await attachFile(pool, {
+    await attachFile(sequelize, {
       surveyId: ins.rows[0]!.id,
       name: `survey-${code}.csv`,
       bytes: new TextEncoder().encode(csv),

@@ -32,6 +32,18 @@ import { SpcPoint } from './spc-point.ts';
 import { SiteSetting } from './site-setting.ts';
 import { ProcessWindow } from './process-window.ts';
 import { WindowAssignment } from './window-assignment.ts';
+import { Job } from './job.ts';
+import { Rack } from './rack.ts';
+import { DipRun } from './dip-run.ts';
+import { DipRunJob } from './dip-run-job.ts';
+import { OvenLoad } from './oven-load.ts';
+import { LoadJob } from './load-job.ts';
+import { QualityTest } from './quality-test.ts';
+import { Nonconformance } from './nonconformance.ts';
+import { NcTest } from './nc-test.ts';
+import { Hold } from './hold.ts';
+import { NcDisposition } from './nc-disposition.ts';
+import { TestFile } from './test-file.ts';
 
 export {
   ApiToken,
@@ -66,10 +78,23 @@ export {
   SiteSetting,
   ProcessWindow,
   WindowAssignment,
+  Job,
+  Rack,
+  DipRun,
+  DipRunJob,
+  OvenLoad,
+  LoadJob,
+  QualityTest,
+  Nonconformance,
+  NcTest,
+  Hold,
+  NcDisposition,
+  TestFile,
 };
 export type { RoleName } from './user.ts';
 export type { AssetKind } from './asset.ts';
 export type { SignatureRecord } from './audit-entry.ts';
+export type { JobStatus } from './job.ts';
 
 let initialised: Sequelize | null = null;
 
@@ -109,6 +134,18 @@ export function initModels(sequelize: Sequelize): void {
     SiteSetting,
     ProcessWindow,
     WindowAssignment,
+    Job,
+    Rack,
+    DipRun,
+    DipRunJob,
+    OvenLoad,
+    LoadJob,
+    QualityTest,
+    Nonconformance,
+    NcTest,
+    Hold,
+    NcDisposition,
+    TestFile,
   ]) {
     m.initModel(sequelize);
   }
@@ -156,4 +193,36 @@ export function initModels(sequelize: Sequelize): void {
   WindowAssignment.belongsTo(ProcessWindow, { as: 'window', foreignKey: 'windowId' });
   WindowAssignment.belongsTo(Asset, { foreignKey: 'assetId' });
   WindowAssignment.belongsTo(User, { as: 'assigner', foreignKey: 'assignedBy' });
+  // Jobs, dip runs, oven loads, quality tests, holds and nonconformances (the trace records).
+  DipRun.belongsTo(Asset, { as: 'line', foreignKey: 'lineAssetId' });
+  DipRun.belongsTo(Asset, { as: 'tank', foreignKey: 'tankAssetId' });
+  DipRun.belongsTo(Rack, { foreignKey: 'rackId' });
+  DipRun.belongsTo(User, { as: 'recorder', foreignKey: 'recordedBy' });
+  DipRun.belongsToMany(Job, { through: DipRunJob, foreignKey: 'dipRunId', otherKey: 'jobId' });
+  Job.belongsToMany(DipRun, { through: DipRunJob, foreignKey: 'jobId', otherKey: 'dipRunId' });
+  OvenLoad.belongsTo(Asset, { as: 'oven', foreignKey: 'ovenAssetId' });
+  OvenLoad.belongsTo(User, { as: 'opener', foreignKey: 'openedByUser' });
+  OvenLoad.belongsTo(User, { as: 'closer', foreignKey: 'closedByUser' });
+  OvenLoad.hasMany(LoadJob, { foreignKey: 'loadId' });
+  LoadJob.belongsTo(OvenLoad, { foreignKey: 'loadId' });
+  LoadJob.belongsTo(Job, { foreignKey: 'jobId' });
+  LoadJob.belongsTo(Rack, { foreignKey: 'rackId' });
+  Job.hasMany(LoadJob, { foreignKey: 'jobId' });
+  Job.hasMany(QualityTest, { foreignKey: 'jobId' });
+  Job.hasMany(Hold, { foreignKey: 'jobId' });
+  QualityTest.belongsTo(Job, { foreignKey: 'jobId' });
+  QualityTest.hasMany(TestFile, { foreignKey: 'testId' });
+  TestFile.belongsTo(QualityTest, { foreignKey: 'testId' });
+  TestFile.belongsTo(User, { as: 'uploader', foreignKey: 'uploadedBy' });
+  Hold.belongsTo(Job, { foreignKey: 'jobId' });
+  Hold.belongsTo(Nonconformance, { foreignKey: 'ncId' });
+  Hold.belongsTo(User, { as: 'placer', foreignKey: 'placedBy' });
+  Hold.belongsTo(User, { as: 'closer', foreignKey: 'closedBy' });
+  Nonconformance.hasMany(Hold, { foreignKey: 'ncId' });
+  Nonconformance.hasMany(NcDisposition, { foreignKey: 'ncId' });
+  Nonconformance.belongsToMany(QualityTest, { through: NcTest, foreignKey: 'ncId', otherKey: 'testId' });
+  Nonconformance.belongsTo(OvenLoad, { as: 'suspectedLoad', foreignKey: 'suspectedLoadId' });
+  Nonconformance.belongsTo(User, { as: 'opener', foreignKey: 'openedBy' });
+  Nonconformance.belongsTo(User, { as: 'closer', foreignKey: 'closedBy' });
+  NcDisposition.belongsTo(Nonconformance, { foreignKey: 'ncId' });
 }

@@ -24,6 +24,7 @@ import { SOAK_BAND_C } from '../../src/lib/domain/cure/cure-record.ts';
 import { closeLoad, openLoad } from '../../src/lib/core/load-store.ts';
 import type { PostCommitHandler, StoredReading, WorkerContext } from './index.ts';
 import { isDomainError } from '../../src/lib/core/errors.ts';
+import { selectRows } from '../../src/lib/core/record-db.ts';
 
 /** Setpoint rise that starts a cycle, and fall that ends it, °C. */
 export const CYCLE_SETPOINT_STEP_C = 50;
@@ -64,13 +65,14 @@ let maxChannelId = 0;
 
 /** Re-read the ovens and their channels; `initial` also takes each oven's last stored setpoint (worker start). */
 async function refresh(ctx: WorkerContext, initial = false): Promise<void> {
-  const { rows } = await ctx.pool.query<{
+  const rows = await selectRows<{
     oven_id: number;
     oven_name: string;
     channel_id: number | null;
     kind: string | null;
     on_oven: boolean | null;
   }>(
+    ctx.sequelize,
     `select o.id as oven_id, o.name as oven_name, c.id as channel_id, c.kind, c.asset_id = o.id as on_oven
        from assets o
        left join assets z on z.parent_id = o.id and z.kind = 'zone'
@@ -78,7 +80,7 @@ async function refresh(ctx: WorkerContext, initial = false): Promise<void> {
       where o.kind = 'oven'`,
   );
   roles.clear();
-  maxChannelId = (await ctx.pool.query<{ m: number | null }>('select max(id) as m from channels')).rows[0]?.m ?? 0;
+  maxChannelId = (await selectRows<{ m: number | null }>(ctx.sequelize, 'select max(id) as m from channels'))[0]?.m ?? 0;
   for (const r of rows) {
     let o = ovens.get(r.oven_id);
     if (!o) {
@@ -100,16 +102,17 @@ async function refresh(ctx: WorkerContext, initial = false): Promise<void> {
       ovens.set(r.oven_id, o);
       // An oven set up while the worker runs starts from its first live setpoint instead.
       const sp = !initial
-        ? { rows: [] as { v: number; t: number }[] }
-        : await ctx.pool.query<{ v: number; t: number }>(
+        ? []
+        : await selectRows<{ v: number; t: number }>(
+            ctx.sequelize,
             `select value as v, (extract(epoch from ts) * 1000)::float8 as t from readings r join channels c on c.id = r.channel_id
           where c.asset_id = $1 and c.kind = 'setpoint' order by ts desc limit 1`,
             [o.id],
           );
-      if (sp.rows[0]) {
-        o.lastSp = sp.rows[0].v;
-        o.lastSpMs = sp.rows[0].t;
-        o.baselineSp = sp.rows[0].v;
+      if (sp[0]) {
+        o.lastSp = sp[0].v;
+        o.lastSpMs = sp[0].t;
+        o.baselineSp = sp[0].v;
       }
     }
     o.name = r.oven_name;
@@ -127,7 +130,8 @@ async function refresh(ctx: WorkerContext, initial = false): Promise<void> {
 
 /** Adopt loads opened by hand; forget loads closed by hand. */
 async function sync(ctx: WorkerContext): Promise<void> {
-  const { rows } = await ctx.pool.query<{ id: number; oven_asset_id: number; peak: number | null }>(
+  const rows = await selectRows<{ id: number; oven_asset_id: number; peak: number | null }>(
+    ctx.sequelize,
     `select l.id, l.oven_asset_id,
             (select max(r.value) from readings r join channels c on c.id = r.channel_id
               where c.asset_id = l.oven_asset_id and c.kind = 'setpoint' and r.ts >= l.opened_at) as peak
@@ -167,12 +171,12 @@ function coldestFresh(o: OvenState, nowMs: number): { cold: number; hot: number 
 async function open(ctx: WorkerContext, o: OvenState, atMs: number): Promise<void> {
   o.busy = true;
   try {
-    const r = await openLoad(ctx.pool, { ovenAssetId: o.id, atMs, by: 'auto' }, ctx.publishLive);
+    const r = await openLoad(ctx.sequelize, { ovenAssetId: o.id, atMs, by: 'auto' }, { publish: ctx.publishLive });
     o.loadId = r.id;
     o.phase = 'ramp';
     ctx.log(`oven-loads: ${o.name} cycle started, load ${r.id} opened`);
   } catch (e) {
-    const openId = (e as { extra?: { openLoadId?: number } }).extra?.openLoadId;
+    const openId = isDomainError(e, 'conflict') ? (e.extra['openLoadId'] as number | null | undefined) : null;
     if (openId)
       o.loadId = openId; // opened by hand before the cycle started: adopt it
     else throw e;
@@ -189,7 +193,7 @@ async function close(ctx: WorkerContext, o: OvenState, atMs: number, why: string
   if (id === null) return;
   o.busy = true;
   try {
-    const r = await closeLoad(ctx.pool, id, { atMs, by: 'auto', note: why }, ctx.publishLive);
+    const r = await closeLoad(ctx.sequelize, id, { atMs, by: 'auto', note: why }, { publish: ctx.publishLive });
     ctx.log(`oven-loads: ${o.name} load ${id} closed (${why}); verdict ${r.verdict}`);
   } catch (e) {
     if (!isDomainError(e, 'conflict', 'not-found')) throw e; // already closed by hand: nothing to do

@@ -1,16 +1,19 @@
 /**
- * Jobs, racks and dip runs (worker- and seed-safe: takes a pg.Pool, imports no Astro env).
+ * Jobs, racks and dip runs (worker- and seed-safe: takes the Sequelize instance or a
+ * transaction, imports no Astro env).
  *
  * A dip run records one rack withdrawn from a line's hard-coat bath: when, which jobs it
  * carried, the bath charge in the tank at that moment and the last bath check before it, the
  * process window in force, and the mean withdrawal speed measured during the stroke (from the
  * stored readings of the tank's withdrawal-speed channel).
  */
-import type pg from 'pg';
-import { DomainError } from './errors.ts';
+import { Op } from 'sequelize';
+import { DipRun, DipRunJob, Job, Rack } from '../../../db/models/index.ts';
+import { auditIn, type AuditActor } from '../../../db/transaction.ts';
+import type { JobCsvRow } from '../shared/jobs.ts';
+import { DomainError, fieldError } from './errors.ts';
+import { inTransaction, poolView, selectRows, transactionOf, type Db } from './record-db.ts';
 import { windowInForce } from './window-store.ts';
-
-type Queryable = pg.Pool | pg.PoolClient;
 
 /** A withdrawal speed below this counts as stopped, mm/s (common practice: the lift is parked). */
 export const STROKE_MOVING_MM_S = 0.05;
@@ -29,14 +32,17 @@ export interface JobExtra {
  * Extra fields fill in blanks of existing jobs and never overwrite what is there.
  */
 export async function upsertJobs(
-  q: Queryable,
+  db: Db,
   jobNumbers: readonly string[],
   extra: ReadonlyMap<string, JobExtra> = new Map(),
 ): Promise<Map<string, number>> {
   const out = new Map<string, number>();
   if (jobNumbers.length === 0) return out;
   const nums = [...new Set(jobNumbers)];
-  const { rows } = await q.query<{ id: number; job_number: string; created: boolean }>(
+  // One statement for the whole batch (imports and seeds bring thousands): a model upsert cannot
+  // fill only the blanks of existing rows.
+  const rows = await selectRows<{ id: number; job_number: string; created: boolean }>(
+    db,
     `insert into jobs (job_number, customer_ref, lens_material)
        select * from unnest($1::text[], $2::text[], $3::text[])
      on conflict (job_number) do update
@@ -53,12 +59,10 @@ export async function upsertJobs(
 }
 
 /** The rack (or tray) with this code, created when new. */
-export async function upsertRack(q: Queryable, code: string): Promise<number> {
-  const { rows } = await q.query<{ id: number }>(
-    `insert into racks (code) values ($1) on conflict (code) do update set code = excluded.code returning id`,
-    [code],
-  );
-  return rows[0]!.id;
+export async function upsertRack(db: Db, code: string): Promise<number> {
+  const transaction = transactionOf(db) ?? null;
+  await Rack.bulkCreate([{ code }], { ignoreDuplicates: true, transaction });
+  return (await Rack.findOne({ attributes: ['id'], where: { code }, transaction, rejectOnEmpty: true })).id;
 }
 
 export interface LineInfo {
@@ -70,8 +74,9 @@ export interface LineInfo {
 }
 
 /** A dip line with its hard-coat tank and that tank's withdrawal-speed channel. */
-export async function lineInfo(q: Queryable, lineAssetId: number): Promise<LineInfo | null> {
-  const { rows } = await q.query<{
+export async function lineInfo(db: Db, lineAssetId: number): Promise<LineInfo | null> {
+  // Plant tables of another area, one lateral join: raw through the same instance.
+  const rows = await selectRows<{
     id: number;
     code: string;
     name: string;
@@ -79,6 +84,7 @@ export async function lineInfo(q: Queryable, lineAssetId: number): Promise<LineI
     tank_id: number | null;
     speed_id: number | null;
   }>(
+    db,
     `select a.id, a.code, a.name, a.kind, t.id as tank_id,
             (select c.id from channels c where c.asset_id = t.id and c.kind = 'withdrawal-speed' order by c.id limit 1) as speed_id
        from assets a
@@ -106,8 +112,10 @@ export interface Stroke {
  * it; its mean speed is the plain mean of the stroke's readings (readings of bad quality left
  * out). Null when the channel shows no movement there.
  */
-export async function strokeNear(q: Queryable, speedChannelId: number, dippedAtMs: number): Promise<Stroke | null> {
-  const { rows } = await q.query<{ t: number; v: number }>(
+export async function strokeNear(db: Db, speedChannelId: number, dippedAtMs: number): Promise<Stroke | null> {
+  // The telemetry read path stays raw (epoch milliseconds, no Date per reading).
+  const rows = await selectRows<{ t: number; v: number }>(
+    db,
     `select (extract(epoch from ts) * 1000)::float8 as t, value as v from readings
       where channel_id = $1 and ts >= to_timestamp($2 / 1000.0) and ts <= to_timestamp($3 / 1000.0) and quality < 2
       order by ts`,
@@ -163,73 +171,67 @@ export interface DipRunCreated {
 /**
  * Records a dip run: links the bath charge in the tank at the dip time (latest charged at or
  * before it), the last bath check at or before it, the window in force for the line, and the
- * mean withdrawal speed of the stroke; creates unknown jobs and the rack.
- * @throws DomainError 400 when the asset is not a dip line.
+ * mean withdrawal speed of the stroke; creates unknown jobs and the rack. One transaction with
+ * its audit row (`dip.record`) when an actor is given.
+ * @throws DomainError invalid when the asset is not a dip line.
  */
-export async function createDipRun(pool: pg.Pool, input: DipRunInput): Promise<DipRunCreated> {
-  const line = await lineInfo(pool, input.lineAssetId);
+export async function createDipRun(db: Db, input: DipRunInput, actor?: AuditActor): Promise<DipRunCreated> {
+  const line = await lineInfo(db, input.lineAssetId);
   if (!line) {
     throw new DomainError('invalid', 'Invalid input', 'lineAssetId: not a dip line', {
       errors: [{ path: 'lineAssetId', message: 'Choose a dip line.' }],
     });
   }
-  const t = input.dippedAtMs;
-  const window = await windowInForce(pool, line.id, t);
-  const stroke = line.speedChannelId ? await strokeNear(pool, line.speedChannelId, t) : null;
-  const c = await pool.connect();
-  try {
-    await c.query('begin');
+  const at = input.dippedAtMs;
+  const window = await windowInForce(poolView(db), line.id, at);
+  const stroke = line.speedChannelId ? await strokeNear(db, line.speedChannelId, at) : null;
+  return inTransaction(db, async (t) => {
+    // Bath charges and checks belong to the bath log: raw look-ups through the same transaction.
     const charge = line.tankId
       ? (
-          await c.query<{ id: number }>(
+          await selectRows<{ id: number }>(
+            t,
             `select id from bath_charges where tank_asset_id = $1 and charged_at <= to_timestamp($2 / 1000.0) order by charged_at desc limit 1`,
-            [line.tankId, t],
+            [line.tankId, at],
           )
-        ).rows[0]
+        )[0]
       : undefined;
     const check = line.tankId
       ? (
-          await c.query<{ id: number }>(
+          await selectRows<{ id: number }>(
+            t,
             `select id from bath_checks where tank_asset_id = $1 and at <= to_timestamp($2 / 1000.0) order by at desc limit 1`,
-            [line.tankId, t],
+            [line.tankId, at],
           )
-        ).rows[0]
+        )[0]
       : undefined;
-    const rackId = input.rackCode ? await upsertRack(c, input.rackCode) : null;
-    const { rows } = await c.query<{ id: number; dipped_at: Date }>(
-      `insert into dip_runs (line_asset_id, tank_asset_id, rack_id, dipped_at, bath_charge_id, last_check_id, window_id,
-          withdrawal_speed_mm_s, stroke_started_at, stroke_ended_at, stroke_samples, source, note, recorded_by)
-       values ($1, $2, $3, to_timestamp($4 / 1000.0), $5, $6, $7, $8, to_timestamp($9 / 1000.0), to_timestamp($10 / 1000.0), $11, $12, $13, $14)
-       returning id, dipped_at`,
-      [
-        line.id,
-        line.tankId,
+    const rackId = input.rackCode ? await upsertRack(t, input.rackCode) : null;
+    const run = await DipRun.create(
+      {
+        lineAssetId: line.id,
+        tankAssetId: line.tankId,
         rackId,
-        t,
-        charge?.id ?? null,
-        check?.id ?? null,
-        window?.id ?? null,
-        stroke?.meanMmS ?? null,
-        stroke?.startMs ?? null,
-        stroke?.endMs ?? null,
-        stroke?.samples ?? null,
-        input.source,
-        input.note ?? null,
-        input.userId ?? null,
-      ],
+        dippedAt: new Date(at),
+        bathChargeId: charge?.id ?? null,
+        lastCheckId: check?.id ?? null,
+        windowId: window?.id ?? null,
+        withdrawalSpeedMmS: stroke?.meanMmS ?? null,
+        strokeStartedAt: stroke ? new Date(stroke.startMs) : null,
+        strokeEndedAt: stroke ? new Date(stroke.endMs) : null,
+        strokeSamples: stroke?.samples ?? null,
+        source: input.source,
+        note: input.note ?? null,
+        recordedBy: input.userId ?? null,
+      },
+      { transaction: t },
     );
-    const run = rows[0]!;
-    const ids = await upsertJobs(c, input.jobNumbers);
-    await c.query(`insert into dip_run_jobs (dip_run_id, job_id) select $1, unnest($2::int[]) on conflict do nothing`, [
-      run.id,
-      [...ids.values()],
-    ]);
-    await c.query('commit');
-    return {
+    const ids = await upsertJobs(t, input.jobNumbers);
+    await attachJobsToDipRun(t, run.id, [...ids.values()]);
+    const created: DipRunCreated = {
       id: run.id,
       lineAssetId: line.id,
       tankAssetId: line.tankId,
-      dippedAt: run.dipped_at.toISOString(),
+      dippedAt: run.dippedAt.toISOString(),
       bathChargeId: charge?.id ?? null,
       lastCheckId: check?.id ?? null,
       windowId: window?.id ?? null,
@@ -238,19 +240,78 @@ export async function createDipRun(pool: pg.Pool, input: DipRunInput): Promise<D
       jobs: [...ids.entries()].map(([jobNumber, id]) => ({ id, jobNumber })),
       rackId,
     };
-  } catch (e) {
-    await c.query('rollback').catch(() => {});
-    throw e;
-  } finally {
-    c.release();
-  }
+    if (actor)
+      await auditIn(t, actor, {
+        action: 'dip.record',
+        entity: 'dip_run',
+        entityId: run.id,
+        after: {
+          lineAssetId: created.lineAssetId,
+          dippedAt: created.dippedAt,
+          rackCode: input.rackCode ?? null,
+          jobs: input.jobNumbers,
+          bathChargeId: created.bathChargeId,
+          lastCheckId: created.lastCheckId,
+          withdrawalSpeedMmS: created.withdrawalSpeedMmS,
+        },
+      });
+    return created;
+  });
 }
 
-/** Attach existing jobs to a dip run (the CSV import's second step). */
-export async function attachJobsToDipRun(q: Queryable, dipRunId: number, jobIds: readonly number[]): Promise<number> {
-  const r = await q.query(`insert into dip_run_jobs (dip_run_id, job_id) select $1, unnest($2::int[]) on conflict do nothing`, [
-    dipRunId,
-    jobIds,
-  ]);
-  return r.rowCount ?? 0;
+/** Attach existing jobs to a dip run (the CSV import's second step); jobs already on it stay as they are. */
+export async function attachJobsToDipRun(db: Db, dipRunId: number, jobIds: readonly number[]): Promise<void> {
+  if (jobIds.length === 0) return;
+  await DipRunJob.bulkCreate(
+    jobIds.map((jobId) => ({ dipRunId, jobId })),
+    { ignoreDuplicates: true, transaction: transactionOf(db) ?? null },
+  );
+}
+
+export interface JobImportResult {
+  imported: number;
+  created: number;
+  skippedLines: number[];
+  attachedTo: number | null;
+  jobNumbers: string[];
+}
+
+/**
+ * Stores the good rows of a checked job CSV (jobs, their racks, optionally attached to a dip
+ * run) in one transaction with its audit row (`jobs.import`, keyed by the file's fingerprint).
+ * @throws DomainError invalid when there is no good row or the dip run is unknown.
+ */
+export async function importJobs(
+  db: Db,
+  input: { good: readonly JobCsvRow[]; skippedLines: readonly number[]; sha256: string; dipRunId?: number | undefined },
+  actor: AuditActor,
+): Promise<JobImportResult> {
+  if (input.good.length === 0) throw fieldError('csv', 'No good rows to import.');
+  const numbers = input.good.map((g) => g.jobNumber);
+  return inTransaction(db, async (t) => {
+    if (input.dipRunId !== undefined && !(await DipRun.findByPk(input.dipRunId, { attributes: ['id'], transaction: t })))
+      throw fieldError('dipRunId', 'No such dip run.');
+    const known = await Job.count({ where: { jobNumber: { [Op.in]: numbers } }, transaction: t });
+    const ids = await upsertJobs(
+      t,
+      numbers,
+      new Map(input.good.map((g) => [g.jobNumber, { customerRef: g.customerRef, lensMaterial: g.lensMaterial }])),
+    );
+    for (const code of new Set(input.good.map((g) => g.rackCode).filter((c): c is string => !!c))) await upsertRack(t, code);
+    if (input.dipRunId !== undefined) await attachJobsToDipRun(t, input.dipRunId, [...ids.values()]);
+    const result: JobImportResult = {
+      imported: input.good.length,
+      created: input.good.length - known,
+      skippedLines: [...input.skippedLines],
+      attachedTo: input.dipRunId ?? null,
+      jobNumbers: numbers,
+    };
+    await auditIn(t, actor, {
+      action: 'jobs.import',
+      entity: 'jobs',
+      entityId: input.sha256.slice(0, 16),
+      after: { ...result, jobNumbers: undefined, count: input.good.length },
+    });
+    return result;
+  });
 }

@@ -16,16 +16,18 @@
  *   minimum, peak, ramp rates, Arrhenius equivalent minutes (ASTM C1074 equivalent-age form),
  *   gaps, door openings and the verdict against the window in force at the load's start.
  */
-import type pg from 'pg';
+import { Op, UniqueConstraintError, fn, literal } from 'sequelize';
+import { Asset, DipRun, Job, LoadJob, OvenLoad, Rack } from '../../../db/models/index.ts';
+import { auditIn, type AuditActor } from '../../../db/transaction.ts';
 import { cureRecord, type CureWindow, type DoorEvent, type OvenReading } from '../domain/cure/cure-record.ts';
 import { VERDICT_LABELS, type CureVerdictName, type StoredCureRecord } from '../shared/jobs.ts';
 import type { ProcessWindowInForce } from '../shared/windows.ts';
 import { DomainError } from './errors.ts';
 import { clearAlarmReturning, getAlarm, liveAlarmPayload, raiseAlarm } from './alarm-store.ts';
 import { upsertJobs } from './job-store.ts';
+import { inTransaction, poolView, selectRows, sequelizeOf, transactionOf, type Db } from './record-db.ts';
 import { windowInForce } from './window-store.ts';
 
-type Queryable = pg.Pool | pg.PoolClient;
 export type Publish = (kind: string, payload: unknown) => void;
 
 /** Longest spacing of oven readings that is not a gap when the window names none: 120 s (common practice). */
@@ -47,28 +49,29 @@ export interface OvenChannels {
 }
 
 /** The oven's setpoint, door and zone air-temperature channels; null when the asset is not an oven. */
-export async function ovenChannels(q: Queryable, ovenAssetId: number): Promise<OvenChannels | null> {
-  const { rows } = await q.query<{ id: number; code: string; name: string; kind: string }>(
-    'select id, code, name, kind from assets where id = $1',
-    [ovenAssetId],
-  );
-  const oven = rows[0];
+export async function ovenChannels(db: Db, ovenAssetId: number): Promise<OvenChannels | null> {
+  const oven = await Asset.findByPk(ovenAssetId, {
+    attributes: ['id', 'code', 'name', 'kind'],
+    transaction: transactionOf(db) ?? null,
+  });
   if (!oven || oven.kind !== 'oven') return null;
-  const ch = await q.query<{ id: number; name: string; kind: string; on_oven: boolean }>(
+  // Channels of the oven and of its zones (other areas' tables, one join: raw through the same instance).
+  const ch = await selectRows<{ id: number; name: string; kind: string; on_oven: boolean }>(
+    db,
     `select c.id, c.name, c.kind, c.asset_id = $1 as on_oven
        from channels c join assets a on a.id = c.asset_id
       where c.asset_id = $1 or (a.parent_id = $1 and a.kind = 'zone')
       order by a.code, c.id`,
     [ovenAssetId],
   );
-  const first = (kind: string) => ch.rows.find((c) => c.on_oven && c.kind === kind)?.id ?? null;
+  const first = (kind: string) => ch.find((c) => c.on_oven && c.kind === kind)?.id ?? null;
   return {
     ovenId: oven.id,
     code: oven.code,
     name: oven.name,
     setpointId: first('setpoint'),
     doorId: first('door'),
-    zones: ch.rows.filter((c) => !c.on_oven && c.kind === 'air-temperature').map((c) => ({ id: c.id, name: c.name })),
+    zones: ch.filter((c) => !c.on_oven && c.kind === 'air-temperature').map((c) => ({ id: c.id, name: c.name })),
   };
 }
 
@@ -160,13 +163,13 @@ export function doorEvents(
  * measurements that need none (peak, ramps, gaps, door) and the verdict is 'unverifiable'.
  */
 export async function computeCureRecord(
-  pool: pg.Pool,
+  db: Db,
   load: { ovenAssetId: number; openedAtMs: number; closedAtMs: number },
 ): Promise<{ record: StoredCureRecord; windowId: number | null }> {
-  const oven = await ovenChannels(pool, load.ovenAssetId);
+  const oven = await ovenChannels(db, load.ovenAssetId);
   if (!oven) throw new Error(`asset ${load.ovenAssetId} is not an oven`);
   const endMs = Math.min(load.closedAtMs, load.openedAtMs + MAX_LOAD_HOURS * 3_600_000);
-  const inForce = await windowInForce(pool, load.ovenAssetId, load.openedAtMs);
+  const inForce = await windowInForce(poolView(db), load.ovenAssetId, load.openedAtMs);
   const cw = inForce ? cureWindowOf(inForce) : null;
   const window: CureWindow = cw?.window ?? {
     // No window: only window-free measurements are kept; these values just let the domain run.
@@ -179,7 +182,9 @@ export async function computeCureRecord(
     maxGapSeconds: DEFAULT_MAX_GAP_SECONDS,
   };
   const zoneIds = oven.zones.map((z) => z.id);
-  const { rows } = await pool.query<{ ch: number; t: number; v: number; q: number }>(
+  // The telemetry read path stays raw (thousands of rows; epoch milliseconds instead of Dates).
+  const rows = await selectRows<{ ch: number; t: number; v: number; q: number }>(
+    db,
     `select channel_id as ch, (extract(epoch from ts) * 1000)::float8 as t, value as v, quality as q
        from readings
       where channel_id = any($1::int[]) and ts >= to_timestamp($2 / 1000.0) and ts <= to_timestamp($3 / 1000.0)
@@ -190,18 +195,20 @@ export async function computeCureRecord(
   const instants = alignZones(good, window.maxGapSeconds * 1000);
   let events: DoorEvent[] = [];
   if (oven.doorId) {
-    const door = await pool.query<{ t: number; v: number }>(
+    const door = await selectRows<{ t: number; v: number }>(
+      db,
       `select (extract(epoch from ts) * 1000)::float8 as t, value as v from readings
         where channel_id = $1 and ts > to_timestamp($2 / 1000.0) and ts <= to_timestamp($3 / 1000.0) and quality < 2 order by ts`,
       [oven.doorId, load.openedAtMs, endMs],
     );
-    const before = await pool.query<{ t: number; v: number }>(
+    const before = await selectRows<{ t: number; v: number }>(
+      db,
       `select (extract(epoch from ts) * 1000)::float8 as t, value as v from readings
         where channel_id = $1 and ts <= to_timestamp($2 / 1000.0) and ts > to_timestamp($2 / 1000.0) - interval '1 day' and quality < 2
         order by ts desc limit 1`,
       [oven.doorId, load.openedAtMs],
     );
-    events = doorEvents(door.rows, before.rows[0] ?? null, load.openedAtMs);
+    events = doorEvents(door, before[0] ?? null, load.openedAtMs);
   }
   const rec = cureRecord({
     readings: instants,
@@ -274,70 +281,108 @@ export interface RecomputeResult {
   alarmId: number | null;
 }
 
+/** Who made a change from outside the worker (audited) and where live events go. */
+export interface ChangeOptions {
+  publish?: Publish | undefined;
+  /** When given, the change writes its audit row in its own transaction. */
+  actor?: AuditActor | undefined;
+}
+
+const notFound = () => new DomainError('not-found', 'Not found', 'No such oven load.');
+
 /**
- * Computes and stores a closed load's cure record and verdict; a failing verdict raises the
- * cure alarm (source `load:{id}`; high for under-cured/unverifiable, medium for
- * over-temperature), a complete one clears it. Publishes `alarms` and `loads` when `publish`
- * is given.
+ * Raises the load's cure alarm for a failing verdict (source `load:{id}`; high for
+ * under-cured/unverifiable, medium for over-temperature) or clears it for a complete one, once
+ * the record is committed, and links the alarm to the load. The alarm keeps its own event log.
  */
-export async function recomputeLoad(pool: pg.Pool, loadId: number, publish?: Publish): Promise<RecomputeResult> {
-  const { rows } = await pool.query<{
-    oven_asset_id: number;
-    opened_at: Date;
-    closed_at: Date | null;
-    status: string;
-    oven_name: string;
-  }>(
-    `select l.oven_asset_id, l.opened_at, l.closed_at, l.status, a.name as oven_name
-       from oven_loads l join assets a on a.id = l.oven_asset_id where l.id = $1`,
-    [loadId],
-  );
-  const load = rows[0];
-  if (!load) throw new DomainError('not-found', 'Not found', 'No such oven load.');
-  if (load.status !== 'closed' || !load.closed_at)
-    throw new DomainError('conflict', 'Load still open', 'The cure record is computed when the load is closed.');
-  const { record, windowId } = await computeCureRecord(pool, {
-    ovenAssetId: load.oven_asset_id,
-    openedAtMs: load.opened_at.getTime(),
-    closedAtMs: load.closed_at.getTime(),
-  });
-  const key = `load:${loadId}`;
+async function applyCureAlarm(
+  db: Db,
+  load: { id: number; ovenAssetId: number; ovenName: string; closedAtMs: number },
+  record: StoredCureRecord,
+  publish?: Publish,
+): Promise<number | null> {
+  const pool = poolView(db);
+  const key = `load:${load.id}`;
   const priority = verdictPriority(record.verdict);
-  let alarmId: number | null = null;
-  if (priority) {
-    const w = record.window;
-    const [value, limit] =
-      record.verdict === 'under-cured' && w
-        ? [record.equivalentMinutes, w.minEquivalentMinutes]
-        : record.verdict === 'over-temperature' && w
-          ? [record.peakC, w.maxPartTempC]
-          : [null, null];
-    const raised = await raiseAlarm(pool, {
-      sourceKind: 'cure',
-      sourceKey: key,
-      sourceLabel: `${load.oven_name} load ${loadId} cure`,
-      assetId: load.oven_asset_id,
-      loadId,
-      priority,
-      message: `${VERDICT_LABELS[record.verdict]}: ${record.reasons[0] ?? ''}`.trim(),
-      value,
-      limit,
-      atMs: load.closed_at.getTime(),
-    });
-    alarmId = raised.id;
-    if (publish) {
-      const view = await getAlarm(pool, raised.id);
-      if (view) publish('alarms', liveAlarmPayload(view));
-    }
-  } else {
+  if (!priority) {
     const cleared = await clearAlarmReturning(pool, key, Date.now());
     if (cleared && publish) publish('alarms', liveAlarmPayload(cleared));
+    return null;
   }
-  await pool.query(
-    `update oven_loads set record = $2::jsonb, verdict = $3, computed_at = now(), window_id = $4, alarm_id = coalesce($5, alarm_id) where id = $1`,
-    [loadId, JSON.stringify(record), record.verdict, windowId, alarmId],
+  const w = record.window;
+  const [value, limit] =
+    record.verdict === 'under-cured' && w
+      ? [record.equivalentMinutes, w.minEquivalentMinutes]
+      : record.verdict === 'over-temperature' && w
+        ? [record.peakC, w.maxPartTempC]
+        : [null, null];
+  const raised = await raiseAlarm(pool, {
+    sourceKind: 'cure',
+    sourceKey: key,
+    sourceLabel: `${load.ovenName} load ${load.id} cure`,
+    assetId: load.ovenAssetId,
+    loadId: load.id,
+    priority,
+    message: `${VERDICT_LABELS[record.verdict]}: ${record.reasons[0] ?? ''}`.trim(),
+    value,
+    limit,
+    atMs: load.closedAtMs,
+  });
+  await OvenLoad.update({ alarmId: raised.id }, { where: { id: load.id }, transaction: transactionOf(db) ?? null });
+  if (publish) {
+    const view = await getAlarm(pool, raised.id);
+    if (view) publish('alarms', liveAlarmPayload(view));
+  }
+  return raised.id;
+}
+
+async function loadWithOven(db: Db, loadId: number): Promise<(OvenLoad & { oven?: Asset }) | null> {
+  return OvenLoad.findByPk(loadId, {
+    include: [{ model: Asset, as: 'oven', attributes: ['name'] }],
+    transaction: transactionOf(db) ?? null,
+  }) as Promise<(OvenLoad & { oven?: Asset }) | null>;
+}
+
+/**
+ * Computes and stores a closed load's cure record and verdict (audited as `load.recompute`
+ * with the verdicts before and after when an actor is given); then the cure alarm follows the
+ * verdict (see `applyCureAlarm`). Publishes `alarms` and `loads` when `publish` is given.
+ */
+export async function recomputeLoad(db: Db, loadId: number, opts: ChangeOptions = {}): Promise<RecomputeResult> {
+  const load = await loadWithOven(db, loadId);
+  if (!load) throw notFound();
+  if (load.status !== 'closed' || !load.closedAt)
+    throw new DomainError('conflict', 'Load still open', 'The cure record is computed when the load is closed.');
+  const closedAtMs = load.closedAt.getTime();
+  const { record, windowId } = await computeCureRecord(db, {
+    ovenAssetId: load.ovenAssetId,
+    openedAtMs: load.openedAt.getTime(),
+    closedAtMs,
+  });
+  await inTransaction(db, async (t) => {
+    const row = await OvenLoad.findByPk(loadId, { attributes: ['id', 'verdict'], transaction: t, lock: t.LOCK.UPDATE });
+    if (!row) throw notFound();
+    const before = row.verdict;
+    await OvenLoad.update(
+      { record, verdict: record.verdict, computedAt: fn('now'), windowId },
+      { where: { id: loadId }, transaction: t },
+    );
+    if (opts.actor)
+      await auditIn(t, opts.actor, {
+        action: 'load.recompute',
+        entity: 'oven_load',
+        entityId: loadId,
+        before: { verdict: before },
+        after: { verdict: record.verdict },
+      });
+  });
+  const alarmId = await applyCureAlarm(
+    db,
+    { id: loadId, ovenAssetId: load.ovenAssetId, ovenName: load.oven?.name ?? `oven ${load.ovenAssetId}`, closedAtMs },
+    record,
+    opts.publish,
   );
-  publish?.('loads', { loadId, ovenAssetId: load.oven_asset_id, phase: 'closed', status: 'closed', verdict: record.verdict });
+  opts.publish?.('loads', { loadId, ovenAssetId: load.ovenAssetId, phase: 'closed', status: 'closed', verdict: record.verdict });
   return { loadId, verdict: record.verdict, record, alarmId };
 }
 
@@ -350,44 +395,63 @@ export interface OpenLoadInput {
 }
 
 /**
- * Opens a load on an oven. At most one load is open per oven.
- * @throws DomainError 400 when the asset is not an oven, 409 when a load is already open there.
+ * Opens a load on an oven (audited as `load.open` when an actor is given). At most one load is
+ * open per oven.
+ * @throws DomainError invalid when the asset is not an oven, conflict (with `extra.openLoadId`)
+ *   when a load is already open there.
  */
 export async function openLoad(
-  pool: pg.Pool,
+  db: Db,
   input: OpenLoadInput,
-  publish?: Publish,
+  opts: ChangeOptions = {},
 ): Promise<{ id: number; windowId: number | null }> {
-  const oven = await ovenChannels(pool, input.ovenAssetId);
+  const oven = await ovenChannels(db, input.ovenAssetId);
   if (!oven)
     throw new DomainError('invalid', 'Invalid input', 'ovenAssetId: not an oven', {
       errors: [{ path: 'ovenAssetId', message: 'Choose an oven.' }],
     });
-  const w = await windowInForce(pool, input.ovenAssetId, input.atMs);
+  const w = await windowInForce(poolView(db), input.ovenAssetId, input.atMs);
+  let id: number;
   try {
-    const { rows } = await pool.query<{ id: number }>(
-      `insert into oven_loads (oven_asset_id, opened_at, opened_by, opened_by_user, window_id, note)
-       values ($1, to_timestamp($2 / 1000.0), $3, $4, $5, $6) returning id`,
-      [input.ovenAssetId, input.atMs, input.by, input.userId ?? null, w?.id ?? null, input.note ?? null],
-    );
-    const id = rows[0]!.id;
-    publish?.('loads', { loadId: id, ovenAssetId: input.ovenAssetId, phase: 'ramp', status: 'open' });
-    return { id, windowId: w?.id ?? null };
-  } catch (e) {
-    if ((e as { code?: string }).code === '23505') {
-      const open = await pool.query<{ id: number }>(`select id from oven_loads where oven_asset_id = $1 and status = 'open'`, [
-        input.ovenAssetId,
-      ]);
-      throw new DomainError('conflict',
-        'A load is already open',
-        `${oven.name} already has load ${open.rows[0]?.id ?? '?'} open; close it first.`,
+    id = await inTransaction(db, async (t) => {
+      const load = await OvenLoad.create(
         {
-          openLoadId: open.rows[0]?.id ?? null,
+          ovenAssetId: input.ovenAssetId,
+          openedAt: new Date(input.atMs),
+          openedBy: input.by,
+          openedByUser: input.userId ?? null,
+          windowId: w?.id ?? null,
+          note: input.note ?? null,
         },
+        { transaction: t },
+      );
+      if (opts.actor)
+        await auditIn(t, opts.actor, {
+          action: 'load.open',
+          entity: 'oven_load',
+          entityId: load.id,
+          after: { ovenAssetId: input.ovenAssetId, openedAt: new Date(input.atMs).toISOString(), windowId: w?.id ?? null },
+        });
+      return load.id;
+    });
+  } catch (e) {
+    if (e instanceof UniqueConstraintError) {
+      const open = await OvenLoad.findOne({
+        attributes: ['id'],
+        where: { ovenAssetId: input.ovenAssetId, status: 'open' },
+        transaction: transactionOf(db) ?? null,
+      });
+      throw new DomainError(
+        'conflict',
+        'A load is already open',
+        `${oven.name} already has load ${open?.id ?? '?'} open; close it first.`,
+        { openLoadId: open?.id ?? null },
       );
     }
     throw e;
   }
+  opts.publish?.('loads', { loadId: id, ovenAssetId: input.ovenAssetId, phase: 'ramp', status: 'open' });
+  return { id, windowId: w?.id ?? null };
 }
 
 export interface CloseLoadInput {
@@ -398,35 +462,69 @@ export interface CloseLoadInput {
 }
 
 /**
- * Closes an open load and computes its cure record.
- * @throws DomainError 404 unknown, 409 already closed, 400 when the closing time is not after the opening.
+ * Closes an open load and stores its cure record in the same transaction (audited as
+ * `load.close` with the verdict when an actor is given); then the cure alarm follows the verdict.
+ * @throws DomainError not-found, conflict when already closed, invalid when the closing time is
+ *   not after the opening.
  */
 export async function closeLoad(
-  pool: pg.Pool,
+  db: Db,
   loadId: number,
   input: CloseLoadInput,
-  publish?: Publish,
+  opts: ChangeOptions = {},
 ): Promise<RecomputeResult> {
-  const { rows } = await pool.query<{ status: string; opened_at: Date }>(
-    'select status, opened_at from oven_loads where id = $1',
-    [loadId],
-  );
-  const load = rows[0];
-  if (!load) throw new DomainError('not-found', 'Not found', 'No such oven load.');
-  if (load.status !== 'open') throw new DomainError('conflict', 'Load already closed', `Load ${loadId} is already closed.`);
-  if (input.atMs <= load.opened_at.getTime()) {
+  const load = await loadWithOven(db, loadId);
+  if (!load) throw notFound();
+  const closed = () => new DomainError('conflict', 'Load already closed', `Load ${loadId} is already closed.`);
+  if (load.status !== 'open') throw closed();
+  if (input.atMs <= load.openedAt.getTime()) {
     throw new DomainError('invalid', 'Invalid input', 'closedAt: must be after the load was opened', {
       errors: [{ path: 'closedAt', message: 'The closing time must be after the opening time.' }],
     });
   }
-  const upd = await pool.query(
-    `update oven_loads set status = 'closed', closed_at = to_timestamp($2 / 1000.0), closed_by = $3, closed_by_user = $4,
-            note = coalesce(note || E'\\n', '') || coalesce($5, '')
-      where id = $1 and status = 'open'`,
-    [loadId, input.atMs, input.by, input.userId ?? null, input.note ?? null],
+  const { record, windowId } = await computeCureRecord(db, {
+    ovenAssetId: load.ovenAssetId,
+    openedAtMs: load.openedAt.getTime(),
+    closedAtMs: input.atMs,
+  });
+  await inTransaction(db, async (t) => {
+    const [changed] = await OvenLoad.update(
+      {
+        status: 'closed',
+        closedAt: new Date(input.atMs),
+        closedBy: input.by,
+        closedByUser: input.userId ?? null,
+        // The closing note is appended to the opening one, one per line.
+        note: literal(`coalesce(note || E'\\n', '') || ${sequelizeOf(db).escape(input.note ?? '')}`),
+        record,
+        verdict: record.verdict,
+        computedAt: fn('now'),
+        windowId,
+      },
+      { where: { id: loadId, status: 'open' }, transaction: t },
+    );
+    if (changed === 0) throw closed();
+    if (opts.actor)
+      await auditIn(t, opts.actor, {
+        action: 'load.close',
+        entity: 'oven_load',
+        entityId: loadId,
+        after: { closedAt: new Date(input.atMs).toISOString(), verdict: record.verdict },
+      });
+  });
+  const alarmId = await applyCureAlarm(
+    db,
+    {
+      id: loadId,
+      ovenAssetId: load.ovenAssetId,
+      ovenName: load.oven?.name ?? `oven ${load.ovenAssetId}`,
+      closedAtMs: input.atMs,
+    },
+    record,
+    opts.publish,
   );
-  if (upd.rowCount === 0) throw new DomainError('conflict', 'Load already closed', `Load ${loadId} is already closed.`);
-  return recomputeLoad(pool, loadId, publish);
+  opts.publish?.('loads', { loadId, ovenAssetId: load.ovenAssetId, phase: 'closed', status: 'closed', verdict: record.verdict });
+  return { loadId, verdict: record.verdict, record, alarmId };
 }
 
 export interface AddJobsResult {
@@ -438,53 +536,79 @@ export interface AddJobsResult {
 }
 
 /**
- * Puts jobs (and the jobs of scanned racks: those of the rack's latest dip run before now) into
- * a load. Unknown job numbers are created.
- * @throws DomainError 404 unknown load, 409 closed load (unless `allowClosed`, for seeds).
+ * Puts jobs (and the jobs of scanned racks: those of the rack's latest dip run) into a load, in
+ * one transaction with its audit row (`load.jobs.add`, when an actor is given and a job was
+ * added). Unknown job numbers are created.
+ * @throws DomainError not-found unknown load, conflict closed load (unless `allowClosed`, for seeds).
  */
 export async function addJobsToLoad(
-  pool: pg.Pool,
+  db: Db,
   loadId: number,
-  input: { jobNumbers: readonly string[]; rackCodes: readonly string[]; userId?: number | null; allowClosed?: boolean },
+  input: {
+    jobNumbers: readonly string[];
+    rackCodes: readonly string[];
+    userId?: number | null;
+    allowClosed?: boolean;
+    actor?: AuditActor | undefined;
+  },
 ): Promise<AddJobsResult> {
-  const { rows } = await pool.query<{ status: string }>('select status from oven_loads where id = $1', [loadId]);
-  if (!rows[0]) throw new DomainError('not-found', 'Not found', 'No such oven load.');
-  if (rows[0].status !== 'open' && !input.allowClosed)
-    throw new DomainError('conflict', 'Load closed', `Load ${loadId} is closed; jobs go into an open load.`);
-  const fromRacks: Record<string, string[]> = {};
-  const unknownRacks: string[] = [];
-  const racks = new Map<string, number>();
-  for (const code of new Set(input.rackCodes)) {
-    const r = await pool.query<{ rack_id: number; job_number: string }>(
-      `select k.id as rack_id, j.job_number from racks k
-         join lateral (select d.id from dip_runs d where d.rack_id = k.id order by d.dipped_at desc limit 1) d on true
-         join dip_run_jobs dj on dj.dip_run_id = d.id join jobs j on j.id = dj.job_id
-        where k.code = $1 order by j.job_number`,
-      [code],
-    );
-    if (r.rows.length === 0) unknownRacks.push(code);
-    else {
-      fromRacks[code] = r.rows.map((x) => x.job_number);
-      racks.set(code, r.rows[0]!.rack_id);
+  return inTransaction(db, async (t) => {
+    const load = await OvenLoad.findByPk(loadId, { attributes: ['id', 'status'], transaction: t });
+    if (!load) throw notFound();
+    if (load.status !== 'open' && !input.allowClosed)
+      throw new DomainError('conflict', 'Load closed', `Load ${loadId} is closed; jobs go into an open load.`);
+    const fromRacks: Record<string, string[]> = {};
+    const unknownRacks: string[] = [];
+    const rackOf = new Map<string, number>();
+    for (const code of new Set(input.rackCodes)) {
+      const rack = await Rack.findOne({ attributes: ['id'], where: { code }, transaction: t });
+      const run = rack
+        ? await DipRun.findOne({
+            attributes: ['id', 'dippedAt'],
+            where: { rackId: rack.id },
+            order: [['dippedAt', 'DESC']],
+            include: [{ model: Job, attributes: ['jobNumber'], through: { attributes: [] } }],
+            transaction: t,
+          })
+        : null;
+      const jobs = ((run as (DipRun & { Jobs?: Job[] }) | null)?.Jobs ?? []).map((j) => j.jobNumber).sort();
+      if (!rack || jobs.length === 0) unknownRacks.push(code);
+      else {
+        fromRacks[code] = jobs;
+        for (const j of jobs) rackOf.set(j, rack.id);
+      }
     }
-  }
-  const rackOf = new Map<string, number>();
-  for (const [code, list] of Object.entries(fromRacks)) for (const j of list) rackOf.set(j, racks.get(code)!);
-  const all = [...new Set([...input.jobNumbers, ...Object.values(fromRacks).flat()])];
-  const ids = await upsertJobs(pool, all);
-  const ins = await pool.query<{ job_id: number }>(
-    `insert into load_jobs (load_id, job_id, rack_id, added_by)
-       select $1, j, r, $4 from unnest($2::int[], $3::int[]) as u(j, r)
-     on conflict do nothing returning job_id`,
-    [loadId, all.map((n) => ids.get(n)!), all.map((n) => rackOf.get(n) ?? null), input.userId ?? null],
-  );
-  const addedIds = new Set(ins.rows.map((r) => r.job_id));
-  return {
-    added: all.filter((n) => addedIds.has(ids.get(n)!)),
-    alreadyInLoad: all.filter((n) => !addedIds.has(ids.get(n)!)),
-    unknownRacks,
-    fromRacks,
-  };
+    const all = [...new Set([...input.jobNumbers, ...Object.values(fromRacks).flat()])];
+    const ids = await upsertJobs(t, all);
+    const present = new Set(
+      (
+        await LoadJob.findAll({
+          attributes: ['jobId'],
+          where: { loadId, jobId: { [Op.in]: [...ids.values()] } },
+          transaction: t,
+        })
+      ).map((r) => r.jobId),
+    );
+    const fresh = all.filter((n) => !present.has(ids.get(n)!));
+    await LoadJob.bulkCreate(
+      fresh.map((n) => ({ loadId, jobId: ids.get(n)!, rackId: rackOf.get(n) ?? null, addedBy: input.userId ?? null })),
+      { transaction: t, ignoreDuplicates: true },
+    );
+    const result: AddJobsResult = {
+      added: fresh,
+      alreadyInLoad: all.filter((n) => present.has(ids.get(n)!)),
+      unknownRacks,
+      fromRacks,
+    };
+    if (input.actor && result.added.length)
+      await auditIn(t, input.actor, {
+        action: 'load.jobs.add',
+        entity: 'oven_load',
+        entityId: loadId,
+        after: { added: result.added, racks: Object.keys(fromRacks) },
+      });
+    return result;
+  });
 }
 
 /**
@@ -492,7 +616,7 @@ export async function addJobsToLoad(
  * Idempotent per oven and opening time: an existing load there is recomputed instead.
  */
 export async function recordPastLoad(
-  pool: pg.Pool,
+  db: Db,
   input: {
     ovenAssetId: number;
     openedAtMs: number;
@@ -502,18 +626,29 @@ export async function recordPastLoad(
     note?: string | null;
   },
 ): Promise<RecomputeResult> {
-  const found = await pool.query<{ id: number }>(
-    `select id from oven_loads where oven_asset_id = $1 and opened_at = to_timestamp($2 / 1000.0)`,
-    [input.ovenAssetId, input.openedAtMs],
-  );
-  let id = found.rows[0]?.id;
-  if (!id) {
-    const { rows } = await pool.query<{ id: number }>(
-      `insert into oven_loads (oven_asset_id, opened_at, closed_at, opened_by, opened_by_user, closed_by, closed_by_user, status, note)
-       values ($1, to_timestamp($2 / 1000.0), to_timestamp($3 / 1000.0), $4, $5, $4, $5, 'closed', $6) returning id`,
-      [input.ovenAssetId, input.openedAtMs, input.closedAtMs, input.by, input.userId ?? null, input.note ?? null],
-    );
-    id = rows[0]!.id;
-  }
-  return recomputeLoad(pool, id);
+  const transaction = transactionOf(db) ?? null;
+  const found = await OvenLoad.findOne({
+    attributes: ['id'],
+    where: { ovenAssetId: input.ovenAssetId, openedAt: new Date(input.openedAtMs) },
+    transaction,
+  });
+  const id =
+    found?.id ??
+    (
+      await OvenLoad.create(
+        {
+          ovenAssetId: input.ovenAssetId,
+          openedAt: new Date(input.openedAtMs),
+          closedAt: new Date(input.closedAtMs),
+          openedBy: input.by,
+          openedByUser: input.userId ?? null,
+          closedBy: input.by,
+          closedByUser: input.userId ?? null,
+          status: 'closed',
+          note: input.note ?? null,
+        },
+        { transaction },
+      )
+    ).id;
+  return recomputeLoad(db, id);
 }

@@ -1,23 +1,25 @@
 /**
- * Quality tests and their files (seed- and web-safe: takes a pg.Pool, imports no Astro env).
+ * Quality tests and their files (seed- and web-safe: takes the Sequelize instance or a
+ * transaction, imports no Astro env).
  * A test is judged when it is recorded, against the acceptance settings in force then (a copy
  * of them is stored with the test, so a later change of the settings does not rewrite history).
  */
 import { createHash } from 'node:crypto';
-import type pg from 'pg';
+import { Op, col, fn, literal } from 'sequelize';
+import { Job, QualityTest, TestFile } from '../../../db/models/index.ts';
+import { auditIn, type AuditActor } from '../../../db/transaction.ts';
 import { findExtrema, type SpectrumPoint } from '../domain/quality/fringes.ts';
 import { judgeTest, type TestMeasurement } from '../domain/quality/acceptance.ts';
 import { CsvSyntaxError, normaliseHeader, parseCsv } from '../shared/csv-table.ts';
 import { MAX_UPLOAD_BYTES, sniffUpload, safeFileName, type UploadMime } from '../shared/file-types.ts';
 import { AcceptanceSchema, DEFAULT_ACCEPTANCE, type Acceptance, type TestCreate } from '../shared/quality.ts';
 import { DomainError, fieldError, type DomainErrorKind } from './errors.ts';
+import { inTransaction, poolView, selectRows, transactionOf, type Db } from './record-db.ts';
 import { readSetting } from './settings-store.ts';
 
-type Queryable = pg.Pool | pg.PoolClient;
-
 /** The lab's acceptance settings (site_settings 'acceptance'), defaults when unset. */
-export function acceptanceSettings(q: Queryable): Promise<Acceptance> {
-  return readSetting(q, 'acceptance', AcceptanceSchema, DEFAULT_ACCEPTANCE);
+export function acceptanceSettings(db: Db): Promise<Acceptance> {
+  return readSetting(poolView(db), 'acceptance', AcceptanceSchema, DEFAULT_ACCEPTANCE);
 }
 
 const bad = (path: string, message: string, kind: DomainErrorKind = 'invalid', title = 'Invalid input') =>
@@ -81,23 +83,26 @@ export interface RecordedTest {
 }
 
 /**
- * Judges and stores one test. A thickness test from a spectrum finds the fringes itself
+ * Judges and stores one test, with its audit row (`test.record`, when an actor is given) in the
+ * same transaction. A thickness test from a spectrum finds the fringes itself
  * (Macleod's fringe method, lib/domain/quality/fringes.ts) and keeps the spectrum as a file.
  * @throws DomainError 400 for an unknown job or a malformed spectrum, 422 when the spectrum
  *   shows no measurable fringes.
  */
-export async function recordTest(pool: pg.Pool, input: RecordTestInput): Promise<RecordedTest> {
+export async function recordTest(db: Db, input: RecordTestInput, actor?: AuditActor): Promise<RecordedTest> {
   const t = input.test;
-  const job = await pool.query<{ id: number; job_number: string }>('select id, job_number from jobs where job_number = $1', [
-    t.jobNumber,
-  ]);
-  if (!job.rows[0]) {
+  const job = await Job.findOne({
+    attributes: ['id', 'jobNumber'],
+    where: { jobNumber: t.jobNumber },
+    transaction: transactionOf(db) ?? null,
+  });
+  if (!job) {
     throw bad(
       'jobNumber',
       `No job ${t.jobNumber} is known: jobs are recorded when their rack is dipped or their CSV is imported.`,
     );
   }
-  const acceptance = await acceptanceSettings(pool);
+  const acceptance = await acceptanceSettings(db);
   let measurement: TestMeasurement;
   const inputs: Record<string, unknown> = {};
   let spectrumFile: { name: string; bytes: Uint8Array } | null = null;
@@ -142,34 +147,30 @@ export async function recordTest(pool: pg.Pool, input: RecordTestInput): Promise
       break;
   }
   const j = judgeTest(measurement, acceptance);
-  const c = await pool.connect();
-  try {
-    await c.query('begin');
-    const { rows } = await c.query<{ id: number }>(
-      `insert into quality_tests (job_id, kind, tested_at, tested_by, tested_by_label, inputs, computed, result, reasons, boil_cycles, acceptance, note)
-       values ($1, $2, to_timestamp($3 / 1000.0), $4, $5, $6::jsonb, $7::jsonb, $8, $9, $10, $11::jsonb, $12) returning id`,
-      [
-        job.rows[0].id,
-        t.kind,
-        input.testedAtMs,
-        input.userId,
-        input.userLabel,
-        JSON.stringify(inputs),
-        JSON.stringify({ ...j.computed, ...extra, summary: j.summary }),
-        j.result,
-        j.reasons,
-        t.kind === 'boil' ? t.boilCycles : t.kind === 'crosscut' ? 0 : null,
-        JSON.stringify(acceptance),
-        t.note ?? null,
-      ],
+  return inTransaction(db, async (tx) => {
+    const row = await QualityTest.create(
+      {
+        jobId: job.id,
+        kind: t.kind,
+        testedAt: new Date(input.testedAtMs),
+        testedBy: input.userId,
+        testedByLabel: input.userLabel,
+        inputs,
+        computed: { ...j.computed, ...extra, summary: j.summary },
+        result: j.result,
+        reasons: j.reasons,
+        boilCycles: t.kind === 'boil' ? t.boilCycles : t.kind === 'crosscut' ? 0 : null,
+        acceptance,
+        note: t.note ?? null,
+      },
+      { transaction: tx },
     );
-    const id = rows[0]!.id;
     const fileIds: number[] = [];
     if (spectrumFile)
       fileIds.push(
         (
-          await insertFile(c, {
-            testId: id,
+          await insertFile(tx, {
+            testId: row.id,
             name: spectrumFile.name,
             bytes: spectrumFile.bytes,
             mime: 'text/csv',
@@ -177,11 +178,10 @@ export async function recordTest(pool: pg.Pool, input: RecordTestInput): Promise
           })
         ).id,
       );
-    await c.query('commit');
-    return {
-      id,
-      jobId: job.rows[0].id,
-      jobNumber: job.rows[0].job_number,
+    const recorded: RecordedTest = {
+      id: row.id,
+      jobId: job.id,
+      jobNumber: job.jobNumber,
       kind: t.kind,
       result: j.result,
       computed: { ...j.computed, ...extra },
@@ -189,16 +189,22 @@ export async function recordTest(pool: pg.Pool, input: RecordTestInput): Promise
       summary: j.summary,
       fileIds,
     };
-  } catch (e) {
-    await c.query('rollback').catch(() => {});
-    throw e;
-  } finally {
-    c.release();
-  }
+    if (actor) {
+      // The spectrum itself is kept as the test's file, not copied into the audit row.
+      const { spectrumCsv: _omit, ...logged } = t as TestCreate & { spectrumCsv?: string };
+      await auditIn(tx, actor, {
+        action: 'test.record',
+        entity: 'quality_test',
+        entityId: row.id,
+        after: { ...logged, result: recorded.result, computed: recorded.computed },
+      });
+    }
+    return recorded;
+  });
 }
 
 async function insertFile(
-  q: Queryable,
+  db: Db,
   f: {
     testId?: number | null;
     surveyId?: number | null;
@@ -209,12 +215,20 @@ async function insertFile(
   },
 ): Promise<{ id: number; sha256: string }> {
   const sha256 = createHash('sha256').update(f.bytes).digest('hex');
-  const { rows } = await q.query<{ id: number }>(
-    `insert into test_files (test_id, survey_id, filename, mime, size_bytes, sha256, content, uploaded_by)
-     values ($1, $2, $3, $4, $5, $6, $7, $8) returning id`,
-    [f.testId ?? null, f.surveyId ?? null, safeFileName(f.name), f.mime, f.bytes.length, sha256, Buffer.from(f.bytes), f.userId],
+  const row = await TestFile.create(
+    {
+      testId: f.testId ?? null,
+      surveyId: f.surveyId ?? null,
+      filename: safeFileName(f.name),
+      mime: f.mime,
+      sizeBytes: f.bytes.length,
+      sha256,
+      content: Buffer.from(f.bytes),
+      uploadedBy: f.userId,
+    },
+    { transaction: transactionOf(db) ?? null },
   );
-  return { id: rows[0]!.id, sha256 };
+  return { id: row.id, sha256 };
 }
 
 /**
@@ -252,12 +266,79 @@ export function checkUpload(name: string, bytes: Uint8Array): UploadMime {
   return s.mime;
 }
 
-/** Attaches a checked file to a test or a survey; returns its id, type and fingerprint. */
+export interface AttachedFile {
+  id: number;
+  mime: UploadMime;
+  sha256: string;
+  sizeBytes: number;
+  filename: string;
+}
+
+/** Attaches a checked file to a test or a survey (inside the caller's transaction when `db` is one). */
 export async function attachFile(
-  pool: pg.Pool,
+  db: Db,
   f: { testId?: number | null; surveyId?: number | null; name: string; bytes: Uint8Array; userId: number | null },
-): Promise<{ id: number; mime: UploadMime; sha256: string; sizeBytes: number; filename: string }> {
+): Promise<AttachedFile> {
   const mime = checkUpload(f.name, f.bytes);
-  const r = await insertFile(pool, { ...f, mime });
+  const r = await insertFile(db, { ...f, mime });
   return { id: r.id, mime, sha256: r.sha256, sizeBytes: f.bytes.length, filename: safeFileName(f.name) };
+}
+
+/**
+ * Attaches a file to a quality test with its audit row (`test.file.attach`) in one transaction.
+ * @throws DomainError not-found for an unknown test; too-large, unsupported-media or invalid for the file.
+ */
+export async function attachTestFile(
+  db: Db,
+  f: { testId: number; name: string; bytes: Uint8Array; userId: number | null },
+  actor: AuditActor,
+): Promise<AttachedFile> {
+  return inTransaction(db, async (t) => {
+    if (!(await QualityTest.findByPk(f.testId, { attributes: ['id'], transaction: t })))
+      throw new DomainError('not-found', 'Not found', 'No such quality test.');
+    const file = await attachFile(t, f);
+    await auditIn(t, actor, { action: 'test.file.attach', entity: 'quality_test', entityId: f.testId, after: file });
+    return file;
+  });
+}
+
+/** How many tests each job has and how many of them failed (jobs without tests are absent). */
+export async function testCountsOf(db: Db, jobIds: readonly number[]): Promise<Map<number, { tests: number; failed: number }>> {
+  const out = new Map<number, { tests: number; failed: number }>();
+  if (jobIds.length === 0) return out;
+  const rows = (await QualityTest.findAll({
+    attributes: ['jobId', [fn('count', col('id')), 'tests'], [literal(`count(*) filter (where result = 'fail')`), 'failed']],
+    where: { jobId: { [Op.in]: [...new Set(jobIds)] } },
+    group: ['jobId'],
+    raw: true,
+    transaction: transactionOf(db) ?? null,
+  })) as unknown as { jobId: number; tests: number; failed: number }[];
+  for (const r of rows) out.set(r.jobId, { tests: Number(r.tests), failed: Number(r.failed) });
+  return out;
+}
+
+/**
+ * Replaces the acceptance settings with their audit row (`settings.acceptance`, before → after)
+ * in one transaction. Tests already recorded keep the copy they were judged against.
+ */
+export async function putAcceptanceSettings(db: Db, value: Acceptance, actor: AuditActor): Promise<Acceptance> {
+  const parsed = AcceptanceSchema.parse(value);
+  return inTransaction(db, async (t) => {
+    // site_settings is one JSON value per key: the same statements as settings-store's writeSetting, inside `t`.
+    const prev = await selectRows<{ value: unknown }>(t, `select value from site_settings where key = 'acceptance' for update`);
+    await selectRows(
+      t,
+      `insert into site_settings (key, value, updated_at) values ('acceptance', $1::jsonb, now())
+       on conflict (key) do update set value = excluded.value, updated_at = now() returning key`,
+      [JSON.stringify(parsed)],
+    );
+    await auditIn(t, actor, {
+      action: 'settings.acceptance',
+      entity: 'site_settings',
+      entityId: 'acceptance',
+      before: prev[0]?.value ?? null,
+      after: parsed,
+    });
+    return parsed;
+  });
 }

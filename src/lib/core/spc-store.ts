@@ -285,7 +285,10 @@ export interface NewLimitSet {
 export async function insertDraftLimitSet(db: Db, s: NewLimitSet): Promise<LimitSetView> {
   return inTransaction(db, async (t) => {
     await execute(t, 'select pg_advisory_xact_lock($1, $2)', [LOCK_NS + 1, s.characteristicId]);
-    const latest = (await LimitSet.max('version', { where: { characteristicId: s.characteristicId }, transaction: t }));
+    const latest = await LimitSet.max<number | null, LimitSet>('version', {
+      where: { characteristicId: s.characteristicId },
+      transaction: t,
+    });
     const ls = s.limitSet;
     const row = await LimitSet.create(
       {

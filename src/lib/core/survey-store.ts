@@ -65,7 +65,7 @@ export async function recordSurveyRecord(
       },
       { transaction: t },
     );
-    await attachFile(pgBridge(sequelize, t), {
+    await attachFile(t, {
       surveyId: row.id,
       name: input.fileName,
       bytes: new TextEncoder().encode(input.csv),

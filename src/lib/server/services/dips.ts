@@ -4,14 +4,19 @@
  * The dip-run record itself (bath charge, last check, stroke speed) is built by the job store.
  */
 import { createHash } from 'node:crypto';
+import { Op } from 'sequelize';
 import { CsvSyntaxError } from '../../shared/csv-table.ts';
 import { validateJobCsv, type DipRunCreate, type JobCsvPreview } from '../../shared/jobs.ts';
-import { audit } from '../audit.ts';
 import type { SessionUser } from '../auth.ts';
-import { pgPool } from '../db.ts';
+import { Asset, Job } from '../../../../db/models/index.ts';
+import { sequelize } from '../db.ts';
+import { selectRows } from '../../core/record-db.ts';
+
+/** A raw SELECT through the web process's Sequelize instance (bind parameters). */
+const rawRows = <T extends object>(sql: string, bind: unknown[] = []) => selectRows<T>(sequelize(), sql, bind);
 import { actorOf } from '../guard.ts';
 import { HttpProblem } from '../http.ts';
-import { attachJobsToDipRun, createDipRun, upsertJobs, upsertRack, type DipRunCreated } from '../../core/job-store.ts';
+import { createDipRun, importJobs, type DipRunCreated } from '../../core/job-store.ts';
 import type { LineRow, DipRunItem, JobSearchItem } from '../../shared/trace-views.ts';
 
 const bad = (path: string, message: string) =>
@@ -19,8 +24,8 @@ const bad = (path: string, message: string) =>
 
 /** Every dip line. */
 export async function listLines(): Promise<LineRow[]> {
-  const { rows } = await pgPool().query<LineRow>(`select id, code, name from assets where kind = 'line' order by code`);
-  return rows;
+  sequelize();
+  return Asset.findAll({ attributes: ['id', 'code', 'name'], where: { kind: 'line' }, order: [['code', 'ASC']], raw: true });
 }
 
 const DIP_SELECT = `
@@ -96,7 +101,7 @@ export async function listDipRuns(f: {
     where.push(
       `exists (select 1 from dip_run_jobs dj join jobs j on j.id = dj.job_id where dj.dip_run_id = d.id and j.job_number = ${arg(f.job)})`,
     );
-  const { rows } = await pgPool().query<DipRow>(
+  const rows = await rawRows<DipRow>(
     `${DIP_SELECT} ${where.length ? 'where ' + where.join(' and ') : ''} order by d.dipped_at desc, d.id desc limit ${arg(f.limit)}`,
     args,
   );
@@ -104,7 +109,7 @@ export async function listDipRuns(f: {
 }
 
 export async function getDipRun(id: number): Promise<DipRunItem | null> {
-  const { rows } = await pgPool().query<DipRow>(`${DIP_SELECT} where d.id = $1`, [id]);
+  const rows = await rawRows<DipRow>(`${DIP_SELECT} where d.id = $1`, [id]);
   return rows[0] ? toItem(rows[0]) : null;
 }
 
@@ -118,29 +123,19 @@ export async function recordDipRun(
   const atMs = input.dippedAt ? Date.parse(input.dippedAt) : now;
   if (atMs > now + 5 * 60_000) throw bad('dippedAt', 'The dip time is in the future.');
   if (atMs < now - 7 * 86_400_000) throw bad('dippedAt', 'A dip run can be back-dated by at most 7 days.');
-  const r = await createDipRun(pgPool(), {
-    lineAssetId: input.lineAssetId,
-    dippedAtMs: atMs,
-    rackCode: input.rackCode ?? null,
-    jobNumbers: input.jobNumbers,
-    note: input.note ?? null,
-    source: user.via === 'token' ? 'api' : 'scan',
-    userId: user.id,
-  });
-  await audit(actorOf(user, address), {
-    action: 'dip.record',
-    entity: 'dip_run',
-    entityId: r.id,
-    after: {
-      lineAssetId: r.lineAssetId,
-      dippedAt: r.dippedAt,
+  const r = await createDipRun(
+    sequelize(),
+    {
+      lineAssetId: input.lineAssetId,
+      dippedAtMs: atMs,
       rackCode: input.rackCode ?? null,
-      jobs: input.jobNumbers,
-      bathChargeId: r.bathChargeId,
-      lastCheckId: r.lastCheckId,
-      withdrawalSpeedMmS: r.withdrawalSpeedMmS,
+      jobNumbers: input.jobNumbers,
+      note: input.note ?? null,
+      source: user.via === 'token' ? 'api' : 'scan',
+      userId: user.id,
     },
-  });
+    actorOf(user, address),
+  );
   return { ...r, item: (await getDipRun(r.id))! };
 }
 
@@ -166,11 +161,12 @@ export interface JobImportPreview extends JobCsvPreview {
 /** Step 1: check the CSV and say which rows are good, which are bad (with line numbers). Nothing is stored. */
 export async function previewJobCsv(csv: string): Promise<JobImportPreview> {
   const p = validate(csv);
-  const { rows } = await pgPool().query<{ job_number: string }>(
-    `select job_number from jobs where job_number = any($1::text[])`,
-    [p.good.map((g) => g.jobNumber)],
-  );
-  return { ...p, sha256: csvFingerprint(csv), existing: rows.map((r) => r.job_number) };
+  sequelize();
+  const known = await Job.findAll({
+    attributes: ['jobNumber'],
+    where: { jobNumber: { [Op.in]: p.good.map((g) => g.jobNumber) } },
+  });
+  return { ...p, sha256: csvFingerprint(csv), existing: known.map((r) => r.jobNumber) };
 }
 
 /** Step 2: store the good rows of the CSV the user confirmed (same fingerprint as its preview). */
@@ -185,43 +181,21 @@ export async function commitJobCsv(
     });
   }
   const p = validate(input.csv);
-  if (p.good.length === 0) throw bad('csv', 'No good rows to import.');
-  const pool = pgPool();
-  if (input.dipRunId !== undefined) {
-    const d = await pool.query('select 1 from dip_runs where id = $1', [input.dipRunId]);
-    if (!d.rowCount) throw bad('dipRunId', 'No such dip run.');
-  }
-  const before = await pool.query<{ n: number }>(`select count(*)::int as n from jobs where job_number = any($1::text[])`, [
-    p.good.map((g) => g.jobNumber),
-  ]);
-  const ids = await upsertJobs(
-    pool,
-    p.good.map((g) => g.jobNumber),
-    new Map(p.good.map((g) => [g.jobNumber, { customerRef: g.customerRef, lensMaterial: g.lensMaterial }])),
+  return importJobs(
+    sequelize(),
+    { good: p.good, skippedLines: p.bad.map((b) => b.line), sha256: input.sha256, dipRunId: input.dipRunId },
+    actorOf(user, address),
   );
-  for (const code of new Set(p.good.map((g) => g.rackCode).filter((c): c is string => !!c))) await upsertRack(pool, code);
-  if (input.dipRunId !== undefined) await attachJobsToDipRun(pool, input.dipRunId, [...ids.values()]);
-  const result = {
-    imported: p.good.length,
-    created: p.good.length - (before.rows[0]?.n ?? 0),
-    skippedLines: p.bad.map((b) => b.line),
-    attachedTo: input.dipRunId ?? null,
-    jobNumbers: p.good.map((g) => g.jobNumber),
-  };
-  await audit(actorOf(user, address), {
-    action: 'jobs.import',
-    entity: 'jobs',
-    entityId: input.sha256.slice(0, 16),
-    after: { ...result, jobNumbers: undefined, count: p.good.length },
-  });
-  return result;
 }
 
 /** Jobs whose number starts with `q` (at most 20), for search boxes. */
 export async function searchJobs(q: string): Promise<JobSearchItem[]> {
-  const { rows } = await pgPool().query<{ job_number: string; status: string; customer_ref: string | null }>(
-    `select job_number, status, customer_ref from jobs where job_number ilike $1 || '%' order by job_number desc limit 20`,
-    [q.replace(/[%_\\]/g, '\\$&')],
-  );
-  return rows.map((r) => ({ jobNumber: r.job_number, status: r.status, customerRef: r.customer_ref }));
+  sequelize();
+  const rows = await Job.findAll({
+    attributes: ['jobNumber', 'status', 'customerRef'],
+    where: { jobNumber: { [Op.iLike]: `${q.replace(/[%_\\]/g, '\\$&')}%` } },
+    order: [['jobNumber', 'DESC']],
+    limit: 20,
+  });
+  return rows.map((r) => ({ jobNumber: r.jobNumber, status: r.status, customerRef: r.customerRef }));
 }

@@ -17,7 +17,11 @@ import {
 } from '../../shared/floor.ts';
 import { windowRangeFor } from '../../shared/trend.ts';
 import type { ProcessWindowInForce } from '../../shared/windows.ts';
-import { pgPool } from '../db.ts';
+import { sequelize } from '../db.ts';
+import { poolView, selectRows } from '../../core/record-db.ts';
+
+/** A raw SELECT through the web process's Sequelize instance (bind parameters). */
+const rawRows = <T extends object>(sql: string, bind: unknown[] = []) => selectRows<T>(sequelize(), sql, bind);
 import { ovenChannels } from '../../core/load-store.ts';
 import { siteTimeZone } from '../../core/settings-store.ts';
 import { windowInForce } from '../../core/window-store.ts';
@@ -41,23 +45,21 @@ interface AssetLite {
 
 /** The site's name and time zone (sites.time_zone; the first site). */
 export async function siteInfo(): Promise<{ name: string; timeZone: string }> {
-  const pool = pgPool();
-  const { rows } = await pool.query<{ name: string }>('select name from sites order by id limit 1');
-  return { name: rows[0]?.name ?? 'Coatrail', timeZone: await siteTimeZone(pool) };
+  const rows = await rawRows<{ name: string }>('select name from sites order by id limit 1');
+  return { name: rows[0]?.name ?? 'Coatrail', timeZone: await siteTimeZone(poolView(sequelize())) };
 }
 
 export async function floorSnapshot(nowMs = Date.now()): Promise<FloorSnapshot> {
-  const pool = pgPool();
   const [site, assetsQ, channels, latest, devicesQ, alarmsQ, loadsQ] = await Promise.all([
     siteInfo(),
-    pool.query<AssetLite>('select id, parent_id, kind, code, name from assets order by code'),
+    rawRows<AssetLite>('select id, parent_id, kind, code, name from assets order by code'),
     listChannels(),
     latestReadings(),
-    pool.query<{ id: number; name: string; username: string; online: boolean; last_seen_ms: number | null }>(
+    rawRows<{ id: number; name: string; username: string; online: boolean; last_seen_ms: number | null }>(
       `select id, name, username, online, (extract(epoch from last_seen_at) * 1000)::float8 as last_seen_ms
          from devices where enabled order by username`,
     ),
-    pool.query<{
+    rawRows<{
       id: number;
       priority: FloorAlarm['priority'];
       state: string;
@@ -69,14 +71,14 @@ export async function floorSnapshot(nowMs = Date.now()): Promise<FloorSnapshot> 
       `select id, priority, state, message, (extract(epoch from last_activated_at) * 1000)::float8 as raised_ms, channel_id, asset_id
          from alarms where state <> 'normal' order by last_activated_at desc limit 1000`,
     ),
-    pool.query<{ id: number; oven_asset_id: number; opened_ms: number; jobs: number }>(
+    rawRows<{ id: number; oven_asset_id: number; opened_ms: number; jobs: number }>(
       `select l.id, l.oven_asset_id, (extract(epoch from l.opened_at) * 1000)::float8 as opened_ms,
               (select count(*)::int from load_jobs j where j.load_id = l.id) as jobs
          from oven_loads l where l.status = 'open'`,
     ),
   ]);
 
-  const assets = new Map(assetsQ.rows.map((a) => [a.id, a]));
+  const assets = new Map(assetsQ.map((a) => [a.id, a]));
   const topOf = (id: number | null): AssetLite | null => {
     let a = id === null ? undefined : assets.get(id);
     for (let depth = 0; a && a.parent_id !== null && depth < 16; depth++) a = assets.get(a.parent_id);
@@ -87,13 +89,13 @@ export async function floorSnapshot(nowMs = Date.now()): Promise<FloorSnapshot> 
   const windows = new Map<number, ProcessWindowInForce | null>();
   await Promise.all(
     [...new Set(channels.map((c) => c.assetId))].map(async (assetId) => {
-      windows.set(assetId, await windowInForce(pool, assetId, nowMs));
+      windows.set(assetId, await windowInForce(poolView(sequelize()), assetId, nowMs));
     }),
   );
 
   const channelAsset = new Map(channels.map((c) => [c.id, c.assetId]));
   const tiles = new Map<number, FloorTile>();
-  for (const a of assetsQ.rows) {
+  for (const a of assetsQ) {
     if (a.parent_id !== null || !(TILE_KINDS as readonly string[]).includes(a.kind)) continue;
     tiles.set(a.id, {
       id: a.id,
@@ -110,7 +112,7 @@ export async function floorSnapshot(nowMs = Date.now()): Promise<FloorSnapshot> 
   }
 
   const channelAlarms = new Map<number, { n: number; top: FloorAlarm['priority'] }>();
-  for (const r of alarmsQ.rows) {
+  for (const r of alarmsQ) {
     const tile = tiles.get(
       topOf(r.asset_id ?? (r.channel_id !== null ? (channelAsset.get(r.channel_id) ?? null) : null))?.id ?? -1,
     );
@@ -168,13 +170,13 @@ export async function floorSnapshot(nowMs = Date.now()): Promise<FloorSnapshot> 
   }
 
   await Promise.all(
-    loadsQ.rows.map(async (l) => {
+    loadsQ.map(async (l) => {
       const tile = tiles.get(l.oven_asset_id);
       if (tile) tile.load = await loadState(l.id, l.oven_asset_id, l.opened_ms, l.jobs, nowMs);
     }),
   );
 
-  const devices: FloorDevice[] = devicesQ.rows.map((d) => ({
+  const devices: FloorDevice[] = devicesQ.map((d) => ({
     id: d.id,
     name: d.name,
     username: d.username,
@@ -192,8 +194,7 @@ export async function floorSnapshot(nowMs = Date.now()): Promise<FloorSnapshot> 
  * by the Arrhenius factor (ASTM C1074 equivalent-age form, as the cure record computes it).
  */
 async function loadState(id: number, ovenAssetId: number, openedMs: number, jobs: number, nowMs: number): Promise<FloorLoad> {
-  const pool = pgPool();
-  const oven = await ovenChannels(pool, ovenAssetId);
+  const oven = await ovenChannels(sequelize(), ovenAssetId);
   const base: FloorLoad = {
     id,
     openedAtMs: openedMs,
@@ -206,20 +207,20 @@ async function loadState(id: number, ovenAssetId: number, openedMs: number, jobs
   if (!oven || oven.zones.length === 0) return base;
   const sp = oven.setpointId
     ? ((
-        await pool.query<{ v: number }>('select value as v from readings where channel_id = $1 order by ts desc limit 1', [
+        await rawRows<{ v: number }>('select value as v from readings where channel_id = $1 order by ts desc limit 1', [
           oven.setpointId,
         ])
-      ).rows[0]?.v ?? null)
+      )[0]?.v ?? null)
     : null;
   const from = Math.max(openedMs, nowMs - 6 * 3_600_000);
-  const [{ rows }, w] = await Promise.all([
-    pool.query<{ t: number; v: number }>(
+  const [rows, w] = await Promise.all([
+    rawRows<{ t: number; v: number }>(
       `select (extract(epoch from date_bin('1 minute', ts, 'epoch'::timestamptz)) * 1000)::float8 as t, min(value) as v
          from readings where channel_id = any($1::int[]) and ts >= to_timestamp($2::float8 / 1000) and quality < 2
         group by 1 order by 1`,
       [oven.zones.map((z) => z.id), from],
     ),
-    windowInForce(pool, ovenAssetId, openedMs),
+    windowInForce(poolView(sequelize()), ovenAssetId, openedMs),
   ]);
   let soakMinutes = Number.NaN;
   if (w) {

@@ -7,7 +7,6 @@
  */
 import { toCsv } from '../../shared/csv-table.ts';
 import {
-  DISPOSITION_JOB_STATUS,
   DISPOSITION_LABELS,
   type Disposition,
   type HoldClose,
@@ -16,16 +15,18 @@ import {
   type NcDisposition,
 } from '../../shared/quality.ts';
 import type { SignatureRecord } from '../../../../db/models/index.ts';
-import { audit } from '../audit.ts';
+import { Op } from 'sequelize';
+import { Asset, Job, NcDisposition as NcDispositionRow, NcTest, OvenLoad, QualityTest } from '../../../../db/models/index.ts';
+import * as core from '../../core/hold-store.ts';
 import { signWithPassword, type SessionUser } from '../auth.ts';
-import { pgPool } from '../db.ts';
+import { sequelize } from '../db.ts';
+import { poolView, selectRows } from '../../core/record-db.ts';
+
+/** A raw SELECT through the web process's Sequelize instance (bind parameters). */
+const rawRows = <T extends object>(sql: string, bind: unknown[] = []) => selectRows<T>(sequelize(), sql, bind);
 import { actorOf } from '../guard.ts';
-import { HttpProblem } from '../http.ts';
 import { siteTimeZone } from '../../core/settings-store.ts';
 import type { HoldItem, NcItem, NcDetail } from '../../shared/trace-views.ts';
-
-const bad = (path: string, message: string) =>
-  new HttpProblem(400, 'Invalid input', `${path}: ${message}`, { errors: [{ path, message }] });
 
 const HOLD_SELECT = `
   select h.id, j.job_number, j.status as job_status, h.reason, h.placed_at, pu.display_name as placed_by, h.status, h.disposition,
@@ -81,7 +82,7 @@ export async function listHolds(f: {
   if (f.status !== 'all') where.push(`h.status = ${arg(f.status)}`);
   if (f.job) where.push(`j.job_number = ${arg(f.job)}`);
   if (f.ncId) where.push(`h.nc_id = ${arg(f.ncId)}`);
-  const { rows } = await pgPool().query<HoldRow>(
+  const rows = await rawRows<HoldRow>(
     `${HOLD_SELECT} ${where.length ? 'where ' + where.join(' and ') : ''} order by h.placed_at desc, h.id desc limit 2000`,
     args,
   );
@@ -89,7 +90,7 @@ export async function listHolds(f: {
 }
 
 export async function holdsCsv(items: HoldItem[]): Promise<string> {
-  const tz = await siteTimeZone(pgPool());
+  const tz = await siteTimeZone(poolView(sequelize()));
   const t = (s: string | null) => (s ? new Date(s).toLocaleString('sv-SE', { timeZone: tz }) : '');
   return toCsv(
     [
@@ -132,138 +133,33 @@ export async function placeHolds(
   input: HoldPlace,
   address: string | null,
 ): Promise<{ placed: { holdId: number; jobNumber: string }[]; alreadyHeld: string[] }> {
-  const pool = pgPool();
-  const nums = [...new Set(input.jobNumbers)];
-  const jobs = await pool.query<{ id: number; job_number: string; status: string }>(
-    'select id, job_number, status from jobs where job_number = any($1::text[])',
-    [nums],
+  return core.placeHolds(
+    sequelize(),
+    { jobNumbers: input.jobNumbers, reason: input.reason, ncId: input.ncId, userId: user.id },
+    actorOf(user, address),
   );
-  const known = new Map(jobs.rows.map((r) => [r.job_number, r]));
-  const unknown = nums.filter((n) => !known.has(n));
-  if (unknown.length) throw bad('jobNumbers', `Unknown job number(s): ${unknown.join(', ')}.`);
-  if (input.ncId !== undefined) {
-    const nc = await pool.query('select 1 from nonconformances where id = $1', [input.ncId]);
-    if (!nc.rowCount) throw bad('ncId', 'No such nonconformance.');
-  }
-  const c = await pool.connect();
-  const placed: { holdId: number; jobNumber: string }[] = [];
-  const alreadyHeld: string[] = [];
-  const before = new Map<string, string>();
-  try {
-    await c.query('begin');
-    for (const n of nums) {
-      const job = known.get(n)!;
-      const r = await c.query<{ id: number }>(
-        `insert into holds (job_id, nc_id, reason, placed_by) values ($1, $2, $3, $4)
-         on conflict (job_id) where status = 'active' do nothing returning id`,
-        [job.id, input.ncId ?? null, input.reason, user.id],
-      );
-      if (!r.rows[0]) {
-        alreadyHeld.push(n);
-        continue;
-      }
-      before.set(n, job.status);
-      await c.query(`update jobs set status = 'held', updated_at = now() where id = $1`, [job.id]);
-      placed.push({ holdId: r.rows[0].id, jobNumber: n });
-    }
-    await c.query('commit');
-  } catch (e) {
-    await c.query('rollback').catch(() => {});
-    throw e;
-  } finally {
-    c.release();
-  }
-  const actor = actorOf(user, address);
-  for (const p of placed) {
-    await audit(actor, {
-      action: 'hold.place',
-      entity: 'hold',
-      entityId: p.holdId,
-      before: { jobNumber: p.jobNumber, jobStatus: before.get(p.jobNumber) },
-      after: { jobNumber: p.jobNumber, jobStatus: 'held', reason: input.reason, ncId: input.ncId ?? null },
-    });
-  }
-  return { placed, alreadyHeld };
 }
 
-async function closeHoldsSigned(
-  user: SessionUser,
-  holdIds: readonly number[],
-  disposition: Disposition,
-  comment: string,
-  signature: SignatureRecord,
-  address: string | null,
-  ncId: number | null,
-): Promise<HoldItem[]> {
-  const pool = pgPool();
-  const ids = [...new Set(holdIds)];
-  const c = await pool.connect();
-  const changed: { id: number; jobNumber: string; jobStatusBefore: string }[] = [];
-  try {
-    await c.query('begin');
-    const { rows } = await c.query<{
-      id: number;
-      job_id: number;
-      status: string;
-      nc_id: number | null;
-      job_number: string;
-      job_status: string;
-    }>(
-      `select h.id, h.job_id, h.status, h.nc_id, j.job_number, j.status as job_status from holds h join jobs j on j.id = h.job_id where h.id = any($1::int[]) for update of h`,
-      [ids],
-    );
-    const found = new Map(rows.map((r) => [r.id, r]));
-    const missing = ids.filter((i) => !found.has(i));
-    if (missing.length) throw bad('holdIds', `No such hold(s): ${missing.join(', ')}.`);
-    const closed = rows.filter((r) => r.status !== 'active');
-    if (closed.length)
-      throw new HttpProblem(
-        409,
-        'Hold already closed',
-        `Hold(s) ${closed.map((r) => `${r.id} (${r.job_number})`).join(', ')} are already closed.`,
-      );
-    if (ncId !== null) {
-      const other = rows.filter((r) => r.nc_id !== ncId);
-      if (other.length)
-        throw bad('holdIds', `Hold(s) ${other.map((r) => r.id).join(', ')} do not belong to nonconformance ${ncId}.`);
-    }
-    for (const r of rows) {
-      await c.query(
-        `update holds set status = 'closed', disposition = $2, disposition_comment = $3, closed_at = now(), closed_by = $4, signature = $5::jsonb where id = $1`,
-        [r.id, disposition, comment || null, user.id, JSON.stringify(signature)],
-      );
-      await c.query(`update jobs set status = $2, updated_at = now() where id = $1`, [
-        r.job_id,
-        DISPOSITION_JOB_STATUS[disposition],
-      ]);
-      changed.push({ id: r.id, jobNumber: r.job_number, jobStatusBefore: r.job_status });
-    }
-    await c.query('commit');
-  } catch (e) {
-    await c.query('rollback').catch(() => {});
-    throw e;
-  } finally {
-    c.release();
-  }
-  const actor = actorOf(user, address);
-  for (const h of changed) {
-    await audit(actor, {
-      action: disposition === 'release' ? 'hold.release' : 'hold.disposition',
-      entity: 'hold',
-      entityId: h.id,
-      before: { status: 'active', jobNumber: h.jobNumber, jobStatus: h.jobStatusBefore },
-      after: { status: 'closed', disposition, comment, jobStatus: DISPOSITION_JOB_STATUS[disposition], ncId },
-      signature,
-    });
-  }
-  const { rows } = await pool.query<HoldRow>(`${HOLD_SELECT} where h.id = any($1::int[]) order by h.id`, [ids]);
+async function holdsById(ids: readonly number[]): Promise<HoldItem[]> {
+  const rows = await rawRows<HoldRow>(`${HOLD_SELECT} where h.id = any($1::int[]) order by h.id`, [[...ids]]);
   return rows.map(toHold);
 }
 
-/** Release or disposition holds (quality, signed). The password is checked first: a wrong one changes nothing (403). */
+/** The signer's signature: the password again and the meaning (checked by the auth service). */
+const signer =
+  (user: SessionUser, password: string, meaning: string, address: string | null): core.Sign =>
+  () =>
+    signWithPassword(user, password, meaning, address);
+
+/** Release or disposition holds (quality, signed). A wrong password changes nothing (403). */
 export async function closeHolds(user: SessionUser, input: HoldClose, address: string | null): Promise<HoldItem[]> {
-  const signature = await signWithPassword(user, input.password, input.meaning, address);
-  return closeHoldsSigned(user, input.holdIds, input.disposition, input.comment, signature, address, null);
+  const ids = await core.closeHolds(
+    sequelize(),
+    { holdIds: input.holdIds, disposition: input.disposition, comment: input.comment, userId: user.id },
+    signer(user, input.password, input.meaning, address),
+    actorOf(user, address),
+  );
+  return holdsById(ids);
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -314,7 +210,7 @@ const toNc = (r: NcRow): NcItem => ({
 });
 
 export async function listNcs(status?: 'open' | 'closed'): Promise<NcItem[]> {
-  const { rows } = await pgPool().query<NcRow>(
+  const rows = await rawRows<NcRow>(
     `${NC_SELECT} ${status ? 'where n.status = $1' : ''} order by n.opened_at desc limit 1000`,
     status ? [status] : [],
   );
@@ -322,69 +218,61 @@ export async function listNcs(status?: 'open' | 'closed'): Promise<NcItem[]> {
 }
 
 export async function getNc(id: number): Promise<NcDetail | null> {
-  const pool = pgPool();
-  const { rows } = await pool.query<NcRow>(`${NC_SELECT} where n.id = $1`, [id]);
+  const rows = await rawRows<NcRow>(`${NC_SELECT} where n.id = $1`, [id]);
   const n = rows[0];
   if (!n) return null;
-  const tests = await pool.query<{
-    id: number;
-    job_number: string;
-    kind: string;
-    result: string;
-    tested_at: Date;
-    computed: Record<string, unknown>;
-  }>(
-    `select t.id, j.job_number, t.kind, t.result, t.tested_at, t.computed from nc_tests x join quality_tests t on t.id = x.test_id join jobs j on j.id = t.job_id where x.nc_id = $1 order by t.tested_at`,
-    [id],
-  );
-  const disp = await pool.query<{
-    id: number;
-    disposition: Disposition;
-    job_numbers: string[];
-    comment: string;
-    signature: SignatureRecord;
-    at: Date;
-  }>(
-    `select d.id, d.disposition, array(select j.job_number from jobs j where j.id = any(d.job_ids) order by j.job_number) as job_numbers, d.comment, d.signature, d.at
-       from nc_dispositions d where d.nc_id = $1 order by d.at`,
-    [id],
+  const tests = (await QualityTest.findAll({
+    attributes: ['id', 'kind', 'result', 'testedAt', 'computed'],
+    where: { id: { [Op.in]: (await NcTest.findAll({ attributes: ['testId'], where: { ncId: id } })).map((x) => x.testId) } },
+    include: [{ model: Job, attributes: ['jobNumber'], required: true }],
+    order: [['testedAt', 'ASC']],
+  })) as (QualityTest & { Job: Job })[];
+  const disp = await NcDispositionRow.findAll({ where: { ncId: id }, order: [['at', 'ASC']] });
+  const dispJobs = new Map(
+    (
+      await Job.findAll({
+        attributes: ['id', 'jobNumber'],
+        where: { id: { [Op.in]: [...new Set(disp.flatMap((d) => d.jobIds))] } },
+      })
+    ).map((j) => [j.id, j.jobNumber]),
   );
   const load = n.suspected_load_id
-    ? (
-        await pool.query<{ id: number; oven_name: string; opened_at: Date; verdict: string | null }>(
-          `select l.id, a.name as oven_name, l.opened_at, l.verdict from oven_loads l join assets a on a.id = l.oven_asset_id where l.id = $1`,
-          [n.suspected_load_id],
-        )
-      ).rows[0]
-    : undefined;
+    ? ((await OvenLoad.findByPk(n.suspected_load_id, {
+        attributes: ['id', 'openedAt', 'verdict'],
+        include: [{ model: Asset, as: 'oven', attributes: ['name'], required: true }],
+      })) as (OvenLoad & { oven: Asset }) | null)
+    : null;
   const charge = n.suspected_bath_charge_id
     ? (
-        await pool.query<{ id: number; tank_code: string; lot_code: string; charged_at: Date }>(
+        await rawRows<{ id: number; tank_code: string; lot_code: string; charged_at: Date }>(
           `select c.id, a.code as tank_code, lo.lot_code, c.charged_at from bath_charges c join assets a on a.id = c.tank_asset_id join lacquer_lots lo on lo.id = c.lot_id where c.id = $1`,
           [n.suspected_bath_charge_id],
         )
-      ).rows[0]
+      )[0]
     : undefined;
   return {
     ...toNc(n),
-    testList: tests.rows.map((t) => ({
+    testList: tests.map((t) => ({
       id: t.id,
-      jobNumber: t.job_number,
+      jobNumber: t.Job.jobNumber,
       kind: t.kind,
       result: t.result,
-      testedAt: t.tested_at.toISOString(),
+      testedAt: t.testedAt.toISOString(),
       summary: String(t.computed['summary'] ?? ''),
     })),
     holdList: await listHolds({ status: 'all', ncId: id }),
-    dispositions: disp.rows.map((d) => ({
+    dispositions: disp.map((d) => ({
       id: d.id,
       disposition: d.disposition,
-      jobNumbers: d.job_numbers,
+      jobNumbers: d.jobIds
+        .map((j) => dispJobs.get(j))
+        .filter((j): j is string => j !== undefined)
+        .sort(),
       comment: d.comment,
       signature: d.signature,
       at: d.at.toISOString(),
     })),
-    load: load ? { id: load.id, ovenName: load.oven_name, openedAt: load.opened_at.toISOString(), verdict: load.verdict } : null,
+    load: load ? { id: load.id, ovenName: load.oven.name, openedAt: load.openedAt.toISOString(), verdict: load.verdict } : null,
     bathCharge: charge
       ? { id: charge.id, tankCode: charge.tank_code, lotCode: charge.lot_code, chargedAt: charge.charged_at.toISOString() }
       : null,
@@ -393,60 +281,7 @@ export async function getNc(id: number): Promise<NcDetail | null> {
 
 /** Write a nonconformance (quality) tying failed test(s), the suspected cause and existing holds together. */
 export async function createNc(user: SessionUser, input: NcCreate, address: string | null): Promise<NcDetail> {
-  const pool = pgPool();
-  const tests = await pool.query<{ id: number; result: string }>(
-    'select id, result from quality_tests where id = any($1::int[])',
-    [input.testIds],
-  );
-  const missing = input.testIds.filter((t) => !tests.rows.some((r) => r.id === t));
-  if (missing.length) throw bad('testIds', `No such test(s): ${missing.join(', ')}.`);
-  const passed = tests.rows.filter((r) => r.result !== 'fail');
-  if (passed.length)
-    throw bad('testIds', `Test(s) ${passed.map((r) => r.id).join(', ')} passed; a nonconformance ties failed tests.`);
-  if (
-    input.suspectedLoadId !== undefined &&
-    !(await pool.query('select 1 from oven_loads where id = $1', [input.suspectedLoadId])).rowCount
-  )
-    throw bad('suspectedLoadId', 'No such oven load.');
-  if (
-    input.suspectedBathChargeId !== undefined &&
-    !(await pool.query('select 1 from bath_charges where id = $1', [input.suspectedBathChargeId])).rowCount
-  )
-    throw bad('suspectedBathChargeId', 'No such bath charge.');
-  const c = await pool.connect();
-  let id: number;
-  try {
-    await c.query('begin');
-    const r = await c.query<{ id: number }>(
-      `insert into nonconformances (title, description, suspected_cause, suspected_load_id, suspected_bath_charge_id, opened_by)
-       values ($1, $2, $3, $4, $5, $6) returning id`,
-      [
-        input.title,
-        input.description,
-        input.suspectedCause,
-        input.suspectedLoadId ?? null,
-        input.suspectedBathChargeId ?? null,
-        user.id,
-      ],
-    );
-    id = r.rows[0]!.id;
-    await c.query('insert into nc_tests (nc_id, test_id) select $1, unnest($2::int[]) on conflict do nothing', [
-      id,
-      input.testIds,
-    ]);
-    if (input.holdIds.length) {
-      const h = await c.query(`update holds set nc_id = $1 where id = any($2::int[]) and status = 'active'`, [id, input.holdIds]);
-      if ((h.rowCount ?? 0) !== new Set(input.holdIds).size)
-        throw bad('holdIds', 'Only active holds can be tied to a nonconformance.');
-    }
-    await c.query('commit');
-  } catch (e) {
-    await c.query('rollback').catch(() => {});
-    throw e;
-  } finally {
-    c.release();
-  }
-  await audit(actorOf(user, address), { action: 'nc.create', entity: 'nonconformance', entityId: id, after: input });
+  const id = await core.createNc(sequelize(), { ...input, userId: user.id }, actorOf(user, address), input);
   return (await getNc(id))!;
 }
 
@@ -457,32 +292,13 @@ export async function dispositionNc(
   input: NcDisposition,
   address: string | null,
 ): Promise<NcDetail> {
-  const pool = pgPool();
-  const nc = await pool.query<{ status: string }>('select status from nonconformances where id = $1', [ncId]);
-  if (!nc.rows[0]) throw new HttpProblem(404, 'Not found', 'No such nonconformance.');
-  if (nc.rows[0].status !== 'open')
-    throw new HttpProblem(409, 'Nonconformance closed', 'A closed nonconformance takes no more dispositions.');
-  const signature = await signWithPassword(user, input.password, input.meaning, address);
-  const holds = await closeHoldsSigned(user, input.holdIds, input.disposition, input.comment, signature, address, ncId);
-  const jobIds = await pool.query<{ id: number }>('select id from jobs where job_number = any($1::text[])', [
-    holds.map((h) => h.jobNumber),
-  ]);
-  const r = await pool.query<{ id: number }>(
-    `insert into nc_dispositions (nc_id, disposition, job_ids, comment, signature) values ($1, $2, $3, $4, $5::jsonb) returning id`,
-    [ncId, input.disposition, jobIds.rows.map((x) => x.id), input.comment, JSON.stringify(signature)],
+  await core.dispositionNc(
+    sequelize(),
+    ncId,
+    { holdIds: input.holdIds, disposition: input.disposition, comment: input.comment, userId: user.id },
+    signer(user, input.password, input.meaning, address),
+    actorOf(user, address),
   );
-  await audit(actorOf(user, address), {
-    action: 'nc.disposition',
-    entity: 'nonconformance',
-    entityId: ncId,
-    after: {
-      dispositionId: r.rows[0]!.id,
-      disposition: input.disposition,
-      jobs: holds.map((h) => h.jobNumber),
-      comment: input.comment,
-    },
-    signature,
-  });
   return (await getNc(ncId))!;
 }
 
@@ -493,32 +309,12 @@ export async function closeNc(
   input: { comment: string; password: string; meaning: string },
   address: string | null,
 ): Promise<NcDetail> {
-  const pool = pgPool();
-  const nc = await pool.query<{ status: string; active: number }>(
-    `select n.status, (select count(*)::int from holds h where h.nc_id = n.id and h.status = 'active') as active from nonconformances n where n.id = $1`,
-    [ncId],
+  await core.closeNc(
+    sequelize(),
+    ncId,
+    { comment: input.comment, userId: user.id },
+    signer(user, input.password, input.meaning, address),
+    actorOf(user, address),
   );
-  const row = nc.rows[0];
-  if (!row) throw new HttpProblem(404, 'Not found', 'No such nonconformance.');
-  if (row.status !== 'open') throw new HttpProblem(409, 'Already closed', 'This nonconformance is already closed.');
-  if (row.active > 0)
-    throw new HttpProblem(
-      409,
-      'Jobs still on hold',
-      `${row.active} job(s) tied to this nonconformance are still on hold; disposition them first.`,
-    );
-  const signature = await signWithPassword(user, input.password, input.meaning, address);
-  await pool.query(
-    `update nonconformances set status = 'closed', closed_at = now(), closed_by = $2, close_signature = $3::jsonb where id = $1`,
-    [ncId, user.id, JSON.stringify(signature)],
-  );
-  await audit(actorOf(user, address), {
-    action: 'nc.close',
-    entity: 'nonconformance',
-    entityId: ncId,
-    before: { status: 'open' },
-    after: { status: 'closed', comment: input.comment },
-    signature,
-  });
   return (await getNc(ncId))!;
 }

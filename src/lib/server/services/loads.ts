@@ -14,10 +14,15 @@ import {
   type LoadOpen,
   type StoredCureRecord,
 } from '../../shared/jobs.ts';
-import { audit } from '../audit.ts';
 import type { SessionUser } from '../auth.ts';
 import { publishLive } from '../broker-link.ts';
-import { pgPool } from '../db.ts';
+import { Asset, Job, LoadJob, Rack } from '../../../../db/models/index.ts';
+import { testCountsOf } from '../../core/quality-store.ts';
+import { sequelize } from '../db.ts';
+import { poolView, selectRows } from '../../core/record-db.ts';
+
+/** A raw SELECT through the web process's Sequelize instance (bind parameters). */
+const rawRows = <T extends object>(sql: string, bind: unknown[] = []) => selectRows<T>(sequelize(), sql, bind);
 import { actorOf } from '../guard.ts';
 import { HttpProblem } from '../http.ts';
 import { addJobsToLoad, closeLoad, openLoad, ovenChannels, recomputeLoad, type RecomputeResult } from '../../core/load-store.ts';
@@ -36,8 +41,8 @@ export const TREND_MARGIN_MIN = 30;
 
 /** Every oven of the site. */
 export async function listOvens(): Promise<OvenRow[]> {
-  const { rows } = await pgPool().query<OvenRow>(`select id, code, name from assets where kind = 'oven' order by code`);
-  return rows;
+  sequelize();
+  return Asset.findAll({ attributes: ['id', 'code', 'name'], where: { kind: 'oven' }, order: [['code', 'ASC']], raw: true });
 }
 
 interface LoadRow {
@@ -102,24 +107,23 @@ function toItem(r: LoadRow, phase: string | null): LoadListItem {
 
 /** The phase of an open load from the last 3 h of zone readings (1-minute minima) and the latest setpoint. */
 export async function openLoadPhase(ovenAssetId: number, openedAtMs: number): Promise<OpenLoadPhase> {
-  const pool = pgPool();
-  const oven = await ovenChannels(pool, ovenAssetId);
+  const oven = await ovenChannels(sequelize(), ovenAssetId);
   if (!oven) return { phase: 'idle', setpointC: null, coldestC: null };
   const sp = oven.setpointId
     ? ((
-        await pool.query<{ v: number }>(`select value as v from readings where channel_id = $1 order by ts desc limit 1`, [
+        await rawRows<{ v: number }>(`select value as v from readings where channel_id = $1 order by ts desc limit 1`, [
           oven.setpointId,
         ])
-      ).rows[0]?.v ?? null)
+      )[0]?.v ?? null)
     : null;
   const from = Math.max(openedAtMs, Date.now() - 3 * 3_600_000);
-  const { rows } = await pool.query<{ t: number; v: number }>(
+  const rows = await rawRows<{ t: number; v: number }>(
     `select (floor(extract(epoch from ts) / 60) * 60000)::float8 as t, min(value) as v from readings
       where channel_id = any($1::int[]) and ts >= to_timestamp($2 / 1000.0) and quality < 2
       group by 1 order by 1`,
     [oven.zones.map((z) => z.id), from],
   );
-  const w = await windowInForce(pool, ovenAssetId, openedAtMs);
+  const w = await windowInForce(poolView(sequelize()), ovenAssetId, openedAtMs);
   const ph = ovenLoadPhase({
     setpointC: sp,
     readings: rows.map((r) => ({ tMs: r.t, tempC: r.v })),
@@ -142,7 +146,7 @@ export async function listLoads(q: LoadListQuery): Promise<LoadListItem[]> {
     where.push(
       `exists (select 1 from load_jobs lj join jobs j on j.id = lj.job_id where lj.load_id = l.id and j.job_number = ${arg(q.job)})`,
     );
-  const { rows } = await pgPool().query<LoadRow>(
+  const rows = await rawRows<LoadRow>(
     `${LOAD_SELECT} ${where.length ? 'where ' + where.join(' and ') : ''} order by l.opened_at desc limit ${arg(q.limit)}`,
     args,
   );
@@ -156,7 +160,7 @@ export async function listLoads(q: LoadListQuery): Promise<LoadListItem[]> {
 
 /** The load list as CSV (times in the site's zone with the zone named in the header). */
 export async function loadsCsv(items: LoadListItem[]): Promise<string> {
-  const tz = await siteTimeZone(pgPool());
+  const tz = await siteTimeZone(poolView(sequelize()));
   const fmt = (s: string | null) => (s ? new Date(s).toLocaleString('sv-SE', { timeZone: tz }) : '');
   return toCsv(
     [
@@ -205,7 +209,7 @@ export async function alarmsDuring(
   fromMs: number,
   toMs: number,
 ): Promise<LoadAlarm[]> {
-  const { rows } = await pgPool().query<{
+  const rows = await rawRows<{
     id: number;
     priority: string;
     state: string;
@@ -240,8 +244,7 @@ export async function alarmsDuring(
 
 /** The oven's setpoint, zone air temperatures and door over [from, to], each downsampled (LTTB) to ≤ 1500 points. */
 export async function ovenTrend(ovenAssetId: number, fromMs: number, toMs: number): Promise<TrendSeries[]> {
-  const pool = pgPool();
-  const oven = await ovenChannels(pool, ovenAssetId);
+  const oven = await ovenChannels(sequelize(), ovenAssetId);
   if (!oven) return [];
   const chans: { id: number; key: string; label: string; unit: string; kind: TrendSeries['kind'] }[] = [];
   if (oven.setpointId) chans.push({ id: oven.setpointId, key: 'setpoint', label: 'Setpoint', unit: '°C', kind: 'setpoint' });
@@ -249,7 +252,7 @@ export async function ovenTrend(ovenAssetId: number, fromMs: number, toMs: numbe
   if (oven.doorId) chans.push({ id: oven.doorId, key: 'door', label: 'Door (1 = open)', unit: '', kind: 'door' });
   const out: TrendSeries[] = [];
   for (const c of chans) {
-    const { rows } = await pool.query<{ x: number; y: number }>(
+    const rows = await rawRows<{ x: number; y: number }>(
       `select (extract(epoch from ts) * 1000)::float8 as x, value as y from readings
         where channel_id = $1 and ts between to_timestamp($2 / 1000.0) and to_timestamp($3 / 1000.0) and quality < 2 order by ts`,
       [c.id, fromMs, toMs],
@@ -272,37 +275,36 @@ export async function ovenTrend(ovenAssetId: number, fromMs: number, toMs: numbe
 
 /** One load with its record, jobs and the alarms during it; null when unknown. */
 export async function getLoad(id: number): Promise<LoadDetail | null> {
-  const pool = pgPool();
-  const { rows } = await pool.query<LoadRow>(`${LOAD_SELECT} where l.id = $1`, [id]);
+  const rows = await rawRows<LoadRow>(`${LOAD_SELECT} where l.id = $1`, [id]);
   const r = rows[0];
   if (!r) return null;
   const openPhase = r.status === 'open' ? await openLoadPhase(r.oven_asset_id, r.opened_at.getTime()) : null;
-  const jobs = await pool.query<{
-    job_id: number;
-    job_number: string;
-    status: string;
-    rack_code: string | null;
-    added_at: Date;
-    tests: number;
-    failed: number;
-  }>(
-    `select j.id as job_id, j.job_number, j.status, k.code as rack_code, lj.added_at,
-            (select count(*)::int from quality_tests t where t.job_id = j.id) as tests,
-            (select count(*)::int from quality_tests t where t.job_id = j.id and t.result = 'fail') as failed
-       from load_jobs lj join jobs j on j.id = lj.job_id left join racks k on k.id = lj.rack_id
-      where lj.load_id = $1 order by k.code nulls last, j.job_number`,
-    [id],
+  const inLoad = (await LoadJob.findAll({
+    where: { loadId: id },
+    attributes: ['jobId', 'addedAt'],
+    include: [
+      { model: Job, attributes: ['jobNumber', 'status'], required: true },
+      { model: Rack, attributes: ['code'] },
+    ],
+    order: [
+      [Rack, 'code', 'ASC NULLS LAST'],
+      [Job, 'jobNumber', 'ASC'],
+    ],
+  })) as (LoadJob & { Job: Job; Rack: Rack | null })[];
+  const counts = await testCountsOf(
+    sequelize(),
+    inLoad.map((lj) => lj.jobId),
   );
   const toMs = r.closed_at?.getTime() ?? Date.now();
   const alarms = await alarmsDuring(r.oven_asset_id, r.id, r.opened_at.getTime(), toMs);
   const w = r.window_id
     ? ((
-        await pool.query<{ id: number; name: string; version: number; lacquer: string; substrate: string }>(
+        await rawRows<{ id: number; name: string; version: number; lacquer: string; substrate: string }>(
           `select pw.id, pw.name, pw.version, l.name as lacquer, m.name as substrate
              from process_windows pw join lacquers l on l.id = pw.lacquer_id join materials m on m.id = pw.material_id where pw.id = $1`,
           [r.window_id],
         )
-      ).rows[0] ?? null)
+      )[0] ?? null)
     : null;
   return {
     ...toItem(r, openPhase?.phase ?? null),
@@ -311,14 +313,14 @@ export async function getLoad(id: number): Promise<LoadDetail | null> {
     record: r.record,
     computedAt: iso(r.computed_at),
     note: r.note,
-    jobList: jobs.rows.map((j) => ({
-      jobId: j.job_id,
-      jobNumber: j.job_number,
-      status: j.status,
-      rackCode: j.rack_code,
-      addedAt: j.added_at.toISOString(),
-      tests: j.tests,
-      failed: j.failed,
+    jobList: inLoad.map((lj) => ({
+      jobId: lj.jobId,
+      jobNumber: lj.Job.jobNumber,
+      status: lj.Job.status,
+      rackCode: lj.Rack?.code ?? null,
+      addedAt: lj.addedAt.toISOString(),
+      tests: counts.get(lj.jobId)?.tests ?? 0,
+      failed: counts.get(lj.jobId)?.failed ?? 0,
     })),
     alarms,
     openPhase,
@@ -335,24 +337,18 @@ function when(at: string | undefined, what: string): number {
   return ms;
 }
 
-/** Open a load by hand (operator). */
+/** Open a load by hand (operator); audited as `load.open` in the same transaction. */
 export async function openLoadByHand(user: SessionUser, input: LoadOpen, address: string | null): Promise<LoadDetail> {
   const atMs = when(input.openedAt, 'openedAt');
   const r = await openLoad(
-    pgPool(),
+    sequelize(),
     { ovenAssetId: input.ovenAssetId, atMs, by: 'user', userId: user.id, note: input.note ?? null },
-    publishLive,
+    { publish: publishLive, actor: actorOf(user, address) },
   );
-  await audit(actorOf(user, address), {
-    action: 'load.open',
-    entity: 'oven_load',
-    entityId: r.id,
-    after: { ovenAssetId: input.ovenAssetId, openedAt: new Date(atMs).toISOString(), windowId: r.windowId },
-  });
   return (await getLoad(r.id))!;
 }
 
-/** Close a load by hand; computes the cure record. */
+/** Close a load by hand; computes the cure record (audited as `load.close` with the verdict). */
 export async function closeLoadByHand(
   user: SessionUser,
   id: number,
@@ -360,48 +356,32 @@ export async function closeLoadByHand(
   address: string | null,
 ): Promise<LoadDetail> {
   const atMs = when(input.closedAt, 'closedAt');
-  const r = await closeLoad(pgPool(), id, { atMs, by: 'user', userId: user.id, note: input.note ?? null }, publishLive);
-  await audit(actorOf(user, address), {
-    action: 'load.close',
-    entity: 'oven_load',
-    entityId: id,
-    after: { closedAt: new Date(atMs).toISOString(), verdict: r.verdict, alarmId: r.alarmId },
-  });
+  await closeLoad(
+    sequelize(),
+    id,
+    { atMs, by: 'user', userId: user.id, note: input.note ?? null },
+    { publish: publishLive, actor: actorOf(user, address) },
+  );
   return (await getLoad(id))!;
 }
 
 /** Recompute a closed load's record (e.g. after a window correction); audited with before/after verdicts. */
 export async function recompute(user: SessionUser, id: number, address: string | null): Promise<RecomputeResult> {
-  const before = await pgPool().query<{ verdict: string | null }>('select verdict from oven_loads where id = $1', [id]);
-  if (!before.rows[0]) throw new HttpProblem(404, 'Not found', 'No such oven load.');
-  const r = await recomputeLoad(pgPool(), id, publishLive);
-  await audit(actorOf(user, address), {
-    action: 'load.recompute',
-    entity: 'oven_load',
-    entityId: id,
-    before: { verdict: before.rows[0].verdict },
-    after: { verdict: r.verdict, alarmId: r.alarmId },
-  });
-  return r;
+  return recomputeLoad(sequelize(), id, { publish: publishLive, actor: actorOf(user, address) });
 }
 
-/** Scan jobs and racks into an open load. */
+/** Scan jobs and racks into an open load (audited as `load.jobs.add` when a job was added). */
 export async function addJobs(user: SessionUser, id: number, input: LoadAddJobs, address: string | null) {
-  const r = await addJobsToLoad(pgPool(), id, { jobNumbers: input.jobNumbers, rackCodes: input.rackCodes, userId: user.id });
-  if (r.added.length)
-    await audit(actorOf(user, address), {
-      action: 'load.jobs.add',
-      entity: 'oven_load',
-      entityId: id,
-      after: { added: r.added, racks: Object.keys(r.fromRacks) },
-    });
-  return r;
+  return addJobsToLoad(sequelize(), id, {
+    jobNumbers: input.jobNumbers,
+    rackCodes: input.rackCodes,
+    userId: user.id,
+    actor: actorOf(user, address),
+  });
 }
 
 /** The site's name and time zone (for record headers). */
 export async function siteInfo(): Promise<{ name: string; timeZone: string }> {
-  const { rows } = await pgPool().query<{ name: string; time_zone: string }>(
-    'select name, time_zone from sites order by id limit 1',
-  );
+  const rows = await rawRows<{ name: string; time_zone: string }>('select name, time_zone from sites order by id limit 1');
   return { name: rows[0]?.name ?? 'Coatrail', timeZone: rows[0]?.time_zone ?? 'UTC' };
 }

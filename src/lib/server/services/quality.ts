@@ -9,7 +9,6 @@ import { toCsv } from '../../shared/csv-table.ts';
 import { isoWeekKey } from '../../shared/site-time.ts';
 import {
   ADHESION_KINDS,
-  AcceptanceSchema,
   TEST_KIND_LABELS,
   type Acceptance,
   type TestCreate,
@@ -18,13 +17,23 @@ import {
   type TestListQuery,
 } from '../../shared/quality.ts';
 import { SpcEvaluateInputSchema } from '../../shared/spc.ts';
-import { audit } from '../audit.ts';
 import type { SessionUser } from '../auth.ts';
-import { pgPool } from '../db.ts';
+import { TestFile, User } from '../../../../db/models/index.ts';
+import { sequelize } from '../db.ts';
+import { poolView, selectRows } from '../../core/record-db.ts';
+
+/** A raw SELECT through the web process's Sequelize instance (bind parameters). */
+const rawRows = <T extends object>(sql: string, bind: unknown[] = []) => selectRows<T>(sequelize(), sql, bind);
 import { actorOf } from '../guard.ts';
 import { HttpProblem } from '../http.ts';
-import { acceptanceSettings, attachFile, recordTest, type RecordedTest } from '../../core/quality-store.ts';
-import { siteTimeZone, writeSetting } from '../../core/settings-store.ts';
+import {
+  acceptanceSettings,
+  attachTestFile,
+  putAcceptanceSettings,
+  recordTest,
+  type RecordedTest,
+} from '../../core/quality-store.ts';
+import { siteTimeZone } from '../../core/settings-store.ts';
 import type { TestDetail, AdhesionWeek, AdhesionChart, FailureGroup } from '../../shared/trace-views.ts';
 
 interface TestRow {
@@ -84,7 +93,7 @@ export async function listTests(q: TestListQuery): Promise<TestListItem[]> {
   if (q.job) where.push(`j.job_number = ${arg(q.job)}`);
   if (q.from) where.push(`t.tested_at >= ${arg(q.from)}`);
   if (q.to) where.push(`t.tested_at < ${arg(q.to)}`);
-  const { rows } = await pgPool().query<TestRow>(
+  const rows = await rawRows<TestRow>(
     `${TEST_SELECT} ${where.length ? 'where ' + where.join(' and ') : ''}
       order by (t.result = 'fail') desc, t.tested_at desc, t.id desc limit ${arg(q.limit)}`,
     args,
@@ -94,7 +103,7 @@ export async function listTests(q: TestListQuery): Promise<TestListItem[]> {
 
 /** The test list as CSV. */
 export async function testsCsv(items: TestListItem[]): Promise<string> {
-  const tz = await siteTimeZone(pgPool());
+  const tz = await siteTimeZone(poolView(sequelize()));
   return toCsv(
     [
       'test',
@@ -128,36 +137,28 @@ export async function testsCsv(items: TestListItem[]): Promise<string> {
 }
 
 export async function getTest(id: number): Promise<TestDetail | null> {
-  const pool = pgPool();
-  const { rows } = await pool.query<TestRow>(`${TEST_SELECT} where t.id = $1`, [id]);
+  const rows = await rawRows<TestRow>(`${TEST_SELECT} where t.id = $1`, [id]);
   const r = rows[0];
   if (!r) return null;
-  const files = await pool.query<{
-    id: number;
-    filename: string;
-    mime: string;
-    size_bytes: number;
-    sha256: string;
-    uploaded_at: Date;
-    uploaded_by: string | null;
-  }>(
-    `select f.id, f.filename, f.mime, f.size_bytes, f.sha256, f.uploaded_at, u.display_name as uploaded_by
-       from test_files f left join users u on u.id = f.uploaded_by where f.test_id = $1 order by f.id`,
-    [id],
-  );
+  const files = (await TestFile.findAll({
+    where: { testId: id },
+    attributes: ['id', 'filename', 'mime', 'sizeBytes', 'sha256', 'uploadedAt'],
+    include: [{ model: User, as: 'uploader', attributes: ['displayName'] }],
+    order: [['id', 'ASC']],
+  })) as (TestFile & { uploader: User | null })[];
   return {
     ...toItem(r),
     inputs: r.inputs,
     note: r.note,
     acceptance: r.acceptance,
-    fileList: files.rows.map((f) => ({
+    fileList: files.map((f) => ({
       id: f.id,
       filename: f.filename,
       mime: f.mime,
-      sizeBytes: f.size_bytes,
+      sizeBytes: f.sizeBytes,
       sha256: f.sha256,
-      uploadedAt: f.uploaded_at.toISOString(),
-      uploadedBy: f.uploaded_by,
+      uploadedAt: f.uploadedAt.toISOString(),
+      uploadedBy: f.uploader?.displayName ?? null,
     })),
   };
 }
@@ -170,52 +171,33 @@ export async function createTest(user: SessionUser, test: TestCreate, address: s
     throw new HttpProblem(400, 'Invalid input', 'testedAt: in the future', {
       errors: [{ path: 'testedAt', message: 'The test time is in the future.' }],
     });
-  const r = await recordTest(pgPool(), { test, testedAtMs: atMs, userId: user.id, userLabel: user.displayName });
-  const { spectrumCsv: _omit, ...logged } = test as TestCreate & { spectrumCsv?: string };
-  await audit(actorOf(user, address), {
-    action: 'test.record',
-    entity: 'quality_test',
-    entityId: r.id,
-    after: { ...logged, result: r.result, computed: r.computed },
-  });
-  return r;
+  return recordTest(
+    sequelize(),
+    { test, testedAtMs: atMs, userId: user.id, userLabel: user.displayName },
+    actorOf(user, address),
+  );
 }
 
 /** Attach a file (photo, spectrum, report) to a test (quality); the type is read from the content. */
 export async function uploadTestFile(user: SessionUser, testId: number, name: string, bytes: Uint8Array, address: string | null) {
-  const exists = await pgPool().query('select 1 from quality_tests where id = $1', [testId]);
-  if (!exists.rowCount) throw new HttpProblem(404, 'Not found', 'No such quality test.');
-  const f = await attachFile(pgPool(), { testId, name, bytes, userId: user.id });
-  await audit(actorOf(user, address), { action: 'test.file.attach', entity: 'quality_test', entityId: testId, after: f });
-  return f;
+  return attachTestFile(sequelize(), { testId, name, bytes, userId: user.id }, actorOf(user, address));
 }
 
 /** A stored file's bytes and metadata (null when unknown). */
 export async function getFile(id: number): Promise<{ filename: string; mime: string; content: Buffer; sha256: string } | null> {
-  const { rows } = await pgPool().query<{ filename: string; mime: string; content: Buffer; sha256: string }>(
-    'select filename, mime, content, sha256 from test_files where id = $1',
-    [id],
-  );
-  return rows[0] ?? null;
+  sequelize();
+  const f = await TestFile.findByPk(id, { attributes: ['filename', 'mime', 'content', 'sha256'] });
+  return f ? { filename: f.filename, mime: f.mime, content: f.content, sha256: f.sha256 } : null;
 }
 
 /** The acceptance settings in force. */
 export function getAcceptance(): Promise<Acceptance> {
-  return acceptanceSettings(pgPool());
+  return acceptanceSettings(sequelize());
 }
 
 /** Change the acceptance settings (quality); audited with before and after. Tests already recorded keep their judgement. */
 export async function putAcceptance(user: SessionUser, value: Acceptance, address: string | null): Promise<Acceptance> {
-  const parsed = AcceptanceSchema.parse(value);
-  const before = await writeSetting(pgPool(), 'acceptance', parsed);
-  await audit(actorOf(user, address), {
-    action: 'settings.acceptance',
-    entity: 'site_settings',
-    entityId: 'acceptance',
-    before,
-    after: parsed,
-  });
-  return parsed;
+  return putAcceptanceSettings(sequelize(), value, actorOf(user, address));
 }
 
 /**
@@ -224,9 +206,8 @@ export async function putAcceptance(user: SessionUser, value: Acceptance, addres
  * Montgomery ch. 7) from the SPC library. Weeks without tests are left out.
  */
 export async function adhesionPChart(weeks = 12): Promise<AdhesionChart> {
-  const pool = pgPool();
-  const tz = await siteTimeZone(pool);
-  const { rows } = await pool.query<{ t: number; fail: boolean }>(
+  const tz = await siteTimeZone(poolView(sequelize()));
+  const rows = await rawRows<{ t: number; fail: boolean }>(
     `select (extract(epoch from tested_at) * 1000)::float8 as t, result = 'fail' as fail from quality_tests
       where kind = any($1::text[]) and tested_at >= now() - make_interval(days => $2) order by tested_at`,
     [ADHESION_KINDS, weeks * 7 + 7],
@@ -257,7 +238,7 @@ export async function adhesionPChart(weeks = 12): Promise<AdhesionChart> {
 
 /** Adhesion tests and failures of the last `days` days grouped by the oven that cured the job. */
 export async function failuresByOven(days = 90): Promise<FailureGroup[]> {
-  const { rows } = await pgPool().query<{ code: string | null; name: string | null; tests: number; failed: number }>(
+  const rows = await rawRows<{ code: string | null; name: string | null; tests: number; failed: number }>(
     `select o.code, o.name, count(*)::int as tests, count(*) filter (where t.result = 'fail')::int as failed
        from quality_tests t
        left join lateral (select l.oven_asset_id from load_jobs lj join oven_loads l on l.id = lj.load_id where lj.job_id = t.job_id order by l.opened_at desc limit 1) ld on true
@@ -277,7 +258,7 @@ export async function failuresByOven(days = 90): Promise<FailureGroup[]> {
 
 /** Adhesion tests and failures of the last `days` days grouped by the bath charge the job was dipped from. */
 export async function failuresByBathCharge(days = 90): Promise<FailureGroup[]> {
-  const { rows } = await pgPool().query<{
+  const rows = await rawRows<{
     charge_id: number | null;
     tank: string | null;
     lot_code: string | null;
@@ -295,7 +276,7 @@ export async function failuresByBathCharge(days = 90): Promise<FailureGroup[]> {
       group by ch.id, a.code, lo.lot_code, ch.charged_at order by failed desc, ch.id nulls last`,
     [ADHESION_KINDS, days],
   );
-  const tz = await siteTimeZone(pgPool());
+  const tz = await siteTimeZone(poolView(sequelize()));
   return rows.map((r) => ({
     key: r.charge_id ? `charge ${r.charge_id}` : '—',
     label: r.charge_id

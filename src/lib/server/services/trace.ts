@@ -10,7 +10,12 @@ import { bathAge, type BathAge } from '../../domain/film/bath-maintenance.ts';
 import { DEFAULT_TRACE_SETTINGS, TraceSettingsSchema, type TestKind, type TestResult } from '../../shared/quality.ts';
 import type { StoredCureRecord } from '../../shared/jobs.ts';
 import type { Range } from '../../shared/windows.ts';
-import { pgPool } from '../db.ts';
+import { Hold, Job, QualityTest, TestFile, User } from '../../../../db/models/index.ts';
+import { sequelize } from '../db.ts';
+import { poolView, selectRows } from '../../core/record-db.ts';
+
+/** A raw SELECT through the web process's Sequelize instance (bind parameters). */
+const rawRows = <T extends object>(sql: string, bind: unknown[] = []) => selectRows<T>(sequelize(), sql, bind);
 import { readSetting } from '../../core/settings-store.ts';
 import { alarmsDuring } from './loads.ts';
 import type { TraceDipRun, TraceLoad, TraceTest, TraceSibling, TraceResult } from '../../shared/trace-views.ts';
@@ -19,34 +24,30 @@ const iso = (d: Date | null) => (d ? d.toISOString() : null);
 
 /** The sibling window in hours (site setting, default 8 h). */
 export async function siblingHours(): Promise<number> {
-  return (await readSetting(pgPool(), 'trace', TraceSettingsSchema, DEFAULT_TRACE_SETTINGS)).bathSiblingHours;
+  return (await readSetting(poolView(sequelize()), 'trace', TraceSettingsSchema, DEFAULT_TRACE_SETTINGS)).bathSiblingHours;
 }
 
 /** The trace of a job, or null when the job is unknown. */
 export async function traceJob(jobNumber: string, hoursOverride?: number): Promise<TraceResult | null> {
-  const pool = pgPool();
   const hours = hoursOverride ?? (await siblingHours());
-  const jr = await pool.query<{
-    id: number;
-    job_number: string;
-    customer_ref: string | null;
-    lens_material: string | null;
-    status: string;
-    hold_id: number | null;
-    reason: string | null;
-    placed_at: Date | null;
-    placed_by: string | null;
-  }>(
-    `select j.id, j.job_number, j.customer_ref, j.lens_material, j.status, h.id as hold_id, h.reason, h.placed_at, u.display_name as placed_by
-       from jobs j left join holds h on h.job_id = j.id and h.status = 'active' left join users u on u.id = h.placed_by
-      where j.job_number = $1`,
-    [jobNumber],
-  );
-  const j = jr.rows[0];
+  const j = (await Job.findOne({
+    attributes: ['id', 'jobNumber', 'customerRef', 'lensMaterial', 'status'],
+    where: { jobNumber },
+    include: [
+      {
+        model: Hold,
+        attributes: ['id', 'reason', 'placedAt'],
+        where: { status: 'active' },
+        required: false,
+        include: [{ model: User, as: 'placer', attributes: ['displayName'] }],
+      },
+    ],
+  })) as (Job & { Holds: (Hold & { placer: User | null })[] }) | null;
   if (!j) return null;
+  const hold = j.Holds[0] ?? null;
 
   // Dip runs with the bath as it was at the dip.
-  const dr = await pool.query<{
+  const dr = await rawRows<{
     id: number;
     dipped_at: Date;
     line_id: number;
@@ -102,7 +103,7 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
       where dj.job_id = $1 order by d.dipped_at`,
     [j.id],
   );
-  const dipRuns: TraceDipRun[] = dr.rows.map((r) => {
+  const dipRuns: TraceDipRun[] = dr.map((r) => {
     const vw = r.limits?.viscosityMm2S ?? null;
     const v = r.kinematic_mm2s;
     let age: BathAge | null = null;
@@ -154,7 +155,7 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
   });
 
   // Loads with record and alarms.
-  const lr = await pool.query<{
+  const lr = await rawRows<{
     id: number;
     oven_id: number;
     oven_code: string;
@@ -173,7 +174,7 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
     [j.id],
   );
   const loads: TraceLoad[] = [];
-  for (const r of lr.rows) {
+  for (const r of lr) {
     loads.push({
       id: r.id,
       oven: { id: r.oven_id, code: r.oven_code, name: r.oven_name },
@@ -187,34 +188,25 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
     });
   }
 
-  const tr = await pool.query<{
-    id: number;
-    kind: TestKind;
-    result: TestResult;
-    tested_at: Date;
-    tested_by_label: string;
-    computed: Record<string, unknown>;
-    boil_cycles: number | null;
-    files: number;
-  }>(
-    `select t.id, t.kind, t.result, t.tested_at, t.tested_by_label, t.computed, t.boil_cycles,
-            (select count(*)::int from test_files f where f.test_id = t.id) as files
-       from quality_tests t where t.job_id = $1 order by t.tested_at`,
-    [j.id],
-  );
-  const tests: TraceTest[] = tr.rows.map((t) => ({
+  const tr = (await QualityTest.findAll({
+    attributes: ['id', 'kind', 'result', 'testedAt', 'testedByLabel', 'computed', 'boilCycles'],
+    where: { jobId: j.id },
+    include: [{ model: TestFile, attributes: ['id'] }],
+    order: [['testedAt', 'ASC']],
+  })) as (QualityTest & { TestFiles: TestFile[] })[];
+  const tests: TraceTest[] = tr.map((t) => ({
     id: t.id,
     kind: t.kind,
     result: t.result,
-    testedAt: t.tested_at.toISOString(),
-    testedBy: t.tested_by_label,
+    testedAt: t.testedAt.toISOString(),
+    testedBy: t.testedByLabel,
     summary: String(t.computed['summary'] ?? ''),
-    boilCycles: t.boil_cycles,
-    files: t.files,
+    boilCycles: t.boilCycles,
+    files: t.TestFiles.length,
   }));
 
   // Siblings: same load(s); same tank and bath charge within ± hours of each of the job's dips.
-  const sr = await pool.query<{
+  const sr = await rawRows<{
     job_id: number;
     job_number: string;
     status: string;
@@ -256,7 +248,7 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
       order by (bl.load_ids is not null) desc, j.job_number`,
     [j.id, hours],
   );
-  const siblings: TraceSibling[] = sr.rows.map((r) => ({
+  const siblings: TraceSibling[] = sr.map((r) => ({
     jobNumber: r.job_number,
     status: r.status,
     sameLoads: r.load_ids ?? [],
@@ -275,12 +267,12 @@ export async function traceJob(jobNumber: string, hoursOverride?: number): Promi
   return {
     job: {
       id: j.id,
-      jobNumber: j.job_number,
-      customerRef: j.customer_ref,
-      lensMaterial: j.lens_material,
+      jobNumber: j.jobNumber,
+      customerRef: j.customerRef,
+      lensMaterial: j.lensMaterial,
       status: j.status,
-      activeHold: j.hold_id
-        ? { id: j.hold_id, reason: j.reason!, placedAt: j.placed_at!.toISOString(), placedBy: j.placed_by }
+      activeHold: hold
+        ? { id: hold.id, reason: hold.reason, placedAt: hold.placedAt.toISOString(), placedBy: hold.placer?.displayName ?? null }
         : null,
     },
     dipRuns,
