@@ -2,6 +2,7 @@
 import { createPool } from '../db/connection.ts';
 import { startBroker } from './broker.ts';
 import { loadConfig } from './config.ts';
+import { startProcessMetrics } from '../src/lib/core/process-metrics.ts';
 
 const config = loadConfig();
 const pool = createPool({ url: config.DATABASE_URL, max: 3 });
@@ -22,6 +23,8 @@ const broker = await startBroker({
   );
   process.exit(1);
 });
+
+startProcessMetrics('broker', () => ({ clients: broker.aedes.connectedClients }));
 
 const stop = async () => {
   await broker.close();
