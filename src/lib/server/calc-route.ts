@@ -6,13 +6,18 @@
  */
 import type { APIRoute } from 'astro';
 import type { z } from 'zod';
+import type { Action } from '../shared/roles.ts';
 import { requireRole } from './guard.ts';
 import { HttpProblem, readJson } from './http.ts';
 
-export function calcRoute<S extends z.ZodType>(schema: S, compute: (input: z.infer<S>) => unknown): APIRoute {
+/** Takes the route's own contract (`contract.POST`): the guard and the schema are the documented ones. */
+export function calcRoute<S extends z.ZodType>(
+  op: { action: Action; body: S },
+  compute: (input: z.infer<S>) => unknown,
+): APIRoute {
   return async ({ locals, request }) => {
-    requireRole(locals, 'calc.use');
-    const input = await readJson(request, schema);
+    requireRole(locals, op.action);
+    const input = await readJson(request, op.body);
     let result: unknown;
     try {
       result = compute(input);

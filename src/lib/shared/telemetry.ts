@@ -202,7 +202,8 @@ const QueryTimeSchema = z
       return z.NEVER;
     }
     return Math.round(ms);
-  });
+  })
+  .meta({ description: 'ISO 8601 time with zone, or epoch milliseconds' });
 
 export const READINGS_DEFAULT_RANGE_MS = 3_600_000;
 export const READINGS_DEFAULT_MAX_POINTS = 1000;

@@ -1,6 +1,29 @@
 import type { APIRoute } from 'astro';
+import { z } from 'zod';
 import { brokerLink, type LiveMessage } from '../../../lib/server/broker-link.ts';
 import { requireRole } from '../../../lib/server/guard.ts';
+import { readQuery } from '../../../lib/server/http.ts';
+import { operation } from '../../../lib/server/api-operation.ts';
+
+export const contract = {
+  GET: operation({
+    summary: 'Live events (server-sent events; ?kinds=readings,alarms,points,devices,loads)',
+    tag: 'service',
+    action: 'view',
+    query: z.object({
+      kinds: z
+        .string()
+        .optional()
+        .meta({ description: 'Comma list of event kinds to receive (default all)', example: 'readings,alarms' }),
+    }),
+    responses: {
+      200: {
+        eventStream: true,
+        description: 'Server-sent events named readings, alarms, points, devices or loads (`?kinds=` a comma list picks some)',
+      },
+    },
+  }),
+};
 
 /**
  * Live updates for islands as server-sent events (signed-in users only). The ingest worker
@@ -8,8 +31,9 @@ import { requireRole } from '../../../lib/server/guard.ts';
  * event named {kind}: readings, alarms, points, devices, loads.
  */
 export const GET: APIRoute = async ({ locals, url, request }) => {
-  requireRole(locals, 'view');
-  const wanted = new Set((url.searchParams.get('kinds') ?? '').split(',').filter(Boolean));
+  requireRole(locals, contract.GET.action);
+  const { kinds } = readQuery(url, contract.GET.query);
+  const wanted = new Set((kinds ?? '').split(',').filter(Boolean));
   const link = brokerLink();
   const enc = new TextEncoder();
   let onLive: ((m: LiveMessage) => void) | null = null;

@@ -4,6 +4,18 @@ import { requireRole } from '../../../../lib/server/guard.ts';
 import { readQuery } from '../../../../lib/server/http.ts';
 import { alarmHealth, healthCsv } from '../../../../lib/server/services/alarms.ts';
 import { AlarmKpiQuerySchema } from '../../../../lib/shared/alarm-views.ts';
+import { operation } from '../../../../lib/server/api-operation.ts';
+import { AlarmKpiSchema } from '../../../../lib/shared/api/alarms.ts';
+
+export const contract = {
+  GET: operation({
+    summary: 'Alarm-system performance (ISA-18.2 benchmarks); ?format=csv',
+    tag: 'alarms',
+    action: 'alarm.health',
+    query: AlarmKpiQuerySchema,
+    responses: { 200: { json: AlarmKpiSchema, csv: true } },
+  }),
+};
 
 /**
  * Alarm-system health figures (ANSI/ISA-18.2 / IEC 62682 performance metrics against the
@@ -11,8 +23,8 @@ import { AlarmKpiQuerySchema } from '../../../../lib/shared/alarm-views.ts';
  * `?positions=` operator positions (default 1), `?format=csv` for a spreadsheet.
  */
 export const GET: APIRoute = async ({ locals, url }) => {
-  requireRole(locals, 'alarm.health');
-  const q = readQuery(url, AlarmKpiQuerySchema);
+  requireRole(locals, contract.GET.action);
+  const q = readQuery(url, contract.GET.query);
   const toMs = q.toMs ?? Date.now();
   const fromMs = q.fromMs ?? toMs - 86_400_000;
   const h = await alarmHealth(fromMs, toMs, q.positions);

@@ -3,6 +3,20 @@ import { evaluateSpc } from '../../../../lib/domain/spc/evaluate.ts';
 import { requireRole } from '../../../../lib/server/guard.ts';
 import { readJson } from '../../../../lib/server/http.ts';
 import { SpcEvaluateInputSchema } from '../../../../lib/shared/spc.ts';
+import { operation } from '../../../../lib/server/api-operation.ts';
+import { SpcEvaluateOutputSchema } from '../../../../lib/shared/api/spc.ts';
+
+export const contract = {
+  POST: operation({
+    summary: 'Stateless SPC on posted data (product.md §6)',
+    description:
+      "Stateless SPC on posted data: limits, dispersion, per-point rule violations and (with `spec`) capability. Every bad input is a 400 with the offending field's path.",
+    tag: 'spc',
+    action: 'spc.evaluate',
+    body: SpcEvaluateInputSchema,
+    responses: { 200: SpcEvaluateOutputSchema },
+  }),
+};
 
 /**
  * Stateless SPC on posted data (product.md §6): any signed-in role or API token. The body is
@@ -11,7 +25,7 @@ import { SpcEvaluateInputSchema } from '../../../../lib/shared/spc.ts';
  * null in a data array, a spec without limits …); the maths is the domain library's.
  */
 export const POST: APIRoute = async ({ request, locals }) => {
-  requireRole(locals, 'spc.evaluate');
-  const input = await readJson(request, SpcEvaluateInputSchema);
+  requireRole(locals, contract.POST.action);
+  const input = await readJson(request, contract.POST.body);
   return Response.json(evaluateSpc(input), { headers: { 'cache-control': 'no-store' } });
 };

@@ -3,10 +3,23 @@ import { requireRole } from '../../../../lib/server/guard.ts';
 import { readJson } from '../../../../lib/server/http.ts';
 import { computeSurvey } from '../../../../lib/server/services/surveys.ts';
 import { SurveyInputSchema } from '../../../../lib/shared/surveys.ts';
+import { operation } from '../../../../lib/server/api-operation.ts';
+import { SurveyComputationSchema } from '../../../../lib/shared/api/ovens.ts';
+
+export const contract = {
+  POST: operation({
+    summary: 'Check and compute a survey without storing it',
+    tag: 'ovens',
+    action: 'survey.record',
+    body: SurveyInputSchema,
+    responses: { 200: SurveyComputationSchema },
+    problems: [422],
+  }),
+};
 
 /** Check and compute a survey without storing it (engineer, quality). */
 export const POST: APIRoute = async ({ locals, request }) => {
-  requireRole(locals, 'survey.record');
-  const input = await readJson(request, SurveyInputSchema);
+  requireRole(locals, contract.POST.action);
+  const input = await readJson(request, contract.POST.body);
   return Response.json(await computeSurvey(input));
 };

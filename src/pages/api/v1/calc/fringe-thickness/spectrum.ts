@@ -8,6 +8,8 @@ import {
   parseSpectrumCsv,
   SpectrumOptionsSchema,
 } from '../../../../../lib/shared/spectrum.ts';
+import { operation } from '../../../../../lib/server/api-operation.ts';
+import { FringeSpectrumAnswerSchema } from '../../../../../lib/shared/api/calc.ts';
 
 const tooLarge = () =>
   new HttpProblem(413, 'Upload too large', `A spectrum file may be at most ${MAX_SPECTRUM_BYTES / 1024 / 1024} MB.`);
@@ -40,6 +42,21 @@ async function readCapped(request: Request, max: number): Promise<Uint8Array<Arr
   return out;
 }
 
+export const contract = {
+  POST: operation({
+    summary: 'Thickness from an uploaded reflectance spectrum',
+    tag: 'calculators',
+    action: 'calc.use',
+    upload: {
+      media: ['multipart/form-data', 'text/csv'],
+      fields: SpectrumOptionsSchema,
+      note: 'multipart/form-data with a CSV `file` (wavelength nm, reflectance; at most 1 MB, text only) and these fields (browsers send a same-origin Origin header); machine clients may send a text/csv body with the same fields as query parameters.',
+    },
+    responses: { 200: FringeSpectrumAnswerSchema },
+    problems: [413],
+  }),
+};
+
 /**
  * Coat thickness from an uploaded reflectance spectrum: multipart/form-data with a `file`
  * (CSV: wavelength nm, reflectance) and `refractiveIndex` (optional `smoothingWindow`,
@@ -47,7 +64,7 @@ async function readCapped(request: Request, max: number): Promise<Uint8Array<Arr
  * (binary → 415), bad rows listed by line number (400); a spectrum without usable fringes → 400.
  */
 export const POST: APIRoute = async ({ locals, request, url }) => {
-  requireRole(locals, 'calc.use');
+  requireRole(locals, contract.POST.action);
   const type = (request.headers.get('content-type') ?? '').toLowerCase();
   const body = await readCapped(request, MAX_SPECTRUM_BYTES);
   let bytes: Uint8Array;
@@ -92,7 +109,7 @@ export const POST: APIRoute = async ({ locals, request, url }) => {
       },
     );
   }
-  const options = validate(SpectrumOptionsSchema, fields);
+  const options = validate(contract.POST.upload.fields, fields);
   const parsed = parseSpectrumCsv(new TextDecoder('utf-8').decode(bytes));
   if (!parsed.ok) {
     throw new HttpProblem(400, 'Malformed spectrum', parsed.errors.map((e) => `line ${e.line}: ${e.message}`).join('; '), {

@@ -1,7 +1,29 @@
 import type { APIRoute } from 'astro';
+import { z } from 'zod';
 import { requireRole } from '../../../../../lib/server/guard.ts';
-import { HttpProblem, idParam } from '../../../../../lib/server/http.ts';
+import { HttpProblem, idParam, readQuery } from '../../../../../lib/server/http.ts';
 import { getFile } from '../../../../../lib/server/services/quality.ts';
+import { operation } from '../../../../../lib/server/api-operation.ts';
+
+export const contract = {
+  GET: operation({
+    summary: 'A test’s attached file',
+    tag: 'quality',
+    action: 'view',
+    query: z.object({
+      download: z
+        .string()
+        .optional()
+        .meta({ description: '`1`: always as an attachment (images and PDFs open inline otherwise)' }),
+    }),
+    responses: {
+      200: {
+        binary: ['image/png', 'image/jpeg', 'application/pdf', 'text/csv', 'text/plain'],
+        description: 'The stored file with the content type judged at upload',
+      },
+    },
+  }),
+};
 
 /**
  * A stored attachment, to signed-in users only, with the content type judged at upload and a
@@ -9,11 +31,11 @@ import { getFile } from '../../../../../lib/server/services/quality.ts';
  * sandboxing CSP keep the browser from treating the content as anything else.
  */
 export const GET: APIRoute = async ({ locals, params, url }) => {
-  requireRole(locals, 'view');
+  requireRole(locals, contract.GET.action);
   const f = await getFile(idParam(params['id'], 'file'));
   if (!f) throw new HttpProblem(404, 'Not found', 'No such file.');
   const inline = f.mime.startsWith('image/') || f.mime === 'application/pdf';
-  const disposition = inline && url.searchParams.get('download') !== '1' ? 'inline' : 'attachment';
+  const disposition = inline && readQuery(url, contract.GET.query).download !== '1' ? 'inline' : 'attachment';
   return new Response(new Uint8Array(f.content), {
     headers: {
       'content-type': f.mime.startsWith('text/') ? `${f.mime}; charset=utf-8` : f.mime,

@@ -3,9 +3,25 @@ import { requireRole } from '../../../../../../lib/server/guard.ts';
 import { HttpProblem, idParam } from '../../../../../../lib/server/http.ts';
 import { uploadTestFile } from '../../../../../../lib/server/services/quality.ts';
 import { MAX_UPLOAD_BYTES } from '../../../../../../lib/shared/file-types.ts';
+import { operation } from '../../../../../../lib/server/api-operation.ts';
+import { UploadedFileSchema } from '../../../../../../lib/shared/api/quality.ts';
 
 /** Room for the multipart envelope around a 5 MB file. */
 const ENVELOPE_BYTES = 64 * 1024;
+
+export const contract = {
+  POST: operation({
+    summary: 'Attach a photo or spectrum to a test',
+    tag: 'quality',
+    action: 'quality.record',
+    upload: {
+      media: ['multipart/form-data'],
+      note: 'multipart/form-data with one `file` field: PNG, JPEG, PDF or UTF-8 text/CSV judged by its content (415 otherwise), at most 5 MB (413); a CSV must parse (400). Browsers send a same-origin Origin header.',
+    },
+    responses: { 201: UploadedFileSchema },
+    problems: [413, 422],
+  }),
+};
 
 /**
  * Attach a file to a test (quality): `multipart/form-data` with one `file` field. At most 5 MB
@@ -13,7 +29,7 @@ const ENVELOPE_BYTES = 64 * 1024;
  * parse (400). Stored in PostgreSQL with its sha256.
  */
 export const POST: APIRoute = async ({ locals, params, request, clientAddress }) => {
-  const user = requireRole(locals, 'quality.record');
+  const user = requireRole(locals, contract.POST.action);
   const testId = idParam(params['id'], 'quality test');
   const type = request.headers.get('content-type') ?? '';
   if (!type.startsWith('multipart/form-data')) {
