@@ -136,7 +136,12 @@ export class Supervisor {
   async stopAll(graceMs = 8000): Promise<void> {
     this.stopping = true;
     const all = [...this.entries.values()].reverse();
-    for (const e of all) if (e.timer) (clearTimeout(e.timer), clearInterval(e.timer));
+    for (const e of all) {
+      if (e.timer) {
+        clearTimeout(e.timer);
+        clearInterval(e.timer);
+      }
+    }
     for (const e of all) {
       const p = e.proc;
       if (!p) continue;

@@ -110,12 +110,13 @@ async function main() {
   ).rows;
   const dup = rejected.find((r) => r.reason === 'duplicate')?.n ?? 0;
   const lastByKind = (
-    await db.query<{ kind: string; n: number; last: string }>(
-      `select c.kind, count(*)::int as n, max(r.ts)::text as last from readings r join channels c on c.id = r.channel_id group by 1 order by 1`,
+    await db.query<{ kind: string; n: number; first: string; last: string }>(
+      `select c.kind, count(*)::int as n, min(r.ts)::text as first, max(r.ts)::text as last from readings r join channels c on c.id = r.channel_id group by 1 order by 1`,
     )
   ).rows;
   console.log(`plant time at the simulator's stop: ${String(final['simulator']?.extra['plantTime'])}`);
-  for (const r of lastByKind) console.log(`  ${r.kind}: ${r.n} stored, last at ${r.last}`);
+  console.log(`plant time at the start: ${new Date(plantStartMs).toISOString()}`);
+  for (const r of lastByKind) console.log(`  ${r.kind}: ${r.n} stored, ${r.first} … ${r.last}`);
   await db.end();
   await stopLocalPostgres(path.join(varDir, 'pg'));
   console.log('');
