@@ -3,6 +3,7 @@ import { createSequelize } from '../db/connection.ts';
 import { initModels } from '../db/models/index.ts';
 import { startBroker } from './broker.ts';
 import { loadConfig } from './config.ts';
+import { startProcessMetrics } from '../src/lib/core/process-metrics.ts';
 
 const config = loadConfig();
 const sequelize = createSequelize({ url: config.DATABASE_URL, max: 3 });
@@ -24,6 +25,8 @@ const broker = await startBroker({
   );
   process.exit(1);
 });
+
+startProcessMetrics('broker', () => ({ clients: broker.aedes.connectedClients }));
 
 const stop = async () => {
   await broker.close();

@@ -5,6 +5,7 @@
 import { createPool, createSequelize } from '../db/connection.ts';
 import { initModels } from '../db/models/index.ts';
 import { loadConfig } from './config.ts';
+import { startProcessMetrics } from '../src/lib/core/process-metrics.ts';
 import { startWorker } from './subscriber.ts';
 
 const config = loadConfig();
@@ -18,8 +19,11 @@ initModels(sequelize);
 const pool = createPool({ url: config.DATABASE_URL, max: 4, ...timeouts });
 const worker = await startWorker({ config, sequelize, pool, log: (s) => console.log(`[ingest] ${s}`) });
 
+const flushMetrics = startProcessMetrics('ingest-worker', () => ({ ...worker.stats() }));
+
 const stop = async () => {
   await worker.close();
+  flushMetrics();
   await pool.end().catch(() => {});
   await sequelize.close().catch(() => {});
   process.exit(0);

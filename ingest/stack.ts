@@ -150,8 +150,10 @@ async function main(): Promise<void> {
     throw new StartError(`A database migration failed: ${(e as Error).message}`);
   }
   const { deviceSecret } = localSecrets();
+  // COATRAIL_HISTORY_DAYS: days of seeded history on a new database (0: none; default 21).
   const historyDays = env['COATRAIL_HISTORY_DAYS'] ? Number(env['COATRAIL_HISTORY_DAYS']) : undefined;
-  await seedAll(sequelize, { demoPassword, deviceSecret, log: say, ...(historyDays ? { history: { days: historyDays } } : {}) });
+  const history = historyDays === 0 ? { history: false } : historyDays ? { history: { days: historyDays } } : {};
+  await seedAll(sequelize, { demoPassword, deviceSecret, log: say, ...history });
   await sequelize.close();
 
   const pool = createPool({ url: pgHandle.url, max: 2 });

@@ -128,19 +128,26 @@ export class Supervisor {
     return this.entries.get(name)?.proc?.pid ?? null;
   }
 
-  /** SIGTERM every child (newest first), SIGKILL what is left after `graceMs`. */
+  /**
+   * Stop every child, newest first and one at a time (the simulator before the web server,
+   * the worker before the broker), so each can hand on what it holds: SIGTERM, then SIGKILL
+   * after `graceMs`.
+   */
   async stopAll(graceMs = 8000): Promise<void> {
     this.stopping = true;
     const all = [...this.entries.values()].reverse();
     for (const e of all) {
-      if (e.timer) (clearTimeout(e.timer), clearInterval(e.timer));
-      if (e.proc && e.proc.exitCode === null && e.proc.signalCode === null) e.proc.kill('SIGTERM');
+      if (e.timer) {
+        clearTimeout(e.timer);
+        clearInterval(e.timer);
+      }
     }
-    const deadline = Date.now() + graceMs;
     for (const e of all) {
       const p = e.proc;
       if (!p) continue;
-      while (p.exitCode === null && p.signalCode === null && Date.now() < deadline) await new Promise((r) => setTimeout(r, 100));
+      if (p.exitCode === null && p.signalCode === null) p.kill('SIGTERM');
+      const deadline = Date.now() + graceMs;
+      while (p.exitCode === null && p.signalCode === null && Date.now() < deadline) await new Promise((r) => setTimeout(r, 50));
       if (p.exitCode === null && p.signalCode === null) p.kill('SIGKILL');
       this.set(e, 'stopped');
     }

@@ -23,6 +23,7 @@
  * Logs one line per minute. Stop with SIGTERM or SIGINT.
  */
 import mqtt, { type MqttClient } from 'mqtt';
+import { startProcessMetrics } from '../src/lib/core/process-metrics.ts';
 import { deviceTopicPrefix } from '../src/lib/shared/topics.ts';
 import { DEMO_DEVICES, DEMO_SITE, demoDevicePassword, demoTopic } from './demo-plant.ts';
 import {
@@ -73,7 +74,13 @@ const url = process.env['MQTT_URL'] || `mqtt://127.0.0.1:${process.env['MQTT_POR
 const realTimeOvens = !['1', 'true', 'yes'].includes((process.env['SIM_FAST_OVENS'] ?? '').toLowerCase());
 const say = (s: string) => console.log(`[simulator] ${s}`);
 
-const startMs = Math.ceil(Date.now() / 1000) * 1000;
+/**
+ * SIM_SPEED (default 1) runs the plant faster than the wall clock (bench:soak runs it at 20×);
+ * SIM_START_MS starts its clock in the past so that a fast run never publishes ahead of now.
+ */
+const speed = Math.max(1, Number(process.env['SIM_SPEED'] ?? 1) || 1);
+const wallStartMs = Date.now();
+const startMs = Math.ceil((Number(process.env['SIM_START_MS'] ?? '') || wallStartMs) / 1000) * 1000;
 /**
  * The plant's own clock: when this demo plant was first started (SIM_EPOCH_MS, kept by
  * `npm start` in var/). Oven schedules are laid from it, so a restart of the software finds
@@ -105,6 +112,8 @@ class Gateway {
   private everConnected = false;
   dropped = 0;
   sent = 0;
+  /** Samples handed to the broker since start (single and batched), for bench:soak's count. */
+  samplesSent = 0;
 
   constructor(readonly username: string) {
     this.statusTopic = `${deviceTopicPrefix(DEMO_SITE.code, username)}/status`;
@@ -132,6 +141,7 @@ class Gateway {
     if (this.client.connected && !this.held.has(topic)) {
       this.client.publish(topic, JSON.stringify({ t, v }), { qos: 1 });
       this.sent++;
+      this.samplesSent++;
       return;
     }
     const list = this.held.get(topic) ?? [];
@@ -147,8 +157,10 @@ class Gateway {
   private flush(): void {
     for (const [topic, list] of this.held) {
       for (let i = 0; i < list.length; i += BATCH_MAX) {
-        this.client.publish(topic, JSON.stringify({ samples: list.slice(i, i + BATCH_MAX) }), { qos: 1 });
+        const batch = list.slice(i, i + BATCH_MAX);
+        this.client.publish(topic, JSON.stringify({ samples: batch }), { qos: 1 });
         this.sent++;
+        this.samplesSent += batch.length;
       }
     }
     if (this.held.size && this.everConnected) note(`${this.username} reconnected and sent what it held`);
@@ -439,20 +451,26 @@ function tick(): void {
     say(`error: ${(e as Error).message}`);
   }
   k++;
-  // Self-correcting: the next tick is due at startMs + k s; after a stall, catch up at once.
-  timer = setTimeout(tick, Math.max(0, startMs + k * 1000 - Date.now()));
+  // Self-correcting: the next tick is due k s (of plant time) after the start; after a stall, catch up at once.
+  timer = setTimeout(tick, Math.max(0, wallStartMs + (k * 1000) / speed - Date.now()));
 }
 
 say(
   `publishing the demo plant to ${url} as ${gateways.size} gateways${realTimeOvens ? ' (real-length oven cycles)' : ' (oven cycles compressed to ~25 min)'}.`,
 );
-timer = setTimeout(tick, Math.max(0, startMs - Date.now()));
+timer = setTimeout(tick, 0);
+const flushMetrics = startProcessMetrics('simulator', () => ({
+  samplesSent: [...gateways.values()].reduce((n, g) => n + g.samplesSent, 0),
+  samplesDropped: [...gateways.values()].reduce((n, g) => n + g.dropped, 0),
+  plantTime: new Date(startMs + k * 1000).toISOString(),
+}));
 
 async function stop(): Promise<void> {
   if (stopping) return;
   stopping = true;
   if (timer) clearTimeout(timer);
   await Promise.race([Promise.all([...gateways.values()].map((g) => g.stop())), new Promise((r) => setTimeout(r, 3000))]);
+  flushMetrics();
   process.exit(0);
 }
 process.once('SIGTERM', () => void stop());

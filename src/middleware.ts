@@ -2,7 +2,11 @@ import { defineMiddleware, sequence } from 'astro:middleware';
 import { lucia, secureCookies, userFromBearer } from './lib/server/auth.ts';
 import { config } from './lib/server/config.ts';
 import { DomainError } from './lib/core/errors.ts';
+import { startProcessMetrics } from './lib/core/process-metrics.ts';
 import { HttpProblem, problemFromDomainError, problemResponse } from './lib/server/http.ts';
+
+// bench:soak reads the web server's own memory, handles and event-loop delay (no-op unless COATRAIL_METRICS_DIR).
+startProcessMetrics('web');
 
 const STATE_CHANGING = new Set(['POST', 'PUT', 'PATCH', 'DELETE']);
 
