@@ -4,7 +4,7 @@
  * its audit row commit together (`withTransaction` + `auditIn`). Secrets never enter the
  * trail: only hashes are stored, and the audit rows hold neither secrets nor hashes.
  */
-import { QueryTypes, UniqueConstraintError, type Sequelize } from 'sequelize';
+import { Op, QueryTypes, UniqueConstraintError, type Sequelize } from 'sequelize';
 import { ApiToken, LoginThrottle, PasswordReset, User, UserSession, type RoleName } from '../../../db/models/index.ts';
 import { auditIn, withTransaction, type AuditActor, type AuditRecord } from '../../../db/transaction.ts';
 import { DomainError } from './errors.ts';
@@ -36,6 +36,8 @@ export interface NewUser {
   email: string | null;
   role: RoleName;
   passwordHash: string;
+  /** True when the creator chose the password (the user must set their own at first sign-in). */
+  mustChangePassword?: boolean;
 }
 
 /** Create a user; a taken username (also of a deactivated user) is a conflict on `username`. */
@@ -197,6 +199,36 @@ export async function completeResetRecord(
       { action: 'user.password-set', entity: 'user', entityId: u.id, after: { resetId: claimed.id, via: 'e-mailed link' } },
     );
     return { username: u.username };
+  });
+}
+
+/**
+ * A signed-in user sets their own password: the must-change flag clears, every other session of
+ * the user ends (the current one stays), and the trail records it (no hashes).
+ */
+export async function changeOwnPasswordRecord(
+  sequelize: Sequelize,
+  actor: AuditActor & { id: number },
+  input: { passwordHash: string; keepSessionId: string | null },
+): Promise<void> {
+  await withTransaction(sequelize, async (t) => {
+    const u = await User.findByPk(actor.id, { transaction: t, lock: t.LOCK.UPDATE });
+    if (!u || !u.active) throw new DomainError('not-found', 'Not found', 'No such user.');
+    const wasForced = u.mustChangePassword;
+    u.passwordHash = input.passwordHash;
+    u.mustChangePassword = false;
+    u.updatedAt = new Date();
+    await u.save({ transaction: t });
+    await UserSession.destroy({
+      where: input.keepSessionId ? { userId: u.id, id: { [Op.ne]: input.keepSessionId } } : { userId: u.id },
+      transaction: t,
+    });
+    await auditIn(t, actor, {
+      action: 'user.password-changed',
+      entity: 'user',
+      entityId: u.id,
+      after: { via: 'own change', wasRequired: wasForced },
+    });
   });
 }
 

@@ -22,6 +22,8 @@ export interface SessionUser {
   /** How the request is authenticated. */
   via: 'session' | 'token';
   tokenId?: number;
+  /** Someone else chose this user's password: only the change-password page and API are open. */
+  mustChangePassword?: boolean;
 }
 
 const adapter: Adapter = {
@@ -34,7 +36,12 @@ const adapter: Adapter = {
     const session: DatabaseSession = { id: s.id, userId: s.userId, expiresAt: s.expiresAt, attributes: {} };
     const user: DatabaseUser = {
       id: u.id,
-      attributes: { username: u.username, displayName: u.displayName, role: u.role },
+      attributes: {
+        username: u.username,
+        displayName: u.displayName,
+        role: u.role,
+        mustChangePassword: u.mustChangePassword,
+      },
     };
     return [session, user];
   },
@@ -71,14 +78,19 @@ const SESSION_LIFETIME = new TimeSpan(12, 'h');
 export const lucia = new Lucia(adapter, {
   sessionExpiresIn: SESSION_LIFETIME,
   sessionCookie: { name: 'coatrail_session', attributes: { sameSite: 'lax', secure: false } },
-  getUserAttributes: (a) => ({ username: a.username, displayName: a.displayName, role: a.role }),
+  getUserAttributes: (a) => ({
+    username: a.username,
+    displayName: a.displayName,
+    role: a.role,
+    mustChangePassword: a.mustChangePassword,
+  }),
 });
 
 declare module 'lucia' {
   interface Register {
     Lucia: typeof lucia;
     UserId: number;
-    DatabaseUserAttributes: { username: string; displayName: string; role: Role };
+    DatabaseUserAttributes: { username: string; displayName: string; role: Role; mustChangePassword: boolean };
   }
 }
 

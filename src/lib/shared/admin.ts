@@ -155,3 +155,20 @@ export interface AuditPage {
   page: number;
   pageSize: number;
 }
+
+/** A signed-in user sets their own password (required when someone else chose the current one). */
+export const ChangePasswordSchema = z
+  .object({
+    currentPassword: z.string().min(1, 'Enter your current password.').max(500),
+    newPassword: PasswordSchema,
+    confirm: z.string().max(500).optional(),
+  })
+  .refine((v) => v.confirm === undefined || v.confirm === v.newPassword, {
+    message: 'The two passwords differ.',
+    path: ['confirm'],
+  })
+  .refine((v) => v.newPassword !== v.currentPassword, {
+    message: 'Choose a password other than the current one.',
+    path: ['newPassword'],
+  });
+export type ChangePassword = z.infer<typeof ChangePasswordSchema>;

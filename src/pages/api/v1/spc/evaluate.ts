@@ -1,7 +1,7 @@
 import type { APIRoute } from 'astro';
 import { evaluateSpc } from '../../../../lib/domain/spc/evaluate.ts';
 import { requireRole } from '../../../../lib/server/guard.ts';
-import { readJson } from '../../../../lib/server/http.ts';
+import { BODY_LIMITS, readJson } from '../../../../lib/server/http.ts';
 import { SpcEvaluateInputSchema } from '../../../../lib/shared/spc.ts';
 
 /**
@@ -12,6 +12,6 @@ import { SpcEvaluateInputSchema } from '../../../../lib/shared/spc.ts';
  */
 export const POST: APIRoute = async ({ request, locals }) => {
   requireRole(locals, 'spc.evaluate');
-  const input = await readJson(request, SpcEvaluateInputSchema);
+  const input = await readJson(request, SpcEvaluateInputSchema, BODY_LIMITS.bulkJson);
   return Response.json(evaluateSpc(input), { headers: { 'cache-control': 'no-store' } });
 };

@@ -1,6 +1,6 @@
 import type { APIRoute } from 'astro';
 import { requireRole } from '../../../../../lib/server/guard.ts';
-import { readJson } from '../../../../../lib/server/http.ts';
+import { BODY_LIMITS, readJson } from '../../../../../lib/server/http.ts';
 import { commitJobCsv } from '../../../../../lib/server/services/dips.ts';
 import { JobImportCommitSchema } from '../../../../../lib/shared/jobs.ts';
 
@@ -10,6 +10,6 @@ import { JobImportCommitSchema } from '../../../../../lib/shared/jobs.ts';
  */
 export const POST: APIRoute = async ({ locals, request, clientAddress }) => {
   const user = requireRole(locals, 'dip.record');
-  const input = await readJson(request, JobImportCommitSchema);
+  const input = await readJson(request, JobImportCommitSchema, BODY_LIMITS.bulkJson);
   return Response.json(await commitJobCsv(user, input, clientAddress), { status: 201 });
 };

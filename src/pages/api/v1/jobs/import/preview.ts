@@ -1,6 +1,6 @@
 import type { APIRoute } from 'astro';
 import { requireRole } from '../../../../../lib/server/guard.ts';
-import { readJson } from '../../../../../lib/server/http.ts';
+import { BODY_LIMITS, readJson } from '../../../../../lib/server/http.ts';
 import { previewJobCsv } from '../../../../../lib/server/services/dips.ts';
 import { JobImportPreviewSchema } from '../../../../../lib/shared/jobs.ts';
 
@@ -10,6 +10,6 @@ import { JobImportPreviewSchema } from '../../../../../lib/shared/jobs.ts';
  */
 export const POST: APIRoute = async ({ locals, request }) => {
   requireRole(locals, 'dip.record');
-  const { csv } = await readJson(request, JobImportPreviewSchema);
+  const { csv } = await readJson(request, JobImportPreviewSchema, BODY_LIMITS.bulkJson);
   return Response.json(await previewJobCsv(csv));
 };

@@ -1,6 +1,6 @@
 import type { APIRoute } from 'astro';
 import { requireRole } from '../../../../../lib/server/guard.ts';
-import { readJson, readQuery } from '../../../../../lib/server/http.ts';
+import { BODY_LIMITS, readJson, readQuery } from '../../../../../lib/server/http.ts';
 import { createTest, listTests, testsCsv } from '../../../../../lib/server/services/quality.ts';
 import { TestCreateSchema, TestListQuerySchema } from '../../../../../lib/shared/quality.ts';
 
@@ -23,6 +23,6 @@ export const GET: APIRoute = async ({ locals, url }) => {
 /** Record a test (quality): cross-cut, boil + cross-cut, abrasion, thickness (measured or spectrum) or cosmetic. */
 export const POST: APIRoute = async ({ locals, request, clientAddress }) => {
   const user = requireRole(locals, 'quality.record');
-  const input = await readJson(request, TestCreateSchema);
+  const input = await readJson(request, TestCreateSchema, BODY_LIMITS.bulkJson);
   return Response.json(await createTest(user, input, clientAddress), { status: 201 });
 };

@@ -1,6 +1,6 @@
 import type { APIRoute } from 'astro';
 import { requireRole } from '../../../../../../lib/server/guard.ts';
-import { idParam, readJson } from '../../../../../../lib/server/http.ts';
+import { idParam, BODY_LIMITS, readJson } from '../../../../../../lib/server/http.ts';
 import { draftLimitSet, limitSetsFor } from '../../../../../../lib/server/services/spc.ts';
 import { StudyInputSchema } from '../../../../../../lib/shared/characteristics.ts';
 
@@ -14,6 +14,6 @@ export const GET: APIRoute = async ({ locals, params }) => {
 export const POST: APIRoute = async ({ locals, params, request, clientAddress }) => {
   const user = requireRole(locals, 'limits.study');
   const id = idParam(params['id'], 'characteristic');
-  const input = await readJson(request, StudyInputSchema);
+  const input = await readJson(request, StudyInputSchema, BODY_LIMITS.bulkJson);
   return Response.json(await draftLimitSet(user, id, input, clientAddress), { status: 201 });
 };
