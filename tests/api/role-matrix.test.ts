@@ -156,6 +156,7 @@ const ROUTES: Record<string, Action | 'public'> = {
   'GET /api/v1/surveys/[id]': 'view',
   'GET /api/v1/surveys/settings': 'view',
   'PUT /api/v1/surveys/settings': 'plant.configure',
+  'POST /api/auth/change-password': 'view',
 };
 
 /**

@@ -968,6 +968,13 @@ export const OPERATIONS: Operation[] = [
     tag: 'calculators',
     body: AbrasionInputSchema,
   },
+  {
+    method: 'POST',
+    path: '/api/auth/change-password',
+    summary: 'Set your own password (the only call open while a must-change password is in force)',
+    access: 'view',
+    tag: 'auth',
+  },
 ];
 
 function jsonSchema(schema: z.ZodType, io: 'input' | 'output'): Record<string, unknown> {
