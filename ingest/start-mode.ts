@@ -110,8 +110,9 @@ export async function secureDemoUsers(
 /** A site code from its name: lower-case letters, digits and dashes (the topic contract's alphabet). */
 export function siteCodeFrom(name: string): string {
   const code = name
-    .toLowerCase()
     .normalize('NFKD')
+    .replace(/[\u0300-\u036f]/g, '')
+    .toLowerCase()
     .replace(/[^a-z0-9]+/g, '-')
     .replace(/^-+|-+$/g, '')
     .slice(0, 32)

@@ -142,8 +142,9 @@ describe('users', () => {
     expect((await freshSignIn(u.username, u.password)).role).toBe('operator');
     const trail = await auditOf('user', u.id);
     const changes = trail.filter((t) => t.action.startsWith('user.'));
-    expect(changes.map((t) => t.action)).toEqual(['user.created', 'user.deactivated', 'user.reactivated']);
-    expect(changes[1]).toMatchObject({ before: { active: true }, after: { active: false } });
+    // (the throwaway user replaced the admin-chosen password at its first sign-in)
+    expect(changes.map((t) => t.action)).toEqual(['user.created', 'user.password-changed', 'user.deactivated', 'user.reactivated']);
+    expect(changes[2]).toMatchObject({ before: { active: true }, after: { active: false } });
     // There is no way to delete a user.
     expect((await api(`/api/v1/admin/users/${u.id}`, { method: 'DELETE', session: admin })).status).toBeGreaterThanOrEqual(400);
     expect((await testPool().query('select 1 from users where id = $1', [u.id])).rows).toHaveLength(1);
