@@ -17,13 +17,16 @@ export interface DbOptions {
   connectionTimeoutMillis?: number;
   /** pg.Pool only: give up waiting for a query's answer after this long. */
   queryTimeoutMillis?: number;
+  /** Server-side `statement_timeout` of every connection (both kinds): a statement running longer is cancelled. */
+  statementTimeoutMs?: number;
 }
 
 /** A Sequelize instance over pg for records (not for the telemetry hot path). */
-export function createSequelize({ url, max = 8, logging = false }: DbOptions): Sequelize {
+export function createSequelize({ url, max = 8, logging = false, statementTimeoutMs }: DbOptions): Sequelize {
   return new Sequelize(url, {
     dialect: 'postgres',
     dialectModule: pg,
+    ...(statementTimeoutMs ? { dialectOptions: { statement_timeout: statementTimeoutMs } } : {}),
     logging: logging ? console.log : false,
     pool: { max, min: 0, idle: 10_000, acquire: 20_000 },
     define: { underscored: true, timestamps: false },
@@ -31,10 +34,17 @@ export function createSequelize({ url, max = 8, logging = false }: DbOptions): S
 }
 
 /** A plain pg pool for the fast paths (COPY, unnest inserts, bucketed reads). */
-export function createPool({ url, max = 4, connectionTimeoutMillis, queryTimeoutMillis }: DbOptions): pg.Pool {
+export function createPool({
+  url,
+  max = 4,
+  connectionTimeoutMillis,
+  queryTimeoutMillis,
+  statementTimeoutMs,
+}: DbOptions): pg.Pool {
   const pool = new pg.Pool({
     connectionString: url,
     max,
+    ...(statementTimeoutMs ? { statement_timeout: statementTimeoutMs } : {}),
     idleTimeoutMillis: 10_000,
     ...(connectionTimeoutMillis ? { connectionTimeoutMillis } : {}),
     ...(queryTimeoutMillis ? { query_timeout: queryTimeoutMillis } : {}),

@@ -155,7 +155,12 @@ async function main(): Promise<void> {
   const historyDays = env['COATRAIL_HISTORY_DAYS'] ? Number(env['COATRAIL_HISTORY_DAYS']) : undefined;
   let firstAdmin: { username: string; password: string } | null = null;
   if (plan.demo) {
-    await seedAll(sequelize, { demoPassword, deviceSecret, log: say, ...(historyDays ? { history: { days: historyDays } } : {}) });
+    await seedAll(sequelize, {
+      demoPassword,
+      deviceSecret,
+      log: say,
+      ...(historyDays ? { history: { days: historyDays } } : {}),
+    });
     if (demoPassword !== PUBLISHED_DEMO_PASSWORD) {
       const rekeyed = await secureDemoUsers(sequelize, demoPassword);
       if (rekeyed.length) say(`Demo users ${rekeyed.join(', ')} had the published password; they now use DEMO_PASSWORD.`);

@@ -37,7 +37,10 @@ export interface StartPlan {
 }
 
 export function isLoopbackHost(host: string): boolean {
-  const h = host.trim().toLowerCase().replace(/^\[|\]$/g, '');
+  const h = host
+    .trim()
+    .toLowerCase()
+    .replace(/^\[|\]$/g, '');
   return h === 'localhost' || h === '::1' || /^127(\.\d{1,3}){3}$/.test(h);
 }
 
@@ -152,7 +155,12 @@ export async function setUpProduction(
   if ((await Site.count()) === 0) {
     await withTransaction(sequelize, async (t) => {
       const site = await Site.create({ code: siteCodeFrom(name), name, timeZone }, { transaction: t });
-      await auditIn(t, SYSTEM, { action: 'site.created', entity: 'site', entityId: site.id, after: { code: site.code, name, timeZone } });
+      await auditIn(t, SYSTEM, {
+        action: 'site.created',
+        entity: 'site',
+        entityId: site.id,
+        after: { code: site.code, name, timeZone },
+      });
     });
     siteCreated = true;
   }

@@ -100,7 +100,11 @@ const mustChange = defineMiddleware(async (ctx, next) => {
   const user = ctx.locals.user;
   if (user?.mustChangePassword && user.via === 'session' && !openWhileMustChange(ctx.url.pathname)) {
     if (ctx.url.pathname.startsWith('/api/')) {
-      throw new HttpProblem(403, 'Change your password first', 'Set your own password (POST /api/auth/change-password) before anything else.');
+      throw new HttpProblem(
+        403,
+        'Change your password first',
+        'Set your own password (POST /api/auth/change-password) before anything else.',
+      );
     }
     const next = ctx.url.pathname + ctx.url.search;
     return ctx.redirect(`/change-password?next=${encodeURIComponent(next)}`, 303);

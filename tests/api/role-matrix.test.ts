@@ -160,6 +160,12 @@ const ROUTES: Record<string, Action | 'public'> = {
 };
 
 /**
+ * Actions an API token may never perform whatever its role (people, tokens and device
+ * credentials need a signed-in person), written out here rather than read from the guard.
+ */
+const SESSION_ONLY: ReadonlySet<string> = new Set(['admin.users', 'admin.tokens', 'admin.devices']);
+
+/**
  * A plausible value for each dynamic segment. Numeric ids are well-formed but absent
  * (ABSENT_ID), so an allowed role gets a 404 instead of acting on a real record: the matrix
  * must not revoke a token, rotate a device password or acknowledge an alarm of the demo plant.
@@ -307,7 +313,10 @@ describe('role matrix over every API route', () => {
         ['session', viaSession],
         ['token', viaToken],
       ] as const) {
-        if (can(role, action)) {
+        if (how === 'token' && SESSION_ONLY.has(action)) {
+          expect(r.status, `a ${role} token may not ${action}`).toBe(403);
+          expect(r.type).toContain('application/problem+json');
+        } else if (can(role, action)) {
           expect([401, 403], `${role} (${how}) may ${action} but got ${r.status}`).not.toContain(r.status);
         } else {
           expect(r.status, `${role} (${how}) may not ${action}`).toBe(403);

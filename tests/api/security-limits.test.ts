@@ -68,7 +68,9 @@ function chunkedPost(path: string, contentType: string, total: number, headers: 
       let body = '';
       res.setEncoding('utf8');
       res.on('data', (d: string) => (body += d));
-      res.on('end', () => resolve({ status: res.statusCode ?? 0, type: String(res.headers['content-type']), body, sentBeforeAnswer: at }));
+      res.on('end', () =>
+        resolve({ status: res.statusCode ?? 0, type: String(res.headers['content-type']), body, sentBeforeAnswer: at }),
+      );
       res.on('error', reject);
     });
     req.on('error', (e) => {

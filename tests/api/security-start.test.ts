@@ -10,13 +10,7 @@ import path from 'node:path';
 import { afterAll, describe, expect, inject, it } from 'vitest';
 import { createSequelize } from '../../db/connection.ts';
 import { migrateUp } from '../../db/migrate.ts';
-import {
-  PUBLISHED_DEMO_PASSWORD,
-  planStart,
-  secureDemoUsers,
-  setUpProduction,
-  siteCodeFrom,
-} from '../../ingest/start-mode.ts';
+import { PUBLISHED_DEMO_PASSWORD, planStart, secureDemoUsers, setUpProduction, siteCodeFrom } from '../../ingest/start-mode.ts';
 import { closeTestPool, createThrowawayUser, freshSignIn, testPool } from '../support/accounts.ts';
 import { api, base, signIn } from '../support/http.ts';
 
@@ -76,7 +70,10 @@ describe('secureDemoUsers', () => {
     const kept = await createThrowawayUser('viewer', 'demo-kept');
     // give one the published password behind the API's back (as an old demo database has it)
     const { hashPassword } = await import('../../src/lib/server/passwords.ts');
-    await testPool().query('update users set password_hash = $1 where id = $2', [await hashPassword(PUBLISHED_DEMO_PASSWORD), stale.id]);
+    await testPool().query('update users set password_hash = $1 where id = $2', [
+      await hashPassword(PUBLISHED_DEMO_PASSWORD),
+      stale.id,
+    ]);
     const sequelize = createSequelize({ url: inject('stack').databaseUrl, max: 1 });
     try {
       const changed = await secureDemoUsers(sequelize, 'a-demo-pw-of-our-own', [stale.username, kept.username]);
@@ -84,7 +81,10 @@ describe('secureDemoUsers', () => {
     } finally {
       await sequelize.close();
     }
-    expect((await api('/api/auth/login', { method: 'POST', json: { username: stale.username, password: PUBLISHED_DEMO_PASSWORD } })).status).toBe(401);
+    expect(
+      (await api('/api/auth/login', { method: 'POST', json: { username: stale.username, password: PUBLISHED_DEMO_PASSWORD } }))
+        .status,
+    ).toBe(401);
     await freshSignIn(stale.username, 'a-demo-pw-of-our-own');
     await freshSignIn(kept.username, kept.password);
     const { rows } = await testPool().query(
@@ -137,7 +137,13 @@ describe('must change password', () => {
     const created = await api('/api/v1/admin/users', {
       method: 'POST',
       session: admin,
-      json: { username, displayName: 'Must Change', email: `${username}@example.test`, role: 'engineer', password: 'chosen-by-admin-1' },
+      json: {
+        username,
+        displayName: 'Must Change',
+        email: `${username}@example.test`,
+        role: 'engineer',
+        password: 'chosen-by-admin-1',
+      },
     });
     expect(created.status).toBe(201);
     const s = await freshSignIn(username, 'chosen-by-admin-1');

@@ -166,3 +166,26 @@ export function safeNextPath(raw: string | null | undefined, origin: string): st
     return '/';
   }
 }
+
+/** Earliest instant any range query accepts (2000-01-01T00:00Z): older `from` values are refused. */
+export const EARLIEST_RANGE_MS = Date.UTC(2000, 0, 1);
+
+/**
+ * A time range made safe: `to` defaults to now and `from` to `to - defaultSpanMs`; `from` before
+ * 2000, `from` not before `to`, or a span over `maxSpanMs` → a 400 problem naming the field.
+ */
+export function boundedRange(
+  fromMs: number | null,
+  toMs: number | null,
+  opts: { defaultSpanMs: number; maxSpanMs: number; nowMs?: number },
+): { fromMs: number; toMs: number } {
+  const to = toMs ?? opts.nowMs ?? Date.now();
+  const from = fromMs ?? to - opts.defaultSpanMs;
+  const bad = (path: string, message: string) =>
+    new HttpProblem(400, 'Invalid input', `${path}: ${message}`, { errors: [{ path, message }] });
+  if (!Number.isFinite(from) || from < EARLIEST_RANGE_MS) throw bad('from', 'must be 2000-01-01 or later.');
+  if (!Number.isFinite(to) || to < EARLIEST_RANGE_MS) throw bad('to', 'must be 2000-01-01 or later.');
+  if (from >= to) throw bad('from', 'must be before to.');
+  if (to - from > opts.maxSpanMs) throw bad('to', `at most ${Math.round(opts.maxSpanMs / 86_400_000)} days at once.`);
+  return { fromMs: from, toMs: to };
+}

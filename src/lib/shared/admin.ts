@@ -74,9 +74,19 @@ export const FORGOT_PASSWORD_ANSWER =
 
 export const RESET_LINK_MINUTES = 30;
 
+/** API token lifetime in days: default and maximum. */
+export const TOKEN_DEFAULT_DAYS = 90;
+export const TOKEN_MAX_DAYS = 365;
+
 export const CreateTokenSchema = z.object({
   name: z.string().trim().min(2, 'Name the client, e.g. “lab LIMS”.').max(80),
   role: RoleSchema,
+  expiresInDays: z.coerce
+    .number()
+    .int('Whole days.')
+    .min(1, 'At least one day.')
+    .max(TOKEN_MAX_DAYS, `At most ${TOKEN_MAX_DAYS} days.`)
+    .default(TOKEN_DEFAULT_DAYS),
 });
 
 export interface TokenView {
@@ -88,6 +98,7 @@ export interface TokenView {
   createdBy: string;
   lastUsedAt: string | null;
   revokedAt: string | null;
+  expiresAt: string;
 }
 
 export const UnlockSchema = z.object({

@@ -247,14 +247,19 @@ export async function listTokens(): Promise<TokenView[]> {
     createdBy: (t as ApiToken & { creator?: User | null }).creator?.username ?? '?',
     lastUsedAt: iso(t.lastUsedAt),
     revokedAt: iso(t.revokedAt),
+    expiresAt: iso(t.expiresAt)!,
   }));
 }
 
 /** Create a token; the secret is in the answer this once and never again. */
-export async function createToken(actor: Actor, input: { name: string; role: Role }): Promise<TokenView & { secret: string }> {
+export async function createToken(
+  actor: Actor,
+  input: { name: string; role: Role; expiresInDays?: number },
+): Promise<TokenView & { secret: string }> {
   if (actor.id == null) throw new HttpProblem(403, 'Not allowed', 'A token needs a person who issues it.');
   const { secret, hash, prefix } = newTokenSecret();
-  const t = await createTokenRecord(db(), actor, { name: input.name, role: input.role, tokenHash: hash, prefix });
+  const expiresAt = new Date(Date.now() + (input.expiresInDays ?? 90) * 86_400_000);
+  const t = await createTokenRecord(db(), actor, { name: input.name, role: input.role, tokenHash: hash, prefix, expiresAt });
   const view = (await listTokens()).find((x) => x.id === t.id)!;
   return { ...view, secret };
 }
@@ -324,8 +329,7 @@ export async function changeOwnPassword(
   input: { currentPassword: string; newPassword: string },
   address: string | null,
 ): Promise<void> {
-  if (user.via !== 'session')
-    throw new HttpProblem(403, 'Needs a signed-in person', 'An API token cannot change a password.');
+  if (user.via !== 'session') throw new HttpProblem(403, 'Needs a signed-in person', 'An API token cannot change a password.');
   await signWithPassword(user, input.currentPassword, 'password change', address);
   const passwordHash = await hashPassword(input.newPassword);
   await changeOwnPasswordRecord(db(), { id: user.id, label: user.username, address }, { passwordHash, keepSessionId: sessionId });
