@@ -17,6 +17,8 @@ export interface DbOptions {
   connectionTimeoutMillis?: number;
   /** Give up waiting for a query's answer after this long. */
   queryTimeoutMillis?: number;
+  /** Server-side `statement_timeout` of every connection (both kinds): a statement running longer is cancelled. */
+  statementTimeoutMs?: number;
 }
 
 /**
@@ -29,10 +31,12 @@ export function createSequelize({
   logging = false,
   connectionTimeoutMillis,
   queryTimeoutMillis,
+  statementTimeoutMs,
 }: DbOptions): Sequelize {
   return new Sequelize(url, {
     dialect: 'postgres',
     dialectModule: pg,
+    ...(statementTimeoutMs ? { dialectOptions: { statement_timeout: statementTimeoutMs } } : {}),
     logging: logging ? console.log : false,
     pool: { max, min: 0, idle: 10_000, acquire: 20_000 },
     dialectOptions: {
@@ -44,10 +48,17 @@ export function createSequelize({
 }
 
 /** A plain pg pool for the fast paths (COPY, unnest inserts, bucketed reads). */
-export function createPool({ url, max = 4, connectionTimeoutMillis, queryTimeoutMillis }: DbOptions): pg.Pool {
+export function createPool({
+  url,
+  max = 4,
+  connectionTimeoutMillis,
+  queryTimeoutMillis,
+  statementTimeoutMs,
+}: DbOptions): pg.Pool {
   const pool = new pg.Pool({
     connectionString: url,
     max,
+    ...(statementTimeoutMs ? { statement_timeout: statementTimeoutMs } : {}),
     idleTimeoutMillis: 10_000,
     ...(connectionTimeoutMillis ? { connectionTimeoutMillis } : {}),
     ...(queryTimeoutMillis ? { query_timeout: queryTimeoutMillis } : {}),

@@ -23,19 +23,20 @@ import { seedAll } from '../seeds/index.ts';
 import { DEMO_USERS } from '../seeds/demo-plant.ts';
 import { buildIfNeeded } from './build.ts';
 import { startFakeSmtp, type FakeSmtp } from './fake-smtp.ts';
+import { PUBLISHED_DEMO_PASSWORD, planStart, secureDemoUsers, setUpProduction } from './start-mode.ts';
 import { Supervisor } from './supervisor.ts';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
 // COATRAIL_VAR_DIR: another state folder (the supervision test runs a whole second product).
 const varDir = path.resolve(process.env['COATRAIL_VAR_DIR'] ?? path.join(root, 'var'));
-const DEFAULT_DEMO_PASSWORD = 'fernhollow-demo';
-
 const env = process.env;
 const PORT = Number(env['PORT'] ?? 4321);
 const HOST = env['HOST'] ?? '127.0.0.1';
 const MQTT_PORT = Number(env['MQTT_PORT'] ?? 1883);
-const demoPassword = env['DEMO_PASSWORD'] ?? DEFAULT_DEMO_PASSWORD;
-const simulate = !['0', 'false', 'no'].includes((env['SIMULATOR'] ?? '1').toLowerCase());
+// Demo (default, loopback) or production (`npm run start:production`): see ingest/start-mode.ts.
+const plan = planStart(env, process.argv.slice(2));
+const demoPassword = plan.demoPassword;
+const simulate = plan.simulate;
 
 const say = (s: string) => console.log(`[coatrail] ${s}`);
 const statusFile = path.join(varDir, 'run', 'supervisor.json');
@@ -104,6 +105,7 @@ async function shutdown(code: number): Promise<never> {
 async function main(): Promise<void> {
   process.once('SIGINT', () => void shutdown(0));
   process.once('SIGTERM', () => void shutdown(0));
+  if (plan.refusal) throw new StartError(plan.refusal);
   for (const [what, port, variable] of [
     ['web server', PORT, 'PORT'],
     ['MQTT broker', MQTT_PORT, 'MQTT_PORT'],
@@ -152,8 +154,29 @@ async function main(): Promise<void> {
   const { deviceSecret } = localSecrets();
   // COATRAIL_HISTORY_DAYS: days of seeded history on a new database (0: none; default 21).
   const historyDays = env['COATRAIL_HISTORY_DAYS'] ? Number(env['COATRAIL_HISTORY_DAYS']) : undefined;
-  const history = historyDays === 0 ? { history: false } : historyDays ? { history: { days: historyDays } } : {};
-  await seedAll(sequelize, { demoPassword, deviceSecret, log: say, ...history });
+  let firstAdmin: { username: string; password: string } | null = null;
+  if (plan.demo) {
+    await seedAll(sequelize, {
+      demoPassword,
+      deviceSecret,
+      log: say,
+      ...(historyDays === 0 ? { history: false } : historyDays ? { history: { days: historyDays } } : {}),
+    });
+    if (demoPassword !== PUBLISHED_DEMO_PASSWORD) {
+      const rekeyed = await secureDemoUsers(sequelize, demoPassword);
+      if (rekeyed.length) say(`Demo users ${rekeyed.join(', ')} had the published password; they now use DEMO_PASSWORD.`);
+    }
+  } else {
+    const off = await secureDemoUsers(sequelize, null);
+    if (off.length) say(`Deactivated demo users that kept the published password: ${off.join(', ')}.`);
+    try {
+      const set = await setUpProduction(sequelize, { siteName: env['SITE_NAME'], siteTimeZone: env['SITE_TIME_ZONE'] });
+      if (set.siteCreated) say(`Created the site “${env['SITE_NAME'] || 'Coating plant'}”.`);
+      firstAdmin = set.admin;
+    } catch (e) {
+      throw new StartError((e as Error).message);
+    }
+  }
   await sequelize.close();
 
   const pool = createPool({ url: pgHandle.url, max: 2 });
@@ -190,9 +213,15 @@ async function main(): Promise<void> {
   if (simulate) startChild('simulator', [...tsx, 'seeds/simulator.ts'], { ...childEnv, SIM_EPOCH_MS: String(plantEpochMs()) });
   console.log('');
   say(`Coatrail is running at ${origin}`);
-  say(
-    `Demo users: ${DEMO_USERS.map((u) => u.username).join(', ')} — password: ${env['DEMO_PASSWORD'] ? '(from DEMO_PASSWORD)' : DEFAULT_DEMO_PASSWORD}`,
-  );
+  if (plan.demo) {
+    say(
+      `Demo users: ${DEMO_USERS.map((u) => u.username).join(', ')} — password: ${env['DEMO_PASSWORD'] ? '(from DEMO_PASSWORD)' : PUBLISHED_DEMO_PASSWORD}`,
+    );
+  } else if (firstAdmin) {
+    // Printed once, stored nowhere: the administrator must replace it at first sign-in.
+    say(`Production start. First administrator: ${firstAdmin.username} — one-time password: ${firstAdmin.password}`);
+    say('Sign in with it now; Coatrail asks for a new password before anything else. It is not shown again.');
+  } else say('Production start (no demo data, no simulator).');
   say(
     `MQTT broker on ${env['MQTT_URL'] ?? `mqtt://127.0.0.1:${MQTT_PORT}`}; caught e-mail: ${origin}/admin/mail${simulate ? '; the demo-plant simulator is publishing' : ''}.`,
   );

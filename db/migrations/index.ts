@@ -12,5 +12,21 @@ import { migration as m1030 } from './20261202-1030-spc.ts';
 import { migration as m1040 } from './20261202-1040-windows-baths.ts';
 import { migration as m1050 } from './20261202-1050-loads-quality-trace.ts';
 import { migration as m20261204_1100 } from './20261204-1100-config-notify.ts';
+import { migration as m1700 } from './20261204-1700-must-change-password.ts';
+import { migration as m1710 } from './20261204-1710-token-expiry.ts';
+import { migration as m1720 } from './20261204-1720-sessions-hashed.ts';
 
-export const migrations: Migration[] = [m0900, m0910, m0920, m1000, m1020, m1030, m1040, m1050, m20261204_1100];
+export const migrations: Migration[] = [
+  m0900,
+  m0910,
+  m0920,
+  m1000,
+  m1020,
+  m1030,
+  m1040,
+  m1050,
+  m20261204_1100,
+  m1700,
+  m1710,
+  m1720,
+];

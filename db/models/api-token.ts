@@ -19,6 +19,8 @@ export class ApiToken extends Model<InferAttributes<ApiToken>, InferCreationAttr
   declare createdAt: CreationOptional<Date>;
   declare lastUsedAt: Date | null;
   declare revokedAt: Date | null;
+  /** After this the token answers 401 (default 90 days, at most 365). */
+  declare expiresAt: CreationOptional<Date>;
 
   static initModel(sequelize: Sequelize) {
     ApiToken.init(
@@ -32,6 +34,7 @@ export class ApiToken extends Model<InferAttributes<ApiToken>, InferCreationAttr
         createdAt: { type: DataTypes.DATE, defaultValue: DataTypes.NOW },
         lastUsedAt: { type: DataTypes.DATE, allowNull: true },
         revokedAt: { type: DataTypes.DATE, allowNull: true },
+        expiresAt: { type: DataTypes.DATE, allowNull: false },
       },
       { sequelize, tableName: 'api_tokens' },
     );

@@ -17,6 +17,8 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
   declare role: RoleName;
   declare passwordHash: string;
   declare active: CreationOptional<boolean>;
+  /** Set when someone else chose the password: the user may only change it until they do. */
+  declare mustChangePassword: CreationOptional<boolean>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 
@@ -30,6 +32,7 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
         role: { type: DataTypes.TEXT, allowNull: false },
         passwordHash: { type: DataTypes.TEXT, allowNull: false },
         active: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true },
+        mustChangePassword: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
         createdAt: { type: DataTypes.DATE, defaultValue: DataTypes.NOW },
         updatedAt: { type: DataTypes.DATE, defaultValue: DataTypes.NOW },
       },

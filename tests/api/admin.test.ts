@@ -142,8 +142,14 @@ describe('users', () => {
     expect((await freshSignIn(u.username, u.password)).role).toBe('operator');
     const trail = await auditOf('user', u.id);
     const changes = trail.filter((t) => t.action.startsWith('user.'));
-    expect(changes.map((t) => t.action)).toEqual(['user.created', 'user.deactivated', 'user.reactivated']);
-    expect(changes[1]).toMatchObject({ before: { active: true }, after: { active: false } });
+    // (the throwaway user replaced the admin-chosen password at its first sign-in)
+    expect(changes.map((t) => t.action)).toEqual([
+      'user.created',
+      'user.password-changed',
+      'user.deactivated',
+      'user.reactivated',
+    ]);
+    expect(changes[2]).toMatchObject({ before: { active: true }, after: { active: false } });
     // There is no way to delete a user.
     expect((await api(`/api/v1/admin/users/${u.id}`, { method: 'DELETE', session: admin })).status).toBeGreaterThanOrEqual(400);
     expect((await testPool().query('select 1 from users where id = $1', [u.id])).rows).toHaveLength(1);
@@ -217,16 +223,16 @@ describe('API tokens', () => {
       await api('/api/v1/admin/tokens', {
         method: 'POST',
         session: admin,
-        json: { name: `provisioner-${Date.now()}`, role: 'admin' },
+        json: { name: `provisioner-${Date.now()}`, role: 'engineer' },
       })
     ).body;
-    const r = await api('/api/v1/devices', {
+    const r = await api('/api/v1/materials', {
       method: 'POST',
       headers: { authorization: `Bearer ${t.secret}` },
-      json: { name: `Token-made device ${Date.now()}` },
+      json: { code: `tok-${Date.now().toString(36)}`, name: 'Token-made substrate', refractiveIndex: 1.5 },
     });
     expect(r.status).toBe(201);
-    const trail = await auditOf('device', r.body.id);
+    const trail = await auditOf('material', r.body.id);
     expect(trail[0]!.actor_label).toBe(`token:${t.name}`);
   });
 

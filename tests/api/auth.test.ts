@@ -6,6 +6,7 @@
  * Every throttling test uses a throwaway user created through the admin API, so the demo users
  * are never locked for other test files.
  */
+import { createHash } from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { closeTestPool, createThrowawayUser, freshSignIn, testPool, type Throwaway } from '../support/accounts.ts';
 import { api, signIn } from '../support/http.ts';
@@ -192,9 +193,11 @@ describe('sliding expiry', () => {
   it('moves expires_at forward when a session is used in its second half, not in its first', async () => {
     const s = await freshSignIn(person.username, person.password);
     const id = s.cookie.split('=')[1]!;
+    // the table holds the SHA-256 of the id, never the id
+    const key = createHash('sha256').update(id).digest('hex');
     const exp = async () =>
       new Date(
-        (await testPool().query<{ e: Date }>('select expires_at as e from user_sessions where id = $1', [id])).rows[0]!.e,
+        (await testPool().query<{ e: Date }>('select expires_at as e from user_sessions where id = $1', [key])).rows[0]!.e,
       ).getTime();
     const fresh = await exp();
     // First half: no change.
@@ -202,7 +205,7 @@ describe('sliding expiry', () => {
     expect(r1.status).toBe(200);
     expect(await exp()).toBe(fresh);
     // Second half (1 h left of 12 h): the next request extends it to a full 12 h and re-sends the cookie.
-    await testPool().query(`update user_sessions set expires_at = now() + interval '1 hour' where id = $1`, [id]);
+    await testPool().query(`update user_sessions set expires_at = now() + interval '1 hour' where id = $1`, [key]);
     const before = await exp();
     const r2 = await api('/api/v1/channels', { session: s });
     expect(r2.status).toBe(200);
@@ -210,7 +213,7 @@ describe('sliding expiry', () => {
     expect(after - before).toBeGreaterThan(10 * 3600_000);
     expect(r2.headers.get('set-cookie') ?? '').toContain(`coatrail_session=${id}`);
     // An expired session is not accepted.
-    await testPool().query(`update user_sessions set expires_at = now() - interval '1 second' where id = $1`, [id]);
+    await testPool().query(`update user_sessions set expires_at = now() - interval '1 second' where id = $1`, [key]);
     expect((await api('/api/v1/channels', { session: s })).status).toBe(401);
   });
 });

@@ -81,6 +81,8 @@ describe('password reset by e-mailed link', () => {
       [String(u.id)],
     );
     expect(trail.rows.map((r) => [r.action, r.actor_label])).toEqual([
+      // the throwaway user replaced the admin-chosen password at its first sign-in
+      ['user.password-changed', u.username],
       ['user.password-reset-sent', 'admin'],
       ['user.password-set', u.username],
     ]);

@@ -161,7 +161,14 @@ const ROUTES: Record<string, Action | 'public'> = {
   'POST /api/v1/calc/spectrum-colour': 'calc.use',
   'POST /api/v1/calc/colour-difference': 'calc.use',
   'POST /api/v1/calc/cure-verdict': 'calc.use',
+  'POST /api/auth/change-password': 'view',
 };
+
+/**
+ * Actions an API token may never perform whatever its role (people, tokens and device
+ * credentials need a signed-in person), written out here rather than read from the guard.
+ */
+const SESSION_ONLY: ReadonlySet<string> = new Set(['admin.users', 'admin.tokens', 'admin.devices']);
 
 /**
  * A plausible value for each dynamic segment. Numeric ids are well-formed but absent
@@ -311,7 +318,10 @@ describe('role matrix over every API route', () => {
         ['session', viaSession],
         ['token', viaToken],
       ] as const) {
-        if (can(role, action)) {
+        if (how === 'token' && SESSION_ONLY.has(action)) {
+          expect(r.status, `a ${role} token may not ${action}`).toBe(403);
+          expect(r.type).toContain('application/problem+json');
+        } else if (can(role, action)) {
           expect([401, 403], `${role} (${how}) may ${action} but got ${r.status}`).not.toContain(r.status);
         } else {
           expect(r.status, `${role} (${how}) may not ${action}`).toBe(403);

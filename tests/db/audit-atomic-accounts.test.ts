@@ -123,7 +123,9 @@ describe('accounts: change and audit row commit together', () => {
       userId,
       expiresAt: new Date(Date.now() + 3_600_000),
     };
-    const exists = async () => (await count(`select 1 from user_sessions where id = $1`, [session.id])) === 1;
+    // stored by the SHA-256 of the id
+    const exists = async () =>
+      (await count(`select 1 from user_sessions where id = $1`, [accounts.sessionKey(session.id)])) === 1;
     await commitsTogether(
       () => accounts.createSessionRecord(seq, actor, session),
       exists,

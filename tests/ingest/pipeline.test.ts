@@ -105,11 +105,13 @@ describe('readings arrive and are queryable', () => {
     await waitFor(async () => live.find((l) => l.channelId === ch.id), 10_000, 'the live reading');
     expect(live.find((l) => l.channelId === ch.id)).toEqual({ channelId: ch.id, tMs: t, value: 12.5 });
     await web.endAsync();
+    // Details (lag) are for signed-in callers; anonymous callers see the status only.
+    const viewer = await signIn('viewer');
     // A heartbeat written after the live reading reports the worker healthy, with its lag.
     const seenAt = Date.now();
     const health = await waitFor(
       async () => {
-        const h = await api('/api/health');
+        const h = await api('/api/health', { session: viewer });
         return h.body.ingest.heartbeatAgeMs !== null && Date.now() - h.body.ingest.heartbeatAgeMs > seenAt ? h : null;
       },
       10_000,

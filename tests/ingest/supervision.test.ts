@@ -13,6 +13,7 @@ import pg from 'pg';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { clusterDir, freePort, stopLocalPostgres } from '../../db/pg-control.ts';
 import { DEMO_DEVICES, demoDevicePassword, demoTopic } from '../../seeds/demo-plant.ts';
+import { PUBLISHED_DEMO_PASSWORD } from '../../ingest/start-mode.ts';
 import type { SupervisorStatusFile } from '../../src/lib/core/supervision-status.ts';
 import { root } from '../support/test-stack.ts';
 import { waitFor } from '../support/ingest-harness.ts';
@@ -26,8 +27,20 @@ let mqttPort = 0;
 const status = (): SupervisorStatusFile => JSON.parse(fs.readFileSync(path.join(varDir, 'run', 'supervisor.json'), 'utf8'));
 const proc = (name: string) => status().processes.find((p) => p.name === name)!;
 
+let viewerCookie = '';
+
+/** The health report's details (restarts) are for signed-in callers: sign in as the demo viewer once. */
 async function healthy(): Promise<Record<string, any> | null> {
-  const r = await fetch(`http://127.0.0.1:${webPort}/api/health`).catch(() => null);
+  if (!viewerCookie) {
+    const login = await fetch(`http://127.0.0.1:${webPort}/api/auth/login`, {
+      method: 'POST',
+      headers: { 'content-type': 'application/json' },
+      body: JSON.stringify({ username: 'viewer', password: process.env['DEMO_PASSWORD'] || PUBLISHED_DEMO_PASSWORD }),
+    }).catch(() => null);
+    if (!login || login.status !== 200) return null;
+    viewerCookie = (login.headers.get('set-cookie') ?? '').split(';')[0]!;
+  }
+  const r = await fetch(`http://127.0.0.1:${webPort}/api/health`, { headers: { cookie: viewerCookie } }).catch(() => null);
   if (!r || r.status !== 200) return null;
   return (await r.json()) as Record<string, any>;
 }

@@ -42,7 +42,22 @@ export async function createThrowawayUser(role = 'operator', prefix = 't'): Prom
     json: { username, displayName: `Test ${tag}`, email, role, password },
   });
   if (r.status !== 201) throw new Error(`creating ${username} failed: ${r.status} ${JSON.stringify(r.body)}`);
-  return { id: r.body.user.id, username, email, password, role };
+  // The admin chose that password, so the account must set its own first (as at a first sign-in).
+  const own = await setOwnPassword(username, password);
+  return { id: r.body.user.id, username, email, password: own, role };
+}
+
+/** Sign in with an admin-chosen password and replace it (clears must-change-password); returns the new one. */
+export async function setOwnPassword(username: string, current: string): Promise<string> {
+  const s = await freshSignIn(username, current);
+  const next = `own-${randomBytes(8).toString('hex')}`;
+  const r = await api('/api/auth/change-password', {
+    method: 'POST',
+    session: s,
+    json: { currentPassword: current, newPassword: next },
+  });
+  if (r.status !== 204) throw new Error(`changing ${username}'s password failed: ${r.status} ${JSON.stringify(r.body)}`);
+  return next;
 }
 
 /** Sign in without the cache of support/http.ts (a fresh session each time). */

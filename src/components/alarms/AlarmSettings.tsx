@@ -16,6 +16,7 @@ import {
   type CharacteristicAlarmConfigView,
   type EscalationSettings,
 } from '../../lib/shared/alarm-views.ts';
+import { csvField } from '../../lib/shared/csv-table.ts';
 import { formatSiteTime } from '../../lib/shared/time.ts';
 
 interface Props {
@@ -67,9 +68,9 @@ function sourceOf(c: ChannelAlarmConfigView): string {
   return c.config?.staleSeconds ? 'Stale only' : 'None';
 }
 
+/** One CSV cell: RFC 4180 quoting and formula neutralisation (names are engineer-controlled). */
 function csvCell(s: string | number | null | undefined): string {
-  const t = s === null || s === undefined ? '' : String(s);
-  return /[",\n]/.test(t) ? `"${t.replace(/"/g, '""')}"` : t;
+  return csvField(s);
 }
 
 export default function AlarmSettings({ channels: initial, characteristics, escalation: initialEsc, timeZone, fallback }: Props) {

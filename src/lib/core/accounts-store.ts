@@ -4,7 +4,8 @@
  * its audit row commit together (`withTransaction` + `auditIn`). Secrets never enter the
  * trail: only hashes are stored, and the audit rows hold neither secrets nor hashes.
  */
-import { QueryTypes, UniqueConstraintError, type Sequelize } from 'sequelize';
+import { createHash } from 'node:crypto';
+import { Op, QueryTypes, UniqueConstraintError, type Sequelize } from 'sequelize';
 import { ApiToken, LoginThrottle, PasswordReset, User, UserSession, type RoleName } from '../../../db/models/index.ts';
 import { auditIn, withTransaction, type AuditActor, type AuditRecord } from '../../../db/transaction.ts';
 import { DomainError } from './errors.ts';
@@ -36,6 +37,8 @@ export interface NewUser {
   email: string | null;
   role: RoleName;
   passwordHash: string;
+  /** True when the creator chose the password (the user must set their own at first sign-in). */
+  mustChangePassword?: boolean;
 }
 
 /** Create a user; a taken username (also of a deactivated user) is a conflict on `username`. */
@@ -115,6 +118,9 @@ export async function updateUserRecord(sequelize: Sequelize, actor: AuditActor, 
 
 // --- sessions -------------------------------------------------------------------------
 
+/** What user_sessions stores for a session id: its SHA-256 (hex), never the id itself. */
+export const sessionKey = (sessionId: string) => createHash('sha256').update(sessionId).digest('hex');
+
 /** Store a new session and audit the sign-in in one transaction. */
 export async function createSessionRecord(
   sequelize: Sequelize,
@@ -122,7 +128,7 @@ export async function createSessionRecord(
   session: { id: string; userId: number; expiresAt: Date },
 ): Promise<void> {
   await withTransaction(sequelize, async (t) => {
-    await UserSession.create(session, { transaction: t });
+    await UserSession.create({ ...session, id: sessionKey(session.id) }, { transaction: t });
     await auditIn(t, actor, { action: 'auth.signed-in', entity: 'user', entityId: session.userId });
   });
 }
@@ -135,7 +141,7 @@ export async function endSessionRecord(
   userId: number,
 ): Promise<void> {
   await withTransaction(sequelize, async (t) => {
-    await UserSession.destroy({ where: { id: sessionId }, transaction: t });
+    await UserSession.destroy({ where: { id: sessionKey(sessionId) }, transaction: t });
     await auditIn(t, actor, { action: 'auth.signed-out', entity: 'user', entityId: userId });
   });
 }
@@ -200,13 +206,45 @@ export async function completeResetRecord(
   });
 }
 
+/**
+ * A signed-in user sets their own password: the must-change flag clears, every other session of
+ * the user ends (the current one stays), and the trail records it (no hashes).
+ */
+export async function changeOwnPasswordRecord(
+  sequelize: Sequelize,
+  actor: AuditActor & { id: number },
+  input: { passwordHash: string; keepSessionId: string | null },
+): Promise<void> {
+  await withTransaction(sequelize, async (t) => {
+    const u = await User.findByPk(actor.id, { transaction: t, lock: t.LOCK.UPDATE });
+    if (!u || !u.active) throw new DomainError('not-found', 'Not found', 'No such user.');
+    const wasForced = u.mustChangePassword;
+    u.passwordHash = input.passwordHash;
+    u.mustChangePassword = false;
+    u.updatedAt = new Date();
+    await u.save({ transaction: t });
+    await UserSession.destroy({
+      where: input.keepSessionId ? { userId: u.id, id: { [Op.ne]: sessionKey(input.keepSessionId) } } : { userId: u.id },
+      transaction: t,
+    });
+    await auditIn(t, actor, {
+      action: 'user.password-changed',
+      entity: 'user',
+      entityId: u.id,
+      after: { via: 'own change', wasRequired: wasForced },
+    });
+  });
+}
+
 // --- API tokens -----------------------------------------------------------------------
 
 export async function createTokenRecord(
   sequelize: Sequelize,
   actor: AuditActor,
-  input: { name: string; role: RoleName; tokenHash: string; prefix: string },
+  input: { name: string; role: RoleName; tokenHash: string; prefix: string; expiresAt?: Date },
 ): Promise<ApiToken> {
+  // Default lifetime 90 days (TOKEN_DEFAULT_DAYS in lib/shared/admin.ts).
+  const expiresAt = input.expiresAt ?? new Date(Date.now() + 90 * 86_400_000);
   if (actor.id == null) throw new DomainError('conflict', 'Not allowed', 'A token needs a person who issues it.');
   const createdBy = actor.id;
   return withTransaction(sequelize, async (t) => {
@@ -219,6 +257,7 @@ export async function createTokenRecord(
         createdBy,
         lastUsedAt: null,
         revokedAt: null,
+        expiresAt,
       },
       { transaction: t },
     );
@@ -227,7 +266,7 @@ export async function createTokenRecord(
       entity: 'api-token',
       entityId: row.id,
       before: null,
-      after: { name: row.name, role: row.role, prefix: input.prefix },
+      after: { name: row.name, role: row.role, prefix: input.prefix, expiresAt: expiresAt.toISOString() },
     });
     return row;
   });

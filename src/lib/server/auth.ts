@@ -7,7 +7,7 @@ import { createHash, randomBytes } from 'node:crypto';
 import { Lucia, TimeSpan, generateIdFromEntropySize, type Adapter, type DatabaseSession, type DatabaseUser } from 'lucia';
 import { Op } from 'sequelize';
 import { ApiToken, LoginThrottle, User, UserSession, type SignatureRecord } from '../../../db/models/index.ts';
-import { recordAuditEvent, recordFailureRecord } from '../core/accounts-store.ts';
+import { recordAuditEvent, recordFailureRecord, sessionKey } from '../core/accounts-store.ts';
 import type { Role } from '../shared/roles.ts';
 import { config } from './config.ts';
 import { db } from './db.ts';
@@ -22,19 +22,32 @@ export interface SessionUser {
   /** How the request is authenticated. */
   via: 'session' | 'token';
   tokenId?: number;
+  /** Someone else chose this user's password: only the change-password page and API are open. */
+  mustChangePassword?: boolean;
 }
 
 const adapter: Adapter = {
   async getSessionAndUser(sessionId) {
     db();
-    const s = await UserSession.findByPk(sessionId);
+    const s = await UserSession.findByPk(sessionKey(sessionId));
     if (!s) return [null, null];
+    // Absolute lifetime: however often it is used, a session ends this long after sign-in.
+    if (Date.now() - s.createdAt.getTime() > SESSION_ABSOLUTE_MS) {
+      await UserSession.destroy({ where: { id: s.id } });
+      return [null, null];
+    }
     const u = await User.findByPk(s.userId);
     if (!u || !u.active) return [null, null];
-    const session: DatabaseSession = { id: s.id, userId: s.userId, expiresAt: s.expiresAt, attributes: {} };
+    // lucia keeps working with the cookie's id; only its hash is in the table.
+    const session: DatabaseSession = { id: sessionId, userId: s.userId, expiresAt: s.expiresAt, attributes: {} };
     const user: DatabaseUser = {
       id: u.id,
-      attributes: { username: u.username, displayName: u.displayName, role: u.role },
+      attributes: {
+        username: u.username,
+        displayName: u.displayName,
+        role: u.role,
+        mustChangePassword: u.mustChangePassword,
+      },
     };
     return [session, user];
   },
@@ -45,15 +58,15 @@ const adapter: Adapter = {
   },
   async setSession(session) {
     db();
-    await UserSession.create({ id: session.id, userId: session.userId as number, expiresAt: session.expiresAt });
+    await UserSession.create({ id: sessionKey(session.id), userId: session.userId as number, expiresAt: session.expiresAt });
   },
   async updateSessionExpiration(sessionId, expiresAt) {
     db();
-    await UserSession.update({ expiresAt }, { where: { id: sessionId } });
+    await UserSession.update({ expiresAt }, { where: { id: sessionKey(sessionId) } });
   },
   async deleteSession(sessionId) {
     db();
-    await UserSession.destroy({ where: { id: sessionId } });
+    await UserSession.destroy({ where: { id: sessionKey(sessionId) } });
   },
   async deleteUserSessions(userId) {
     db();
@@ -65,20 +78,28 @@ const adapter: Adapter = {
   },
 };
 
+/** Longest a session lives from sign-in, however often it is used (two shifts). */
+export const SESSION_ABSOLUTE_MS = 24 * 3_600_000;
+
 /** A shift plus margin; lucia extends a session used in its second half (sliding expiry). */
 const SESSION_LIFETIME = new TimeSpan(12, 'h');
 
 export const lucia = new Lucia(adapter, {
   sessionExpiresIn: SESSION_LIFETIME,
   sessionCookie: { name: 'coatrail_session', attributes: { sameSite: 'lax', secure: false } },
-  getUserAttributes: (a) => ({ username: a.username, displayName: a.displayName, role: a.role }),
+  getUserAttributes: (a) => ({
+    username: a.username,
+    displayName: a.displayName,
+    role: a.role,
+    mustChangePassword: a.mustChangePassword,
+  }),
 });
 
 declare module 'lucia' {
   interface Register {
     Lucia: typeof lucia;
     UserId: number;
-    DatabaseUserAttributes: { username: string; displayName: string; role: Role };
+    DatabaseUserAttributes: { username: string; displayName: string; role: Role; mustChangePassword: boolean };
   }
 }
 
@@ -109,8 +130,13 @@ export async function userFromBearer(header: string | null, address: string | nu
   db();
   const token = await ApiToken.findOne({ where: { tokenHash: sha256(m[1]) } });
   if (!token || token.revokedAt) throw new HttpProblem(401, 'Not signed in', 'The API token is unknown or revoked.');
-  const creator = await User.findByPk(token.createdBy);
   const now = new Date();
+  if (token.expiresAt.getTime() <= now.getTime()) throw new HttpProblem(401, 'Not signed in', 'The API token has expired.');
+  // A token lives only as long as its creator may hold its role: deactivation or demotion ends it.
+  const creator = await User.findByPk(token.createdBy);
+  if (!creator || !creator.active || !mayHoldToken(creator.role, token.role)) {
+    throw new HttpProblem(401, 'Not signed in', 'The API token’s issuer is no longer active in a role that may hold it.');
+  }
   // Record last use at most once a minute per token.
   if (!token.lastUsedAt || now.getTime() - token.lastUsedAt.getTime() > 60_000) {
     await ApiToken.update({ lastUsedAt: now }, { where: { id: token.id } });
@@ -124,6 +150,11 @@ export async function userFromBearer(header: string | null, address: string | nu
     via: 'token',
     tokenId: token.id,
   };
+}
+
+/** Whether a creator in `creatorRole` may (still) hold a token of `tokenRole`: admins any, others their own or viewer. */
+function mayHoldToken(creatorRole: Role, tokenRole: Role): boolean {
+  return creatorRole === 'admin' || creatorRole === tokenRole || tokenRole === 'viewer';
 }
 
 /** A new API token: the secret is returned once, only its hash is stored. */

@@ -75,9 +75,19 @@ export const FORGOT_PASSWORD_ANSWER =
 
 export const RESET_LINK_MINUTES = 30;
 
+/** API token lifetime in days: default and maximum. */
+export const TOKEN_DEFAULT_DAYS = 90;
+export const TOKEN_MAX_DAYS = 365;
+
 export const CreateTokenSchema = z.object({
   name: z.string().trim().min(2, 'Name the client, e.g. “lab LIMS”.').max(80),
   role: RoleSchema,
+  expiresInDays: z.coerce
+    .number()
+    .int('Whole days.')
+    .min(1, 'At least one day.')
+    .max(TOKEN_MAX_DAYS, `At most ${TOKEN_MAX_DAYS} days.`)
+    .default(TOKEN_DEFAULT_DAYS),
 });
 
 export interface TokenView {
@@ -89,6 +99,7 @@ export interface TokenView {
   createdBy: string;
   lastUsedAt: string | null;
   revokedAt: string | null;
+  expiresAt: string;
 }
 
 export const UnlockSchema = z.object({
@@ -156,3 +167,20 @@ export interface AuditPage {
   page: number;
   pageSize: number;
 }
+
+/** A signed-in user sets their own password (required when someone else chose the current one). */
+export const ChangePasswordSchema = z
+  .object({
+    currentPassword: z.string().min(1, 'Enter your current password.').max(500),
+    newPassword: PasswordSchema,
+    confirm: z.string().max(500).optional(),
+  })
+  .refine((v) => v.confirm === undefined || v.confirm === v.newPassword, {
+    message: 'The two passwords differ.',
+    path: ['confirm'],
+  })
+  .refine((v) => v.newPassword !== v.currentPassword, {
+    message: 'Choose a password other than the current one.',
+    path: ['newPassword'],
+  });
+export type ChangePassword = z.infer<typeof ChangePasswordSchema>;

@@ -4,6 +4,8 @@
  * wavelength in nm and reflectance (fraction or %, any linear scale) — separated by a comma,
  * semicolon, tab or spaces. One optional header line; blank lines and lines starting with `#`
  * are skipped. Every bad row is reported with its line number. Pure (browser and server).
+ * Linear time in the input: lines are capped at MAX_SPECTRUM_LINE characters and cells are
+ * found by one scan (no backtracking regular expression).
  */
 import { z } from 'zod';
 
@@ -17,6 +19,8 @@ export interface SpectrumPoint {
 export const MAX_SPECTRUM_BYTES = 1024 * 1024;
 /** Most rows accepted. */
 export const MAX_SPECTRUM_ROWS = 50_000;
+/** Longest accepted line in characters (a data row is two numbers; anything longer is refused before tokenising). */
+export const MAX_SPECTRUM_LINE = 256;
 /** Fewest points the extrema search needs. */
 export const MIN_SPECTRUM_POINTS = 5;
 
@@ -61,6 +65,47 @@ export type ParsedSpectrum = { ok: true; points: SpectrumPoint[]; skipped: numbe
 
 const NUMBER = /^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?$/;
 
+const isSpace = (c: string) => /\s/.test(c);
+const isMark = (c: string) => c === ',' || c === ';';
+
+/**
+ * The cells of one trimmed line in one pass. With a comma, semicolon or tab in the line, a
+ * delimiter is one comma or semicolon with the white space around it, or a run of white space
+ * holding a tab; otherwise cells are separated by runs of white space.
+ */
+export function splitCells(raw: string): string[] {
+  const delimited = raw.includes(',') || raw.includes(';') || raw.includes('\t');
+  const cells: string[] = [];
+  let cur = '';
+  let i = 0;
+  while (i < raw.length) {
+    const c = raw[i] as string;
+    if (!isSpace(c) && !isMark(c)) {
+      cur += c;
+      i++;
+      continue;
+    }
+    let j = i;
+    let marks = 0;
+    let tab = false;
+    while (j < raw.length && (isSpace(raw[j] as string) || isMark(raw[j] as string))) {
+      if (isMark(raw[j] as string)) marks++;
+      else if (raw[j] === '\t') tab = true;
+      j++;
+    }
+    const delimiters = !delimited ? 1 : marks > 0 ? marks : tab ? 1 : 0;
+    if (delimiters === 0) cur += raw.slice(i, j);
+    else {
+      cells.push(cur);
+      for (let d = 1; d < delimiters; d++) cells.push('');
+      cur = '';
+    }
+    i = j;
+  }
+  cells.push(cur);
+  return cells;
+}
+
 /** Parse the text of a spectrum CSV; every bad row is listed with its 1-based line number (at most 50 listed). */
 export function parseSpectrumCsv(text: string): ParsedSpectrum {
   const lines = text.replace(/^\uFEFF/, '').split(/\r\n|\n|\r/);
@@ -70,15 +115,18 @@ export function parseSpectrumCsv(text: string): ParsedSpectrum {
   let seenData = false;
   let headerAllowed = true;
   for (let i = 0; i < lines.length; i++) {
-    const raw = (lines[i] as string).trim();
     const line = i + 1;
+    if ((lines[i] as string).length > MAX_SPECTRUM_LINE) {
+      errors.push({ line, message: `line longer than ${MAX_SPECTRUM_LINE} characters` });
+      if (errors.length >= 50) break;
+      continue;
+    }
+    const raw = (lines[i] as string).trim();
     if (raw === '' || raw.startsWith('#')) {
       skipped++;
       continue;
     }
-    const cells = (/[,;\t]/.test(raw) ? raw.split(/\s*[,;\t]\s*/) : raw.split(/\s+/)).filter(
-      (c, k, all) => !(c === '' && k === all.length - 1),
-    );
+    const cells = splitCells(raw).filter((c, k, all) => !(c === '' && k === all.length - 1));
     const numeric = cells.map((c) => NUMBER.test(c));
     if (headerAllowed && !seenData && numeric.every((n) => !n)) {
       // One header line (e.g. "wavelength_nm,reflectance") before the data.

@@ -1,6 +1,6 @@
 import type { APIRoute } from 'astro';
 import { operation } from '../../lib/server/api-operation.ts';
-import { healthReport } from '../../lib/server/services/health.ts';
+import { healthReport, publicHealth } from '../../lib/server/services/health.ts';
 import { HealthReportSchema } from '../../lib/shared/api/service.ts';
 
 export const contract = {
@@ -12,8 +12,13 @@ export const contract = {
   }),
 };
 
-/** Public liveness for load balancers and the lab's monitoring: 503 names the failing part. */
-export const GET: APIRoute = async () => {
+/**
+ * Liveness for load balancers and the lab's monitoring: 503 names the failing part. Anonymous
+ * callers get the status only (`status`, `time`, `failing`, and each part's `ok`); any signed-in
+ * user or token gets the details (latencies, lag, supervised processes, error messages).
+ */
+export const GET: APIRoute = async ({ locals }) => {
   const report = await healthReport();
-  return Response.json(report, { status: report.status === 'ok' ? 200 : 503, headers: { 'cache-control': 'no-store' } });
+  const body = locals.user ? report : publicHealth(report);
+  return Response.json(body, { status: report.status === 'ok' ? 200 : 503, headers: { 'cache-control': 'no-store' } });
 };

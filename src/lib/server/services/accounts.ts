@@ -16,6 +16,7 @@ import {
 } from '../../../../db/models/index.ts';
 import type { AuditActor as Actor } from '../../../../db/transaction.ts';
 import {
+  changeOwnPasswordRecord,
   completeResetRecord,
   createTokenRecord,
   createUserRecord,
@@ -35,7 +36,7 @@ import {
   type UserView,
 } from '../../shared/admin.ts';
 import { ROLE_LABELS, type Role } from '../../shared/roles.ts';
-import { newTokenSecret, sha256 } from '../auth.ts';
+import { newTokenSecret, sha256, signWithPassword, type SessionUser } from '../auth.ts';
 import { config } from '../config.ts';
 import { db } from '../db.ts';
 import { HttpProblem } from '../http.ts';
@@ -99,6 +100,8 @@ export async function createUser(actor: Actor, input: CreateUser, origin: string
     email: input.email,
     role: input.role,
     passwordHash,
+    // A password the admin chose is known to the admin: the user must replace it at first sign-in.
+    mustChangePassword: Boolean(input.password),
   });
   let invited = false;
   if (!input.password) {
@@ -244,14 +247,19 @@ export async function listTokens(): Promise<TokenView[]> {
     createdBy: (t as ApiToken & { creator?: User | null }).creator?.username ?? '?',
     lastUsedAt: iso(t.lastUsedAt),
     revokedAt: iso(t.revokedAt),
+    expiresAt: iso(t.expiresAt)!,
   }));
 }
 
 /** Create a token; the secret is in the answer this once and never again. */
-export async function createToken(actor: Actor, input: { name: string; role: Role }): Promise<TokenView & { secret: string }> {
+export async function createToken(
+  actor: Actor,
+  input: { name: string; role: Role; expiresInDays?: number },
+): Promise<TokenView & { secret: string }> {
   if (actor.id == null) throw new HttpProblem(403, 'Not allowed', 'A token needs a person who issues it.');
   const { secret, hash, prefix } = newTokenSecret();
-  const t = await createTokenRecord(db(), actor, { name: input.name, role: input.role, tokenHash: hash, prefix });
+  const expiresAt = new Date(Date.now() + (input.expiresInDays ?? 90) * 86_400_000);
+  const t = await createTokenRecord(db(), actor, { name: input.name, role: input.role, tokenHash: hash, prefix, expiresAt });
   const view = (await listTokens()).find((x) => x.id === t.id)!;
   return { ...view, secret };
 }
@@ -309,4 +317,20 @@ export async function listCaughtMail(limit = 200): Promise<MailView[]> {
     subject: r.subject,
     body: r.body,
   }));
+}
+
+/**
+ * The signed-in person replaces their own password (the current one re-entered, checked and
+ * throttled like a signature). Clears the must-change flag and ends their other sessions.
+ */
+export async function changeOwnPassword(
+  user: SessionUser,
+  sessionId: string | null,
+  input: { currentPassword: string; newPassword: string },
+  address: string | null,
+): Promise<void> {
+  if (user.via !== 'session') throw new HttpProblem(403, 'Needs a signed-in person', 'An API token cannot change a password.');
+  await signWithPassword(user, input.currentPassword, 'password change', address);
+  const passwordHash = await hashPassword(input.newPassword);
+  await changeOwnPasswordRecord(db(), { id: user.id, label: user.username, address }, { passwordHash, keepSessionId: sessionId });
 }

@@ -11,6 +11,7 @@ import { sequelize } from '../db.ts';
 import { actorOf } from '../guard.ts';
 import { DOMAIN_ERROR_STATUS, HttpProblem } from '../http.ts';
 import { alarmEvents, alarmLog, getAlarm, listAlarms, type AlarmLogRow, type ListAlarmsFilter } from '../../core/alarm-store.ts';
+import { csvField } from '../../shared/csv-table.ts';
 import {
   escalationSettings,
   listChannelAlarmConfigs as listChannelConfigs,
@@ -148,7 +149,8 @@ export async function alarmHealth(fromMs: number, toMs: number, positions: numbe
 /** The health figures as CSV sections (one file a spreadsheet opens). */
 export function healthCsv(h: AlarmHealth, zone: string): string {
   const iso = (ms: number) => new Date(ms).toISOString();
-  const q = (s: string) => (/[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s);
+  // Source names are engineer-controlled: quoted and formula-neutralised like every other export.
+  const q = (s: string) => csvField(s);
   const r = h.report;
   const lines: string[] = [];
   lines.push('section,key,value');

@@ -92,3 +92,15 @@ export async function healthReport(): Promise<HealthReport> {
     failing,
   };
 }
+
+/** What anonymous callers see: the verdict and which parts fail, never internal messages. */
+export function publicHealth(r: HealthReport) {
+  return {
+    status: r.status,
+    time: r.time,
+    db: { ok: r.db.ok },
+    broker: { ok: r.broker.ok },
+    ingest: { ok: r.ingest.ok },
+    failing: r.failing,
+  };
+}

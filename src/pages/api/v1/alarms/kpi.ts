@@ -1,7 +1,7 @@
 import type { APIRoute } from 'astro';
 import { siteTimeZone } from '../../../../lib/server/services/plant.ts';
 import { requireRole } from '../../../../lib/server/guard.ts';
-import { readQuery } from '../../../../lib/server/http.ts';
+import { boundedRange, readQuery } from '../../../../lib/server/http.ts';
 import { alarmHealth, healthCsv } from '../../../../lib/server/services/alarms.ts';
 import { AlarmKpiQuerySchema } from '../../../../lib/shared/alarm-views.ts';
 import { operation } from '../../../../lib/server/api-operation.ts';
@@ -20,13 +20,13 @@ export const contract = {
 /**
  * Alarm-system health figures (ANSI/ISA-18.2 / IEC 62682 performance metrics against the
  * common practice benchmarks): `?from&to` (ISO date-time or epoch ms; default the last 24 h),
- * `?positions=` operator positions (default 1), `?format=csv` for a spreadsheet.
+ * `?positions=` operator positions (default 1), `?format=csv` for a spreadsheet. The range is
+ * bounded after defaulting: `to` defaults to now, at most 92 days, nothing before 2000 (400).
  */
 export const GET: APIRoute = async ({ locals, url }) => {
   requireRole(locals, contract.GET.action);
   const q = readQuery(url, contract.GET.query);
-  const toMs = q.toMs ?? Date.now();
-  const fromMs = q.fromMs ?? toMs - 86_400_000;
+  const { fromMs, toMs } = boundedRange(q.fromMs, q.toMs, { defaultSpanMs: 86_400_000, maxSpanMs: 92 * 86_400_000 });
   const h = await alarmHealth(fromMs, toMs, q.positions);
   if (q.format === 'csv') {
     return new Response(healthCsv(h, await siteTimeZone()), {

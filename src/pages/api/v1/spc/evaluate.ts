@@ -1,7 +1,7 @@
 import type { APIRoute } from 'astro';
 import { evaluateSpc } from '../../../../lib/domain/spc/evaluate.ts';
 import { requireRole } from '../../../../lib/server/guard.ts';
-import { readJson } from '../../../../lib/server/http.ts';
+import { BODY_LIMITS, readJson } from '../../../../lib/server/http.ts';
 import { SpcEvaluateInputSchema } from '../../../../lib/shared/spc.ts';
 import { operation } from '../../../../lib/server/api-operation.ts';
 import { SpcEvaluateOutputSchema } from '../../../../lib/shared/api/spc.ts';
@@ -26,6 +26,6 @@ export const contract = {
  */
 export const POST: APIRoute = async ({ request, locals }) => {
   requireRole(locals, contract.POST.action);
-  const input = await readJson(request, contract.POST.body);
+  const input = await readJson(request, contract.POST.body, BODY_LIMITS.bulkJson);
   return Response.json(evaluateSpc(input), { headers: { 'cache-control': 'no-store' } });
 };

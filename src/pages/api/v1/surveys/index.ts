@@ -1,7 +1,7 @@
 import type { APIRoute } from 'astro';
 import { z } from 'zod';
 import { requireRole } from '../../../../lib/server/guard.ts';
-import { readJson, readQuery } from '../../../../lib/server/http.ts';
+import { BODY_LIMITS, readJson, readQuery } from '../../../../lib/server/http.ts';
 import { listSurveys, recordSurvey, surveyStatus } from '../../../../lib/server/services/surveys.ts';
 import { SurveyInputSchema } from '../../../../lib/shared/surveys.ts';
 import { operation } from '../../../../lib/server/api-operation.ts';
@@ -38,6 +38,6 @@ export const GET: APIRoute = async ({ locals, url }) => {
 /** Store a survey (engineer, quality): `{ovenAssetId, setpointC, csv, stabilisedFromMinutes?, corrections?, surveyedAt?, note?}`. */
 export const POST: APIRoute = async ({ locals, request, clientAddress }) => {
   const user = requireRole(locals, contract.POST.action);
-  const input = await readJson(request, contract.POST.body);
+  const input = await readJson(request, contract.POST.body, BODY_LIMITS.bulkJson);
   return Response.json(await recordSurvey(user, input, clientAddress), { status: 201 });
 };

@@ -1,6 +1,6 @@
 import type { APIRoute } from 'astro';
 import { requireRole } from '../../../../lib/server/guard.ts';
-import { readJson } from '../../../../lib/server/http.ts';
+import { BODY_LIMITS, readJson } from '../../../../lib/server/http.ts';
 import { computeSurvey } from '../../../../lib/server/services/surveys.ts';
 import { SurveyInputSchema } from '../../../../lib/shared/surveys.ts';
 import { operation } from '../../../../lib/server/api-operation.ts';
@@ -20,6 +20,6 @@ export const contract = {
 /** Check and compute a survey without storing it (engineer, quality). */
 export const POST: APIRoute = async ({ locals, request }) => {
   requireRole(locals, contract.POST.action);
-  const input = await readJson(request, contract.POST.body);
+  const input = await readJson(request, contract.POST.body, BODY_LIMITS.bulkJson);
   return Response.json(await computeSurvey(input));
 };

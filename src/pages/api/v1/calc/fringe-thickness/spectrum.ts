@@ -1,7 +1,7 @@
 import type { APIRoute } from 'astro';
 import { findExtrema } from '../../../../../lib/domain/quality/fringes.ts';
 import { requireRole } from '../../../../../lib/server/guard.ts';
-import { HttpProblem, validate } from '../../../../../lib/server/http.ts';
+import { HttpProblem, readBody, validate } from '../../../../../lib/server/http.ts';
 import {
   looksLikeText,
   MAX_SPECTRUM_BYTES,
@@ -13,34 +13,6 @@ import { FringeSpectrumAnswerSchema } from '../../../../../lib/shared/api/calc.t
 
 const tooLarge = () =>
   new HttpProblem(413, 'Upload too large', `A spectrum file may be at most ${MAX_SPECTRUM_BYTES / 1024 / 1024} MB.`);
-
-/** Read the body but stop at the limit (a chunked upload without content-length cannot get past it). */
-async function readCapped(request: Request, max: number): Promise<Uint8Array<ArrayBuffer>> {
-  const declared = Number(request.headers.get('content-length') ?? NaN);
-  // Multipart framing adds a few hundred bytes around the file.
-  if (Number.isFinite(declared) && declared > max + 16 * 1024) throw tooLarge();
-  if (!request.body) return new Uint8Array(new ArrayBuffer(0));
-  const reader = request.body.getReader();
-  const chunks: Uint8Array[] = [];
-  let total = 0;
-  for (;;) {
-    const { done, value } = await reader.read();
-    if (done) break;
-    total += value.byteLength;
-    if (total > max + 16 * 1024) {
-      await reader.cancel();
-      throw tooLarge();
-    }
-    chunks.push(value);
-  }
-  const out = new Uint8Array(total);
-  let at = 0;
-  for (const c of chunks) {
-    out.set(c, at);
-    at += c.byteLength;
-  }
-  return out;
-}
 
 export const contract = {
   POST: operation({
@@ -66,7 +38,8 @@ export const contract = {
 export const POST: APIRoute = async ({ locals, request, url }) => {
   requireRole(locals, contract.POST.action);
   const type = (request.headers.get('content-type') ?? '').toLowerCase();
-  const body = await readCapped(request, MAX_SPECTRUM_BYTES);
+  // Multipart framing adds a few hundred bytes around the file.
+  const body = await readBody(request, MAX_SPECTRUM_BYTES + 16 * 1024);
   let bytes: Uint8Array;
   let fields: Record<string, unknown>;
   if (type.startsWith('multipart/form-data')) {

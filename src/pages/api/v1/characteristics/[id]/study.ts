@@ -1,6 +1,6 @@
 import type { APIRoute } from 'astro';
 import { requireRole } from '../../../../../lib/server/guard.ts';
-import { idParam, readJson } from '../../../../../lib/server/http.ts';
+import { idParam, BODY_LIMITS, readJson } from '../../../../../lib/server/http.ts';
 import { trialStudy } from '../../../../../lib/server/services/spc.ts';
 import { StudyInputSchema } from '../../../../../lib/shared/characteristics.ts';
 import { operation } from '../../../../../lib/server/api-operation.ts';
@@ -24,6 +24,6 @@ export const contract = {
 export const POST: APIRoute = async ({ locals, params, request }) => {
   requireRole(locals, contract.POST.action);
   const id = idParam(params['id'], 'characteristic');
-  const input = await readJson(request, contract.POST.body);
+  const input = await readJson(request, contract.POST.body, BODY_LIMITS.bulkJson);
   return Response.json(await trialStudy(id, input));
 };

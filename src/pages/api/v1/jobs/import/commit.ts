@@ -1,6 +1,6 @@
 import type { APIRoute } from 'astro';
 import { requireRole } from '../../../../../lib/server/guard.ts';
-import { readJson } from '../../../../../lib/server/http.ts';
+import { BODY_LIMITS, readJson } from '../../../../../lib/server/http.ts';
 import { commitJobCsv } from '../../../../../lib/server/services/dips.ts';
 import { JobImportCommitSchema } from '../../../../../lib/shared/jobs.ts';
 import { operation } from '../../../../../lib/server/api-operation.ts';
@@ -23,6 +23,6 @@ export const contract = {
  */
 export const POST: APIRoute = async ({ locals, request, clientAddress }) => {
   const user = requireRole(locals, contract.POST.action);
-  const input = await readJson(request, contract.POST.body);
+  const input = await readJson(request, contract.POST.body, BODY_LIMITS.bulkJson);
   return Response.json(await commitJobCsv(user, input, clientAddress), { status: 201 });
 };

@@ -1,6 +1,6 @@
 import type { APIRoute } from 'astro';
 import { requireRole } from '../../../../../lib/server/guard.ts';
-import { readJson } from '../../../../../lib/server/http.ts';
+import { BODY_LIMITS, readJson } from '../../../../../lib/server/http.ts';
 import { previewJobCsv } from '../../../../../lib/server/services/dips.ts';
 import { JobImportPreviewSchema } from '../../../../../lib/shared/jobs.ts';
 import { operation } from '../../../../../lib/server/api-operation.ts';
@@ -22,6 +22,6 @@ export const contract = {
  */
 export const POST: APIRoute = async ({ locals, request }) => {
   requireRole(locals, contract.POST.action);
-  const { csv } = await readJson(request, contract.POST.body);
+  const { csv } = await readJson(request, contract.POST.body, BODY_LIMITS.bulkJson);
   return Response.json(await previewJobCsv(csv));
 };

@@ -1,6 +1,6 @@
 import type { APIRoute } from 'astro';
 import { requireRole } from '../../../../../lib/server/guard.ts';
-import { readJson, readQuery } from '../../../../../lib/server/http.ts';
+import { BODY_LIMITS, readJson, readQuery } from '../../../../../lib/server/http.ts';
 import { createTest, listTests, testsCsv } from '../../../../../lib/server/services/quality.ts';
 import { TestCreateSchema, TestListQuerySchema } from '../../../../../lib/shared/quality.ts';
 import { operation } from '../../../../../lib/server/api-operation.ts';
@@ -43,6 +43,6 @@ export const GET: APIRoute = async ({ locals, url }) => {
 /** Record a test (quality): cross-cut, boil + cross-cut, abrasion, thickness (measured or spectrum) or cosmetic. */
 export const POST: APIRoute = async ({ locals, request, clientAddress }) => {
   const user = requireRole(locals, contract.POST.action);
-  const input = await readJson(request, contract.POST.body);
+  const input = await readJson(request, contract.POST.body, BODY_LIMITS.bulkJson);
   return Response.json(await createTest(user, input, clientAddress), { status: 201 });
 };

@@ -1,6 +1,6 @@
 import type { APIRoute } from 'astro';
 import { requireRole } from '../../../../../../lib/server/guard.ts';
-import { idParam, readJson } from '../../../../../../lib/server/http.ts';
+import { idParam, BODY_LIMITS, readJson } from '../../../../../../lib/server/http.ts';
 import { draftLimitSet, limitSetsFor } from '../../../../../../lib/server/services/spc.ts';
 import { StudyInputSchema } from '../../../../../../lib/shared/characteristics.ts';
 import { operation } from '../../../../../../lib/server/api-operation.ts';
@@ -32,6 +32,6 @@ export const GET: APIRoute = async ({ locals, params }) => {
 export const POST: APIRoute = async ({ locals, params, request, clientAddress }) => {
   const user = requireRole(locals, contract.POST.action);
   const id = idParam(params['id'], 'characteristic');
-  const input = await readJson(request, contract.POST.body);
+  const input = await readJson(request, contract.POST.body, BODY_LIMITS.bulkJson);
   return Response.json(await draftLimitSet(user, id, input, clientAddress), { status: 201 });
 };

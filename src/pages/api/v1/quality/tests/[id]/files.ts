@@ -1,6 +1,6 @@
 import type { APIRoute } from 'astro';
 import { requireRole } from '../../../../../../lib/server/guard.ts';
-import { HttpProblem, idParam } from '../../../../../../lib/server/http.ts';
+import { HttpProblem, idParam, readBody } from '../../../../../../lib/server/http.ts';
 import { uploadTestFile } from '../../../../../../lib/server/services/quality.ts';
 import { MAX_UPLOAD_BYTES } from '../../../../../../lib/shared/file-types.ts';
 import { operation } from '../../../../../../lib/server/api-operation.ts';
@@ -43,9 +43,11 @@ export const POST: APIRoute = async ({ locals, params, request, clientAddress })
       errors: [{ path: 'file', message: 'The limit is 5 MB.' }],
     });
   }
+  // Read through the cap while streaming: a chunked upload declares no length.
+  const raw = await readBody(request, MAX_UPLOAD_BYTES + ENVELOPE_BYTES);
   let form: FormData;
   try {
-    form = await request.formData();
+    form = await new Response(raw, { headers: { 'content-type': type } }).formData();
   } catch {
     throw new HttpProblem(400, 'Malformed upload', 'The multipart body could not be read.', {
       errors: [{ path: 'file', message: 'Malformed multipart body.' }],
