@@ -19,9 +19,13 @@ import { BathCheck } from './bath-check.ts';
 import { BathAddition } from './bath-addition.ts';
 import { FilterChange } from './filter-change.ts';
 import { OvenSurvey } from './oven-survey.ts';
+import { Gauge } from './gauge.ts';
+import { GaugeStudy } from './gauge-study.ts';
+import { CharacteristicGauge } from './characteristic-gauge.ts';
 
 export { ApiToken, Asset, AuditEntry, Channel, Device, LoginThrottle, OutboxMail, PasswordReset, Site, User, UserSession };
 export { Material, Lacquer, LacquerLot, BathCharge, BathCheck, BathAddition, FilterChange, OvenSurvey };
+export { Gauge, GaugeStudy, CharacteristicGauge };
 export type { RoleName } from './user.ts';
 export type { AssetKind } from './asset.ts';
 export type { SignatureRecord } from './audit-entry.ts';
@@ -51,6 +55,9 @@ export function initModels(sequelize: Sequelize): void {
     BathAddition,
     FilterChange,
     OvenSurvey,
+    Gauge,
+    GaugeStudy,
+    CharacteristicGauge,
   ]) {
     m.initModel(sequelize);
   }
@@ -77,4 +84,8 @@ export function initModels(sequelize: Sequelize): void {
   FilterChange.belongsTo(Asset, { as: 'tank', foreignKey: 'tankAssetId' });
   OvenSurvey.belongsTo(Asset, { as: 'oven', foreignKey: 'ovenAssetId' });
   OvenSurvey.belongsTo(User, { as: 'recorder', foreignKey: 'recordedBy' });
+  GaugeStudy.belongsTo(Gauge, { foreignKey: 'gaugeId' });
+  Gauge.hasMany(GaugeStudy, { as: 'studies', foreignKey: 'gaugeId' });
+  GaugeStudy.belongsTo(User, { as: 'recorder', foreignKey: 'recordedBy' });
+  CharacteristicGauge.belongsTo(Gauge, { foreignKey: 'gaugeId' });
 }

@@ -73,6 +73,14 @@ import { SurveyInputSchema, SurveySettingsSchema } from '../shared/surveys.ts';
 import { ApproveLimitSetSchema, CharacteristicInputSchema, StudyInputSchema } from '../shared/characteristics.ts';
 import { SpectrumOptionsSchema } from '../shared/spectrum.ts';
 import {
+  CharacteristicGaugeSchema,
+  GaugeBiasInputSchema,
+  GaugeCreateSchema,
+  GaugeLinearityInputSchema,
+  GaugeRrInputSchema,
+  GaugeStudyCreateSchema,
+} from '../shared/msa.ts';
+import {
   ColourDifferenceInputSchema,
   ColourDifferenceOutputSchema,
   SpectrumColourInputSchema,
@@ -1003,6 +1011,80 @@ export const OPERATIONS: Operation[] = [
     tag: 'calculators',
     body: ColourDifferenceInputSchema,
     response: ColourDifferenceOutputSchema,
+  },
+  // measurement-system analysis (issue 15)
+  { method: 'GET', path: '/api/v1/gauges', summary: 'Gauges with their newest gauge R&R verdict', access: 'view', tag: 'msa' },
+  {
+    method: 'POST',
+    path: '/api/v1/gauges',
+    summary: 'Register a gauge',
+    access: 'msa.record',
+    tag: 'msa',
+    body: GaugeCreateSchema,
+    status: 201,
+  },
+  {
+    method: 'GET',
+    path: '/api/v1/gauges/studies',
+    summary: 'Measurement-system studies, newest first',
+    access: 'view',
+    tag: 'msa',
+    query: z.object({ gaugeId: z.number().int().positive().optional() }),
+  },
+  {
+    method: 'POST',
+    path: '/api/v1/gauges/studies',
+    summary: 'Compute and store a gauge R&R, bias or linearity study (AIAG MSA 4th ed.)',
+    access: 'msa.record',
+    tag: 'msa',
+    body: GaugeStudyCreateSchema,
+    status: 201,
+  },
+  {
+    method: 'GET',
+    path: '/api/v1/gauges/studies/{id}',
+    summary: 'One study with readings and result',
+    access: 'view',
+    tag: 'msa',
+  },
+  {
+    method: 'GET',
+    path: '/api/v1/characteristics/{id}/gauge',
+    summary: 'The gauge of a characteristic and its study status',
+    access: 'view',
+    tag: 'msa',
+  },
+  {
+    method: 'PUT',
+    path: '/api/v1/characteristics/{id}/gauge',
+    summary: 'Set or clear the gauge of a characteristic',
+    access: 'characteristic.edit',
+    tag: 'msa',
+    body: CharacteristicGaugeSchema,
+  },
+  {
+    method: 'POST',
+    path: '/api/v1/calc/gauge-rr',
+    summary: 'Gauge R&R by ANOVA or average and range',
+    access: 'calc.use',
+    tag: 'calculators',
+    body: GaugeRrInputSchema,
+  },
+  {
+    method: 'POST',
+    path: '/api/v1/calc/gauge-bias',
+    summary: 'Gauge bias t test',
+    access: 'calc.use',
+    tag: 'calculators',
+    body: GaugeBiasInputSchema,
+  },
+  {
+    method: 'POST',
+    path: '/api/v1/calc/gauge-linearity',
+    summary: 'Gauge linearity regression',
+    access: 'calc.use',
+    tag: 'calculators',
+    body: GaugeLinearityInputSchema,
   },
 ];
 

@@ -346,3 +346,50 @@ export function gaugeRrAverageRange(
     rangesOutOfControl: ranges.filter((x) => x.range > rangeLimit + 1e-12),
   };
 }
+
+/** One reading of a crossed study in long form (as entered in the grid or a CSV row). */
+export interface GaugeReading {
+  appraiser: string;
+  part: number;
+  trial: number;
+  value: number;
+}
+
+/**
+ * Long-form readings → `values[appraiser][part][trial]` (appraisers in order of first
+ * appearance, parts and trials ascending). Throws a RangeError naming the first missing or
+ * repeated cell: the methods need a balanced, crossed study.
+ */
+export function gridFromReadings(readings: readonly GaugeReading[]): {
+  appraisers: string[];
+  parts: number[];
+  values: number[][][];
+} {
+  const appraisers: string[] = [];
+  const partSet = new Set<number>();
+  const trialSet = new Set<number>();
+  const cells = new Map<string, number>();
+  for (const r of readings) {
+    if (!appraisers.includes(r.appraiser)) appraisers.push(r.appraiser);
+    partSet.add(r.part);
+    trialSet.add(r.trial);
+    const key = `${r.appraiser}\u0000${r.part}\u0000${r.trial}`;
+    if (cells.has(key)) throw new RangeError(`appraiser ${r.appraiser}, part ${r.part}, trial ${r.trial} is entered twice`);
+    cells.set(key, r.value);
+  }
+  const parts = [...partSet].sort((x, y) => x - y);
+  const trials = [...trialSet].sort((x, y) => x - y);
+  const values = appraisers.map((a) =>
+    parts.map((p) =>
+      trials.map((t) => {
+        const v = cells.get(`${a}\u0000${p}\u0000${t}`);
+        if (v === undefined)
+          throw new RangeError(
+            `appraiser ${a}, part ${p}, trial ${t} is missing: every appraiser measures every part in every trial`,
+          );
+        return v;
+      }),
+    ),
+  );
+  return { appraisers, parts, values };
+}
