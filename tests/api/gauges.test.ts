@@ -195,3 +195,25 @@ describe('MSA calculators (any signed-in role)', () => {
     );
   });
 });
+
+describe('POST /api/v1/calc/dew-point', () => {
+  it('22 °C, 55 % RH: dew point 12.55 °C (Magnus, Alduchov & Eskridge 1996: 243.04·γ/(17.625 − γ)); a 14 °C surface is at risk', async () => {
+    const g = Math.log(0.55) + (17.625 * 22) / (243.04 + 22);
+    const r = await api('/api/v1/calc/dew-point', {
+      method: 'POST',
+      session: viewer,
+      json: { airC: 22, rhPct: 55, surfaceC: 14 },
+    });
+    expect(r.status).toBe(200);
+    expect(r.body.dewPointC).toBeCloseTo((243.04 * g) / (17.625 - g), 10);
+    expect(r.body.dewPointC).toBeCloseTo(12.55, 2);
+    expect(r.body.blush.risk).toBe('at-risk');
+  });
+  it('RH above 100 % is a 400 on rhPct', async () => {
+    expectProblem(
+      await api('/api/v1/calc/dew-point', { method: 'POST', session: viewer, json: { airC: 22, rhPct: 120 } }),
+      400,
+      'rhPct',
+    );
+  });
+});

@@ -171,6 +171,7 @@ const ROUTES: Record<string, Action | 'public'> = {
   'POST /api/v1/calc/gauge-rr': 'calc.use',
   'POST /api/v1/calc/gauge-bias': 'calc.use',
   'POST /api/v1/calc/gauge-linearity': 'calc.use',
+  'POST /api/v1/calc/dew-point': 'calc.use',
 };
 
 /**

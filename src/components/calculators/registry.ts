@@ -178,6 +178,18 @@ export const CALCULATORS: CalculatorInfo[] = [
     validity:
       'Several reference parts across the operating range, each read several times; the bias assumed to change in a straight line.',
   },
+  {
+    slug: 'dew-point',
+    title: 'Dew point and blush risk',
+    summary: 'Dew point of the room air from temperature and relative humidity, and whether a bath or lens surface is near it.',
+    endpoint: '/api/v1/calc/dew-point',
+    sources: [
+      'O. A. Alduchov & R. E. Eskridge, J. Appl. Meteor. 35 (1996) 601–609 (Magnus coefficients over water)',
+      'ISO 8502-4 (condensation on surfaces; the 3 °C margin is common practice)',
+    ],
+    validity:
+      'Air from −40 to +50 °C, over water (not ice). The margin is a setting; the lacquer maker’s data on humidity limits governs.',
+  },
 ];
 
 export function calculator(slug: string): CalculatorInfo {

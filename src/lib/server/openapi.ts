@@ -80,6 +80,7 @@ import {
   GaugeRrInputSchema,
   GaugeStudyCreateSchema,
 } from '../shared/msa.ts';
+import { DewPointInputSchema } from '../shared/room.ts';
 import {
   ColourDifferenceInputSchema,
   ColourDifferenceOutputSchema,
@@ -1085,6 +1086,14 @@ export const OPERATIONS: Operation[] = [
     access: 'calc.use',
     tag: 'calculators',
     body: GaugeLinearityInputSchema,
+  },
+  {
+    method: 'POST',
+    path: '/api/v1/calc/dew-point',
+    summary: 'Dew point (Magnus) and blush risk of a surface',
+    access: 'calc.use',
+    tag: 'calculators',
+    body: DewPointInputSchema,
   },
 ];
 
