@@ -2,7 +2,8 @@
  * A gauge study in Chromium: an engineer registers a gauge, opens a new study, imports the
  * AIAG MSA 4th ed. example as CSV into the entry grid, saves it by average and range, and reads
  * the printable report (%GRR 26.7 % of total variation, ndc 5 → conditional, as the manual's
- * example gives); a CSV with a bad line shows its line number.
+ * example gives); a CSV with a bad line shows its line number; a characteristic linked to the
+ * gauge shows the warning on its capability report.
  */
 import fs from 'node:fs';
 import os from 'node:os';
@@ -88,6 +89,22 @@ describe('gauge study page', () => {
       expect(components).toMatch(/Gauge R&R \(GRR\)\s+\S+\s+0\.3058\s+\S+\s+26\.7/);
       expect(await report.innerText()).toMatch(/ndc = 5/);
       await screenshot(page, 'gauge-study-report');
+
+      // Link a characteristic to the gauge: its capability report warns (conditional study), then unlink.
+      await page.goto('/gauges');
+      await waitForIslands(page);
+      const link = page.getByRole('form', { name: 'Gauge of a characteristic' });
+      const characteristicId = await link.locator('select[name=characteristicId]').inputValue();
+      await link.locator('select[name=linkGaugeId]').selectOption({ label: gaugeName });
+      await link.getByRole('button', { name: 'Save link' }).click();
+      await link.getByRole('status').filter({ hasText: 'Saved.' }).waitFor();
+      await page.goto(`/charts/control/${characteristicId}/capability`);
+      expect(await page.locator('[data-gauge-warning]').innerText()).toMatch(/only conditionally acceptable/);
+      await page.goto('/gauges');
+      await waitForIslands(page);
+      await link.locator('select[name=linkGaugeId]').selectOption({ label: '— no gauge —' });
+      await link.getByRole('button', { name: 'Save link' }).click();
+      await link.getByRole('status').filter({ hasText: 'Saved.' }).waitFor();
     } finally {
       await page.context().close();
     }

@@ -271,3 +271,63 @@ export function GaugeCreateForm() {
     </form>
   );
 }
+
+/** Link a characteristic to the gauge that measures it (or clear the link). */
+export function CharacteristicGaugeForm({
+  characteristics,
+  gauges,
+}: {
+  characteristics: { id: number; name: string; gaugeId: number | null }[];
+  gauges: GaugeOption[];
+}) {
+  const [characteristicId, setCharacteristicId] = useState(String(characteristics[0]?.id ?? ''));
+  const current = characteristics.find((c) => String(c.id) === characteristicId);
+  const [gaugeId, setGaugeId] = useState(String(current?.gaugeId ?? ''));
+  const [message, setMessage] = useState<string | null>(null);
+  async function save(e: SyntheticEvent) {
+    e.preventDefault();
+    try {
+      await apiFetch(`/api/v1/characteristics/${characteristicId}/gauge`, {
+        method: 'PUT',
+        body: { gaugeId: gaugeId === '' ? null : Number(gaugeId) },
+      });
+      setMessage('Saved.');
+    } catch (err) {
+      setMessage(err instanceof ApiError ? (err.errors[0]?.message ?? err.detail ?? err.title) : String(err));
+    }
+  }
+  return (
+    <form onSubmit={save} className="flex flex-wrap items-end gap-3" aria-label="Gauge of a characteristic">
+      <label>
+        Characteristic{' '}
+        <select
+          name="characteristicId"
+          value={characteristicId}
+          onChange={(e) => {
+            setCharacteristicId(e.target.value);
+            setGaugeId(String(characteristics.find((c) => String(c.id) === e.target.value)?.gaugeId ?? ''));
+          }}
+        >
+          {characteristics.map((c) => (
+            <option key={c.id} value={c.id}>
+              {c.name}
+            </option>
+          ))}
+        </select>
+      </label>
+      <label>
+        Measured with{' '}
+        <select name="linkGaugeId" value={gaugeId} onChange={(e) => setGaugeId(e.target.value)}>
+          <option value="">— no gauge —</option>
+          {gauges.map((g) => (
+            <option key={g.id} value={g.id}>
+              {g.name}
+            </option>
+          ))}
+        </select>
+      </label>
+      <button type="submit">Save link</button>
+      {message && <p role="status">{message}</p>}
+    </form>
+  );
+}

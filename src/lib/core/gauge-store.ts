@@ -234,3 +234,10 @@ export async function characteristicGaugeStatus(
           : `The newest gauge R&R study of “${gauge.name}” is unacceptable: the capability indices mostly measure the gauge.`;
   return { gauge, warning };
 }
+
+/** Every characteristic → gauge link (one query). */
+export async function listCharacteristicGauges(sequelize: Sequelize): Promise<Map<number, number>> {
+  void sequelize;
+  const rows = await CharacteristicGauge.findAll({ attributes: ['characteristicId', 'gaugeId'] });
+  return new Map(rows.map((r) => [r.characteristicId, r.gaugeId]));
+}

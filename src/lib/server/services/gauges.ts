@@ -7,6 +7,7 @@ import {
   computeStudy,
   createGauge,
   getGaugeStudy,
+  listCharacteristicGauges,
   listGaugeStudies,
   listGauges,
   recordGaugeStudy,
@@ -27,6 +28,7 @@ export const gauges = {
   linkCharacteristic: (user: SessionUser, characteristicId: number, gaugeId: number | null, address: string | null) =>
     setCharacteristicGauge(db(), actorOf(user, address), characteristicId, gaugeId),
   characteristicStatus: (characteristicId: number) => characteristicGaugeStatus(db(), characteristicId),
+  links: () => listCharacteristicGauges(db()),
 };
 
 /** The MSA calculators: the same computation as a stored study, nothing stored. */
