@@ -15,6 +15,7 @@ import { migration as m20261204_1100 } from './20261204-1100-config-notify.ts';
 import { migration as m1700 } from './20261204-1700-must-change-password.ts';
 import { migration as m1710 } from './20261204-1710-token-expiry.ts';
 import { migration as m1720 } from './20261204-1720-sessions-hashed.ts';
+import { migration as m1800gauge } from './20261204-1800-gauge-studies.ts';
 
 export const migrations: Migration[] = [
   m0900,
@@ -29,4 +30,5 @@ export const migrations: Migration[] = [
   m1700,
   m1710,
   m1720,
+  m1800gauge,
 ];

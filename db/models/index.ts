@@ -44,6 +44,9 @@ import { NcTest } from './nc-test.ts';
 import { Hold } from './hold.ts';
 import { NcDisposition } from './nc-disposition.ts';
 import { TestFile } from './test-file.ts';
+import { Gauge } from './gauge.ts';
+import { GaugeStudy } from './gauge-study.ts';
+import { CharacteristicGauge } from './characteristic-gauge.ts';
 
 export {
   ApiToken,
@@ -90,6 +93,9 @@ export {
   Hold,
   NcDisposition,
   TestFile,
+  Gauge,
+  GaugeStudy,
+  CharacteristicGauge,
 };
 export type { RoleName } from './user.ts';
 export type { AssetKind } from './asset.ts';
@@ -146,6 +152,9 @@ export function initModels(sequelize: Sequelize): void {
     Hold,
     NcDisposition,
     TestFile,
+    Gauge,
+    GaugeStudy,
+    CharacteristicGauge,
   ]) {
     m.initModel(sequelize);
   }
@@ -225,4 +234,8 @@ export function initModels(sequelize: Sequelize): void {
   Nonconformance.belongsTo(User, { as: 'opener', foreignKey: 'openedBy' });
   Nonconformance.belongsTo(User, { as: 'closer', foreignKey: 'closedBy' });
   NcDisposition.belongsTo(Nonconformance, { foreignKey: 'ncId' });
+  GaugeStudy.belongsTo(Gauge, { foreignKey: 'gaugeId' });
+  Gauge.hasMany(GaugeStudy, { as: 'studies', foreignKey: 'gaugeId' });
+  GaugeStudy.belongsTo(User, { as: 'recorder', foreignKey: 'recordedBy' });
+  CharacteristicGauge.belongsTo(Gauge, { foreignKey: 'gaugeId' });
 }

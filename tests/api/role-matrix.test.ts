@@ -162,6 +162,18 @@ const ROUTES: Record<string, Action | 'public'> = {
   'POST /api/v1/calc/colour-difference': 'calc.use',
   'POST /api/v1/calc/cure-verdict': 'calc.use',
   'POST /api/auth/change-password': 'view',
+  // measurement-system analysis
+  'GET /api/v1/gauges': 'view',
+  'POST /api/v1/gauges': 'msa.record',
+  'GET /api/v1/gauges/studies': 'view',
+  'POST /api/v1/gauges/studies': 'msa.record',
+  'GET /api/v1/gauges/studies/[id]': 'view',
+  'GET /api/v1/characteristics/[id]/gauge': 'view',
+  'PUT /api/v1/characteristics/[id]/gauge': 'characteristic.edit',
+  'POST /api/v1/calc/gauge-rr': 'calc.use',
+  'POST /api/v1/calc/gauge-bias': 'calc.use',
+  'POST /api/v1/calc/gauge-linearity': 'calc.use',
+  'POST /api/v1/calc/dew-point': 'calc.use',
 };
 
 /**

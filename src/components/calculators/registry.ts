@@ -165,6 +165,49 @@ export const CALCULATORS: CalculatorInfo[] = [
     sources: ['CIE 142-2001 / ISO/CIE 11664-6 (CIEDE2000)', 'G. Sharma, W. Wu & E. N. Dalal, Color Res. Appl. 30 (2005) 21–30'],
     validity: 'Reference viewing conditions (kL = kC = kH = 1). What ΔE a pair may differ by is the lab’s own setting.',
   },
+  {
+    slug: 'gauge-rr',
+    title: 'Gauge R&R',
+    summary:
+      'Repeatability, reproducibility, %GRR of total variation and of tolerance, and the number of distinct categories, by ANOVA or average and range.',
+    endpoint: '/api/v1/calc/gauge-rr',
+    sources: [
+      'AIAG, Measurement Systems Analysis reference manual, 4th ed. (2010), ch. III §B',
+      'D. C. Montgomery, Introduction to Statistical Quality Control, §8.7 (ANOVA variance components)',
+    ],
+    validity:
+      'A crossed, balanced study (every appraiser measures every part in every trial), parts spanning the process range. Average and range covers 2–3 trials, 2–3 appraisers, 2–10 parts. The interaction is pooled when its F test has p > 0.25 (common practice). Bands: < 10 % acceptable, 10–30 % conditional, > 30 % unacceptable; ndc ≥ 5.',
+  },
+  {
+    slug: 'gauge-bias',
+    title: 'Gauge bias',
+    summary: 'Bias of a gauge from repeated readings of one reference part, with its t test and 95 % interval.',
+    endpoint: '/api/v1/calc/gauge-bias',
+    sources: ['AIAG, Measurement Systems Analysis reference manual, 4th ed. (2010), ch. III §B' + ' (independent sample method)'],
+    validity:
+      'At least 10 readings of one reference part by one appraiser; the readings roughly normal. Zero inside the interval means no significant bias.',
+  },
+  {
+    slug: 'gauge-linearity',
+    title: 'Gauge linearity',
+    summary: 'Regression of bias on the reference value across the range, with t tests of slope and intercept.',
+    endpoint: '/api/v1/calc/gauge-linearity',
+    sources: ['AIAG, Measurement Systems Analysis reference manual, 4th ed. (2010), ch. III §B'],
+    validity:
+      'Several reference parts across the operating range, each read several times; the bias assumed to change in a straight line.',
+  },
+  {
+    slug: 'dew-point',
+    title: 'Dew point and blush risk',
+    summary: 'Dew point of the room air from temperature and relative humidity, and whether a bath or lens surface is near it.',
+    endpoint: '/api/v1/calc/dew-point',
+    sources: [
+      'O. A. Alduchov & R. E. Eskridge, J. Appl. Meteor. 35 (1996) 601–609 (Magnus coefficients over water)',
+      'ISO 8502-4 (condensation on surfaces; the 3 °C margin is common practice)',
+    ],
+    validity:
+      'Air from −40 to +50 °C, over water (not ice). The margin is a setting; the lacquer maker’s data on humidity limits governs.',
+  },
 ];
 
 export function calculator(slug: string): CalculatorInfo {

@@ -34,6 +34,7 @@ export const API_TAGS = {
   ovens: 'Oven uniformity surveys',
   spc: 'Stateless SPC, characteristics, control charts and control-limit studies',
   calculators: 'Stateless calculators (estimates within their stated validity)',
+  msa: 'Gauges and measurement-system studies (gauge R&R, bias, linearity)',
 } as const;
 export type ApiTag = keyof typeof API_TAGS;
 

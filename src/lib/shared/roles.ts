@@ -55,6 +55,7 @@ export const PERMISSIONS = {
   'admin.settings': ['admin'],
   'admin.mail': ['admin'],
   'admin.security': ['admin'],
+  'msa.record': ['engineer', 'quality'],
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Action = keyof typeof PERMISSIONS;
