@@ -11,5 +11,6 @@ import { migration as m1020 } from './20261202-1020-alarms.ts';
 import { migration as m1030 } from './20261202-1030-spc.ts';
 import { migration as m1040 } from './20261202-1040-windows-baths.ts';
 import { migration as m1050 } from './20261202-1050-loads-quality-trace.ts';
+import { migration as m1900 } from './20261204-1900-audit-hash-chain.ts';
 
-export const migrations: Migration[] = [m0900, m0910, m0920, m1000, m1020, m1030, m1040, m1050];
+export const migrations: Migration[] = [m0900, m0910, m0920, m1000, m1020, m1030, m1040, m1050, m1900];

@@ -19,9 +19,11 @@ import { BathCheck } from './bath-check.ts';
 import { BathAddition } from './bath-addition.ts';
 import { FilterChange } from './filter-change.ts';
 import { OvenSurvey } from './oven-survey.ts';
+import { AuditVerification } from './audit-verification.ts';
 
 export { ApiToken, Asset, AuditEntry, Channel, Device, LoginThrottle, OutboxMail, PasswordReset, Site, User, UserSession };
 export { Material, Lacquer, LacquerLot, BathCharge, BathCheck, BathAddition, FilterChange, OvenSurvey };
+export { AuditVerification };
 export type { RoleName } from './user.ts';
 export type { AssetKind } from './asset.ts';
 export type { SignatureRecord } from './audit-entry.ts';
@@ -51,6 +53,7 @@ export function initModels(sequelize: Sequelize): void {
     BathAddition,
     FilterChange,
     OvenSurvey,
+    AuditVerification,
   ]) {
     m.initModel(sequelize);
   }
