@@ -1,4 +1,12 @@
-/** The broker process: `tsx ingest/broker-main.ts` (started by `npm start`). */
+/**
+ * The broker process: `tsx ingest/broker-main.ts` (started by `npm start`).
+ *
+ * Environment beyond ingest/config.ts: MQTT_INGEST_PASSWORD / MQTT_WEB_PASSWORD give each
+ * service account its own secret (either falls back to MQTT_SERVICE_PASSWORD); MQTT_TLS_PORT
+ * with MQTT_TLS_CERT and MQTT_TLS_KEY (PEM file paths) add an MQTT-over-TLS listener;
+ * MQTT_MAX_PACKET_BYTES caps a device's packets (default 1 MiB).
+ */
+import fs from 'node:fs';
 import { createPool } from '../db/connection.ts';
 import { startBroker } from './broker.ts';
 import { loadConfig } from './config.ts';
@@ -6,12 +14,27 @@ import { loadConfig } from './config.ts';
 const config = loadConfig();
 const pool = createPool({ url: config.DATABASE_URL, max: 3 });
 const log = (s: string) => console.log(`[broker] ${s}`);
+const env = process.env;
+const tlsPort = Number(env['MQTT_TLS_PORT'] ?? 0);
+if (tlsPort && (!env['MQTT_TLS_CERT'] || !env['MQTT_TLS_KEY'])) {
+  console.error('[broker] MQTT_TLS_PORT needs MQTT_TLS_CERT and MQTT_TLS_KEY (PEM files).');
+  process.exit(1);
+}
+const maxPacket = Number(env['MQTT_MAX_PACKET_BYTES'] ?? 0);
 const broker = await startBroker({
   pool,
   host: config.MQTT_HOST,
   port: config.MQTT_PORT,
   wsPort: config.MQTT_WS_PORT,
   servicePassword: config.MQTT_SERVICE_PASSWORD,
+  servicePasswords: {
+    ...(env['MQTT_INGEST_PASSWORD'] ? { 'svc-ingest': env['MQTT_INGEST_PASSWORD'] } : {}),
+    ...(env['MQTT_WEB_PASSWORD'] ? { 'svc-web': env['MQTT_WEB_PASSWORD'] } : {}),
+  },
+  ...(tlsPort
+    ? { tls: { port: tlsPort, cert: fs.readFileSync(env['MQTT_TLS_CERT']!), key: fs.readFileSync(env['MQTT_TLS_KEY']!) } }
+    : {}),
+  ...(maxPacket > 0 ? { maxPacketBytes: maxPacket } : {}),
   log,
   ...(process.env['BROKER_STATE_DIR'] ? { stateDir: process.env['BROKER_STATE_DIR'] } : {}),
 }).catch((e: NodeJS.ErrnoException) => {

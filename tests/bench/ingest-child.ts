@@ -86,7 +86,7 @@ if (mode === 'subscriber') {
     password: process.env['MQTT_SERVICE_PASSWORD']!,
     protocolVersion: 4,
     clean: !persistent,
-    clientId: persistent ? 'bench-sub-persistent' : `bench-sub-${process.pid}`,
+    clientId: persistent ? 'coatrail-web-bench-sub-persistent' : `coatrail-web-bench-sub-${process.pid}`,
   });
   client.on('message', (_topic, buf) => {
     const now = Date.now();
