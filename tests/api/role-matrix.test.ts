@@ -160,6 +160,9 @@ const ROUTES: Record<string, Action | 'public'> = {
   'POST /api/v1/calc/stack-reflectance': 'calc.use',
   'POST /api/v1/calc/spectrum-colour': 'calc.use',
   'POST /api/v1/calc/colour-difference': 'calc.use',
+  // tamper-evident audit trail (issue 14 item 2)
+  'GET /api/v1/admin/audit-chain': 'admin.security',
+  'POST /api/v1/admin/audit-chain': 'admin.security',
 };
 
 /**
