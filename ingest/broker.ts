@@ -309,7 +309,8 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
     const t = sub.topic.replace(/^\$share\/[^/]+\//, '');
     const plant = t === '#' ? false : t.startsWith(TOPIC_ROOT + '/') || t === TOPIC_ROOT + '/#';
     if (id?.kind === 'svc-ingest' && plant) return done(null, sub);
-    if (id?.kind === 'svc-web' && (t.startsWith(LIVE_ROOT) || plant)) return done(null, sub);
+    // The web server needs only the live fan-out, not the plant's raw topics (least privilege).
+    if (id?.kind === 'svc-web' && (t === LIVE_ROOT + '/#' || isUnder(t, LIVE_ROOT))) return done(null, sub);
     done(new Error('subscription not allowed'), null);
   };
 

@@ -133,7 +133,12 @@ describe('client ids are bound to the credential', () => {
     await expect(service('svc-ingest', SHARED, 'coatrail-web-x')).rejects.toThrow(/identifier rejected/i);
     await expect(service('svc-web', SHARED, 'coatrail-web-x')).rejects.toThrow(/bad username or password|not authorized/i);
     const web = await service('svc-web', WEB_SECRET, 'coatrail-web-x');
-    await web.endAsync();
+    // svc-web reads the live fan-out only, not the plant's raw topics.
+    const live = await web.subscribeAsync('coatrail/v1/_live/#', { qos: 0 });
+    expect(live.map((g) => g.qos)).toEqual([0]);
+    const plant = await web.subscribeAsync('coatrail/v1/#', { qos: 0 }).catch((e: Error) => e);
+    expect(plant instanceof Error || plant.every((g) => g.qos === 128)).toBe(true);
+    await web.endAsync().catch(() => {});
   });
 });
 
