@@ -120,7 +120,7 @@ class Gateway {
     this.client = mqtt.connect(url, {
       username,
       password: demoDevicePassword(secret!, username),
-      clientId: `sim-${username}-${process.pid}`,
+      clientId: `${username}-sim-${process.pid}`, // bound to the credential by the broker
       protocolVersion: 4,
       clean: true,
       reconnectPeriod: 1000,

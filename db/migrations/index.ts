@@ -16,6 +16,7 @@ import { migration as m1700 } from './20261204-1700-must-change-password.ts';
 import { migration as m1710 } from './20261204-1710-token-expiry.ts';
 import { migration as m1720 } from './20261204-1720-sessions-hashed.ts';
 import { migration as m1800gauge } from './20261204-1800-gauge-studies.ts';
+import { migration as m1900 } from './20261204-1900-audit-hash-chain.ts';
 
 export const migrations: Migration[] = [
   m0900,
@@ -31,4 +32,5 @@ export const migrations: Migration[] = [
   m1710,
   m1720,
   m1800gauge,
+  m1900,
 ];

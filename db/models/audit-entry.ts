@@ -16,7 +16,10 @@ export interface SignatureRecord {
   signedAt: string;
 }
 
-/** One row of the append-only audit trail (the database refuses UPDATE and DELETE). */
+/**
+ * One row of the append-only audit trail (the database refuses UPDATE and DELETE), hash-chained
+ * to the row before it (migration 20261204-1900; checked by src/lib/core/audit-chain.ts).
+ */
 export class AuditEntry extends Model<InferAttributes<AuditEntry>, InferCreationAttributes<AuditEntry>> {
   declare id: CreationOptional<number>;
   declare at: CreationOptional<Date>;
@@ -29,6 +32,10 @@ export class AuditEntry extends Model<InferAttributes<AuditEntry>, InferCreation
   declare after: unknown;
   declare address: string | null;
   declare signature: SignatureRecord | null;
+  /** The previous row's `hash` (null for the first row); set by the database's chain trigger. */
+  declare prevHash: CreationOptional<Buffer | null>;
+  /** SHA-256 of the row's canonical text and `prevHash` (trigger `audit_log_chain`). */
+  declare hash: CreationOptional<Buffer | null>;
 
   static initModel(sequelize: Sequelize) {
     AuditEntry.init(
@@ -44,6 +51,8 @@ export class AuditEntry extends Model<InferAttributes<AuditEntry>, InferCreation
         after: { type: DataTypes.JSONB, allowNull: true },
         address: { type: DataTypes.TEXT, allowNull: true },
         signature: { type: DataTypes.JSONB, allowNull: true },
+        prevHash: { type: DataTypes.BLOB, allowNull: true },
+        hash: { type: DataTypes.BLOB, allowNull: true },
       },
       { sequelize, tableName: 'audit_log' },
     );

@@ -47,6 +47,7 @@ import { TestFile } from './test-file.ts';
 import { Gauge } from './gauge.ts';
 import { GaugeStudy } from './gauge-study.ts';
 import { CharacteristicGauge } from './characteristic-gauge.ts';
+import { AuditVerification } from './audit-verification.ts';
 
 export {
   ApiToken,
@@ -96,6 +97,7 @@ export {
   Gauge,
   GaugeStudy,
   CharacteristicGauge,
+  AuditVerification,
 };
 export type { RoleName } from './user.ts';
 export type { AssetKind } from './asset.ts';
@@ -155,6 +157,7 @@ export function initModels(sequelize: Sequelize): void {
     Gauge,
     GaugeStudy,
     CharacteristicGauge,
+    AuditVerification,
   ]) {
     m.initModel(sequelize);
   }

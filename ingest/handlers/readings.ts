@@ -60,6 +60,8 @@ export function processReadings(
   const prefix = deviceTopicPrefix(topic.site, topic.device);
   const device = map.device(prefix);
   if (!device) return reject(batch, msg, topic.device, null, 'unknown-device', `no device publishes under ${prefix}`);
+  if (!device.enabled)
+    return reject(batch, msg, device.username, null, 'unknown-device', `device ${device.username} is disabled`);
   const channel = map.channel(msg.topic);
   if (!channel) {
     batch.unknown.push({

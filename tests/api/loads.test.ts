@@ -301,6 +301,7 @@ describe('the ingest worker opens and closes loads by itself', () => {
     const client = mqtt.connect(`mqtt://127.0.0.1:${inject('stack').mqttPort}`, {
       username: o.device.username,
       password,
+      clientId: `${o.device.username}-loads-test`,
       protocolVersion: 4,
       reconnectPeriod: 0,
       connectTimeout: 5000,

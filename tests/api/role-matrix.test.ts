@@ -174,6 +174,9 @@ const ROUTES: Record<string, Action | 'public'> = {
   'POST /api/v1/calc/gauge-bias': 'calc.use',
   'POST /api/v1/calc/gauge-linearity': 'calc.use',
   'POST /api/v1/calc/dew-point': 'calc.use',
+  // tamper-evident audit trail
+  'GET /api/v1/admin/audit-chain': 'admin.security',
+  'POST /api/v1/admin/audit-chain': 'admin.security',
 };
 
 /**

@@ -82,11 +82,11 @@ process.on('message', (m: { expect?: number; time?: boolean }) => {
 if (mode === 'subscriber') {
   const url = process.env['MQTT_URL']!;
   const client = mqtt.connect(url, {
-    username: 'svc-web',
+    username: 'svc-ingest',
     password: process.env['MQTT_SERVICE_PASSWORD']!,
     protocolVersion: 4,
     clean: !persistent,
-    clientId: persistent ? 'bench-sub-persistent' : `bench-sub-${process.pid}`,
+    clientId: persistent ? 'coatrail-ingest-bench-sub-persistent' : `coatrail-ingest-bench-sub-${process.pid}`,
   });
   client.on('message', (_topic, buf) => {
     const now = Date.now();

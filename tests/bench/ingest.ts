@@ -182,6 +182,7 @@ async function main() {
         return await mqtt.connectAsync(env['MQTT_URL']!, {
           username: 'gw-bench',
           password: DEVICE_PW,
+          clientId: `gw-bench-${process.pid}`,
           protocolVersion: 4,
           reconnectPeriod: 0,
         });

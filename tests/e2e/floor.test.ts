@@ -43,7 +43,7 @@ beforeAll(async () => {
     username: 'gw-dip-1',
     password: demoDevicePassword(TEST_DEVICE_SECRET, 'gw-dip-1'),
     protocolVersion: 4,
-    clientId: `floor-e2e-${process.pid}`,
+    clientId: `gw-dip-1-floor-e2e-${process.pid}`,
   });
   browser = await chromium.launch({
     executablePath: '/usr/bin/chromium',

@@ -95,6 +95,7 @@ describe('readings arrive and are queryable', () => {
     const web = await mqtt.default.connectAsync(`mqtt://127.0.0.1:${port}`, {
       username: 'svc-web',
       password: TEST_SERVICE_PASSWORD,
+      clientId: `coatrail-web-pipeline-test-${process.pid}`,
       protocolVersion: 4,
     });
     const live: { channelId: number; tMs: number; value: number }[] = [];
@@ -247,7 +248,9 @@ describe('device identities at the broker', () => {
 
   it('does not let a device publish outside its own topics or read the plant topics', async () => {
     const other = await createTestDevice(pool, [{ key: 'x', unit: '°C', min: 0, max: 100 }], 'other');
-    const intruder = await connectDevice(port, dev.username, dev.password, { clientId: `intruder-${Date.now()}` });
+    const intruder = await connectDevice(port, dev.username, dev.password, {
+      clientId: `${dev.username}-intruder-${Date.now()}`,
+    });
     const closed = new Promise<void>((r) => intruder.once('close', () => r()));
     intruder.publish(other.topic('x'), JSON.stringify({ t: Date.now() - 1000, v: 50 }), { qos: 1 });
     await within(closed, 5_000, 'the broker to drop the intruder');
@@ -264,7 +267,7 @@ describe('device identities at the broker', () => {
     expect(await rejectionsFor(other.topic('x'))).toEqual([]);
     intruder.end(true);
 
-    const reader = await connectDevice(port, dev.username, dev.password, { clientId: `reader-${Date.now()}` });
+    const reader = await connectDevice(port, dev.username, dev.password, { clientId: `${dev.username}-reader-${Date.now()}` });
     const granted = await reader.subscribeAsync('coatrail/v1/#', { qos: 1 }).catch((e: Error) => e);
     const refused = granted instanceof Error || granted.every((g) => g.qos === 128);
     expect(refused).toBe(true);

@@ -37,6 +37,7 @@ beforeAll(async () => {
   watcher = mqtt.connect(mqttUrl, {
     username: 'svc-ingest',
     password: SERVICE_PASSWORD,
+    clientId: `coatrail-ingest-watcher-${process.pid}`,
     protocolVersion: 4,
     reconnectPeriod: 300,
     clean: true,

@@ -39,7 +39,7 @@ beforeAll(async () => {
     username: 'gw-dip-1',
     password: demoDevicePassword(TEST_DEVICE_SECRET, 'gw-dip-1'),
     protocolVersion: 4,
-    clientId: `spc-test-${tag}`,
+    clientId: `gw-dip-1-spc-test-${tag}`,
     reconnectPeriod: 0,
   });
 });

@@ -115,6 +115,8 @@ export async function connectDevice(
   return mqtt.connectAsync(`mqtt://127.0.0.1:${port}`, {
     username,
     password,
+    // The broker binds client ids to the credential: `{username}` or `{username}-{suffix}`.
+    clientId: `${username}-${randomBytes(4).toString('hex')}`,
     protocolVersion: 4,
     reconnectPeriod: 0,
     connectTimeout: 5000,
