@@ -225,7 +225,7 @@ const tankView = (a: Asset): TankRow => {
     id: a.id,
     code: a.code,
     name: a.name,
-    role: typeof a.details['role'] === 'string' ? (a.details['role']) : null,
+    role: typeof a.details['role'] === 'string' ? a.details['role'] : null,
     volumeL: volume === undefined || volume === null ? null : Number(volume),
     lineId: parent?.id ?? null,
     lineName: parent?.name ?? null,

@@ -58,10 +58,10 @@ export async function createWindowDraft(
         { draftId: draft.id },
       );
     }
-    const latest = (await ProcessWindow.max<number | null, ProcessWindow>('version', {
+    const latest = await ProcessWindow.max<number | null, ProcessWindow>('version', {
       where: { lacquerId: input.lacquerId, materialId: input.materialId },
       transaction: t,
-    }));
+    });
     const row = await ProcessWindow.create(
       {
         lacquerId: input.lacquerId,

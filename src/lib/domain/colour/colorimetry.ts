@@ -40,7 +40,6 @@ export interface SpectrumColour {
   warnings?: string[];
 }
 
-
 const WEIGHTS = (() => {
   const wx = new Float64Array(CIE_ROWS);
   const wy = new Float64Array(CIE_ROWS);
