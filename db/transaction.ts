@@ -28,6 +28,8 @@ export interface AuditRecord {
   before?: unknown;
   after?: unknown;
   signature?: SignatureRecord | null;
+  /** When it happened, for back-dated seed history only (default: now, the database's clock). */
+  at?: Date;
 }
 
 type BeforeCommit = (t: Transaction) => void | Promise<void>;
@@ -71,6 +73,7 @@ export async function auditIn(t: Transaction, actor: AuditActor, record: AuditRe
       after: record.after ?? null,
       address: actor.address ?? null,
       signature: record.signature ?? null,
+      ...(record.at ? { at: record.at } : {}),
     },
     { transaction: t },
   );

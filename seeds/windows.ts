@@ -8,6 +8,7 @@
  * sheet and the lab's own validation. Idempotent: does nothing when the lacquer exists.
  */
 import { QueryTypes, type Sequelize, type Transaction } from 'sequelize';
+import { auditIn } from '../db/transaction.ts';
 import { bathAddition } from '../src/lib/domain/film/bath-maintenance.ts';
 import { viscosityFromCup, type CupId } from '../src/lib/domain/film/viscosity-cups.ts';
 import type { ProcessWindowLimits } from '../src/lib/shared/windows.ts';
@@ -126,16 +127,17 @@ export async function seedWindows(
         t,
       );
       windowIds.set(code, w!.id);
-      await run(
-        `insert into audit_log (at, actor_id, actor_label, action, entity, entity_id, after, signature) values ($1, $2, 'demo seed', 'window.approve', 'process_window', $3, $4::jsonb, $5::jsonb) returning id`,
-        [
-          t0,
-          engineer?.id ?? null,
-          String(w!.id),
-          JSON.stringify({ status: 'effective', note: EXAMPLE_NOTE }),
-          JSON.stringify(signature),
-        ],
+      await auditIn(
         t,
+        { id: engineer?.id ?? null, label: 'demo seed' },
+        {
+          action: 'window.approve',
+          entity: 'process_window',
+          entityId: w!.id,
+          after: { status: 'effective', note: EXAMPLE_NOTE },
+          signature,
+          at: t0,
+        },
       );
     }
     const plan: [string, string][] = [

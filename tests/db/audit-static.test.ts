@@ -22,19 +22,7 @@ const THE_WRITER = 'db/transaction.ts';
  * that file is merged (the test fails for an entry that no longer offends, as a reminder),
  * and deletes the two retired helpers (the last two entries) when the list is otherwise empty.
  */
-const TEMPORARY_OFFENDERS: Record<string, string> = {
-  'seeds/characteristics.ts': 'raw insert into audit_log beside spc-store writes on a pg client (SPC conversion)',
-  'seeds/windows.ts': 'raw insert into audit_log for the seeded window approval (windows conversion)',
-  'src/lib/server/services/alarms.ts': 'audit() after the alarm change (alarms conversion)',
-  'src/lib/server/services/dips.ts': 'audit() (dip runs / loads conversion)',
-  'src/lib/server/services/holds.ts': 'audit() after holds and dispositions (holds conversion)',
-  'src/lib/server/services/loads.ts': 'audit() after load changes (loads conversion)',
-  'src/lib/server/services/quality.ts': 'audit() after quality tests (quality conversion)',
-  'src/lib/server/services/spc.ts': 'audit() after limit-set approval (SPC conversion)',
-  'src/lib/server/services/windows.ts': 'audit() (windows conversion)',
-  'src/lib/server/audit.ts': 'the retired audit() helper itself (deprecated)',
-  'src/lib/core/audit-store.ts': 'the retired appendAudit() helper itself (deprecated)',
-};
+const TEMPORARY_OFFENDERS: Record<string, string> = {};
 
 const RULES: Array<{ what: string; re: RegExp; except?: string }> = [
   { what: 'raw insert into audit_log', re: /insert\s+into\s+"?audit_log"?/i },
