@@ -36,12 +36,12 @@ export function createSequelize({
   return new Sequelize(url, {
     dialect: 'postgres',
     dialectModule: pg,
-    ...(statementTimeoutMs ? { dialectOptions: { statement_timeout: statementTimeoutMs } } : {}),
     logging: logging ? console.log : false,
     pool: { max, min: 0, idle: 10_000, acquire: 20_000 },
     dialectOptions: {
       ...(connectionTimeoutMillis ? { connectionTimeoutMillis } : {}),
       ...(queryTimeoutMillis ? { query_timeout: queryTimeoutMillis } : {}),
+      ...(statementTimeoutMs ? { statement_timeout: statementTimeoutMs } : {}),
     },
     define: { underscored: true, timestamps: false },
   });
