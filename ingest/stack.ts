@@ -202,7 +202,9 @@ async function main(): Promise<void> {
     // A stable client id: a restarted worker resumes its persistent session (and the readings
     // queued in it) instead of opening a new one named after its new pid.
     INGEST_WORKER_ID: env['INGEST_WORKER_ID'] ?? 'main',
-    BROKER_STATE_DIR: env['BROKER_STATE_DIR'] ?? path.join(varDir, 'broker'),
+    // Durable broker state (LevelDB) only when asked for: in the soak it lost about 2.5 % of
+    // readings under many publishers, which the in-memory sessions do not (README).
+    ...(env['BROKER_STATE_DIR'] ? { BROKER_STATE_DIR: env['BROKER_STATE_DIR'] } : {}),
   };
   const tsx = ['--import', 'tsx'];
   if (!env['MQTT_URL']) startChild('broker', [...tsx, 'ingest/broker-main.ts'], childEnv);

@@ -51,8 +51,14 @@ describe('GET /api/v1/audit', () => {
     const viewer = await signIn('viewer');
     const mine = await api(`/api/v1/audit?entity=user&entityId=${person.id}`, { session: viewer });
     expect(mine.status).toBe(200);
-    expect(mine.body.total).toBe(2);
-    expect(mine.body.rows.map((r: { action: string }) => r.action)).toEqual(['user.role-changed', 'user.created']);
+    // Created by the admin, signed in once and replaced the admin-set password (createThrowawayUser), then re-roled.
+    expect(mine.body.total).toBe(4);
+    expect(mine.body.rows.map((r: { action: string }) => r.action)).toEqual([
+      'user.role-changed',
+      'user.password-changed',
+      'auth.signed-in',
+      'user.created',
+    ]);
     expect(mine.body.rows[0]).toMatchObject({
       actor: 'admin',
       entity: 'user',
@@ -67,7 +73,7 @@ describe('GET /api/v1/audit', () => {
     const today = await api(`/api/v1/audit?entity=user&entityId=${person.id}&from=${londonToday()}&to=${londonToday()}`, {
       session: viewer,
     });
-    expect(today.body.total).toBe(2);
+    expect(today.body.total).toBe(4);
     const yesterday = await api(`/api/v1/audit?entity=user&entityId=${person.id}&to=${londonYesterday()}`, { session: viewer });
     expect(yesterday.body.total).toBe(0);
     const future = await api(
@@ -81,7 +87,7 @@ describe('GET /api/v1/audit', () => {
     const viewer = await signIn('viewer');
     const p1 = await api(`/api/v1/audit?entity=user&entityId=${person.id}&pageSize=1&page=1`, { session: viewer });
     const p2 = await api(`/api/v1/audit?entity=user&entityId=${person.id}&pageSize=1&page=2`, { session: viewer });
-    expect(p1.body).toMatchObject({ total: 2, page: 1, pageSize: 1 });
+    expect(p1.body).toMatchObject({ total: 4, page: 1, pageSize: 1 });
     expect(p1.body.rows).toHaveLength(1);
     expect(p2.body.rows).toHaveLength(1);
     expect(p1.body.rows[0].id).toBeGreaterThan(p2.body.rows[0].id);
@@ -107,7 +113,7 @@ describe('GET /api/v1/audit', () => {
     expect(r.headers.get('content-disposition')).toMatch(/attachment; filename="coatrail-audit-[0-9-]+\.csv"/);
     const records = parseCsv(await r.text());
     expect(records[0]!.cells.slice(0, 5)).toEqual(['id', 'at_utc', 'actor', 'actor_id', 'action']);
-    expect(records).toHaveLength(3);
+    expect(records).toHaveLength(5);
     expect(records[1]!.cells[4]).toBe('user.role-changed');
     expect(JSON.parse(records[1]!.cells[8]!)).toMatchObject({ role: 'quality' });
     // A sign-in attempt under a formula-like name lands in the trail; the export defuses it.

@@ -374,6 +374,23 @@ async function realPathValues(session: Session): Promise<Record<string, Record<s
     expect(made.status, JSON.stringify(made.body)).toBe(201);
   }
   put('/api/v1/nonconformances/{id}', { id: await first('/api/v1/nonconformances', id) });
+  if (!(await first('/api/v1/gauges/studies', id))) {
+    const quality = sessions.get('quality')!;
+    const gauge = await call('POST', '/api/v1/gauges', {
+      session: quality,
+      body: JSON.stringify({ name: `OpenAPI check gauge ${Date.now()}`, kind: 'thickness', unit: 'µm' }),
+      type: 'application/json',
+    });
+    expect(gauge.status, JSON.stringify(gauge.body)).toBe(201);
+    // AIAG MSA 4th ed. bias example readings (reference 6.00).
+    const readings = [5.8, 5.7, 5.9, 5.9, 6.0, 6.1, 6.0, 6.1, 6.4, 6.3, 6.0, 6.1, 6.2, 5.6, 6.0];
+    const study = await call('POST', '/api/v1/gauges/studies', {
+      session: quality,
+      body: JSON.stringify({ kind: 'bias', gaugeId: gauge.body.id, title: 'OpenAPI check: bias', reference: 6, readings }),
+      type: 'application/json',
+    });
+    expect(study.status, JSON.stringify(study.body)).toBe(201);
+  }
   const testId = await first('/api/v1/quality/tests', id);
   const form = new FormData();
   form.append('file', new Blob(['wavelength_nm,reflectance_pct\n500,4.1\n510,4.3\n'], { type: 'text/csv' }), 'openapi-check.csv');

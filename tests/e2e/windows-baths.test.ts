@@ -176,7 +176,7 @@ describe('calculator pages (viewer)', () => {
     expect(await page.locator('main').textContent()).toContain('the lab’s own validation govern');
     await page.goto(`${base()}/calculators/viscosity-cup`);
     await page.locator('astro-island:not([ssr])').first().waitFor();
-    await page.getByLabel('Cup').selectOption('zahn-1');
+    await page.getByLabel('Cup', { exact: true }).selectOption('zahn-1');
     await page.getByLabel('Efflux time').fill('40');
     await page.getByRole('button', { name: 'Calculate' }).click();
     // ASTM D4212 Zahn 1: 1.1·(40 − 29) = 12.1 mm²/s

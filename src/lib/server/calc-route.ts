@@ -14,10 +14,12 @@ import { HttpProblem, readJson } from './http.ts';
 export function calcRoute<S extends z.ZodType>(
   op: { action: Action; body: S },
   compute: (input: z.infer<S>) => unknown,
+  /** The body cap (BODY_LIMITS.json unless the calculator takes long profiles). */
+  maxBytes?: number,
 ): APIRoute {
   return async ({ locals, request }) => {
     requireRole(locals, op.action);
-    const input = await readJson(request, op.body);
+    const input = await readJson(request, op.body, maxBytes);
     let result: unknown;
     try {
       result = compute(input);

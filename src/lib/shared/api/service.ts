@@ -3,7 +3,11 @@ import { z } from 'zod';
 import { RoleSchema } from '../roles.ts';
 import { DateTimeSchema } from './common.ts';
 
-/** `GET /api/health` (product.md §6): the database, broker and ingest worker, and which of them fail. */
+/**
+ * `GET /api/health`: the database, broker and ingest worker, and which of them fail. Anonymous
+ * callers get the status and each part's `ok` only; signed-in callers also the details (the
+ * optional fields), and under `npm start` the supervised processes.
+ */
 export const HealthReportSchema = z.object({
   status: z.enum(['ok', 'degraded']),
   time: DateTimeSchema,
@@ -11,13 +15,28 @@ export const HealthReportSchema = z.object({
   broker: z.object({ ok: z.boolean(), error: z.string().optional() }),
   ingest: z.object({
     ok: z.boolean(),
-    workers: z.int(),
-    lagMs: z.number().nullable(),
-    heartbeatAgeMs: z.number().nullable(),
-    buffered: z.int(),
-    journalBytes: z.number(),
+    workers: z.int().optional(),
+    lagMs: z.number().nullable().optional(),
+    heartbeatAgeMs: z.number().nullable().optional(),
+    buffered: z.int().optional(),
+    journalBytes: z.number().optional(),
     error: z.string().optional(),
   }),
+  supervisor: z
+    .object({
+      processes: z.array(
+        z.object({
+          name: z.string(),
+          state: z.enum(['starting', 'running', 'restarting', 'stopped']),
+          pid: z.int().nullable(),
+          restarts: z.int(),
+          since: z.string(),
+          lastExit: z.object({ code: z.int().nullable(), signal: z.string().nullable(), at: z.string() }).nullable(),
+          nextStartAt: z.string().nullable(),
+        }),
+      ),
+    })
+    .optional(),
   failing: z.array(z.string()),
 });
 export type HealthReportView = z.infer<typeof HealthReportSchema>;
