@@ -391,6 +391,9 @@ async function realPathValues(session: Session): Promise<Record<string, Record<s
     });
     expect(study.status, JSON.stringify(study.body)).toBe(201);
   }
+  put('/api/v1/gauges/studies/{id}', {
+    id: await first('/api/v1/gauges/studies', (b) => (Array.isArray(b?.studies) ? b.studies[0]?.id : undefined)),
+  });
   const testId = await first('/api/v1/quality/tests', id);
   const form = new FormData();
   form.append('file', new Blob(['wavelength_nm,reflectance_pct\n500,4.1\n510,4.3\n'], { type: 'text/csv' }), 'openapi-check.csv');
