@@ -30,7 +30,6 @@ import {
 } from '../shared/baths.ts';
 import type { ProcessWindowInForce } from '../shared/windows.ts';
 import { DomainError, fieldError } from './errors.ts';
-import { pgBridge } from './pg-bridge.ts';
 import { windowInForce } from './window-store.ts';
 
 /** Who wrote an entry (stored on the row as the user id and the label shown in the log). */
@@ -283,7 +282,7 @@ export async function bathContext(
   t?: Transaction | null,
 ): Promise<{ charge: ChargeRow | null; window: ProcessWindowInForce | null; ctx: BathCheckContext }> {
   const charge = await chargeAt(sequelize, tankId, at, t);
-  const window = await windowInForce(pgBridge(sequelize, t), tankId, at.getTime());
+  const window = await windowInForce(t ?? sequelize, tankId, at.getTime());
   // Labs keep a bath topped up to its working level, and evaporation and drag-out are not
   // metered: the charged mass is the working estimate unless the operator weighs the bath.
   const estimatedBathMassKg = charge?.massKg ?? null;

@@ -12,7 +12,7 @@ import { DipRun, DipRunJob, Job, Rack } from '../../../db/models/index.ts';
 import { auditIn, type AuditActor } from '../../../db/transaction.ts';
 import type { JobCsvRow } from '../shared/jobs.ts';
 import { DomainError, fieldError } from './errors.ts';
-import { inTransaction, poolView, selectRows, transactionOf, type Db } from './record-db.ts';
+import { inTransaction, selectRows, transactionOf, type Db } from './record-db.ts';
 import { windowInForce } from './window-store.ts';
 
 /** A withdrawal speed below this counts as stopped, mm/s (common practice: the lift is parked). */
@@ -183,7 +183,7 @@ export async function createDipRun(db: Db, input: DipRunInput, actor?: AuditActo
     });
   }
   const at = input.dippedAtMs;
-  const window = await windowInForce(poolView(db), line.id, at);
+  const window = await windowInForce(db, line.id, at);
   const stroke = line.speedChannelId ? await strokeNear(db, line.speedChannelId, at) : null;
   return inTransaction(db, async (t) => {
     // Bath charges and checks belong to the bath log: raw look-ups through the same transaction.

@@ -25,7 +25,7 @@ import type { ProcessWindowInForce } from '../shared/windows.ts';
 import { DomainError } from './errors.ts';
 import { clearAlarmReturning, getAlarm, liveAlarmPayload, raiseAlarm } from './alarm-store.ts';
 import { upsertJobs } from './job-store.ts';
-import { inTransaction, poolView, selectRows, sequelizeOf, transactionOf, type Db } from './record-db.ts';
+import { inTransaction, selectRows, sequelizeOf, transactionOf, type Db } from './record-db.ts';
 import { windowInForce } from './window-store.ts';
 
 export type Publish = (kind: string, payload: unknown) => void;
@@ -169,7 +169,7 @@ export async function computeCureRecord(
   const oven = await ovenChannels(db, load.ovenAssetId);
   if (!oven) throw new Error(`asset ${load.ovenAssetId} is not an oven`);
   const endMs = Math.min(load.closedAtMs, load.openedAtMs + MAX_LOAD_HOURS * 3_600_000);
-  const inForce = await windowInForce(poolView(db), load.ovenAssetId, load.openedAtMs);
+  const inForce = await windowInForce(db, load.ovenAssetId, load.openedAtMs);
   const cw = inForce ? cureWindowOf(inForce) : null;
   const window: CureWindow = cw?.window ?? {
     // No window: only window-free measurements are kept; these values just let the domain run.
@@ -301,7 +301,7 @@ async function applyCureAlarm(
   record: StoredCureRecord,
   publish?: Publish,
 ): Promise<number | null> {
-  const pool = poolView(db);
+  const pool = db;
   const key = `load:${load.id}`;
   const priority = verdictPriority(record.verdict);
   if (!priority) {
@@ -410,7 +410,7 @@ export async function openLoad(
     throw new DomainError('invalid', 'Invalid input', 'ovenAssetId: not an oven', {
       errors: [{ path: 'ovenAssetId', message: 'Choose an oven.' }],
     });
-  const w = await windowInForce(poolView(db), input.ovenAssetId, input.atMs);
+  const w = await windowInForce(db, input.ovenAssetId, input.atMs);
   let id: number;
   try {
     id = await inTransaction(db, async (t) => {

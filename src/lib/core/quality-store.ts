@@ -14,12 +14,12 @@ import { CsvSyntaxError, normaliseHeader, parseCsv } from '../shared/csv-table.t
 import { MAX_UPLOAD_BYTES, sniffUpload, safeFileName, type UploadMime } from '../shared/file-types.ts';
 import { AcceptanceSchema, DEFAULT_ACCEPTANCE, type Acceptance, type TestCreate } from '../shared/quality.ts';
 import { DomainError, fieldError, type DomainErrorKind } from './errors.ts';
-import { inTransaction, poolView, selectRows, transactionOf, type Db } from './record-db.ts';
+import { inTransaction, selectRows, transactionOf, type Db } from './record-db.ts';
 import { readSetting } from './settings-store.ts';
 
 /** The lab's acceptance settings (site_settings 'acceptance'), defaults when unset. */
 export function acceptanceSettings(db: Db): Promise<Acceptance> {
-  return readSetting(poolView(db), 'acceptance', AcceptanceSchema, DEFAULT_ACCEPTANCE);
+  return readSetting(db, 'acceptance', AcceptanceSchema, DEFAULT_ACCEPTANCE);
 }
 
 const bad = (path: string, message: string, kind: DomainErrorKind = 'invalid', title = 'Invalid input') =>

@@ -4,38 +4,26 @@
  * the same instance (`selectRows`, bind parameters) where a model query would not pay.
  */
 import type pg from 'pg';
-import { QueryTypes, Transaction, type Sequelize } from 'sequelize';
-import { withTransaction } from '../../../db/transaction.ts';
+import type { Sequelize, Transaction } from 'sequelize';
+import { inTransaction, isTransaction, select, sequelizeOf, type Db } from './db.ts';
 
-/** The process's Sequelize instance, or a transaction on it. */
-export type Db = Sequelize | Transaction;
-
-export function sequelizeOf(db: Db): Sequelize {
-  return db instanceof Transaction ? (db as unknown as { sequelize: Sequelize }).sequelize : db;
-}
+export { inTransaction, sequelizeOf, type Db };
 
 export function transactionOf(db: Db): Transaction | undefined {
-  return db instanceof Transaction ? db : undefined;
-}
-
-/** `withTransaction` on `db`: a new transaction on an instance, the same one when `db` already is one. */
-export function inTransaction<T>(db: Db, work: (t: Transaction) => Promise<T>): Promise<T> {
-  return withTransaction(sequelizeOf(db), work, transactionOf(db));
+  return isTransaction(db) ? db : undefined;
 }
 
 /** Rows of a raw SELECT with `$1…` bind parameters, on `db` (inside its transaction when it is one). */
 export function selectRows<T extends object>(db: Db, sql: string, bind: unknown[] = []): Promise<T[]> {
-  const transaction = transactionOf(db);
-  return sequelizeOf(db).query<T>(sql, { bind, type: QueryTypes.SELECT, ...(transaction ? { transaction } : {}) });
+  return select<T>(db, sql, bind);
 }
 
 const views = new WeakMap<Sequelize, pg.Pool>();
 
 /**
- * Transitional: a pg.Pool-shaped view of the instance's own connection pool, for the core
- * modules of other areas that still take a `pg.Pool` (window-store, alarm-store, settings-store).
- * Their queries run on this process's Sequelize connections (one pool), outside any Sequelize
- * transaction. Remove each use when its store takes a `Db`.
+ * A pg.Pool-shaped view of the instance's own connection pool, for code written against
+ * `pg.Pool` (the broker's authentication and revocation queries): its queries run on this
+ * process's Sequelize connections, so the process keeps one pool.
  */
 export function poolView(db: Db): pg.Pool {
   const sequelize = sequelizeOf(db);

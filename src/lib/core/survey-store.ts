@@ -8,20 +8,19 @@ import { OvenSurvey } from '../../../db/models/index.ts';
 import { auditIn, withTransaction, type AuditActor } from '../../../db/transaction.ts';
 import { SurveySettingsSchema, type SurveySettings } from '../shared/surveys.ts';
 import type { SurveyComputation } from '../shared/trace-views.ts';
-import { pgBridge } from './pg-bridge.ts';
 import { attachFile } from './quality-store.ts';
 import { readSetting, writeSetting } from './settings-store.ts';
 
 export const SURVEY_SETTINGS_KEY = 'ovenSurveys';
 
 export function readSurveySettings(sequelize: Sequelize, fallback: SurveySettings): Promise<SurveySettings> {
-  return readSetting(pgBridge(sequelize), SURVEY_SETTINGS_KEY, SurveySettingsSchema, fallback);
+  return readSetting(sequelize, SURVEY_SETTINGS_KEY, SurveySettingsSchema, fallback);
 }
 
 /** Replace the survey settings; the previous value goes into the audit row. */
 export async function writeSurveySettings(sequelize: Sequelize, actor: AuditActor, value: SurveySettings): Promise<void> {
   await withTransaction(sequelize, async (t) => {
-    const before = await writeSetting(pgBridge(sequelize, t), SURVEY_SETTINGS_KEY, value);
+    const before = await writeSetting(t, SURVEY_SETTINGS_KEY, value);
     await auditIn(t, actor, {
       action: 'settings.ovenSurveys',
       entity: 'site_settings',

@@ -18,7 +18,7 @@ import {
 import { windowRangeFor } from '../../shared/trend.ts';
 import type { ProcessWindowInForce } from '../../shared/windows.ts';
 import { sequelize } from '../db.ts';
-import { poolView, selectRows } from '../../core/record-db.ts';
+import { selectRows } from '../../core/record-db.ts';
 
 /** A raw SELECT through the web process's Sequelize instance (bind parameters). */
 const rawRows = <T extends object>(sql: string, bind: unknown[] = []) => selectRows<T>(sequelize(), sql, bind);
@@ -46,7 +46,7 @@ interface AssetLite {
 /** The site's name and time zone (sites.time_zone; the first site). */
 export async function siteInfo(): Promise<{ name: string; timeZone: string }> {
   const rows = await rawRows<{ name: string }>('select name from sites order by id limit 1');
-  return { name: rows[0]?.name ?? 'Coatrail', timeZone: await siteTimeZone(poolView(sequelize())) };
+  return { name: rows[0]?.name ?? 'Coatrail', timeZone: await siteTimeZone(sequelize()) };
 }
 
 export async function floorSnapshot(nowMs = Date.now()): Promise<FloorSnapshot> {
@@ -89,7 +89,7 @@ export async function floorSnapshot(nowMs = Date.now()): Promise<FloorSnapshot> 
   const windows = new Map<number, ProcessWindowInForce | null>();
   await Promise.all(
     [...new Set(channels.map((c) => c.assetId))].map(async (assetId) => {
-      windows.set(assetId, await windowInForce(poolView(sequelize()), assetId, nowMs));
+      windows.set(assetId, await windowInForce(sequelize(), assetId, nowMs));
     }),
   );
 
@@ -220,7 +220,7 @@ async function loadState(id: number, ovenAssetId: number, openedMs: number, jobs
         group by 1 order by 1`,
       [oven.zones.map((z) => z.id), from],
     ),
-    windowInForce(poolView(sequelize()), ovenAssetId, openedMs),
+    windowInForce(sequelize(), ovenAssetId, openedMs),
   ]);
   let soakMinutes = Number.NaN;
   if (w) {

@@ -20,7 +20,7 @@ import { Asset, Job, NcDisposition as NcDispositionRow, NcTest, OvenLoad, Qualit
 import * as core from '../../core/hold-store.ts';
 import { signWithPassword, type SessionUser } from '../auth.ts';
 import { sequelize } from '../db.ts';
-import { poolView, selectRows } from '../../core/record-db.ts';
+import { selectRows } from '../../core/record-db.ts';
 
 /** A raw SELECT through the web process's Sequelize instance (bind parameters). */
 const rawRows = <T extends object>(sql: string, bind: unknown[] = []) => selectRows<T>(sequelize(), sql, bind);
@@ -90,7 +90,7 @@ export async function listHolds(f: {
 }
 
 export async function holdsCsv(items: HoldItem[]): Promise<string> {
-  const tz = await siteTimeZone(poolView(sequelize()));
+  const tz = await siteTimeZone(sequelize());
   const t = (s: string | null) => (s ? new Date(s).toLocaleString('sv-SE', { timeZone: tz }) : '');
   return toCsv(
     [

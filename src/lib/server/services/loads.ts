@@ -19,7 +19,7 @@ import { publishLive } from '../broker-link.ts';
 import { Asset, Job, LoadJob, Rack } from '../../../../db/models/index.ts';
 import { testCountsOf } from '../../core/quality-store.ts';
 import { sequelize } from '../db.ts';
-import { poolView, selectRows } from '../../core/record-db.ts';
+import { selectRows } from '../../core/record-db.ts';
 
 /** A raw SELECT through the web process's Sequelize instance (bind parameters). */
 const rawRows = <T extends object>(sql: string, bind: unknown[] = []) => selectRows<T>(sequelize(), sql, bind);
@@ -123,7 +123,7 @@ export async function openLoadPhase(ovenAssetId: number, openedAtMs: number): Pr
       group by 1 order by 1`,
     [oven.zones.map((z) => z.id), from],
   );
-  const w = await windowInForce(poolView(sequelize()), ovenAssetId, openedAtMs);
+  const w = await windowInForce(sequelize(), ovenAssetId, openedAtMs);
   const ph = ovenLoadPhase({
     setpointC: sp,
     readings: rows.map((r) => ({ tMs: r.t, tempC: r.v })),
@@ -160,7 +160,7 @@ export async function listLoads(q: LoadListQuery): Promise<LoadListItem[]> {
 
 /** The load list as CSV (times in the site's zone with the zone named in the header). */
 export async function loadsCsv(items: LoadListItem[]): Promise<string> {
-  const tz = await siteTimeZone(poolView(sequelize()));
+  const tz = await siteTimeZone(sequelize());
   const fmt = (s: string | null) => (s ? new Date(s).toLocaleString('sv-SE', { timeZone: tz }) : '');
   return toCsv(
     [

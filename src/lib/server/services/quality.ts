@@ -20,7 +20,7 @@ import { SpcEvaluateInputSchema } from '../../shared/spc.ts';
 import type { SessionUser } from '../auth.ts';
 import { TestFile, User } from '../../../../db/models/index.ts';
 import { sequelize } from '../db.ts';
-import { poolView, selectRows } from '../../core/record-db.ts';
+import { selectRows } from '../../core/record-db.ts';
 
 /** A raw SELECT through the web process's Sequelize instance (bind parameters). */
 const rawRows = <T extends object>(sql: string, bind: unknown[] = []) => selectRows<T>(sequelize(), sql, bind);
@@ -103,7 +103,7 @@ export async function listTests(q: TestListQuery): Promise<TestListItem[]> {
 
 /** The test list as CSV. */
 export async function testsCsv(items: TestListItem[]): Promise<string> {
-  const tz = await siteTimeZone(poolView(sequelize()));
+  const tz = await siteTimeZone(sequelize());
   return toCsv(
     [
       'test',
@@ -206,7 +206,7 @@ export async function putAcceptance(user: SessionUser, value: Acceptance, addres
  * Montgomery ch. 7) from the SPC library. Weeks without tests are left out.
  */
 export async function adhesionPChart(weeks = 12): Promise<AdhesionChart> {
-  const tz = await siteTimeZone(poolView(sequelize()));
+  const tz = await siteTimeZone(sequelize());
   const rows = await rawRows<{ t: number; fail: boolean }>(
     `select (extract(epoch from tested_at) * 1000)::float8 as t, result = 'fail' as fail from quality_tests
       where kind = any($1::text[]) and tested_at >= now() - make_interval(days => $2) order by tested_at`,
@@ -276,7 +276,7 @@ export async function failuresByBathCharge(days = 90): Promise<FailureGroup[]> {
       group by ch.id, a.code, lo.lot_code, ch.charged_at order by failed desc, ch.id nulls last`,
     [ADHESION_KINDS, days],
   );
-  const tz = await siteTimeZone(poolView(sequelize()));
+  const tz = await siteTimeZone(sequelize());
   return rows.map((r) => ({
     key: r.charge_id ? `charge ${r.charge_id}` : '—',
     label: r.charge_id

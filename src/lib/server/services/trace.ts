@@ -12,7 +12,7 @@ import type { StoredCureRecord } from '../../shared/jobs.ts';
 import type { Range } from '../../shared/windows.ts';
 import { Hold, Job, QualityTest, TestFile, User } from '../../../../db/models/index.ts';
 import { sequelize } from '../db.ts';
-import { poolView, selectRows } from '../../core/record-db.ts';
+import { selectRows } from '../../core/record-db.ts';
 
 /** A raw SELECT through the web process's Sequelize instance (bind parameters). */
 const rawRows = <T extends object>(sql: string, bind: unknown[] = []) => selectRows<T>(sequelize(), sql, bind);
@@ -24,7 +24,7 @@ const iso = (d: Date | null) => (d ? d.toISOString() : null);
 
 /** The sibling window in hours (site setting, default 8 h). */
 export async function siblingHours(): Promise<number> {
-  return (await readSetting(poolView(sequelize()), 'trace', TraceSettingsSchema, DEFAULT_TRACE_SETTINGS)).bathSiblingHours;
+  return (await readSetting(sequelize(), 'trace', TraceSettingsSchema, DEFAULT_TRACE_SETTINGS)).bathSiblingHours;
 }
 
 /** The trace of a job, or null when the job is unknown. */
