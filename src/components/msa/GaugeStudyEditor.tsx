@@ -221,7 +221,7 @@ export function GaugeStudyEditor({ gauges }: { gauges: GaugeOption[] }) {
           </label>
         </div>
       )}
-      <button type="submit" disabled={busy || !gaugeId}>
+      <button type="submit" className="btn" disabled={busy || !gaugeId}>
         {busy ? 'Computing…' : 'Compute and save'}
       </button>
       {messages.length > 0 && (
@@ -266,7 +266,9 @@ export function GaugeCreateForm() {
       <label>
         Unit <input name="unit" value={unit} onChange={(e) => setUnit(e.target.value)} required maxLength={20} />
       </label>
-      <button type="submit">Add gauge</button>
+      <button type="submit" className="btn">
+        Add gauge
+      </button>
       {message && <p role="alert">{message}</p>}
     </form>
   );
@@ -326,7 +328,9 @@ export function CharacteristicGaugeForm({
           ))}
         </select>
       </label>
-      <button type="submit">Save link</button>
+      <button type="submit" className="btn">
+        Save link
+      </button>
       {message && <p role="status">{message}</p>}
     </form>
   );
