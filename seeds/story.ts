@@ -18,7 +18,7 @@
 import type pg from 'pg';
 import type { Sequelize } from 'sequelize';
 import { judgeTest, type TestMeasurement } from '../src/lib/domain/quality/acceptance.ts';
-import { AMS2750G_CLASSES, uniformitySurvey } from '../src/lib/domain/oven/uniformity.ts';
+import { AMS2750_CLASSES, uniformitySurvey } from '../src/lib/domain/oven/uniformity.ts';
 import { acceptanceSettings, attachFile } from '../src/lib/core/quality-store.ts';
 import { recordPastLoad } from '../src/lib/core/load-store.ts';
 import { windowInForce } from '../src/lib/core/window-store.ts';
@@ -405,7 +405,7 @@ const SURVEY_DAYS_AGO: Record<string, number> = { 'oven-a': 41, 'oven-b': 118, '
 /**
  * One uniformity survey per oven, from an invented 9-thermocouple survey file (1-minute rows,
  * heat-up at about 3 °C/min to a per-sensor offset around the 110 °C setpoint, ±0.15 °C noise),
- * computed like an uploaded one: automatic stabilised soak, AMS2750G class table.
+ * computed like an uploaded one: automatic stabilised soak, AMS2750F Table 11 class table.
  */
 async function seedSurveys(sequelize: Sequelize, pool: pg.Pool, nowMs: number, asset: Map<string, number>): Promise<void> {
   const engineer = (await pool.query<{ id: number }>(`select id from users where username = 'engineer'`)).rows[0];
@@ -435,7 +435,7 @@ async function seedSurveys(sequelize: Sequelize, pool: pg.Pool, nowMs: number, a
       setpointC: 110,
       sensors: table.sensors,
       stabilisedFromIndex: idx,
-      classTable: AMS2750G_CLASSES,
+      classTable: AMS2750_CLASSES,
     });
     const v = table.sensors.map((x) => {
       const w = x.readingsC.slice(idx);
@@ -450,7 +450,7 @@ async function seedSurveys(sequelize: Sequelize, pool: pg.Pool, nowMs: number, a
     const ins = await pool.query<{ id: number }>(
       `insert into oven_surveys (oven_asset_id, surveyed_at, setpoint_c, sensors, stabilised_from, stabilised_auto, hottest_deviation_c, coldest_deviation_c,
           uniformity_class, class_table_name, class_table, result, note, recorded_by)
-       values ($1, to_timestamp($2 / 1000.0), 110, $3::jsonb, to_timestamp($4 / 1000.0), true, $5, $6, $7, 'SAE AMS2750G furnace classes', $8::jsonb, $9::jsonb, 'demo seed (invented survey)', $10)
+       values ($1, to_timestamp($2 / 1000.0), 110, $3::jsonb, to_timestamp($4 / 1000.0), true, $5, $6, $7, 'SAE AMS2750F furnace classes (Table 11)', $8::jsonb, $9::jsonb, 'demo seed (invented survey)', $10)
        returning id`,
       [
         oven,
@@ -460,7 +460,7 @@ async function seedSurveys(sequelize: Sequelize, pool: pg.Pool, nowMs: number, a
         r.hottestDeviationC,
         r.coldestDeviationC,
         r.uniformityClass,
-        JSON.stringify(AMS2750G_CLASSES),
+        JSON.stringify(AMS2750_CLASSES),
         JSON.stringify({
           ...r,
           rows: table.minutes.length,

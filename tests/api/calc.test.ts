@@ -234,7 +234,7 @@ describe('POST /api/v1/calc/crosscut', () => {
 });
 
 describe('POST /api/v1/calc/uniformity', () => {
-  it('hottest +3.0 °C and coldest −2.5 °C at setpoint 110 °C → class 1 (±3 °C, AMS2750G)', async () => {
+  it('hottest +3.0 °C and coldest −2.5 °C at setpoint 110 °C → class 1 (±3 °C, AMS2750F)', async () => {
     const r = await post('uniformity', {
       setpointC: 110,
       sensors: [

@@ -1,7 +1,7 @@
 /**
  * Oven temperature-uniformity surveys through the API on constructed survey files: the
  * stabilised soak (automatic: every sensor ≥ setpoint − 2 °C, then 10 min — common practice —
- * or chosen), hottest and coldest deviation, the class from the SAE AMS2750G furnace-class table
+ * or chosen), hottest and coldest deviation, the class from the SAE AMS2750F Table 11 furnace-class table
  * (class 1 ±3 °C, 2 ±6, 3 ±8, 4 ±10, 5 ±14, 6 ±28 °C; a deviation equal to a tolerance is
  * inside it), calibration corrections, malformed files, and the overdue warning.
  */
@@ -50,7 +50,7 @@ afterAll(async () => {
     session: engineer,
     json: {
       intervalDays: 90,
-      classTableName: 'SAE AMS2750G furnace classes',
+      classTableName: 'SAE AMS2750F furnace classes (Table 11)',
       classTable: [1, 2, 3, 4, 5, 6].map((c, i) => ({ class: c, toleranceC: [3, 6, 8, 10, 14, 28][i] })),
     },
   });
@@ -58,7 +58,7 @@ afterAll(async () => {
 });
 
 describe('uniformity survey', () => {
-  it('automatic stabilisation leaves the overshoot out: ±1.5 °C → class 1 (AMS2750G ±3 °C)', async () => {
+  it('automatic stabilisation leaves the overshoot out: ±1.5 °C → class 1 (AMS2750F ±3 °C)', async () => {
     const r = await api('/api/v1/surveys/preview', {
       method: 'POST',
       session: quality,
@@ -151,7 +151,7 @@ describe('uniformity survey', () => {
     expect(one.body).toMatchObject({
       ovenAssetId: oven.id,
       uniformityClass: 1,
-      classTableName: 'SAE AMS2750G furnace classes',
+      classTableName: 'SAE AMS2750F furnace classes (Table 11)',
       stabilisedAuto: true,
     });
     expect(one.body.surveyedAt).toBe('2026-06-01T08:00:00.000Z');

@@ -17,7 +17,7 @@ import * as accounts from '../../src/lib/core/accounts-store.ts';
 import * as baths from '../../src/lib/core/bath-store.ts';
 import * as plant from '../../src/lib/core/plant-store.ts';
 import * as surveys from '../../src/lib/core/survey-store.ts';
-import { AMS2750G_CLASSES, uniformitySurvey } from '../../src/lib/domain/oven/uniformity.ts';
+import { AMS2750_CLASSES, uniformitySurvey } from '../../src/lib/domain/oven/uniformity.ts';
 import type { SurveySettings } from '../../src/lib/shared/surveys.ts';
 import type { SurveyComputation } from '../../src/lib/shared/trace-views.ts';
 
@@ -400,7 +400,7 @@ describe('oven surveys: record, file and audit row commit together', () => {
       { name: 'TC1', readingsC: [119.5, 120.2, 120.4], correctionC: 0 },
       { name: 'TC2', readingsC: [121.0, 121.5, 121.1], correctionC: 0 },
     ];
-    const result = uniformitySurvey({ setpointC: 120, sensors, stabilisedFromIndex: 0, classTable: AMS2750G_CLASSES });
+    const result = uniformitySurvey({ setpointC: 120, sensors, stabilisedFromIndex: 0, classTable: AMS2750_CLASSES });
     const c: SurveyComputation = {
       result,
       setpointC: 120,
@@ -417,7 +417,7 @@ describe('oven surveys: record, file and audit row commit together', () => {
         meanC: 0,
       })),
       classTableName: 'atomic table',
-      classTable: AMS2750G_CLASSES.map((x) => ({ ...x })),
+      classTable: AMS2750_CLASSES.map((x) => ({ ...x })),
       series: [],
     };
     const csv = 'minutes,TC1,TC2\n0,119.5,121.0\n1,120.2,121.5\n2,120.4,121.1\n';
@@ -445,7 +445,7 @@ describe('oven surveys: record, file and audit row commit together', () => {
     const changed: SurveySettings = {
       intervalDays: 77,
       classTableName: `atomic ${tag}`,
-      classTable: AMS2750G_CLASSES.map((x) => ({ ...x })),
+      classTable: AMS2750_CLASSES.map((x) => ({ ...x })),
     };
     try {
       await commitsTogether(

@@ -237,7 +237,7 @@ export function UniformityCalc() {
             strong
           />
           <Out
-            label="Uniformity class (AMS2750G template)"
+            label="Uniformity class (AMS2750F Table 11 template)"
             value={r.uniformityClass === null ? '✕ outside every class' : `class ${r.uniformityClass} (±${r.classToleranceC} °C)`}
             strong
           />

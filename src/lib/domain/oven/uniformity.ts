@@ -30,12 +30,6 @@ export const AMS2750_CLASSES: readonly UniformityClass[] = [
 ];
 
 /**
- * The same table under its earlier name. The values are those of AMS2750F Table 11; whether
- * revision G keeps them was not checked. @deprecated use {@link AMS2750_CLASSES}.
- */
-export const AMS2750G_CLASSES: readonly UniformityClass[] = AMS2750_CLASSES;
-
-/**
  * The tighter °C variant named in the note to AMS2750F Table 11 (some design authorities):
  * 1 ±3, 2 ±5, 3 ±7, 4 ±10, 5 ±14, 6 ±28. Not a different revision's table.
  */

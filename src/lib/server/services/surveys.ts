@@ -2,11 +2,11 @@
  * Oven temperature-uniformity surveys: a multi-sensor CSV is checked, the stabilised soak found
  * (chosen by the user, or automatically: every sensor within setpoint − 2 °C, then 10 minutes),
  * the hottest and coldest deviation and the uniformity class computed by the domain
- * (lib/domain/oven/uniformity.ts) against the configured class table (SAE AMS2750G furnace
+ * (lib/domain/oven/uniformity.ts) against the configured class table (SAE AMS2750F furnace
  * classes by default), and the survey stored per oven with its raw file. An oven whose last
  * survey is older than the configured interval (default 90 days, common practice) is overdue.
  */
-import { AMS2750G_CLASSES, uniformitySurvey, type UniformityResult } from '../../domain/oven/uniformity.ts';
+import { AMS2750_CLASSES, uniformitySurvey, type UniformityResult } from '../../domain/oven/uniformity.ts';
 import { lttb } from '../../domain/series/lttb.ts';
 import { CsvSyntaxError } from '../../shared/csv-table.ts';
 import {
@@ -29,8 +29,8 @@ import type { SurveyComputation, SurveyItem, OvenSurveyStatus } from '../../shar
 
 export const DEFAULT_SURVEY_SETTINGS: SurveySettings = {
   intervalDays: DEFAULT_SURVEY_INTERVAL_DAYS,
-  classTableName: 'SAE AMS2750G furnace classes',
-  classTable: AMS2750G_CLASSES.map((c) => ({ ...c })),
+  classTableName: 'SAE AMS2750F furnace classes (Table 11)',
+  classTable: AMS2750_CLASSES.map((c) => ({ ...c })),
 };
 
 export function surveySettings(): Promise<SurveySettings> {

@@ -13,5 +13,5 @@ export const contract = {
   }),
 };
 
-/** Oven uniformity survey: hottest and coldest deviation from setpoint and the class (AMS2750G template). */
+/** Oven uniformity survey: hottest and coldest deviation from setpoint and the class (AMS2750F Table 11 template). */
 export const POST = calcRoute(contract.POST, (input) => uniformitySurvey(input));
