@@ -13,6 +13,7 @@ import { poolView } from '../src/lib/core/record-db.ts';
 import { startProcessMetrics } from '../src/lib/core/process-metrics.ts';
 import { startBroker } from './broker.ts';
 import { loadConfig } from './config.ts';
+import { ingestClientId, ingestSubscriptionTopics } from '../src/lib/shared/topics.ts';
 
 const config = loadConfig();
 // The process's one Sequelize pool; the broker's few queries go through a pg-shaped view of it.
@@ -43,6 +44,11 @@ const broker = await startBroker({
   ...(maxPacket > 0 ? { maxPacketBytes: maxPacket } : {}),
   log,
   ...(process.env['BROKER_STATE_DIR'] ? { stateDir: process.env['BROKER_STATE_DIR'] } : {}),
+  // npm start names its one worker (INGEST_WORKER_ID=main): its session exists from the broker's
+  // first moment, so readings published before the worker has (re)connected wait for it.
+  ...(env['INGEST_WORKER_ID'] && !config.INGEST_SHARED_GROUP
+    ? { presetSessions: [{ clientId: ingestClientId(env['INGEST_WORKER_ID']), topics: ingestSubscriptionTopics() }] }
+    : {}),
 }).catch((e: NodeJS.ErrnoException) => {
   console.error(
     e.code === 'EADDRINUSE'

@@ -55,6 +55,13 @@ export interface BrokerOptions {
    * reading it acknowledged to a device. Without it the state is in memory (tests, benchmarks).
    */
   stateDir?: string;
+  /**
+   * Persistent sessions the broker holds from its first moment, before their client connects:
+   * the ingest worker's (client id and QoS 1 topics). What a device publishes while the worker
+   * is still connecting — at first start or after the broker was restarted — is queued for it
+   * instead of being dropped for want of a subscriber.
+   */
+  presetSessions?: { clientId: string; topics: string[] }[];
 }
 
 type ServiceAccount = 'svc-ingest' | 'svc-web';
@@ -192,6 +199,19 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
   // sessions with O(1) look-ups for the worker's many unacknowledged deliveries (broker-persistence.ts).
   const persistence = opts.stateDir ? await levelPersistence(opts.stateDir) : memoryPersistence();
   const aedes = await Aedes.createBroker({ heartbeatInterval: 30_000, persistence: persistence as never });
+  for (const preset of opts.presetSessions ?? []) {
+    // Only where no session exists yet (a durable state folder may already hold the worker's).
+    const store = persistence as unknown as {
+      subscriptionsByClient(c: { id: string }): Promise<unknown[] | null>;
+      addSubscriptions(c: { id: string }, subs: { topic: string; qos: 0 | 1 | 2 }[]): Promise<void>;
+    };
+    const existing = await store.subscriptionsByClient({ id: preset.clientId });
+    if (!existing || existing.length === 0)
+      await store.addSubscriptions(
+        { id: preset.clientId },
+        preset.topics.map((topic) => ({ topic, qos: 1 as const })),
+      );
+  }
   const ids = new WeakMap<Client, Identity>();
   const connectedDevices = new Set<Client>();
   const maxPacket = opts.maxPacketBytes ?? DEFAULT_MAX_PACKET_BYTES;

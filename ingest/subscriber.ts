@@ -32,7 +32,7 @@ import { HandlerQueue } from './handler-queue.ts';
 import { HealthReporter } from './health-reporter.ts';
 import { Journal } from './journal.ts';
 import { LivePublisher } from './live-publisher.ts';
-import { LIVE_ROOT, TOPIC_ROOT } from '../src/lib/shared/topics.ts';
+import { LIVE_ROOT, ingestClientId, ingestSubscriptionTopics } from '../src/lib/shared/topics.ts';
 
 export interface WorkerOptions {
   config: IngestConfig;
@@ -65,10 +65,7 @@ export interface RunningWorker {
   close(): Promise<void>;
 }
 
-export function subscriptionTopics(sharedGroup?: string): string[] {
-  const topics = [`${TOPIC_ROOT}/+/+/+/+`, `${TOPIC_ROOT}/+/+/status`];
-  return sharedGroup ? topics.map((t) => `$share/${sharedGroup}/${t}`) : topics;
-}
+export { ingestSubscriptionTopics as subscriptionTopics } from '../src/lib/shared/topics.ts';
 
 /** Tables the channel map is built from (a change to another table concerns only the handlers). */
 const MAP_TABLES = new Set<ConfigChange['table']>(['*', 'sites', 'assets', 'devices', 'channels']);
@@ -92,7 +89,7 @@ export async function startWorker({
   const options: IClientOptions = {
     username: 'svc-ingest',
     password: config.MQTT_SERVICE_PASSWORD,
-    clientId: `coatrail-ingest-${config.INGEST_WORKER_ID}`,
+    clientId: ingestClientId(config.INGEST_WORKER_ID),
     protocolVersion: 4,
     clean: false,
     reconnectPeriod: 1000,
@@ -101,7 +98,7 @@ export async function startWorker({
   };
   const client: MqttClient = mqtt.connect(config.mqttUrl, options);
   const acks = new AckAfterCommit(client);
-  const topics = subscriptionTopics(config.INGEST_SHARED_GROUP);
+  const topics = ingestSubscriptionTopics(config.INGEST_SHARED_GROUP);
   let subscribed = false;
   client.on('connect', (connack) => {
     log(`connected to ${config.mqttUrl}${connack.sessionPresent ? ' (session resumed)' : ''}`);

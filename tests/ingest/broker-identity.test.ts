@@ -221,3 +221,40 @@ describe('TLS listener', () => {
     await c.endAsync();
   });
 });
+
+describe('the worker’s preset session', () => {
+  it('queues what a device publishes before the worker has ever connected, and hands it over on connect', async () => {
+    const fresh = await startBroker({
+      pool: pool as never,
+      host: '127.0.0.1',
+      port: 0,
+      servicePassword: SHARED,
+      presetSessions: [{ clientId: 'coatrail-ingest-preset-test', topics: ['coatrail/v1/+/+/+/+'] }],
+    });
+    try {
+      // The device publishes first: with no session for the worker these would have no subscriber.
+      const d = await connectDevice(fresh.port, dev.username, dev.password);
+      for (let i = 0; i < 5; i++) await d.publishAsync(dev.topic('temp'), JSON.stringify({ t: Date.now(), v: i }), { qos: 1 });
+      await d.endAsync();
+      const heard: number[] = [];
+      const w = await mqtt.connectAsync(
+        `mqtt://127.0.0.1:${fresh.port}`,
+        {
+          username: 'svc-ingest',
+          password: SHARED,
+          clientId: 'coatrail-ingest-preset-test',
+          protocolVersion: 4,
+          clean: false,
+          reconnectPeriod: 0,
+        },
+        false,
+      );
+      w.on('message', (_t, buf) => heard.push((JSON.parse(buf.toString()) as { v: number }).v));
+      await waitFor(async () => heard.length === 5, 10_000, 'the five queued readings at the worker');
+      expect(heard).toEqual([0, 1, 2, 3, 4]);
+      await w.endAsync();
+    } finally {
+      await fresh.close();
+    }
+  });
+});

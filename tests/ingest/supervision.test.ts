@@ -129,29 +129,15 @@ describe('npm start supervises every process', () => {
 
     // The embedded broker keeps its sessions in memory (README "What a failure can lose"): what it
     // had acknowledged to the device but not yet handed to the worker when it was killed is lost.
-    // So the readings published from shortly before the broker's kill until the device is back
-    // on the new broker may be missing; every other reading must be stored exactly once.
+    // The worker's session is preset in every new broker (ingest/broker-main.ts), so what the device
+    // publishes after the restart waits for the worker even before it has reconnected: only the
+    // readings from shortly before the kill may be missing; every other one must be stored once.
     let brokerKilledAt = -1;
-    let deviceBackAt = -1;
-    // The worker's new session on the new broker exists once it has reconnected and subscribed:
-    // what the device publishes before that has no subscriber and is dropped (in-memory broker).
-    let workerBackAt = -1;
-    const workerConnects = () => out.split('[ingest] connected to').length;
-    let connectsAtKill = 0;
-    const watchWorker = setInterval(() => {
-      if (brokerKilledAt >= 0 && workerBackAt < 0 && workerConnects() > connectsAtKill) workerBackAt = published;
-    }, 20);
-    client.on('connect', () => {
-      if (brokerKilledAt >= 0 && deviceBackAt < 0) deviceBackAt = published;
-    });
     for (const name of ['broker', 'ingest worker', 'web server']) {
       await waitFor(async () => published > 100 && (await healthy()), 60_000, `a healthy product before killing the ${name}`);
       const before = proc(name);
       expect(before.state).toBe('running');
-      if (name === 'broker') {
-        connectsAtKill = workerConnects();
-        brokerKilledAt = published;
-      }
+      if (name === 'broker') brokerKilledAt = published;
       process.kill(before.pid!, 'SIGKILL');
       await waitFor(
         async () => proc(name).restarts === before.restarts + 1 && proc(name).state === 'running',
@@ -193,10 +179,9 @@ describe('npm start supervises every process', () => {
             [device.username, baseMs],
           )
         ).rows[0]!;
-      // In transit inside the broker at its kill: at most the last second of publishing (50 readings).
-      clearInterval(watchWorker);
-      // …and half a second for the worker's subscription to be in place after it connected.
-      const outageEnd = Math.max(deviceBackAt, workerBackAt + 25);
+      // In transit inside the broker at its kill: at most the last second of publishing (50
+      // readings), and the few published in the instant of the kill itself.
+      const outageEnd = brokerKilledAt + 5;
       const mayLose = (i: number) => i >= brokerKilledAt - 50 && i <= outageEnd;
       const storedIndexes = async () =>
         new Set(
@@ -210,8 +195,6 @@ describe('npm start supervises every process', () => {
           ).rows.map((r) => r.i),
         );
       expect(brokerKilledAt).toBeGreaterThan(0);
-      expect(deviceBackAt).toBeGreaterThan(brokerKilledAt);
-      expect(workerBackAt).toBeGreaterThan(brokerKilledAt);
       const final = await waitFor(
         async () => {
           const have = await storedIndexes();

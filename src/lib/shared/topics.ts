@@ -10,6 +10,15 @@
  */
 export const TOPIC_ROOT = 'coatrail/v1';
 export const LIVE_ROOT = `${TOPIC_ROOT}/_live`;
+
+/** The ingest worker's QoS 1 subscriptions (a `$share/<group>/` prefix behind an external broker with several workers). */
+export function ingestSubscriptionTopics(sharedGroup?: string): string[] {
+  const topics = [`${TOPIC_ROOT}/+/+/+/+`, `${TOPIC_ROOT}/+/+/status`];
+  return sharedGroup ? topics.map((t) => `$share/${sharedGroup}/${t}`) : topics;
+}
+
+/** The ingest worker's MQTT client id: stable per worker id, so a restarted worker resumes its session. */
+export const ingestClientId = (workerId: string) => `coatrail-ingest-${workerId}`;
 const SEG = /^[a-z0-9][a-z0-9-]{0,63}$/;
 
 export type ParsedTopic =
